@@ -1,0 +1,121 @@
+//! `pavestrat check`: validate a scenario and every file it names, and list every problem.
+//!
+//! Nothing is simulated. Problems go to stderr, each with file, line, field, what was found and
+//! what was expected; exit 2 when there is any error. A clean run prints a short summary of what
+//! was read, so a user can see the tool read their files as they meant.
+
+use super::{load_scenario, Context};
+use crate::error::{Error, Result};
+use crate::money::{grouped, Money};
+use std::path::PathBuf;
+
+/// Arguments of `check`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Scenario file (TOML). Without it, the built-in demo is checked.
+    #[arg(long, value_name = "FILE")]
+    pub scenario: Option<PathBuf>,
+}
+
+/// Run `check`.
+pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
+    let Some(run) = run else {
+        return Err(Error::Input(diags));
+    };
+    if !ctx.quiet {
+        for d in diags.sorted() {
+            eprintln!("{d}");
+        }
+    }
+    let s = &run.scenario;
+    let net = &run.network;
+    let regions = net.regions();
+    let lane_km: f64 = net
+        .sections
+        .iter()
+        .map(|x| x.length_km * f64::from(x.lanes))
+        .sum();
+    let per_section: u64 = 1 + run
+        .templates
+        .iter()
+        .map(|t| t.max_strategies())
+        .fold(0u64, u64::saturating_add);
+    let total: Money = s.budget_lines.iter().map(|b| b.limit).sum();
+    let mut groups: Vec<&str> = s.budget_lines.iter().map(|b| b.group.as_str()).collect();
+    groups.dedup();
+    let money = if s.money_label.is_empty() {
+        String::new()
+    } else {
+        format!(" {}", s.money_label)
+    };
+    let mut out = String::new();
+    out.push_str(&format!(
+        "{}: no errors, {} note{}\n",
+        s.file,
+        diags.note_count(),
+        if diags.note_count() == 1 { "" } else { "s" }
+    ));
+    out.push_str(&format!(
+        "  scenario    {}; base year {}, {} years to {}; discount rate {:.2} % ({})\n",
+        if s.title.is_empty() {
+            "(untitled)"
+        } else {
+            &s.title
+        },
+        s.base_year,
+        s.analysis_years,
+        s.last_year(),
+        s.discounting.rate() * 100.0,
+        s.discounting.timing()
+    ));
+    out.push_str(&format!(
+        "  network     {} sections, {} km, {} lane-km{}\n",
+        net.sections.len(),
+        grouped(net.length_km(), 1),
+        grouped(lane_km, 1),
+        if regions.is_empty() {
+            String::new()
+        } else {
+            format!(", regions {}", regions.join(", "))
+        }
+    ));
+    out.push_str(&format!(
+        "  treatments  {} in {}, plus routine maintenance\n",
+        run.catalogue.treatments.len(),
+        run.catalogue.file
+    ));
+    out.push_str(&format!(
+        "  templates   {}, at most {} strategies per section before feasibility rules (base included)\n",
+        run.templates.len(),
+        per_section
+    ));
+    if s.budget_lines.is_empty() {
+        out.push_str("  budgets     none (selection will be unconstrained)\n");
+    } else {
+        let first = s
+            .budget_lines
+            .iter()
+            .map(|b| b.year)
+            .min()
+            .unwrap_or(s.base_year);
+        let last = s
+            .budget_lines
+            .iter()
+            .map(|b| b.year)
+            .max()
+            .unwrap_or(s.base_year);
+        out.push_str(&format!(
+            "  budgets     {} lines in {} group{} ({}), {first}–{last}, {}{money} in all\n",
+            s.budget_lines.len(),
+            groups.len(),
+            if groups.len() == 1 { "" } else { "s" },
+            groups.join(", "),
+            grouped(total.to_f64(), 0),
+        ));
+    }
+    if !ctx.quiet {
+        crate::io::print_stdout(&out)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,189 @@
+//! The command line: global options, one module per subcommand, and the mapping of errors to
+//! exit codes.
+//!
+//! Conventions every command keeps: `--out DIR` writes its files into DIR (created if missing;
+//! all or nothing, see [`crate::io::OutputSet`]); `--quiet` leaves only errors on stderr (data a
+//! command was asked to print on stdout still prints); `-` reads standard input.
+
+pub mod cashflow;
+pub mod check;
+
+use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
+use clap::{Parser, Subcommand};
+use std::ffi::OsString;
+use std::path::{Path, PathBuf};
+
+const AFTER_HELP: &str = "\
+Exit codes: 0 success; 1 internal fault; 2 bad input (every problem is listed with its file, \
+line and field); 3 no feasible plan.
+
+Planning-level estimates only. Pavement designs, safety decisions and cost data must follow \
+local standards and be reviewed and signed by a licensed engineer.";
+
+/// pavestrat — what pavement work each road section should get, and when.
+///
+/// Simulates each section's condition, traffic and costs under every timing strategy, appraises
+/// each against the base case (routine maintenance only), and chooses the best strategy per
+/// section within yearly budgets.
+#[derive(Debug, Parser)]
+#[command(name = "pavestrat", version, after_help = AFTER_HELP, max_term_width = 100)]
+pub struct Cli {
+    /// Print errors only (no notes, summaries or progress).
+    #[arg(long, short, global = true)]
+    pub quiet: bool,
+
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Validate a scenario and every file it names; list every problem.
+    Check(check::Args),
+    /// Appraise a plain cash-flow stream, or compare alternatives incrementally.
+    Cashflow(cashflow::Args),
+}
+
+/// What every command receives besides its own arguments.
+#[derive(Debug, Clone, Copy)]
+pub struct Context {
+    pub quiet: bool,
+}
+
+impl Context {
+    /// Print a line on stderr unless quiet.
+    pub fn say(&self, text: &str) {
+        if !self.quiet {
+            eprintln!("{text}");
+        }
+    }
+}
+
+/// Run the tool with these arguments (the first is the program name) and return the exit code.
+/// Errors are printed to stderr here, once.
+pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() {
+                EXIT_BAD_INPUT
+            } else {
+                EXIT_OK
+            };
+            let _ = e.print();
+            return code;
+        }
+    };
+    let ctx = Context { quiet: cli.quiet };
+    let result = std::panic::catch_unwind(|| run(cli.command, ctx));
+    match result {
+        Ok(Ok(())) => EXIT_OK,
+        Ok(Err(e)) => {
+            print_error(&e, ctx);
+            e.exit_code()
+        }
+        Err(_) => {
+            eprintln!(
+                "internal fault: pavestrat stopped unexpectedly (see the message above); \
+                 please report it with the input that caused it"
+            );
+            EXIT_INTERNAL
+        }
+    }
+}
+
+fn print_error(e: &Error, ctx: Context) {
+    match e {
+        Error::Input(d) => {
+            for item in d.sorted() {
+                if !ctx.quiet || item.severity == crate::diag::Severity::Error {
+                    eprintln!("{item}");
+                }
+            }
+            let n = d.error_count();
+            eprintln!(
+                "{n} problem{} found in the input",
+                if n == 1 { "" } else { "s" }
+            );
+        }
+        other => eprintln!("error: {other}"),
+    }
+}
+
+fn run(command: Command, ctx: Context) -> Result<()> {
+    match command {
+        Command::Check(a) => check::run(a, ctx),
+        Command::Cashflow(a) => cashflow::run(a, ctx),
+    }
+}
+
+/// Load the scenario named on the command line, or the built-in demo when none is (saying so).
+pub fn load_scenario(
+    scenario: Option<&Path>,
+    ctx: Context,
+) -> (Option<crate::input::Run>, crate::diag::Diagnostics) {
+    match scenario {
+        Some(p) => crate::input::load(&crate::input::Disk, p),
+        None => {
+            ctx.say("note: no --scenario given; using the built-in demo (Vellmark district, invented data)");
+            crate::input::load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO))
+        }
+    }
+}
+
+/// Parse a rate given as a fraction (`0.06`) or a percentage (`6%`).
+pub fn parse_rate(s: &str) -> std::result::Result<f64, String> {
+    let t = s.trim();
+    let (num, percent) = match t.strip_suffix('%') {
+        Some(n) => (n.trim(), true),
+        None => (t, false),
+    };
+    let scale = if percent { 100.0 } else { 1.0 };
+    let x: f64 = num
+        .parse()
+        .map_err(|_| format!("`{s}` is not a rate; write a fraction such as 0.06, or 6%"))?;
+    let r = x / scale;
+    if !r.is_finite() || r <= -1.0 {
+        return Err(format!(
+            "`{s}` is not a usable rate; expected more than -100 %"
+        ));
+    }
+    if !percent && r > 1.0 {
+        return Err(format!(
+            "`{s}` would be a rate of {:.0} %; write a fraction such as 0.06, or 6%",
+            r * 100.0
+        ));
+    }
+    Ok(r)
+}
+
+/// The `--out` directory argument shared by commands.
+#[derive(Debug, Clone, clap::Args)]
+pub struct OutArg {
+    /// Write output files into this directory (created if missing; nothing is written on error).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rates_as_fractions_or_percentages() {
+        assert_eq!(parse_rate("0.06"), Ok(0.06));
+        assert!((parse_rate("6%").unwrap() - 0.06).abs() < 1e-15);
+        assert!((parse_rate(" 7.5 % ").unwrap() - 0.075).abs() < 1e-15);
+        assert!(parse_rate("6").unwrap_err().contains("600 %"));
+        assert!(parse_rate("abc").is_err());
+        assert!(parse_rate("-100%").is_err());
+        assert!(parse_rate("NaN").is_err());
+    }
+
+    #[test]
+    fn cli_definition_is_consistent() {
+        use clap::CommandFactory;
+        Cli::command().debug_assert();
+    }
+}

@@ -1,0 +1,305 @@
+//! Inputs: read every file of a run once, validate it, and resolve it into one typed [`Run`].
+//!
+//! The scenario names the other files; each is read through a [`Source`] (the disk, or the demo
+//! built into the binary), decoded ([`crate::text`]), parsed from its text by its own module, and
+//! then checked against the others (templates against the catalogue, budget regions against the
+//! network, windows against the analysis period). Every problem of every file lands in one
+//! [`Diagnostics`] list; later stages receive only a `Run` that passed.
+
+pub mod cashflow;
+pub mod network;
+pub mod scenario;
+pub mod templates;
+pub mod tomldoc;
+pub mod treatments;
+
+use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::text::decode;
+use network::Network;
+use scenario::{FileRef, Scenario};
+use std::path::{Path, PathBuf};
+use templates::Template;
+use treatments::Catalogue;
+
+/// Where input files come from.
+pub trait Source {
+    /// The bytes of a file.
+    fn read(&self, path: &Path) -> std::io::Result<Vec<u8>>;
+    /// How the file is named in messages.
+    fn label(&self, path: &Path) -> String;
+}
+
+/// Files on disk (or standard input for `-`).
+pub struct Disk;
+
+impl Source for Disk {
+    fn read(&self, path: &Path) -> std::io::Result<Vec<u8>> {
+        crate::io::read_input(&path.to_string_lossy())
+    }
+
+    fn label(&self, path: &Path) -> String {
+        crate::io::input_label(&path.to_string_lossy())
+    }
+}
+
+/// Files compiled into the binary, by name.
+pub struct Embedded {
+    pub name: &'static str,
+    pub files: &'static [(&'static str, &'static [u8])],
+}
+
+impl Source for Embedded {
+    fn read(&self, path: &Path) -> std::io::Result<Vec<u8>> {
+        let key = path.to_string_lossy();
+        self.files
+            .iter()
+            .find(|(n, _)| *n == key)
+            .map(|(_, b)| b.to_vec())
+            .ok_or_else(|| {
+                std::io::Error::new(std::io::ErrorKind::NotFound, "not in the built-in files")
+            })
+    }
+
+    fn label(&self, path: &Path) -> String {
+        format!("<{}>/{}", self.name, path.display())
+    }
+}
+
+/// Everything a run needs, validated.
+#[derive(Debug, Clone)]
+pub struct Run {
+    pub scenario: Scenario,
+    pub network: Network,
+    pub catalogue: Catalogue,
+    pub templates: Vec<Template>,
+}
+
+/// Read a file, recording a failure at `place` (where the file is named) or at the file itself.
+fn read_text(
+    source: &dyn Source,
+    path: &Path,
+    named_at: Option<&Place>,
+    d: &mut Diagnostics,
+) -> Option<(String, String)> {
+    let label = source.label(path);
+    match source.read(path) {
+        Ok(bytes) => Some((label.clone(), decode(&label, &bytes, d))),
+        Err(e) => {
+            let (place, found) = match named_at {
+                Some(p) => (p.clone(), format!("cannot read `{label}`: {e}")),
+                None => (
+                    Place::file(label.clone()),
+                    format!("cannot read the file: {e}"),
+                ),
+            };
+            d.error(place, found, "an existing, readable file");
+            None
+        }
+    }
+}
+
+/// The directory relative paths in a scenario resolve against.
+fn scenario_dir(path: &Path) -> PathBuf {
+    if path == Path::new("-") {
+        return PathBuf::new();
+    }
+    path.parent().map(Path::to_path_buf).unwrap_or_default()
+}
+
+/// Load and validate a whole run. Returns the run when there were no errors, and every finding
+/// (notes included) either way.
+pub fn load(source: &dyn Source, scenario_path: &Path) -> (Option<Run>, Diagnostics) {
+    let mut d = Diagnostics::new();
+    let run = load_into(source, scenario_path, &mut d);
+    (run.filter(|_| !d.has_errors()), d)
+}
+
+fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> Option<Run> {
+    let (label, text) = read_text(source, scenario_path, None, d)?;
+    let scenario = scenario::parse(&label, &text, &scenario_dir(scenario_path), d)?;
+
+    let read = |f: &FileRef, d: &mut Diagnostics| read_text(source, &f.path, Some(&f.place), d);
+
+    let network = read(&scenario.files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
+    let catalogue =
+        read(&scenario.files.treatments, d).and_then(|(l, t)| treatments::parse(&l, &t, d));
+    let mut templates: Vec<Template> = Vec::new();
+    let mut templates_ok = true;
+    for f in &scenario.files.strategies {
+        match read(f, d).and_then(|(l, t)| templates::parse(&l, &t, d)) {
+            Some(ts) => {
+                for t in ts {
+                    if let Some(prev) = templates.iter().find(|p| p.name == t.name) {
+                        d.error(
+                            t.place.clone(),
+                            format!(
+                                "the template name `{}` again (first in {})",
+                                t.name, prev.place
+                            ),
+                            "each template name once across all strategy files",
+                        );
+                        templates_ok = false;
+                    } else {
+                        templates.push(t);
+                    }
+                }
+            }
+            None => templates_ok = false,
+        }
+    }
+
+    if let Some(cat) = &catalogue {
+        check_template_treatments(&templates, cat, d);
+    }
+    check_template_years(&templates, &scenario, d);
+    if let Some(net) = &network {
+        check_network_against_scenario(net, &scenario, d);
+    }
+    let (network, catalogue) = (network?, catalogue?);
+    if !templates_ok {
+        return None;
+    }
+    Some(Run {
+        scenario,
+        network,
+        catalogue,
+        templates,
+    })
+}
+
+fn check_template_treatments(templates: &[Template], cat: &Catalogue, d: &mut Diagnostics) {
+    let ids: Vec<&str> = cat.treatments.iter().map(|t| t.id.as_str()).collect();
+    let unknown = |name: &str, place: &Place, d: &mut Diagnostics| {
+        if cat.get(name).is_none() {
+            let e = d.error(
+                place.clone(),
+                format!("unknown treatment `{name}`"),
+                format!("a treatment of {}: {}", cat.file, ids.join(", ")),
+            );
+            if let Some(m) = did_you_mean(name, &ids) {
+                e.hint = Some(format!("did you mean `{m}`?"));
+            }
+            false
+        } else {
+            true
+        }
+    };
+    for t in templates {
+        for s in &t.steps {
+            unknown(&s.treatment, &s.place, d);
+        }
+        if let Some(tr) = &t.trigger {
+            if unknown(&tr.treatment, &tr.place, d) {
+                if let Some(tt) = cat.get(&tr.treatment) {
+                    if tt.action == treatments::Action::Widen {
+                        d.error(
+                            tr.place.clone(),
+                            format!("a roughness trigger on the widening `{}`", tr.treatment),
+                            "a surfacing or strengthening treatment (widen in timed steps)",
+                        );
+                    }
+                }
+            }
+        }
+    }
+}
+
+fn check_template_years(templates: &[Template], s: &Scenario, d: &mut Diagnostics) {
+    let n = s.analysis_years;
+    for t in templates {
+        for st in &t.steps {
+            if let templates::StepTiming::Window { first, last, .. } = st.timing {
+                if first >= n {
+                    d.error(
+                        st.place.clone(),
+                        format!("a window starting {first} years after the base year"),
+                        format!(
+                            "a start within the {n}-year analysis period (0 to {})",
+                            n - 1
+                        ),
+                    );
+                } else if last >= n {
+                    d.note(
+                        st.place.clone(),
+                        format!(
+                            "the window runs to {last} years after the base year; years past the \
+                             {n}-year analysis period are not used"
+                        ),
+                    );
+                }
+            }
+        }
+    }
+}
+
+fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnostics) {
+    let regions = net.regions();
+    let mut reported: Vec<&str> = Vec::new();
+    for b in &s.budget_lines {
+        if let Some(r) = &b.region {
+            if !regions.contains(&r.as_str()) && !reported.contains(&b.group.as_str()) {
+                reported.push(&b.group);
+                let e = d.error(
+                    b.place.clone().with_field("region"),
+                    format!("the region `{r}`, which no section of {} has", net.file),
+                    if regions.is_empty() {
+                        "a region column in the network file".to_owned()
+                    } else {
+                        format!("one of the network's regions: {}", regions.join(", "))
+                    },
+                );
+                if let Some(m) = did_you_mean(r, &regions) {
+                    e.hint = Some(format!("did you mean `{m}`?"));
+                }
+            }
+        }
+    }
+    for sec in &net.sections {
+        if let Some(y) = sec.last_works_year {
+            if y > s.base_year {
+                d.error(
+                    Place::line(net.file.clone(), sec.line).with_field("last_works_year"),
+                    format!("found {y}, after the base year {}", s.base_year),
+                    "a year no later than the base year",
+                );
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn built_in_demo_is_valid() {
+        let (run, d) = load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO));
+        assert!(!d.has_errors(), "{d}");
+        let run = run.expect("the demo loads");
+        assert!(run.network.sections.len() >= 30);
+        assert!(!run.templates.is_empty());
+        assert!(!run.scenario.budget_lines.is_empty());
+    }
+
+    #[test]
+    fn a_missing_file_is_reported_where_it_is_named() {
+        static FILES: &[(&str, &[u8])] = &[("s.toml", include_bytes!("../demo/scenario.toml"))];
+        let src = Embedded {
+            name: "t",
+            files: FILES,
+        };
+        let (run, d) = load(&src, Path::new("s.toml"));
+        assert!(run.is_none());
+        let errs = d.errors();
+        assert!(errs.len() >= 3, "{d}");
+        assert!(
+            errs.iter()
+                .all(|e| e.place.file == "<t>/s.toml" && e.place.line.is_some()),
+            "{d}"
+        );
+        assert!(
+            d.to_string().contains("cannot read `<t>/network.csv`"),
+            "{d}"
+        );
+    }
+}

@@ -1,0 +1,677 @@
+//! The network file (CSV): one row per road section.
+//!
+//! Required columns, exactly these names: `section_id, length_km, lanes, carriageway, iri,
+//! structural_number, aadt, heavy_share, growth_rate`. Optional: `region, lane_width_m, surface,
+//! subgrade_mr_mpa, last_works_year, speed_kmh`. Columns starting `x_` are the user's own notes,
+//! carried along untouched; any other column is an error (a misspelt optional column would
+//! otherwise be silently ignored). Every field is read as text and converted here, so nothing is
+//! type-guessed. All problems of all rows are reported, each with its line and column name.
+
+use crate::diag::{did_you_mean, Diagnostics, Place};
+use std::collections::HashMap;
+use std::fmt;
+
+/// A section's identifier, as written in the network file.
+#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct SectionId(pub String);
+
+impl fmt::Display for SectionId {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+/// Single carriageway (two-way, undivided) or divided (dual carriageway).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Carriageway {
+    Single,
+    Divided,
+}
+
+impl Carriageway {
+    pub fn name(self) -> &'static str {
+        match self {
+            Carriageway::Single => "single",
+            Carriageway::Divided => "divided",
+        }
+    }
+
+    pub fn parse(s: &str) -> Option<Carriageway> {
+        match s {
+            "single" => Some(Carriageway::Single),
+            "divided" => Some(Carriageway::Divided),
+            _ => None,
+        }
+    }
+}
+
+/// One road section.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Section {
+    pub id: SectionId,
+    /// Line of the network file it was read from.
+    pub line: usize,
+    pub length_km: f64,
+    pub lanes: u8,
+    pub carriageway: Carriageway,
+    /// Roughness, m/km.
+    pub iri: f64,
+    /// AASHTO structural number of the pavement.
+    pub structural_number: f64,
+    /// Annual average daily traffic in the base year, vehicles/day (both directions).
+    pub aadt: f64,
+    /// Share of heavy vehicles in the AADT, 0–1.
+    pub heavy_share: f64,
+    /// Yearly compound traffic growth, as a fraction.
+    pub growth_rate: f64,
+    pub region: Option<String>,
+    pub lane_width_m: Option<f64>,
+    pub surface: Option<String>,
+    pub subgrade_mr_mpa: Option<f64>,
+    pub last_works_year: Option<i32>,
+    pub speed_kmh: Option<f64>,
+    /// The `x_` columns' values, in the order of [`Network::note_columns`].
+    pub notes: Vec<String>,
+}
+
+/// The resolved network.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Network {
+    pub file: String,
+    pub sections: Vec<Section>,
+    /// Names of the user's `x_` columns.
+    pub note_columns: Vec<String>,
+}
+
+impl Network {
+    /// Total length, km (summed in file order).
+    pub fn length_km(&self) -> f64 {
+        self.sections.iter().map(|s| s.length_km).sum()
+    }
+
+    /// Distinct regions, sorted.
+    pub fn regions(&self) -> Vec<&str> {
+        let mut r: Vec<&str> = self
+            .sections
+            .iter()
+            .filter_map(|s| s.region.as_deref())
+            .collect();
+        r.sort_unstable();
+        r.dedup();
+        r
+    }
+}
+
+/// The required columns, in the documented order.
+pub const REQUIRED: [&str; 9] = [
+    "section_id",
+    "length_km",
+    "lanes",
+    "carriageway",
+    "iri",
+    "structural_number",
+    "aadt",
+    "heavy_share",
+    "growth_rate",
+];
+
+/// The optional columns.
+pub const OPTIONAL: [&str; 6] = [
+    "region",
+    "lane_width_m",
+    "surface",
+    "subgrade_mr_mpa",
+    "last_works_year",
+    "speed_kmh",
+];
+
+/// Read the network from decoded CSV text.
+pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
+    if text.trim().is_empty() {
+        d.error(
+            Place::line(file, 1),
+            "the file is empty",
+            format!(
+                "a header line naming the columns {} and one row per section",
+                REQUIRED.join(", ")
+            ),
+        );
+        return None;
+    }
+    if let Some(pos) = text.find('"') {
+        let line = 1 + text[..pos].matches('\n').count();
+        d.note(
+            Place::line(file, line),
+            "quoted fields; accepted (quotes removed)",
+        );
+    }
+    let mut rdr = csv::ReaderBuilder::new()
+        .has_headers(true)
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(text.as_bytes());
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            d.error(
+                Place::line(file, 1),
+                format!("unreadable header: {e}"),
+                "a CSV header line",
+            );
+            return None;
+        }
+    };
+    let cols = read_header(file, &headers, d)?;
+
+    let mut sections = Vec::new();
+    let mut seen: HashMap<String, usize> = HashMap::new();
+    let mut rows = 0usize;
+    let mut record = csv::StringRecord::new();
+    loop {
+        match rdr.read_record(&mut record) {
+            Ok(false) => break,
+            Ok(true) => {}
+            Err(e) => {
+                let line = e.position().map_or(0, |p| p.line() as usize);
+                d.error(
+                    Place::line(file, line),
+                    format!("unreadable CSV: {e}"),
+                    "well-formed CSV",
+                );
+                break;
+            }
+        }
+        let line = record.position().map_or(0, |p| p.line() as usize);
+        if record.iter().all(str::is_empty) {
+            continue; // blank line
+        }
+        rows += 1;
+        if record.len() != headers.len() {
+            d.error(
+                Place::line(file, line),
+                format!("found {} fields", record.len()),
+                format!("{} fields, one per header column", headers.len()),
+            );
+            continue;
+        }
+        // Duplicates are checked on the raw id, so a bad row still claims its id.
+        let id = record.get(cols.required[0]).unwrap_or("").to_owned();
+        let duplicate = match seen.get(&id) {
+            Some(first) if !id.is_empty() => {
+                d.error(
+                    Place::line(file, line).with_field("section_id"),
+                    format!("duplicate section_id `{id}` (first on line {first})"),
+                    "each section_id once",
+                );
+                true
+            }
+            _ => {
+                seen.insert(id, line);
+                false
+            }
+        };
+        let mut row = Row {
+            file,
+            line,
+            record: &record,
+            cols: &cols,
+            d,
+            ok: true,
+        };
+        if let Some(s) = row.section() {
+            if !duplicate {
+                sections.push(s);
+            }
+        }
+    }
+    if rows == 0 {
+        d.error(
+            Place::line(file, 1),
+            "a header but no rows",
+            "at least one section after the header line",
+        );
+        return None;
+    }
+    if d.has_errors() {
+        return None;
+    }
+    Some(Network {
+        file: file.to_owned(),
+        sections,
+        note_columns: cols.notes.iter().map(|(n, _)| n.clone()).collect(),
+    })
+}
+
+/// Column positions.
+struct Columns {
+    required: [usize; 9],
+    optional: [Option<usize>; 6],
+    notes: Vec<(String, usize)>,
+}
+
+fn read_header(file: &str, headers: &csv::StringRecord, d: &mut Diagnostics) -> Option<Columns> {
+    let mut pos: HashMap<&str, usize> = HashMap::new();
+    let mut notes = Vec::new();
+    let mut ok = true;
+    let known: Vec<&str> = REQUIRED.iter().chain(OPTIONAL.iter()).copied().collect();
+    for (i, h) in headers.iter().enumerate() {
+        let place = Place::line(file, 1).with_field(format!("column {} `{h}`", i + 1));
+        if h.is_empty() {
+            d.error(place, "an empty column name", "a column name");
+            ok = false;
+        } else if pos.contains_key(h) || notes.iter().any(|(n, _)| n == h) {
+            d.error(place, format!("the column `{h}` twice"), "each column once");
+            ok = false;
+        } else if h.starts_with("x_") {
+            notes.push((h.to_owned(), i));
+        } else if known.contains(&h) {
+            pos.insert(h, i);
+        } else {
+            let e = d.error(
+                place,
+                format!("unknown column `{h}`"),
+                "a documented column, or a name starting `x_` for your own notes",
+            );
+            if let Some(m) = did_you_mean(h, &known) {
+                e.hint = Some(format!("did you mean `{m}`?"));
+            }
+            ok = false;
+        }
+    }
+    let mut required = [0usize; 9];
+    for (k, name) in REQUIRED.iter().enumerate() {
+        match pos.get(name) {
+            Some(&i) => required[k] = i,
+            None => {
+                d.error(
+                    Place::line(file, 1),
+                    format!("no `{name}` column"),
+                    format!("the required columns {}", REQUIRED.join(", ")),
+                );
+                ok = false;
+            }
+        }
+    }
+    let mut optional = [None; 6];
+    for (k, name) in OPTIONAL.iter().enumerate() {
+        optional[k] = pos.get(name).copied();
+    }
+    ok.then_some(Columns {
+        required,
+        optional,
+        notes,
+    })
+}
+
+/// One data row being converted; every failed field is recorded and marks the row bad.
+struct Row<'a> {
+    file: &'a str,
+    line: usize,
+    record: &'a csv::StringRecord,
+    cols: &'a Columns,
+    d: &'a mut Diagnostics,
+    ok: bool,
+}
+
+impl<'a> Row<'a> {
+    fn bad(&mut self, field: &str, found: String, expected: &str) {
+        self.d.error(
+            Place::line(self.file, self.line).with_field(field),
+            found,
+            expected.to_owned(),
+        );
+        self.ok = false;
+    }
+
+    fn raw(&self, k: usize) -> &'a str {
+        let record: &'a csv::StringRecord = self.record;
+        record.get(self.cols.required[k]).unwrap_or("")
+    }
+
+    fn opt_raw(&self, k: usize) -> Option<&str> {
+        self.cols.optional[k]
+            .and_then(|i| self.record.get(i))
+            .filter(|s| !s.is_empty())
+    }
+
+    /// A finite number in `lo..=hi` (checked as `lo < x` when `open_lo`).
+    fn number(
+        &mut self,
+        field: &str,
+        raw: &str,
+        lo: f64,
+        hi: f64,
+        open_lo: bool,
+        expected: &str,
+    ) -> Option<f64> {
+        let raw = raw.to_owned();
+        if raw.is_empty() {
+            self.bad(field, "an empty value".into(), expected);
+            return None;
+        }
+        let Ok(x) = raw.parse::<f64>() else {
+            let hint = if raw.contains(',') {
+                " (use `.` as the decimal point)"
+            } else {
+                ""
+            };
+            self.bad(field, format!("found `{raw}`{hint}"), expected);
+            return None;
+        };
+        if !x.is_finite() {
+            self.bad(
+                field,
+                format!("found `{raw}` (NaN and infinity are not allowed)"),
+                expected,
+            );
+            return None;
+        }
+        if x < lo || x > hi || (open_lo && x <= lo) {
+            let note = if x < 0.0 && lo >= 0.0 {
+                " (negative)"
+            } else {
+                ""
+            };
+            self.bad(field, format!("found {raw}{note}"), expected);
+            return None;
+        }
+        Some(x)
+    }
+
+    fn fraction(
+        &mut self,
+        field: &str,
+        raw: &str,
+        lo: f64,
+        hi: f64,
+        expected: &str,
+    ) -> Option<f64> {
+        let x = self.number(field, raw, f64::MIN, f64::MAX, false, expected)?;
+        if x < lo || x > hi {
+            let hint = if x > 1.0 && x <= 100.0 {
+                format!(
+                    "found {raw} (a percentage? write {} for {raw} %)",
+                    x / 100.0
+                )
+            } else {
+                format!("found {raw}")
+            };
+            self.bad(field, hint, expected);
+            return None;
+        }
+        Some(x)
+    }
+
+    fn section(&mut self) -> Option<Section> {
+        let id = self.raw(0).to_owned();
+        if id.is_empty() {
+            self.bad(
+                "section_id",
+                "an empty value".into(),
+                "an identifier for the section",
+            );
+        }
+        let length_km = self.number(
+            "length_km",
+            self.raw(1),
+            0.0,
+            1000.0,
+            true,
+            "a length in km, more than 0 and at most 1000",
+        );
+        let lanes_raw = self.raw(2).to_owned();
+        let lanes = match lanes_raw.parse::<u8>() {
+            Ok(n) if (1..=12).contains(&n) => Some(n),
+            _ => {
+                self.bad(
+                    "lanes",
+                    format!("found `{lanes_raw}`"),
+                    "a whole number of lanes from 1 to 12 (both directions)",
+                );
+                None
+            }
+        };
+        let cw_raw = self.raw(3).to_owned();
+        let carriageway = Carriageway::parse(&cw_raw);
+        if carriageway.is_none() {
+            self.bad(
+                "carriageway",
+                format!("found `{cw_raw}`"),
+                "`single` or `divided`",
+            );
+        }
+        let iri = self.number(
+            "iri",
+            self.raw(4),
+            0.0,
+            25.0,
+            true,
+            "roughness (IRI) in m/km, more than 0 and at most 25",
+        );
+        let sn = self.number(
+            "structural_number",
+            self.raw(5),
+            0.0,
+            15.0,
+            true,
+            "an AASHTO structural number, more than 0 and at most 15",
+        );
+        let aadt = self.number(
+            "aadt",
+            self.raw(6),
+            0.0,
+            500_000.0,
+            false,
+            "annual average daily traffic, vehicles/day, from 0 to 500000",
+        );
+        let heavy = self.fraction(
+            "heavy_share",
+            self.raw(7),
+            0.0,
+            1.0,
+            "a share from 0 to 1 (0.12 for 12 %)",
+        );
+        let growth = self.fraction(
+            "growth_rate",
+            self.raw(8),
+            -0.5,
+            0.5,
+            "a yearly growth rate as a fraction from -0.5 to 0.5 (0.03 for 3 %)",
+        );
+
+        let region = self.opt_raw(0).map(str::to_owned);
+        let lane_width_m = match self.opt_raw(1).map(str::to_owned) {
+            Some(r) => Some(self.number(
+                "lane_width_m",
+                &r,
+                2.0,
+                6.0,
+                false,
+                "a lane width in metres from 2 to 6",
+            )?),
+            None => None,
+        };
+        let surface = match self.opt_raw(2).map(str::to_owned) {
+            Some(s) if super::tomldoc::is_identifier(&s) => Some(s),
+            Some(s) => {
+                self.bad(
+                    "surface",
+                    format!("found `{s}`"),
+                    "a surface (pavement family) name of letters, digits, `_` and `-`",
+                );
+                None
+            }
+            None => None,
+        };
+        let subgrade = match self.opt_raw(3).map(str::to_owned) {
+            Some(r) => self.number(
+                "subgrade_mr_mpa",
+                &r,
+                5.0,
+                1000.0,
+                false,
+                "a subgrade resilient modulus in MPa from 5 to 1000",
+            ),
+            None => None,
+        };
+        let last_works_year = match self.opt_raw(4).map(str::to_owned) {
+            Some(r) => match r.parse::<i32>() {
+                Ok(y) if (1900..=2200).contains(&y) => Some(y),
+                _ => {
+                    self.bad(
+                        "last_works_year",
+                        format!("found `{r}`"),
+                        "a year from 1900 to 2200",
+                    );
+                    None
+                }
+            },
+            None => None,
+        };
+        let speed = match self.opt_raw(5).map(str::to_owned) {
+            Some(r) => self.number(
+                "speed_kmh",
+                &r,
+                5.0,
+                200.0,
+                false,
+                "a speed in km/h from 5 to 200",
+            ),
+            None => None,
+        };
+        let notes = self
+            .cols
+            .notes
+            .iter()
+            .map(|(_, i)| self.record.get(*i).unwrap_or("").to_owned())
+            .collect();
+        if !self.ok {
+            return None;
+        }
+        Some(Section {
+            id: SectionId(id),
+            line: self.line,
+            length_km: length_km?,
+            lanes: lanes?,
+            carriageway: carriageway?,
+            iri: iri?,
+            structural_number: sn?,
+            aadt: aadt?,
+            heavy_share: heavy?,
+            growth_rate: growth?,
+            region,
+            lane_width_m,
+            surface,
+            subgrade_mr_mpa: subgrade,
+            last_works_year,
+            speed_kmh: speed,
+            notes,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const HEAD: &str =
+        "section_id,length_km,lanes,carriageway,iri,structural_number,aadt,heavy_share,growth_rate";
+
+    fn read(text: &str) -> (Option<Network>, Diagnostics) {
+        let mut d = Diagnostics::new();
+        let n = parse("n.csv", text, &mut d);
+        (n, d)
+    }
+
+    #[test]
+    fn reads_required_optional_and_note_columns() {
+        let text = format!("{HEAD},region,x_owner\nA1,2.5,2,single,3.1,3.2,4200,0.12,0.03,north,county\nA2,1,4,divided,2.0,5,15000,0.2,0.01,,\n");
+        let (n, d) = read(&text);
+        let n = n.expect("reads");
+        assert!(d.is_empty(), "{d}");
+        assert_eq!(n.sections.len(), 2);
+        assert_eq!(n.sections[0].region.as_deref(), Some("north"));
+        assert_eq!(n.sections[1].region, None);
+        assert_eq!(n.note_columns, vec!["x_owner"]);
+        assert_eq!(n.sections[0].notes, vec!["county"]);
+        assert_eq!(n.sections[1].line, 3);
+        assert!((n.length_km() - 3.5).abs() < 1e-12);
+    }
+
+    #[test]
+    fn every_bad_field_is_reported_with_line_and_column() {
+        let text = format!(
+            "{HEAD}\nA1,-2,0,single,NaN,3,100,1.2,3\nA1,1,2,dual,2,3,inf,0.1,0.02\nA1,1,2,single,2,3,100,0.1,0.02\n"
+        );
+        let (n, d) = read(&text);
+        assert!(n.is_none());
+        let text = d.to_string();
+        for want in [
+            "n.csv:2: length_km: found -2 (negative)",
+            "n.csv:2: lanes",
+            "n.csv:2: iri: found `NaN`",
+            "n.csv:2: heavy_share",
+            "n.csv:2: growth_rate: found 3 (a percentage?",
+            "n.csv:3: carriageway: found `dual`",
+            "n.csv:3: aadt: found `inf`",
+        ] {
+            assert!(text.contains(want), "missing `{want}` in\n{text}");
+        }
+        // Rows 3 and 4 repeat the id of row 2: a bad row still claims its id.
+        assert!(
+            text.contains("n.csv:4: section_id: duplicate section_id `A1` (first on line 2)"),
+            "{text}"
+        );
+        assert_eq!(d.error_count(), 7 + 2, "{text}");
+    }
+
+    #[test]
+    fn duplicates_name_the_first_line() {
+        let text =
+            format!("{HEAD}\nA1,1,2,single,2,3,100,0.1,0.02\nA1,1,2,single,2,3,100,0.1,0.02\n");
+        let (_, d) = read(&text);
+        assert!(
+            d.to_string()
+                .contains("n.csv:3: section_id: duplicate section_id `A1` (first on line 2)"),
+            "{d}"
+        );
+    }
+
+    #[test]
+    fn header_problems() {
+        let (_, d) = read("section_id,length_km,lanez,carriageway,iri,structural_number,aadt,heavy_share,growth_rate,region,region\n");
+        let t = d.to_string();
+        assert!(t.contains("unknown column `lanez`"), "{t}");
+        assert!(t.contains("did you mean `lanes`?"), "{t}");
+        assert!(t.contains("no `lanes` column"), "{t}");
+        assert!(t.contains("the column `region` twice"), "{t}");
+    }
+
+    #[test]
+    fn empty_and_header_only() {
+        let (_, d) = read("");
+        assert!(d.to_string().contains("the file is empty"));
+        let (_, d) = read(&format!("{HEAD}\n"));
+        assert!(d.to_string().contains("a header but no rows"));
+    }
+
+    #[test]
+    fn quoted_fields_are_accepted_with_a_note() {
+        let (n, d) = read(&format!(
+            "{HEAD}\n\"A 1\",\"2.5\",2,single,3,3,100,0.1,0.02\n"
+        ));
+        assert_eq!(n.unwrap().sections[0].id.0, "A 1");
+        assert!(!d.has_errors());
+        assert!(d.to_string().contains("quoted fields"));
+    }
+
+    #[test]
+    fn wrong_field_count() {
+        let (_, d) = read(&format!("{HEAD}\nA1,1,2\n"));
+        assert!(
+            d.to_string()
+                .contains("n.csv:2: found 3 fields; expected 9 fields"),
+            "{d}"
+        );
+    }
+}

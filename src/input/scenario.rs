@@ -1,0 +1,650 @@
+//! The scenario file (TOML): the frame of a run — years, discounting, money, the files that hold
+//! the network and the strategies, economic unit values and budget lines.
+//!
+//! ```toml
+//! [scenario]
+//! title = "Example district"
+//! base_year = 2027          # the year money is discounted to
+//! analysis_years = 30       # length of the analysis period, base year included
+//! discount_rate = 0.06      # real, as a fraction
+//! discounting = "end-of-year"   # or "mid-year"
+//! money = "CR"              # label printed beside amounts
+//!
+//! [files]                   # paths relative to this file
+//! network = "network.csv"
+//! treatments = "treatments.toml"
+//! strategies = ["templates.toml"]
+//!
+//! [unit_values]             # money, as decimal text
+//! time = { car = "7.80", bus = "36.00", light_truck = "11.50", heavy_truck = "16.20" }
+//! operating = { car = "0.19", bus = "0.92", light_truck = "0.34", heavy_truck = "0.88" }
+//! crash = "96000"
+//!
+//! [[budget]]                # one budget line per year from first_year to last_year
+//! name = "works"
+//! category = "capital"      # capital | routine | all
+//! region = "north"          # optional: only sections of this region count
+//! first_year = 2027
+//! last_year = 2031
+//! per_year = "5400000"
+//! years = { 2029 = "7000000" }   # optional: other limits for single years
+//! ```
+
+use super::tomldoc::{Doc, Table, Value};
+use crate::diag::{Diagnostics, Place};
+use crate::economics::{Discounting, Timing};
+use crate::money::Money;
+use std::path::{Path, PathBuf};
+
+/// The vehicle classes every unit value and traffic share is given for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum VehicleClass {
+    Car,
+    Bus,
+    LightTruck,
+    HeavyTruck,
+}
+
+impl VehicleClass {
+    pub const ALL: [VehicleClass; 4] = [
+        VehicleClass::Car,
+        VehicleClass::Bus,
+        VehicleClass::LightTruck,
+        VehicleClass::HeavyTruck,
+    ];
+
+    /// The key used in files.
+    pub fn key(self) -> &'static str {
+        match self {
+            VehicleClass::Car => "car",
+            VehicleClass::Bus => "bus",
+            VehicleClass::LightTruck => "light_truck",
+            VehicleClass::HeavyTruck => "heavy_truck",
+        }
+    }
+}
+
+/// One value per vehicle class.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct PerClass<T>(pub [T; 4]);
+
+impl<T: Copy> PerClass<T> {
+    pub fn get(&self, c: VehicleClass) -> T {
+        self.0[c as usize]
+    }
+}
+
+/// Which spending a budget line limits.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Category {
+    /// Treatments: seals, overlays, reconstruction, widening.
+    Capital,
+    /// Routine maintenance.
+    Routine,
+    /// Both.
+    All,
+}
+
+impl Category {
+    pub fn name(self) -> &'static str {
+        match self {
+            Category::Capital => "capital",
+            Category::Routine => "routine",
+            Category::All => "all",
+        }
+    }
+
+    fn parse(s: &str) -> Option<Category> {
+        match s {
+            "capital" => Some(Category::Capital),
+            "routine" => Some(Category::Routine),
+            "all" => Some(Category::All),
+            _ => None,
+        }
+    }
+}
+
+/// A money limit on agency spending in one year.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BudgetLine {
+    /// `{group}-{year}`: the line's name in every output.
+    pub name: String,
+    /// The `[[budget]]` entry it came from.
+    pub group: String,
+    pub year: i32,
+    pub limit: Money,
+    pub category: Category,
+    pub region: Option<String>,
+    /// Where the `[[budget]]` entry is.
+    pub place: Place,
+}
+
+/// Economic unit values (money).
+#[derive(Debug, Clone, PartialEq)]
+pub struct UnitValues {
+    /// Value of one vehicle-hour of travel time.
+    pub time: PerClass<Money>,
+    /// Vehicle operating cost per vehicle-km on a smooth road.
+    pub operating: PerClass<Money>,
+    /// Average cost of one injury crash.
+    pub crash: Money,
+}
+
+/// A file named by the scenario.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FileRef {
+    /// As written in the scenario.
+    pub written: String,
+    /// Resolved against the scenario's directory.
+    pub path: PathBuf,
+    /// Where the scenario names it.
+    pub place: Place,
+}
+
+/// The files a scenario names.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScenarioFiles {
+    pub network: FileRef,
+    pub treatments: FileRef,
+    pub strategies: Vec<FileRef>,
+}
+
+/// The resolved scenario.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Scenario {
+    pub file: String,
+    pub title: String,
+    pub base_year: i32,
+    pub analysis_years: u32,
+    pub discounting: Discounting,
+    pub money_label: String,
+    pub files: ScenarioFiles,
+    pub unit_values: UnitValues,
+    pub budget_lines: Vec<BudgetLine>,
+}
+
+impl Scenario {
+    /// The last year of the analysis period.
+    pub fn last_year(&self) -> i32 {
+        self.base_year + self.analysis_years as i32 - 1
+    }
+}
+
+/// Earliest and latest base year accepted (a guard against typos such as 207).
+const YEARS: (i64, i64) = (1950, 2200);
+
+/// Read a scenario from its text; relative file paths resolve against `dir`.
+pub fn parse(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) -> Option<Scenario> {
+    let doc = Doc::parse(file, text, d);
+    if d.has_errors() {
+        return None;
+    }
+    let mut top = doc.table();
+
+    let frame = top
+        .require(
+            "scenario",
+            d,
+            "a [scenario] table with base_year, analysis_years and discount_rate",
+        )
+        .and_then(|v| v.table(d))
+        .map(|t| read_frame(t, d));
+    let period = frame.as_ref().map(|f| f.1).unwrap_or(None);
+    let frame = frame.and_then(|f| f.0);
+    let files = top
+        .require(
+            "files",
+            d,
+            "a [files] table naming network, treatments and strategies",
+        )
+        .and_then(|v| v.table(d))
+        .and_then(|t| read_files(t, dir, d));
+    let unit_values = top
+        .require(
+            "unit_values",
+            d,
+            "a [unit_values] table with time, operating and crash",
+        )
+        .and_then(|v| v.table(d))
+        .and_then(|t| read_unit_values(t, d));
+    let budgets = top.get("budget");
+    top.finish(d);
+
+    let budget_lines = match budgets {
+        Some(v) => read_budgets(&v, period, d),
+        None => Vec::new(),
+    };
+    let frame = frame?;
+    let (files, unit_values) = (files?, unit_values?);
+    if d.has_errors() {
+        return None;
+    }
+    Some(Scenario {
+        file: file.to_owned(),
+        title: frame.title,
+        base_year: frame.base_year,
+        analysis_years: frame.analysis_years,
+        discounting: frame.discounting,
+        money_label: frame.money,
+        files,
+        unit_values,
+        budget_lines,
+    })
+}
+
+struct Frame {
+    title: String,
+    base_year: i32,
+    analysis_years: u32,
+    discounting: Discounting,
+    money: String,
+}
+
+/// The frame, and the analysis period (first and last year) when those two keys were good.
+fn read_frame(mut t: Table<'_, '_>, d: &mut Diagnostics) -> (Option<Frame>, Option<(i64, i64)>) {
+    let title = t
+        .get("title")
+        .and_then(|v| v.string(d).map(str::to_owned))
+        .unwrap_or_default();
+    let base_year = t
+        .require("base_year", d, "the year money is discounted to, e.g. 2027")
+        .and_then(|v| {
+            v.integer_in(
+                d,
+                YEARS.0,
+                YEARS.1,
+                &format!("a year from {} to {}", YEARS.0, YEARS.1),
+            )
+        });
+    let analysis_years = t
+        .require(
+            "analysis_years",
+            d,
+            "the length of the analysis period in years, e.g. 30",
+        )
+        .and_then(|v| v.integer_in(d, 1, 100, "a whole number of years from 1 to 100"));
+    let rate = t
+        .require(
+            "discount_rate",
+            d,
+            "the real discount rate as a fraction, e.g. 0.06",
+        )
+        .and_then(|v| {
+            let r = v.number_in(
+                d,
+                -0.5,
+                1.0,
+                "a real discount rate as a fraction from -0.5 to 1 (0.06 for 6 %)",
+            );
+            if let Some(x) = r {
+                if x > 0.3 {
+                    d.note(
+                        v.place(),
+                        format!(
+                            "a real discount rate of {:.1} % is unusually high",
+                            x * 100.0
+                        ),
+                    )
+                    .hint = Some("rates are fractions: 0.06 means 6 %".into());
+                }
+            }
+            r
+        });
+    let timing = match t.get("discounting") {
+        Some(v) => v
+            .word(d, &["end-of-year", "mid-year"])
+            .and_then(Timing::parse),
+        None => Some(Timing::EndOfYear),
+    };
+    let money = match t.get("money") {
+        Some(v) => v.string(d).map(str::to_owned),
+        None => Some(String::new()),
+    };
+    t.finish(d);
+    let period = match (base_year, analysis_years) {
+        (Some(b), Some(n)) => Some((b, b + n - 1)),
+        _ => None,
+    };
+    let frame = (|| {
+        let (base_year, analysis_years, rate, timing, money) =
+            (base_year?, analysis_years?, rate?, timing?, money?);
+        let base_year = base_year as i32;
+        let discounting = Discounting::new(rate, base_year, timing).ok()?;
+        Some(Frame {
+            title,
+            base_year,
+            analysis_years: analysis_years as u32,
+            discounting,
+            money,
+        })
+    })();
+    (frame, period)
+}
+
+fn file_ref(v: &Value<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<FileRef> {
+    let s = v.string(d)?;
+    if s.trim().is_empty() {
+        d.error(
+            v.place(),
+            "found an empty path",
+            "the path of a file, relative to the scenario file",
+        );
+        return None;
+    }
+    Some(FileRef {
+        written: s.to_owned(),
+        path: dir.join(s),
+        place: v.place(),
+    })
+}
+
+fn read_files(mut t: Table<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<ScenarioFiles> {
+    let network = t
+        .require("network", d, "the network CSV file, e.g. \"network.csv\"")
+        .and_then(|v| file_ref(&v, dir, d));
+    let treatments = t
+        .require(
+            "treatments",
+            d,
+            "the treatment catalogue, e.g. \"treatments.toml\"",
+        )
+        .and_then(|v| file_ref(&v, dir, d));
+    let strategies = t
+        .require(
+            "strategies",
+            d,
+            "a list of strategy template files, e.g. [\"templates.toml\"]",
+        )
+        .and_then(|v| {
+            let items = v.array(d)?;
+            if items.is_empty() {
+                d.error(
+                    v.place(),
+                    "found an empty list",
+                    "at least one strategy template file",
+                );
+                return None;
+            }
+            let refs: Vec<Option<FileRef>> = items.iter().map(|i| file_ref(i, dir, d)).collect();
+            refs.into_iter().collect::<Option<Vec<_>>>()
+        });
+    t.finish(d);
+    Some(ScenarioFiles {
+        network: network?,
+        treatments: treatments?,
+        strategies: strategies?,
+    })
+}
+
+fn per_class(v: Value<'_, '_>, d: &mut Diagnostics) -> Option<PerClass<Money>> {
+    let mut t = v.table(d)?;
+    let mut out = [Money::ZERO; 4];
+    let mut ok = true;
+    for c in VehicleClass::ALL {
+        match t
+            .require(c.key(), d, "an amount of money for this vehicle class")
+            .and_then(|x| x.money_non_negative(d))
+        {
+            Some(m) => out[c as usize] = m,
+            None => ok = false,
+        }
+    }
+    t.finish(d);
+    ok.then_some(PerClass(out))
+}
+
+fn read_unit_values(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<UnitValues> {
+    let time = t
+        .require(
+            "time",
+            d,
+            "a table of money per vehicle-hour by vehicle class",
+        )
+        .and_then(|v| per_class(v, d));
+    let operating = t
+        .require(
+            "operating",
+            d,
+            "a table of operating cost per vehicle-km by vehicle class",
+        )
+        .and_then(|v| per_class(v, d));
+    let crash = t
+        .require("crash", d, "the average cost of one injury crash")
+        .and_then(|v| v.money_non_negative(d));
+    t.finish(d);
+    Some(UnitValues {
+        time: time?,
+        operating: operating?,
+        crash: crash?,
+    })
+}
+
+fn read_budgets(
+    v: &Value<'_, '_>,
+    period: Option<(i64, i64)>,
+    d: &mut Diagnostics,
+) -> Vec<BudgetLine> {
+    let Some(items) = v.array(d) else {
+        return Vec::new();
+    };
+    let (first, last) = period.unwrap_or(YEARS);
+    let in_period = match period {
+        Some(_) => format!("a year of the analysis period, {first} to {last}"),
+        None => format!("a year from {first} to {last}"),
+    };
+    let mut lines: Vec<BudgetLine> = Vec::new();
+    let mut groups: Vec<(String, Place)> = Vec::new();
+    for item in items {
+        let Some(mut t) = item.table(d) else { continue };
+        let place = t.place();
+        let name = t
+            .require("name", d, "a name for the budget line, e.g. \"works\"")
+            .and_then(|v| v.identifier(d).map(|s| (s.to_owned(), v.place())));
+        let category = match t.get("category") {
+            Some(v) => v
+                .word(d, &["capital", "routine", "all"])
+                .and_then(Category::parse),
+            None => Some(Category::All),
+        };
+        let region = match t.get("region") {
+            Some(v) => v.string(d).map(|s| Some(s.to_owned())),
+            None => Some(None),
+        };
+        let y0 = t
+            .require("first_year", d, "the first year the line applies to")
+            .and_then(|v| v.integer_in(d, first, last, &in_period));
+        let y1 = t
+            .require("last_year", d, "the last year the line applies to")
+            .and_then(|v| v.integer_in(d, first, last, &in_period));
+        let per_year = t
+            .require("per_year", d, "the limit in each year, as decimal text")
+            .and_then(|v| v.money_non_negative(d));
+        let mut overrides: Vec<(i64, Money)> = Vec::new();
+        if let Some(v) = t.get("years") {
+            if let Some(mut yt) = v.table(d) {
+                for (key, val) in yt.entries() {
+                    let year = key
+                        .parse::<i64>()
+                        .ok()
+                        .filter(|y| (first..=last).contains(y));
+                    let amount = val.money_non_negative(d);
+                    match (year, amount) {
+                        (Some(y), Some(m)) => overrides.push((y, m)),
+                        (None, _) => {
+                            d.error(
+                                val.place(),
+                                format!("found the key `{key}`"),
+                                in_period.clone(),
+                            );
+                        }
+                        _ => {}
+                    }
+                }
+                yt.finish(d);
+            }
+        }
+        t.finish(d);
+        let (
+            Some((name, name_place)),
+            Some(category),
+            Some(region),
+            Some(y0),
+            Some(y1),
+            Some(per_year),
+        ) = (name, category, region, y0, y1, per_year)
+        else {
+            continue;
+        };
+        if y0 > y1 {
+            d.error(
+                place.clone().with_field("last_year"),
+                format!("found first_year {y0} after last_year {y1}"),
+                "first_year no later than last_year",
+            );
+            continue;
+        }
+        if let Some((_, p)) = groups.iter().find(|(g, _)| *g == name) {
+            d.error(
+                name_place,
+                format!(
+                    "duplicate budget name `{name}` (first at line {})",
+                    p.line.unwrap_or(0)
+                ),
+                "a name used by one [[budget]] entry only",
+            );
+            continue;
+        }
+        let clash = (y0..=y1).find_map(|y| {
+            let n = format!("{name}-{y}");
+            lines.iter().find(|l| l.name == n).map(|l| l.name.clone())
+        });
+        if let Some(c) = clash {
+            d.error(
+                name_place,
+                format!("the budget line name `{c}` twice (from two [[budget]] names)"),
+                "budget names whose `name-YEAR` line names differ",
+            );
+            continue;
+        }
+        groups.push((name.clone(), name_place));
+        for (y, _) in &overrides {
+            if *y < y0 || *y > y1 {
+                d.error(
+                    place.clone().with_field("years"),
+                    format!("found a limit for {y}, outside first_year..last_year ({y0}..{y1})"),
+                    "override years within the line's years",
+                );
+            }
+        }
+        for y in y0..=y1 {
+            let limit = overrides
+                .iter()
+                .rev()
+                .find(|(oy, _)| *oy == y)
+                .map_or(per_year, |(_, m)| *m);
+            lines.push(BudgetLine {
+                name: format!("{name}-{y}"),
+                group: name.clone(),
+                year: y as i32,
+                limit,
+                category,
+                region: region.clone(),
+                place: place.clone(),
+            });
+        }
+    }
+    lines
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = r#"
+[scenario]
+title = "t"
+base_year = 2027
+analysis_years = 20
+discount_rate = 0.06
+money = "CR"
+
+[files]
+network = "net.csv"
+treatments = "treatments.toml"
+strategies = ["a.toml", "b.toml"]
+
+[unit_values]
+time = { car = "7.80", bus = "36", light_truck = "11.5", heavy_truck = "16.2" }
+operating = { car = "0.19", bus = "0.92", light_truck = "0.34", heavy_truck = "0.88" }
+crash = 96000
+
+[[budget]]
+name = "works"
+category = "capital"
+first_year = 2027
+last_year = 2029
+per_year = "5000000"
+years = { 2028 = "6500000.50" }
+"#;
+
+    #[test]
+    fn reads_a_good_scenario() {
+        let mut d = Diagnostics::new();
+        let s = parse("s.toml", GOOD, Path::new("/data"), &mut d).expect("parses");
+        assert!(d.is_empty(), "{d}");
+        assert_eq!(s.last_year(), 2046);
+        assert_eq!(s.files.network.path, PathBuf::from("/data/net.csv"));
+        assert_eq!(s.files.strategies.len(), 2);
+        assert_eq!(s.unit_values.time.get(VehicleClass::Bus).to_string(), "36");
+        let names: Vec<&str> = s.budget_lines.iter().map(|b| b.name.as_str()).collect();
+        assert_eq!(names, ["works-2027", "works-2028", "works-2029"]);
+        assert_eq!(s.budget_lines[1].limit.to_string(), "6500000.5");
+        assert_eq!(s.budget_lines[2].limit.to_string(), "5000000");
+    }
+
+    #[test]
+    fn reports_every_problem_at_once() {
+        let bad = GOOD
+            .replace("discount_rate = 0.06", "discount_rate = 6")
+            .replace("money = \"CR\"", "money = \"CR\"\ncurrency = \"x\"")
+            .replace("crash = 96000", "crash = \"96,000\"")
+            .replace("last_year = 2029", "last_year = 2090")
+            .replace("bus = \"36\"", "bus = \"-3\"");
+        let mut d = Diagnostics::new();
+        assert!(parse("s.toml", &bad, Path::new("."), &mut d).is_none());
+        let text = d.to_string();
+        assert_eq!(d.error_count(), 5, "{text}");
+        for want in [
+            "scenario.discount_rate",
+            "unknown key `scenario.currency`",
+            "unit_values.crash",
+            "budget[1].last_year",
+            "unit_values.time.bus",
+        ] {
+            assert!(text.contains(want), "missing {want} in\n{text}");
+        }
+        // Each names a line.
+        assert!(d.errors().iter().all(|e| e.place.line.is_some()));
+    }
+
+    #[test]
+    fn missing_tables_are_named() {
+        let mut d = Diagnostics::new();
+        assert!(parse(
+            "s.toml",
+            "[scenario]\nbase_year = 2027\n",
+            Path::new("."),
+            &mut d
+        )
+        .is_none());
+        let text = d.to_string();
+        for want in [
+            "analysis_years",
+            "discount_rate",
+            "`files`",
+            "`unit_values`",
+        ] {
+            assert!(text.contains(want), "missing {want} in\n{text}");
+        }
+    }
+}

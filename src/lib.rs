@@ -1,0 +1,26 @@
+//! pavestrat: decide what pavement work each road section gets and when, by simulating each
+//! section's condition, traffic and costs over a life cycle, appraising every timing strategy
+//! against the base case, and choosing the best strategy per section within yearly budgets.
+//!
+//! The library follows the data one way: [`input`] reads and validates every file into one
+//! resolved [`input::Run`]; [`economics`] appraises money streams; [`select`] chooses under
+//! budgets; [`cli`] holds one module per subcommand. The binary only calls [`cli::main`].
+//!
+//! All results are planning-level estimates: see [`CAUTION`].
+
+#![deny(clippy::float_cmp)]
+
+pub mod cli;
+pub mod demo;
+pub mod diag;
+pub mod economics;
+pub mod error;
+pub mod input;
+pub mod io;
+pub mod money;
+pub mod select;
+pub mod text;
+
+/// The caution printed by `--help`, by every report and in the README.
+pub const CAUTION: &str = "Planning-level estimates only. Pavement designs, safety decisions and \
+cost data must follow local standards and be reviewed and signed by a licensed engineer.";

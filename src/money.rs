@@ -1,0 +1,211 @@
+//! Money: exact decimal amounts as they enter and leave the tool.
+//!
+//! Costs, budgets and unit values are read from decimal text and kept as [`rust_decimal::Decimal`],
+//! so that budget sums and the check of a plan against a budget line are exact (no binary
+//! rounding). Discounting and root-finding need `f64`; [`Money::to_f64`] is the one place where
+//! money becomes a float, and [`Money::from_f64_rounded`] the one place where a computed float
+//! becomes money again, rounded half-to-even to the cent.
+
+use rust_decimal::prelude::ToPrimitive;
+use rust_decimal::{Decimal, RoundingStrategy};
+use std::fmt;
+use std::ops::{Add, AddAssign, Mul, Neg, Sub};
+use std::str::FromStr;
+
+/// An exact amount of money in the scenario's currency.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Default)]
+pub struct Money(pub Decimal);
+
+/// Why a text is not an amount of money.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum MoneyError {
+    Empty,
+    /// Thousands separators or currency signs: say what to remove.
+    Decorated(String),
+    NotANumber(String),
+}
+
+impl fmt::Display for MoneyError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            MoneyError::Empty => write!(f, "an empty value"),
+            MoneyError::Decorated(s) => write!(f, "`{s}` (separators or currency signs)"),
+            MoneyError::NotANumber(s) => write!(f, "`{s}`"),
+        }
+    }
+}
+
+impl Money {
+    pub const ZERO: Money = Money(Decimal::ZERO);
+
+    /// Parse decimal text such as `1250`, `-3.75` or `1.5e6`.
+    ///
+    /// Thousands separators, spaces inside the number and currency signs are refused rather than
+    /// guessed at: `1,250` means 1.25 in much of the world.
+    pub fn parse(text: &str) -> Result<Money, MoneyError> {
+        let t = text.trim();
+        if t.is_empty() {
+            return Err(MoneyError::Empty);
+        }
+        if t.chars().any(|c| {
+            c == ',' || c == ' ' || c == '\'' || c == '_' || c == '$' || c == '€' || c == '£'
+        }) {
+            return Err(MoneyError::Decorated(t.to_owned()));
+        }
+        let parsed = if t.contains(['e', 'E']) {
+            Decimal::from_scientific(t)
+        } else {
+            Decimal::from_str(t)
+        };
+        parsed
+            .map(Money)
+            .map_err(|_| MoneyError::NotANumber(t.to_owned()))
+    }
+
+    /// The amount as a float, for discounting.
+    pub fn to_f64(self) -> f64 {
+        self.0.to_f64().unwrap_or(f64::NAN)
+    }
+
+    /// A computed amount rounded half-to-even to two decimal places; `None` if not finite or out
+    /// of the decimal range.
+    pub fn from_f64_rounded(x: f64) -> Option<Money> {
+        if !x.is_finite() {
+            return None;
+        }
+        Decimal::from_f64_retain(x)
+            .map(|d| Money(d.round_dp_with_strategy(2, RoundingStrategy::MidpointNearestEven)))
+    }
+
+    pub fn is_negative(self) -> bool {
+        self.0.is_sign_negative() && !self.0.is_zero()
+    }
+
+    pub fn is_zero(self) -> bool {
+        self.0.is_zero()
+    }
+}
+
+impl Add for Money {
+    type Output = Money;
+    fn add(self, o: Money) -> Money {
+        Money(self.0 + o.0)
+    }
+}
+
+impl AddAssign for Money {
+    fn add_assign(&mut self, o: Money) {
+        self.0 += o.0;
+    }
+}
+
+impl Sub for Money {
+    type Output = Money;
+    fn sub(self, o: Money) -> Money {
+        Money(self.0 - o.0)
+    }
+}
+
+impl Neg for Money {
+    type Output = Money;
+    fn neg(self) -> Money {
+        Money(-self.0)
+    }
+}
+
+impl Mul<Decimal> for Money {
+    type Output = Money;
+    fn mul(self, k: Decimal) -> Money {
+        Money(self.0 * k)
+    }
+}
+
+impl std::iter::Sum for Money {
+    fn sum<I: Iterator<Item = Money>>(iter: I) -> Money {
+        iter.fold(Money::ZERO, |a, b| a + b)
+    }
+}
+
+impl fmt::Display for Money {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.0.normalize())
+    }
+}
+
+/// Format a float with thousands separators and `decimals` decimal places: `1234567.891` →
+/// `1,234,567.89`. Non-finite values print as `n/a`.
+pub fn grouped(x: f64, decimals: usize) -> String {
+    if !x.is_finite() {
+        return "n/a".to_owned();
+    }
+    let s = format!("{:.*}", decimals, x.abs());
+    let (int, frac) = match s.split_once('.') {
+        Some((i, f)) => (i.to_owned(), Some(f.to_owned())),
+        None => (s.clone(), None),
+    };
+    let mut out = String::new();
+    for (i, c) in int.chars().enumerate() {
+        if i > 0 && (int.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    if let Some(f) = frac {
+        out.push('.');
+        out.push_str(&f);
+    }
+    let is_zero = out.chars().all(|c| c == '0' || c == ',' || c == '.');
+    if x < 0.0 && !is_zero {
+        out.insert(0, '-');
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn parses_plain_decimals_exactly() {
+        assert_eq!(
+            Money::parse("0.1").unwrap() + Money::parse("0.2").unwrap(),
+            Money::parse("0.3").unwrap()
+        );
+        assert_eq!(Money::parse(" -1250.50 ").unwrap().to_string(), "-1250.5");
+        assert_eq!(Money::parse("1.5e6").unwrap().to_string(), "1500000");
+    }
+
+    #[test]
+    fn refuses_decorated_or_bad_text() {
+        assert!(matches!(
+            Money::parse("1,250"),
+            Err(MoneyError::Decorated(_))
+        ));
+        assert!(matches!(Money::parse("$12"), Err(MoneyError::Decorated(_))));
+        assert!(matches!(Money::parse(""), Err(MoneyError::Empty)));
+        assert!(matches!(
+            Money::parse("NaN"),
+            Err(MoneyError::NotANumber(_))
+        ));
+        assert!(matches!(
+            Money::parse("inf"),
+            Err(MoneyError::NotANumber(_))
+        ));
+    }
+
+    #[test]
+    fn rounds_half_to_even_at_the_cent() {
+        assert_eq!(Money::from_f64_rounded(2.675).unwrap().to_string(), "2.67"); // 2.67499.. in binary
+        assert_eq!(Money::from_f64_rounded(0.125).unwrap().to_string(), "0.12");
+        assert!(Money::from_f64_rounded(f64::NAN).is_none());
+    }
+
+    #[test]
+    fn grouping() {
+        assert_eq!(grouped(1234567.891, 2), "1,234,567.89");
+        assert_eq!(grouped(-999.5, 0), "-1,000");
+        assert_eq!(grouped(-0.001, 2), "0.00");
+        assert_eq!(grouped(12.0, 0), "12");
+        assert_eq!(grouped(f64::INFINITY, 2), "n/a");
+    }
+}

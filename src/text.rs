@@ -1,0 +1,166 @@
+//! Turning the bytes of an input file into text, and byte offsets back into lines and columns.
+//!
+//! Agencies' files come from spreadsheets and databases on every platform, so the readers accept
+//! what is harmless and say how they read it: CRLF line ends and non-UTF-8 bytes (read as
+//! Windows-1252, the usual single-byte encoding of spreadsheet exports) are accepted with a note.
+//! A UTF-8 byte-order mark is reported as an error: it is invisible in most editors and would
+//! otherwise glue itself to the first column's name, so the user is told where it is and how to
+//! save the file without it. The rest of the file is still checked, so one pass shows every
+//! problem.
+
+use crate::diag::{Diagnostics, Place};
+
+const BOM: &[u8] = b"\xEF\xBB\xBF";
+
+/// Windows-1252 code points for bytes 0x80..=0x9F; the five bytes it leaves undefined map to the
+/// C1 control of the same number, as the WHATWG Encoding Standard does.
+const CP1252_HIGH: [u32; 32] = [
+    0x20AC, 0x0081, 0x201A, 0x0192, 0x201E, 0x2026, 0x2020, 0x2021, 0x02C6, 0x2030, 0x0160, 0x2039,
+    0x0152, 0x008D, 0x017D, 0x008F, 0x0090, 0x2018, 0x2019, 0x201C, 0x201D, 0x2022, 0x2013, 0x2014,
+    0x02DC, 0x2122, 0x0161, 0x203A, 0x0153, 0x009D, 0x017E, 0x0178,
+];
+
+/// Decode Windows-1252 bytes into a string (total: every byte maps to one character).
+pub fn decode_cp1252(bytes: &[u8]) -> String {
+    bytes
+        .iter()
+        .map(|&b| match b {
+            0x80..=0x9F => char::from_u32(CP1252_HIGH[usize::from(b - 0x80)]).unwrap_or('\u{FFFD}'),
+            _ => char::from(b),
+        })
+        .collect()
+}
+
+/// Decode an input file's bytes, recording how it was read in `diags`.
+///
+/// Returns the text with any byte-order mark removed (so later checks still run).
+pub fn decode(file: &str, bytes: &[u8], diags: &mut Diagnostics) -> String {
+    let mut body = bytes;
+    if body.starts_with(BOM) {
+        diags
+            .error(
+                Place::line(file, 1).with_column(1),
+                "the file starts with a UTF-8 byte-order mark (BOM, bytes EF BB BF)",
+                "plain UTF-8 text without a byte-order mark",
+            )
+            .hint = Some(
+            "save it again as plain UTF-8 (in spreadsheets choose 'CSV' rather than 'CSV UTF-8'), \
+             or remove the first three bytes"
+                .into(),
+        );
+        body = &body[BOM.len()..];
+    }
+    let text = match std::str::from_utf8(body) {
+        Ok(s) => s.to_owned(),
+        Err(e) => {
+            let at = e.valid_up_to();
+            let line = 1 + body[..at].iter().filter(|&&b| b == b'\n').count();
+            diags
+                .note(
+                    Place::line(file, line),
+                    format!(
+                        "bytes that are not UTF-8 (first at byte {}); the file was read as \
+                         Windows-1252 (Western European)",
+                        at + 1 + bytes.len() - body.len()
+                    ),
+                )
+                .hint = Some("save the file as UTF-8 if names look wrong in the output".into());
+            decode_cp1252(body)
+        }
+    };
+    if let Some(pos) = text.find("\r\n") {
+        let line = 1 + text[..pos].matches('\n').count();
+        diags.note(
+            Place::line(file, line),
+            "CRLF (Windows) line ends; accepted",
+        );
+    }
+    text
+}
+
+/// Maps byte offsets of a text to 1-based line and column numbers.
+#[derive(Debug, Clone)]
+pub struct LineIndex {
+    starts: Vec<usize>,
+    text: String,
+}
+
+impl LineIndex {
+    pub fn new(text: &str) -> LineIndex {
+        let mut starts = vec![0];
+        for (i, b) in text.bytes().enumerate() {
+            if b == b'\n' {
+                starts.push(i + 1);
+            }
+        }
+        LineIndex {
+            starts,
+            text: text.to_owned(),
+        }
+    }
+
+    /// The 1-based (line, column) of a byte offset; columns count characters.
+    pub fn position(&self, offset: usize) -> (usize, usize) {
+        let offset = offset.min(self.text.len());
+        let line = match self.starts.binary_search(&offset) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        };
+        let start = self.starts[line];
+        let col = self
+            .text
+            .get(start..offset)
+            .map(|s| s.chars().count())
+            .unwrap_or(offset - start);
+        (line + 1, col + 1)
+    }
+
+    /// A place for a byte offset in `file`.
+    pub fn place(&self, file: &str, offset: usize) -> Place {
+        let (line, col) = self.position(offset);
+        Place::line(file, line).with_column(col)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn bom_is_an_error_and_is_stripped() {
+        let mut d = Diagnostics::new();
+        let t = decode("n.csv", b"\xEF\xBB\xBFa,b\n1,2\n", &mut d);
+        assert_eq!(t, "a,b\n1,2\n");
+        assert_eq!(d.error_count(), 1);
+        assert!(d.errors()[0].found.contains("byte-order mark"));
+    }
+
+    #[test]
+    fn crlf_and_latin1_are_notes() {
+        let mut d = Diagnostics::new();
+        let t = decode("n.csv", b"a,b\r\nS\xE9rignac,2\r\n", &mut d);
+        assert_eq!(t, "a,b\r\nSérignac,2\r\n");
+        assert!(!d.has_errors());
+        assert_eq!(d.note_count(), 2);
+        let notes: Vec<String> = d.iter().map(|x| x.found.clone()).collect();
+        assert!(notes.iter().any(|n| n.contains("Windows-1252")));
+        assert!(notes.iter().any(|n| n.contains("CRLF")));
+        // The non-UTF-8 byte is on line 2.
+        assert!(d.iter().any(|x| x.place.line == Some(2)));
+    }
+
+    #[test]
+    fn cp1252_high_range() {
+        assert_eq!(decode_cp1252(b"\x80\x93x\x94"), "\u{20AC}\u{201C}x\u{201D}");
+    }
+
+    #[test]
+    fn offsets_to_lines_and_columns() {
+        let ix = LineIndex::new("ab\ncdé\nf");
+        assert_eq!(ix.position(0), (1, 1));
+        assert_eq!(ix.position(3), (2, 1));
+        assert_eq!(ix.position(7), (2, 4));
+        assert_eq!(ix.position(8), (3, 1));
+        assert_eq!(ix.position(100), (3, 2));
+    }
+}
