@@ -53,6 +53,15 @@ impl Place {
         self
     }
 
+    /// The same place, naming a key inside its current field (`budget[3]` → `budget[3].region`).
+    pub fn with_subfield(mut self, key: &str) -> Place {
+        self.field = Some(match self.field.take() {
+            Some(f) if !f.is_empty() => format!("{f}.{key}"),
+            _ => key.to_owned(),
+        });
+        self
+    }
+
     /// The same place, at a column.
     pub fn with_column(mut self, column: usize) -> Place {
         self.column = Some(column);

@@ -116,16 +116,21 @@ pub fn load(source: &dyn Source, scenario_path: &Path) -> (Option<Run>, Diagnost
 
 fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> Option<Run> {
     let (label, text) = read_text(source, scenario_path, None, d)?;
-    let scenario = scenario::parse(&label, &text, &scenario_dir(scenario_path), d)?;
+    let partial = scenario::parse_partial(&label, &text, &scenario_dir(scenario_path), d);
+    // Even when the scenario has errors, the files it names are read and checked too.
+    let files = partial.files?;
+    let scenario = partial.scenario;
 
     let read = |f: &FileRef, d: &mut Diagnostics| read_text(source, &f.path, Some(&f.place), d);
 
-    let network = read(&scenario.files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
-    let catalogue =
-        read(&scenario.files.treatments, d).and_then(|(l, t)| treatments::parse(&l, &t, d));
+    let network = read(&files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
+    let (catalogue, treatment_names) = match read(&files.treatments, d) {
+        Some((l, t)) => treatments::parse(&l, &t, d),
+        None => (None, Vec::new()),
+    };
     let mut templates: Vec<Template> = Vec::new();
     let mut templates_ok = true;
-    for f in &scenario.files.strategies {
+    for f in &files.strategies {
         match read(f, d).and_then(|(l, t)| templates::parse(&l, &t, d)) {
             Some(ts) => {
                 for t in ts {
@@ -148,9 +153,11 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
         }
     }
 
-    if let Some(cat) = &catalogue {
-        check_template_treatments(&templates, cat, d);
+    if !treatment_names.is_empty() {
+        let label = source.label(&files.treatments.path);
+        check_template_treatments(&templates, &label, &treatment_names, catalogue.as_ref(), d);
     }
+    let scenario = scenario?;
     check_template_years(&templates, &scenario, d);
     if let Some(net) = &network {
         check_network_against_scenario(net, &scenario, d);
@@ -167,30 +174,35 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
     })
 }
 
-fn check_template_treatments(templates: &[Template], cat: &Catalogue, d: &mut Diagnostics) {
-    let ids: Vec<&str> = cat.treatments.iter().map(|t| t.id.as_str()).collect();
-    let unknown = |name: &str, place: &Place, d: &mut Diagnostics| {
-        if cat.get(name).is_none() {
-            let e = d.error(
-                place.clone(),
-                format!("unknown treatment `{name}`"),
-                format!("a treatment of {}: {}", cat.file, ids.join(", ")),
-            );
-            if let Some(m) = did_you_mean(name, &ids) {
-                e.hint = Some(format!("did you mean `{m}`?"));
-            }
-            false
-        } else {
-            true
+fn check_template_treatments(
+    templates: &[Template],
+    file: &str,
+    names: &[String],
+    cat: Option<&Catalogue>,
+    d: &mut Diagnostics,
+) {
+    let ids: Vec<&str> = names.iter().map(String::as_str).collect();
+    let known = |name: &str, place: &Place, d: &mut Diagnostics| {
+        if ids.contains(&name) {
+            return true;
         }
+        let e = d.error(
+            place.clone(),
+            format!("unknown treatment `{name}`"),
+            format!("a treatment of {file}: {}", ids.join(", ")),
+        );
+        if let Some(m) = did_you_mean(name, &ids) {
+            e.hint = Some(format!("did you mean `{m}`?"));
+        }
+        false
     };
     for t in templates {
         for s in &t.steps {
-            unknown(&s.treatment, &s.place, d);
+            known(&s.treatment, &s.place, d);
         }
         if let Some(tr) = &t.trigger {
-            if unknown(&tr.treatment, &tr.place, d) {
-                if let Some(tt) = cat.get(&tr.treatment) {
+            if known(&tr.treatment, &tr.place, d) {
+                if let Some(tt) = cat.and_then(|c| c.get(&tr.treatment)) {
                     if tt.action == treatments::Action::Widen {
                         d.error(
                             tr.place.clone(),
@@ -240,7 +252,7 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
             if !regions.contains(&r.as_str()) && !reported.contains(&b.group.as_str()) {
                 reported.push(&b.group);
                 let e = d.error(
-                    b.place.clone().with_field("region"),
+                    b.place.clone().with_subfield("region"),
                     format!("the region `{r}`, which no section of {} has", net.file),
                     if regions.is_empty() {
                         "a region column in the network file".to_owned()

@@ -127,6 +127,7 @@ pub const OPTIONAL: [&str; 6] = [
 
 /// Read the network from decoded CSV text.
 pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
+    let before = d.error_count();
     if text.trim().is_empty() {
         d.error(
             Place::line(file, 1),
@@ -232,7 +233,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
         );
         return None;
     }
-    if d.has_errors() {
+    if d.error_count() > before {
         return None;
     }
     Some(Network {

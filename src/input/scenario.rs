@@ -173,11 +173,25 @@ impl Scenario {
 /// Earliest and latest base year accepted (a guard against typos such as 207).
 const YEARS: (i64, i64) = (1950, 2200);
 
+/// What could be read of a scenario: the whole of it when valid, and otherwise still the files
+/// it names, so that they can be checked in the same pass.
+#[derive(Debug, Clone, Default)]
+pub struct Partial {
+    pub scenario: Option<Scenario>,
+    pub files: Option<ScenarioFiles>,
+}
+
 /// Read a scenario from its text; relative file paths resolve against `dir`.
 pub fn parse(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) -> Option<Scenario> {
+    parse_partial(file, text, dir, d).scenario
+}
+
+/// Read a scenario, keeping what is usable of it even when some of it is wrong.
+pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) -> Partial {
+    let before = d.error_count();
     let doc = Doc::parse(file, text, d);
-    if d.has_errors() {
-        return None;
+    if d.error_count() > before {
+        return Partial::default();
     }
     let mut top = doc.table();
 
@@ -214,22 +228,24 @@ pub fn parse(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) -> Option<
         Some(v) => read_budgets(&v, period, d),
         None => Vec::new(),
     };
-    let frame = frame?;
-    let (files, unit_values) = (files?, unit_values?);
-    if d.has_errors() {
-        return None;
-    }
-    Some(Scenario {
-        file: file.to_owned(),
-        title: frame.title,
-        base_year: frame.base_year,
-        analysis_years: frame.analysis_years,
-        discounting: frame.discounting,
-        money_label: frame.money,
+    let scenario = (|| {
+        let (frame, files, unit_values) = (frame?, files.clone()?, unit_values?);
+        Some(Scenario {
+            file: file.to_owned(),
+            title: frame.title,
+            base_year: frame.base_year,
+            analysis_years: frame.analysis_years,
+            discounting: frame.discounting,
+            money_label: frame.money,
+            files,
+            unit_values,
+            budget_lines,
+        })
+    })();
+    Partial {
+        scenario: scenario.filter(|_| d.error_count() == before),
         files,
-        unit_values,
-        budget_lines,
-    })
+    }
 }
 
 struct Frame {
@@ -497,7 +513,7 @@ fn read_budgets(
         };
         if y0 > y1 {
             d.error(
-                place.clone().with_field("last_year"),
+                place.clone().with_subfield("last_year"),
                 format!("found first_year {y0} after last_year {y1}"),
                 "first_year no later than last_year",
             );
@@ -530,7 +546,7 @@ fn read_budgets(
         for (y, _) in &overrides {
             if *y < y0 || *y > y1 {
                 d.error(
-                    place.clone().with_field("years"),
+                    place.clone().with_subfield("years"),
                     format!("found a limit for {y}, outside first_year..last_year ({y0}..{y1})"),
                     "override years within the line's years",
                 );

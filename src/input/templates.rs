@@ -104,12 +104,12 @@ impl Template {
 
 /// Read templates from one file's text.
 pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Vec<Template>> {
+    let before = d.error_count();
     let doc = Doc::parse(file, text, d);
-    if d.has_errors() {
+    if d.error_count() > before {
         return None;
     }
     let mut top = doc.table();
-    let before = d.error_count();
     let mut out = Vec::new();
     if let Some(v) = top.require("template", d, "[template.NAME] tables, one per template") {
         if let Some(mut t) = v.table(d) {

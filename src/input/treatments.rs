@@ -163,10 +163,23 @@ impl Catalogue {
 /// Names a treatment may not take: they mean something else in every output.
 pub const RESERVED: [&str; 2] = ["base", "routine"];
 
-/// Read the catalogue from its text.
-pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Catalogue> {
+/// Read the catalogue from its text. Also returns the names of all treatments the file
+/// declares, valid or not, so that templates can be checked against them in the same pass.
+pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> (Option<Catalogue>, Vec<String>) {
+    let mut names = Vec::new();
+    let cat = parse_into(file, text, d, &mut names);
+    (cat, names)
+}
+
+fn parse_into(
+    file: &str,
+    text: &str,
+    d: &mut Diagnostics,
+    names: &mut Vec<String>,
+) -> Option<Catalogue> {
+    let before = d.error_count();
     let doc = Doc::parse(file, text, d);
-    if d.has_errors() {
+    if d.error_count() > before {
         return None;
     }
     let mut top = doc.table();
@@ -191,6 +204,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Catalogue> {
                     );
                 }
                 for (id, val) in entries {
+                    names.push(id.clone());
                     if !is_identifier(&id) || RESERVED.contains(&id.as_str()) {
                         d.error(
                             val.place(),
@@ -211,7 +225,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Catalogue> {
     }
     top.finish(d);
     let routine = routine?;
-    if d.has_errors() {
+    if d.error_count() > before {
         return None;
     }
     Some(Catalogue {
@@ -476,7 +490,9 @@ work_zone_days = 120
     #[test]
     fn reads_a_good_catalogue() {
         let mut d = Diagnostics::new();
-        let c = parse("t.toml", GOOD, &mut d).expect("parses");
+        let (c, names) = parse("t.toml", GOOD, &mut d);
+        let c = c.expect("parses");
+        assert_eq!(names, ["overlay", "widen"]);
         assert!(d.is_empty(), "{d}");
         let o = c.get("overlay").unwrap();
         // 50.8 mm = 2 in; 2 × 0.44 = 0.88 (AASHTO 1993 layer equation).
@@ -498,7 +514,7 @@ work_zone_days = 120
                 "[treatment.routine]\naction = \"seal\"\n\n[treatment.widen]",
             );
         let mut d = Diagnostics::new();
-        assert!(parse("t.toml", &bad, &mut d).is_none());
+        assert!(parse("t.toml", &bad, &mut d).0.is_none());
         let t = d.to_string();
         for want in [
             "both iri_after and iri_reduction",

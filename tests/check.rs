@@ -1,0 +1,289 @@
+//! `pavestrat check`: every bad-input case gets exit 2 and a message naming file, line and field;
+//! harmless variants are accepted with a note; nothing is written.
+
+use crate::util::Workdir;
+
+/// A working directory with the demo files and the network replaced by `network`.
+fn with_network(network: &[u8]) -> Workdir {
+    let wd = Workdir::new();
+    wd.demo_files();
+    wd.write("network.csv", network);
+    wd
+}
+
+fn demo_network() -> String {
+    String::from_utf8(pavestrat::demo::FILES[1].1.to_vec()).unwrap()
+}
+
+/// The demo network with line `line` (1-based, header = 1) replaced by `f(old)`.
+fn edit_line(line: usize, f: impl Fn(&str) -> String) -> String {
+    demo_network()
+        .lines()
+        .enumerate()
+        .map(|(i, l)| if i + 1 == line { f(l) } else { l.to_owned() })
+        .collect::<Vec<_>>()
+        .join("\n")
+        + "\n"
+}
+
+/// Replace field `k` (0-based) of a CSV line.
+fn set_field(l: &str, k: usize, v: &str) -> String {
+    let mut f: Vec<&str> = l.split(',').collect();
+    f[k] = v;
+    f.join(",")
+}
+
+fn expect_rejected(wd: &Workdir, needles: &[&str]) {
+    let before = wd.listing();
+    let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+    out.expect_code(2);
+    for n in needles {
+        out.stderr_has(n);
+    }
+    assert_eq!(wd.listing(), before, "check must not write files");
+}
+
+#[test]
+fn demo_is_clean_and_says_it_is_the_demo() {
+    let wd = Workdir::new();
+    let out = wd.run(&["check"]);
+    out.expect_code(0)
+        .stderr_has("built-in demo")
+        .stdout_has("40 sections");
+    assert!(wd.listing().is_empty());
+}
+
+#[test]
+fn written_demo_files_check_clean() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stdout_has("scenario.toml: no errors");
+}
+
+#[test]
+fn duplicate_section_ids() {
+    let net = edit_line(3, |l| {
+        let first = demo_network()
+            .lines()
+            .nth(1)
+            .unwrap()
+            .split(',')
+            .next()
+            .unwrap()
+            .to_owned();
+        set_field(l, 0, &first)
+    });
+    expect_rejected(
+        &with_network(net.as_bytes()),
+        &["network.csv:3: section_id: duplicate section_id `OR-01` (first on line 2)"],
+    );
+}
+
+#[test]
+fn negative_length() {
+    let net = edit_line(5, |l| set_field(l, 1, "-1.5"));
+    expect_rejected(
+        &with_network(net.as_bytes()),
+        &["network.csv:5: length_km: found -1.5 (negative)"],
+    );
+}
+
+#[test]
+fn nan_and_infinity() {
+    let net = edit_line(4, |l| set_field(&set_field(l, 4, "NaN"), 6, "inf"));
+    expect_rejected(
+        &with_network(net.as_bytes()),
+        &[
+            "network.csv:4: iri: found `NaN` (NaN and infinity are not allowed)",
+            "network.csv:4: aadt: found `inf`",
+        ],
+    );
+}
+
+#[test]
+fn shares_outside_zero_to_one() {
+    let net = edit_line(6, |l| set_field(&set_field(l, 7, "1.4"), 8, "4"));
+    expect_rejected(
+        &with_network(net.as_bytes()),
+        &[
+            "network.csv:6: heavy_share: found 1.4",
+            "network.csv:6: growth_rate: found 4 (a percentage? write 0.04",
+        ],
+    );
+}
+
+#[test]
+fn zero_lanes() {
+    let net = edit_line(7, |l| set_field(l, 2, "0"));
+    expect_rejected(
+        &with_network(net.as_bytes()),
+        &["network.csv:7: lanes: found `0`; expected a whole number of lanes from 1 to 12"],
+    );
+}
+
+#[test]
+fn empty_file_and_header_only() {
+    expect_rejected(&with_network(b""), &["network.csv:1: the file is empty"]);
+    let header = demo_network().lines().next().unwrap().to_owned() + "\n";
+    expect_rejected(
+        &with_network(header.as_bytes()),
+        &["network.csv:1: a header but no rows"],
+    );
+}
+
+#[test]
+fn missing_referenced_file() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    std::fs::remove_file(wd.join("templates.toml")).unwrap();
+    expect_rejected(
+        &wd,
+        &[
+            "scenario.toml:19:15: files.strategies[1]: cannot read `",
+            "templates.toml`",
+        ],
+    );
+}
+
+#[test]
+fn missing_scenario_file() {
+    let wd = Workdir::new();
+    wd.run(&["check", "--scenario", "nowhere.toml"])
+        .expect_code(2)
+        .stderr_has("nowhere.toml: cannot read the file");
+}
+
+#[test]
+fn byte_order_mark_is_rejected_with_a_fix() {
+    let mut net = b"\xEF\xBB\xBF".to_vec();
+    net.extend_from_slice(demo_network().as_bytes());
+    expect_rejected(
+        &with_network(&net),
+        &[
+            "network.csv:1:1: the file starts with a UTF-8 byte-order mark",
+            "hint: save it again as plain UTF-8",
+        ],
+    );
+}
+
+#[test]
+fn crlf_is_accepted_with_a_note() {
+    let wd = with_network(demo_network().replace('\n', "\r\n").as_bytes());
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stderr_has("network.csv:1: CRLF (Windows) line ends; accepted");
+}
+
+#[test]
+fn quoted_fields_are_accepted_with_a_note() {
+    let net = edit_line(2, |l| {
+        let f: Vec<String> = l.split(',').map(|x| format!("\"{x}\"")).collect();
+        f.join(",")
+    });
+    let wd = with_network(net.as_bytes());
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stderr_has("network.csv:2: quoted fields; accepted");
+}
+
+#[test]
+fn non_utf8_bytes_are_accepted_with_a_note() {
+    let mut net = demo_network().into_bytes();
+    // "Orrin Road" on line 2 becomes "Orrín Road" in Windows-1252 (0xED).
+    let pos = net.windows(5).position(|w| w == b"Orrin").unwrap();
+    net[pos + 3] = 0xED;
+    let wd = with_network(&net);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stderr_has("network.csv:2: bytes that are not UTF-8")
+        .stderr_has("Windows-1252");
+}
+
+#[test]
+fn every_problem_in_every_file_at_once() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let net = edit_line(3, |l| set_field(l, 3, "dual"));
+    wd.write("network.csv", net);
+    let sc = wd.read("scenario.toml").replace(
+        "discount_rate = 0.06",
+        "discount_rate = 0.06\ndiscount_rat = 0.05",
+    );
+    wd.write("scenario.toml", sc);
+    let tr = wd
+        .read("treatments.toml")
+        .replace("life_years = 8", "life_years = 0");
+    wd.write("treatments.toml", tr);
+    let sc = wd.read("scenario.toml").replace(
+        "last_year = 2031\nper_year = \"6500000\"",
+        "last_year = 2071\nper_year = \"6500000\"",
+    );
+    wd.write("scenario.toml", sc);
+    let tp = wd.read("templates.toml").replace(
+        "treatment = \"thick-overlay\"",
+        "treatment = \"thick-overlai\"",
+    );
+    wd.write("templates.toml", tp);
+    let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+    out.expect_code(2)
+        .stderr_has("scenario.toml:13:1: scenario.discount_rat: unknown key")
+        .stderr_has("did you mean `discount_rate`?")
+        .stderr_has("network.csv:3: carriageway: found `dual`")
+        .stderr_has("treatments.toml:")
+        .stderr_has("treatment.reseal.life_years: found 0")
+        .stderr_has("unknown treatment `thick-overlai`")
+        .stderr_has("did you mean `thick-overlay`?")
+        .stderr_has(
+            "budget[1].last_year: found 2071; expected a year of the analysis period, 2027 to 2056",
+        )
+        .stderr_has("5 problems found");
+}
+
+#[test]
+fn unknown_columns_and_budget_regions() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let net = demo_network().replacen("x_road", "road_name", 1);
+    wd.write("network.csv", net);
+    let sc = wd
+        .read("scenario.toml")
+        .replace("region = \"north\"", "region = \"nort\"");
+    wd.write("scenario.toml", sc);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("network.csv:1: column 16 `road_name`: unknown column `road_name`");
+    // With the network fixed, the region is checked against it.
+    wd.write("network.csv", demo_network());
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("budget[3].region: the region `nort`, which no section of")
+        .stderr_has("did you mean `north`?");
+}
+
+#[test]
+fn quiet_keeps_errors_only() {
+    let wd = with_network(demo_network().replace('\n', "\r\n").as_bytes());
+    let out = wd.run(&["--quiet", "check", "--scenario", "scenario.toml"]);
+    out.expect_code(0);
+    assert!(
+        out.stdout.is_empty() && out.stderr.is_empty(),
+        "{}",
+        out.shown
+    );
+    let wd = with_network(b"");
+    wd.run(&["check", "-q", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("the file is empty");
+}
+
+#[test]
+fn scenario_from_stdin() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let sc = wd.read("scenario.toml");
+    wd.run_with_stdin(&["check", "--scenario", "-"], sc.as_bytes())
+        .expect_code(0)
+        .stdout_has("<stdin>: no errors");
+}
