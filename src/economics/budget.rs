@@ -6,7 +6,7 @@
 //! that still fits — are what spreadsheets do; they are returned beside the optimum so a user can
 //! see how much value they leave on the table.
 
-use crate::select::{solve_exact, Choice, SelectError};
+use crate::select::{solve_default, Choice, SelectError};
 
 /// One independent project: its present cost (counted against the budget) and its NPV.
 #[derive(Debug, Clone, PartialEq)]
@@ -55,7 +55,7 @@ pub fn best_set(projects: &[Project], budget: f64) -> Result<Portfolio, SelectEr
             g
         })
         .collect();
-    let s = solve_exact(good_lp::microlp, &groups, &[budget])?;
+    let s = solve_default(&groups, &[budget])?;
     let chosen = s
         .chosen
         .iter()

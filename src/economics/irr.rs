@@ -157,18 +157,137 @@ fn single_root(c: &[f64]) -> Option<f64> {
 
 /// Several sign changes: isolate every root in both intervals.
 fn all_roots(c: &[f64]) -> Vec<f64> {
-    let mut rates: Vec<f64> = roots_in(c, X_LO, 1.0)
+    let mut rates: Vec<f64> = certified_roots(c, X_LO, 1.0)
         .into_iter()
         .map(|x| 1.0 / x - 1.0)
         .collect();
     let q = reversed(c);
     rates.extend(
-        roots_in(&q, Y_LO, 1.0)
+        certified_roots(&q, Y_LO, 1.0)
             .into_iter()
             .map(|y| y - 1.0)
             .filter(|r| *r > MIN_RATE),
     );
     rates
+}
+
+/// A polynomial with what the cell tests need: its derivative, and the absolute-value
+/// polynomials that bound it and its first two derivatives on [0, z] (increasing in z ≥ 0).
+struct Bounded {
+    c: Vec<f64>,
+    d1: Vec<f64>,
+    abs0: Vec<f64>,
+    abs1: Vec<f64>,
+    abs2: Vec<f64>,
+    noise: f64,
+}
+
+impl Bounded {
+    fn new(c: &[f64]) -> Bounded {
+        let d1: Vec<f64> = c
+            .iter()
+            .enumerate()
+            .skip(1)
+            .map(|(j, v)| v * j as f64)
+            .collect();
+        let abs0: Vec<f64> = c.iter().map(|v| v.abs()).collect();
+        let abs1: Vec<f64> = d1.iter().map(|v| v.abs()).collect();
+        let abs2: Vec<f64> = d1
+            .iter()
+            .enumerate()
+            .skip(1)
+            .map(|(j, v)| v.abs() * j as f64)
+            .collect();
+        Bounded {
+            noise: 8.0 * (c.len() as f64 + 1.0) * f64::EPSILON,
+            c: c.to_vec(),
+            d1,
+            abs0,
+            abs1,
+            abs2,
+        }
+    }
+}
+
+/// Real roots of Σ c_i z^i on [lo, hi] ⊂ (0, 1], ascending, by certified subdivision.
+///
+/// Each cell [a, b] is settled by a bound, not by sampling: with M₁ = Σ j|c_j| b^(j−1) ≥ |p′| on
+/// the cell, |p(a)| + |p(b)| > M₁(b − a) proves there is no root in it; a sign change with p′ of
+/// one sign at both ends and |p′(a)| + |p′(b)| > M₂(b − a) (M₂ bounding |p″|) proves exactly one,
+/// which Brent's method finds. A cell neither test settles is halved; after [`MAX_DEPTH`] halvings
+/// (roots closer than ~1e-6, or of even multiplicity) the exact derivative recursion
+/// [`roots_in`] takes over on that small cell. Rounding is allowed for with a noise margin of
+/// 8(n+1)ε times the absolute-value polynomial.
+fn certified_roots(c: &[f64], lo: f64, hi: f64) -> Vec<f64> {
+    let Some(deg) = c.iter().rposition(|v| *v != 0.0) else {
+        return Vec::new();
+    };
+    let big = c[..=deg].iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    let scaled: Vec<f64> = c[..=deg].iter().map(|v| v / big).collect();
+    if deg <= 2 {
+        return roots_in(&scaled, lo, hi);
+    }
+    let p = Bounded::new(&scaled);
+    let mut roots = Vec::new();
+    const START: usize = 4;
+    let mut a = lo;
+    let mut pa = horner(&p.c, a);
+    for i in 1..=START {
+        let b = if i == START {
+            hi
+        } else {
+            lo + (hi - lo) * i as f64 / START as f64
+        };
+        let pb = horner(&p.c, b);
+        cell(&p, a, b, pa, pb, 0, &mut roots);
+        a = b;
+        pa = pb;
+    }
+    if pa == 0.0 {
+        roots.push(hi);
+    }
+    roots.sort_by(f64::total_cmp);
+    roots.dedup_by(|x, y| (*x - *y).abs() <= 1e-12);
+    roots
+}
+
+/// Cells this many halvings deep (width ~1e-6 of the interval) go to the exact recursion.
+const MAX_DEPTH: u32 = 20;
+
+fn cell(p: &Bounded, a: f64, b: f64, pa: f64, pb: f64, depth: u32, roots: &mut Vec<f64>) {
+    if pa == 0.0 {
+        roots.push(a);
+    }
+    let h = b - a;
+    let slack = p.noise * (horner(&p.abs0, a) + horner(&p.abs0, b));
+    let m1 = horner(&p.abs1, b);
+    if pa != 0.0 && pb != 0.0 && (pa > 0.0) == (pb > 0.0) {
+        if pa.abs() + pb.abs() > m1 * h + slack {
+            return; // no root
+        }
+    } else if pa != 0.0 && pb != 0.0 {
+        let (da, db) = (horner(&p.d1, a), horner(&p.d1, b));
+        let m2 = horner(&p.abs2, b);
+        let dslack = p.noise * (horner(&p.abs1, a) + m1);
+        if da != 0.0 && (da > 0.0) == (db > 0.0) && da.abs() + db.abs() > m2 * h + dslack {
+            if let Some(z) = brent(|z| horner(&p.c, z), a, b, pa, pb) {
+                roots.push(z);
+            }
+            return; // exactly one root
+        }
+    }
+    if depth >= MAX_DEPTH {
+        roots.extend(
+            roots_in(&p.c, a, b)
+                .into_iter()
+                .filter(|z| *z > a || pa != 0.0),
+        );
+        return;
+    }
+    let m = 0.5 * (a + b);
+    let pm = horner(&p.c, m);
+    cell(p, a, m, pa, pm, depth + 1, roots);
+    cell(p, m, b, pm, pb, depth + 1, roots);
 }
 
 /// Real roots of Σ c_i z^i on [a, b] ⊂ (0, 1], ascending.
@@ -387,6 +506,36 @@ mod tests {
             .unique()
             .unwrap();
         assert_abs_diff_eq!(a, b, epsilon = 1e-13);
+    }
+
+    #[test]
+    fn certified_subdivision_agrees_with_the_exact_recursion() {
+        // Streams with later outlays (several sign changes), including near-double roots.
+        let cases: Vec<Vec<f64>> = vec![
+            vec![-100.0, 230.0, -132.0, 0.0, 1.0],
+            vec![
+                -1000.0, 300.0, 300.0, -200.0, 400.0, 400.0, -900.0, 500.0, 500.0, 500.0,
+            ],
+            vec![-1.0, 3.0, -3.0, 1.0 + 1e-9], // (x-1)^3: a triple root, nudged
+            vec![-1.0, 2.0, -1.0 - 1e-12, 0.1, -0.1],
+            (0..30)
+                .map(|t| if t % 7 == 0 { -500.0 } else { 90.0 })
+                .collect(),
+        ];
+        for v in cases {
+            for (a, b, c) in [(X_LO, 1.0, v.clone()), (Y_LO, 1.0, reversed(&v))] {
+                let exact = roots_in(&c, a, b);
+                let cert = certified_roots(&c, a, b);
+                assert_eq!(
+                    exact.len(),
+                    cert.len(),
+                    "{v:?} on [{a}, {b}]: {exact:?} vs {cert:?}"
+                );
+                for (x, y) in exact.iter().zip(&cert) {
+                    assert!((x - y).abs() < 1e-7, "{v:?}: {exact:?} vs {cert:?}");
+                }
+            }
+        }
     }
 
     #[test]

@@ -18,6 +18,8 @@
 pub mod budget;
 pub mod incremental;
 pub mod irr;
+#[cfg(test)]
+mod properties;
 
 pub use irr::{irr, Irr};
 

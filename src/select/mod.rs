@@ -50,6 +50,27 @@ pub enum SelectError {
     Solver(String),
 }
 
+/// Name of the solver [`solve_default`] uses in this build.
+pub fn default_solver_name() -> &'static str {
+    if cfg!(feature = "highs") {
+        "HiGHS"
+    } else {
+        "microlp (pure Rust)"
+    }
+}
+
+/// Solve exactly with this build's solver: HiGHS with the `highs` feature, else microlp.
+pub fn solve_default(groups: &[Vec<Choice>], limits: &[f64]) -> Result<Selection, SelectError> {
+    #[cfg(feature = "highs")]
+    {
+        solve_exact(good_lp::highs, groups, limits)
+    }
+    #[cfg(not(feature = "highs"))]
+    {
+        solve_exact(good_lp::microlp, groups, limits)
+    }
+}
+
 /// Solve the selection exactly with `solver` (for example `good_lp::microlp`).
 pub fn solve_exact<S: Solver>(
     solver: S,
@@ -184,6 +205,7 @@ mod tests {
             solve_exact(good_lp::microlp, &groups, &[1.0]),
             Err(SelectError::Infeasible)
         );
+        assert_eq!(solve_default(&groups, &[1.0]), Err(SelectError::Infeasible));
     }
 
     #[test]
