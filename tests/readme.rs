@@ -53,3 +53,65 @@ fn quick_start_demo_command_runs() {
         .expect_code(0)
         .stdout_has("Planning-level estimates only");
 }
+
+/// The first fenced block after the heading `heading`.
+fn block_after(heading: &str) -> String {
+    let readme = include_str!("../README.md");
+    let start = readme
+        .find(heading)
+        .unwrap_or_else(|| panic!("README lacks {heading}"));
+    let block = &readme[start..];
+    let open = block.find("```").unwrap() + 3;
+    let body = &block[open..];
+    let body = &body[body.find('\n').unwrap() + 1..];
+    body[..body.find("```").unwrap()].to_owned()
+}
+
+#[test]
+fn cashflow_examples_run() {
+    let wd = Workdir::new();
+    let demo = std::fs::read(format!(
+        "{}/src/demo/cashflow.csv",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .unwrap();
+    wd.write("flows.csv", &demo);
+    wd.write("projects.csv", &demo);
+    let mut ran = 0;
+    for line in block_after("### `cashflow`").lines() {
+        let cmd = line.split('#').next().unwrap().trim();
+        let Some(rest) = cmd.strip_prefix("pavestrat ") else {
+            continue;
+        };
+        let args: Vec<&str> = rest.split_whitespace().collect();
+        wd.run(&args).expect_code(0);
+        ran += 1;
+    }
+    assert_eq!(ran, 5);
+    assert!(wd.join("results/cashflow.json").exists());
+}
+
+#[test]
+fn file_format_examples_parse() {
+    use pavestrat::diag::Diagnostics;
+    let mut d = Diagnostics::new();
+    let s = pavestrat::input::scenario::parse(
+        "README scenario",
+        &block_after("### Scenario"),
+        std::path::Path::new("."),
+        &mut d,
+    );
+    assert!(s.is_some() && !d.has_errors(), "{d}");
+    let (c, _) = pavestrat::input::treatments::parse(
+        "README catalogue",
+        &block_after("### Treatment catalogue"),
+        &mut d,
+    );
+    assert!(c.is_some() && !d.has_errors(), "{d}");
+    let t = pavestrat::input::templates::parse(
+        "README templates",
+        &block_after("### Strategy templates"),
+        &mut d,
+    );
+    assert!(t.is_some_and(|t| t.len() == 2) && !d.has_errors(), "{d}");
+}

@@ -157,6 +157,14 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
         .min()
         .unwrap_or(0);
     let base_year = args.base_year.unwrap_or(first_year);
+    if (i64::from(base_year) - i64::from(first_year)).abs()
+        > i64::from(crate::input::cashflow::MAX_SPAN)
+    {
+        return Err(Error::Usage(format!(
+            "--base-year {base_year} is more than {} years from the stream's first year {first_year}",
+            crate::input::cashflow::MAX_SPAN
+        )));
+    }
     let timing = if args.mid_year {
         Timing::MidYear
     } else {

@@ -40,8 +40,10 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Validate a scenario and every file it names; list every problem.
+    #[command(after_help = AFTER_HELP)]
     Check(check::Args),
     /// Appraise a plain cash-flow stream, or compare alternatives incrementally.
+    #[command(after_help = AFTER_HELP)]
     Cashflow(cashflow::Args),
 }
 

@@ -315,3 +315,48 @@ mod tests {
         );
     }
 }
+
+#[cfg(test)]
+mod robustness {
+    //! Readers must never panic, whatever bytes they are given.
+    use super::*;
+    use proptest::prelude::*;
+
+    fn demo_text(name: &str) -> String {
+        let bytes = crate::demo::FILES.iter().find(|f| f.0 == name).unwrap().1;
+        String::from_utf8(bytes.to_vec()).unwrap()
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(200))]
+
+        #[test]
+        fn readers_survive_arbitrary_text(s in "\\PC{0,400}") {
+            let mut d = Diagnostics::new();
+            let _ = network::parse("n.csv", &s, &mut d);
+            let _ = cashflow::parse("c.csv", &s, &mut d);
+            let _ = scenario::parse("s.toml", &s, Path::new("."), &mut d);
+            let _ = treatments::parse("t.toml", &s, &mut d);
+            let _ = templates::parse("p.toml", &s, &mut d);
+            let _ = crate::text::decode("b", s.as_bytes(), &mut d);
+        }
+
+        #[test]
+        fn readers_survive_mangled_demo_files(cut in 0usize..4000, junk in "[,\"=\\[\\]{}0-9a-z.\\n-]{0,12}") {
+            for name in ["network.csv", "scenario.toml", "treatments.toml", "templates.toml"] {
+                let text = demo_text(name);
+                let at = text.char_indices().map(|(i, _)| i).nth(cut % text.chars().count()).unwrap_or(0);
+                let mangled = format!("{}{}{}", &text[..at], junk, &text[at..]);
+                let mut d = Diagnostics::new();
+                match name {
+                    "network.csv" => { let _ = network::parse(name, &mangled, &mut d); }
+                    "scenario.toml" => { let _ = scenario::parse(name, &mangled, Path::new("."), &mut d); }
+                    "treatments.toml" => { let _ = treatments::parse(name, &mangled, &mut d); }
+                    _ => { let _ = templates::parse(name, &mangled, &mut d); }
+                }
+                // Whatever is reported names its file.
+                prop_assert!(d.iter().all(|x| x.place.file == name));
+            }
+        }
+    }
+}
