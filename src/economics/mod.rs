@@ -430,6 +430,8 @@ mod tests {
         assert_eq!(bcr(3.0, 2.0), Some(1.5));
     }
 
+    // FYRR definition: common practice, from memory (first full year's net benefit ÷ capital
+    // cost, undiscounted); the cases check the edges of that definition, not published values.
     #[test]
     fn fyrr_edge_cases() {
         assert_eq!(fyrr(&[0.0, -50.0, -50.0, 12.0, 30.0]), Some(0.12));

@@ -36,37 +36,14 @@ pub const SINGLE: &str = "stream";
 
 /// Read a cash-flow file from decoded text.
 pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Vec<Flows>> {
-    if text.trim().is_empty() {
-        d.error(
-            Place::line(file, 1),
-            "the file is empty",
-            "a header `year,benefit,cost` and one row per year",
-        );
-        return None;
-    }
-    if let Some(pos) = text.find('"') {
-        let line = 1 + text[..pos].matches('\n').count();
-        d.note(
-            Place::line(file, line),
-            "quoted fields; accepted (quotes removed)",
-        );
-    }
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(true)
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
-    let headers = match rdr.headers() {
-        Ok(h) => h.clone(),
-        Err(e) => {
-            d.error(
-                Place::line(file, 1),
-                format!("unreadable header: {e}"),
-                "a CSV header line",
-            );
-            return None;
-        }
-    };
+    let before = d.error_count();
+    let mut input = super::csvfile::CsvInput::open(
+        file,
+        text,
+        "a header `year,benefit,cost` and one row per year",
+        d,
+    )?;
+    let headers = input.headers.clone();
     let known = ["year", "benefit", "cost", "alternative"];
     let mut pos = [None; 4];
     let mut header_ok = true;
@@ -116,37 +93,9 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Vec<Flows>> 
     let mut flows: BTreeMap<String, BTreeMap<i32, (Money, Money)>> = BTreeMap::new();
     let mut first_line: BTreeMap<(String, i32), usize> = BTreeMap::new();
     let mut noted_repeat = false;
-    let mut rows = 0;
-    let mut record = csv::StringRecord::new();
     let mut ok = true;
-    loop {
-        match rdr.read_record(&mut record) {
-            Ok(false) => break,
-            Ok(true) => {}
-            Err(e) => {
-                let line = e.position().map_or(0, |p| p.line() as usize);
-                d.error(
-                    Place::line(file, line),
-                    format!("unreadable CSV: {e}"),
-                    "well-formed CSV",
-                );
-                return None;
-            }
-        }
-        let line = record.position().map_or(0, |p| p.line() as usize);
-        if record.iter().all(str::is_empty) {
-            continue;
-        }
-        rows += 1;
-        if record.len() != headers.len() {
-            d.error(
-                Place::line(file, line),
-                format!("found {} fields", record.len()),
-                format!("{} fields, one per header column", headers.len()),
-            );
-            ok = false;
-            continue;
-        }
+    while let Some(line) = input.next_row(d) {
+        let record = input.record();
         let at = |f: &str| Place::line(file, line).with_field(f.to_owned());
         let year_raw = record.get(iy).unwrap_or("");
         let year = match year_raw.parse::<i32>() {
@@ -223,15 +172,10 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Vec<Flows>> 
             }
         }
     }
-    if rows == 0 {
-        d.error(
-            Place::line(file, 1),
-            "a header but no rows",
-            "one row per year after the header",
-        );
+    if !input.had_rows("one row per year after the header", d) {
         return None;
     }
-    if !ok {
+    if !ok || d.error_count() > before {
         return None;
     }
     let mut out = Vec::with_capacity(order.len());
@@ -288,6 +232,13 @@ mod tests {
         .unwrap();
         let names: Vec<&str> = f.iter().map(|x| x.name.as_str()).collect();
         assert_eq!(names, ["B", "A"]);
+    }
+
+    #[test]
+    fn a_row_of_the_wrong_width_fails_the_file() {
+        let mut d = Diagnostics::new();
+        assert!(parse("c.csv", "year,benefit,cost\n2027,1\n2028,1,2\n", &mut d).is_none());
+        assert_eq!(d.error_count(), 1);
     }
 
     #[test]

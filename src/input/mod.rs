@@ -7,6 +7,7 @@
 //! [`Diagnostics`] list; later stages receive only a `Run` that passed.
 
 pub mod cashflow;
+pub mod csvfile;
 pub mod network;
 pub mod scenario;
 pub mod templates;

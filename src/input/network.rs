@@ -128,73 +128,17 @@ pub const OPTIONAL: [&str; 6] = [
 /// Read the network from decoded CSV text.
 pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
     let before = d.error_count();
-    if text.trim().is_empty() {
-        d.error(
-            Place::line(file, 1),
-            "the file is empty",
-            format!(
-                "a header line naming the columns {} and one row per section",
-                REQUIRED.join(", ")
-            ),
-        );
-        return None;
-    }
-    if let Some(pos) = text.find('"') {
-        let line = 1 + text[..pos].matches('\n').count();
-        d.note(
-            Place::line(file, line),
-            "quoted fields; accepted (quotes removed)",
-        );
-    }
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(true)
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
-    let headers = match rdr.headers() {
-        Ok(h) => h.clone(),
-        Err(e) => {
-            d.error(
-                Place::line(file, 1),
-                format!("unreadable header: {e}"),
-                "a CSV header line",
-            );
-            return None;
-        }
-    };
-    let cols = read_header(file, &headers, d)?;
+    let layout = format!(
+        "a header line naming the columns {} and one row per section",
+        REQUIRED.join(", ")
+    );
+    let mut input = super::csvfile::CsvInput::open(file, text, &layout, d)?;
+    let cols = read_header(file, &input.headers, d)?;
 
     let mut sections = Vec::new();
     let mut seen: HashMap<String, usize> = HashMap::new();
-    let mut rows = 0usize;
-    let mut record = csv::StringRecord::new();
-    loop {
-        match rdr.read_record(&mut record) {
-            Ok(false) => break,
-            Ok(true) => {}
-            Err(e) => {
-                let line = e.position().map_or(0, |p| p.line() as usize);
-                d.error(
-                    Place::line(file, line),
-                    format!("unreadable CSV: {e}"),
-                    "well-formed CSV",
-                );
-                break;
-            }
-        }
-        let line = record.position().map_or(0, |p| p.line() as usize);
-        if record.iter().all(str::is_empty) {
-            continue; // blank line
-        }
-        rows += 1;
-        if record.len() != headers.len() {
-            d.error(
-                Place::line(file, line),
-                format!("found {} fields", record.len()),
-                format!("{} fields, one per header column", headers.len()),
-            );
-            continue;
-        }
+    while let Some(line) = input.next_row(d) {
+        let record = input.record();
         // Duplicates are checked on the raw id, so a bad row still claims its id.
         let id = record.get(cols.required[0]).unwrap_or("").to_owned();
         let duplicate = match seen.get(&id) {
@@ -214,7 +158,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
         let mut row = Row {
             file,
             line,
-            record: &record,
+            record,
             cols: &cols,
             d,
             ok: true,
@@ -225,12 +169,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
             }
         }
     }
-    if rows == 0 {
-        d.error(
-            Place::line(file, 1),
-            "a header but no rows",
-            "at least one section after the header line",
-        );
+    if !input.had_rows("at least one section after the header line", d) {
         return None;
     }
     if d.error_count() > before {

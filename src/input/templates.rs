@@ -252,13 +252,7 @@ fn read_steps(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<Step>> {
             continue;
         };
         let place = item.place();
-        let treatment = t
-            .require("treatment", d, "the treatment's name in the catalogue")
-            .and_then(|v| v.identifier(d).map(str::to_owned));
-        let tag = match t.get("tag") {
-            Some(v) => v.identifier(d).map(|s| Some(s.to_owned())),
-            None => Some(None),
-        };
+        let (treatment, tag) = read_work(&mut t, d);
         let window = t.get("window").map(|v| (v.place(), v.int_range(d, 0, 99)));
         let after = t.get("after").map(|v| (v.place(), v.int_range(d, 0, 99)));
         let every = match t.get("every") {
@@ -303,9 +297,9 @@ fn read_steps(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<Step>> {
             _ => None,
         };
         match (treatment, tag, timing) {
-            (Some(tr), Some(tag), Some(timing)) => out.push(Step {
-                tag: tag.unwrap_or_else(|| tr.clone()),
-                treatment: tr,
+            (Some(treatment), Some(tag), Some(timing)) => out.push(Step {
+                tag,
+                treatment,
                 timing,
                 place,
             }),
@@ -315,15 +309,21 @@ fn read_steps(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<Step>> {
     ok.then_some(out)
 }
 
-fn read_trigger(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<Trigger> {
-    let place = t.place();
+/// The treatment a step or trigger applies and its tag (the treatment's name by default).
+fn read_work(t: &mut Table<'_, '_>, d: &mut Diagnostics) -> (Option<String>, Option<String>) {
     let treatment = t
         .require("treatment", d, "the treatment's name in the catalogue")
         .and_then(|v| v.identifier(d).map(str::to_owned));
     let tag = match t.get("tag") {
-        Some(v) => v.identifier(d).map(|s| Some(s.to_owned())),
-        None => Some(None),
+        Some(v) => v.identifier(d).map(str::to_owned),
+        None => treatment.clone(),
     };
+    (treatment, tag)
+}
+
+fn read_trigger(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<Trigger> {
+    let place = t.place();
+    let (treatment, tag) = read_work(&mut t, d);
     let iri = t
         .require(
             "iri",
@@ -352,10 +352,9 @@ fn read_trigger(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<Trigger> {
             Some(xs)
         });
     t.finish(d);
-    let treatment = treatment?;
     Some(Trigger {
-        tag: tag?.unwrap_or_else(|| treatment.clone()),
-        treatment,
+        tag: tag?,
+        treatment: treatment?,
         iri: iri?,
         place,
     })

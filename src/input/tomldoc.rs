@@ -347,6 +347,20 @@ impl<'a, 'i> Table<'a, 'i> {
         v
     }
 
+    /// An optional number within `lo..=hi`: `None` when absent, else its place and the value
+    /// (`None` inside when the value was wrong, which is recorded).
+    pub fn number_at(
+        &mut self,
+        key: &str,
+        d: &mut Diagnostics,
+        lo: f64,
+        hi: f64,
+        expected: &str,
+    ) -> Option<(Place, Option<f64>)> {
+        self.get(key)
+            .map(|v| (v.place(), v.number_in(d, lo, hi, expected)))
+    }
+
     /// Every key of the table with its value, in the file's order of keys (lexicographic).
     pub fn entries(&mut self) -> Vec<(String, Value<'a, 'i>)> {
         let out: Vec<(String, Value<'a, 'i>)> = self

@@ -292,46 +292,41 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
                 _ => CostBasis::SquareMetre,
             })
         });
-    let iri_after = t.get("iri_after").map(|v| {
-        (
-            v.place(),
-            v.number_in(
-                d,
-                0.3,
-                10.0,
-                "an IRI after the works in m/km, from 0.3 to 10",
-            ),
-        )
-    });
-    let iri_reduction = t.get("iri_reduction").map(|v| {
-        (
-            v.place(),
-            v.number_in(d, 0.0, 15.0, "a fall in IRI in m/km, from 0 to 15"),
-        )
-    });
-    let thickness = t.get("thickness_mm").map(|v| {
-        (
-            v.place(),
-            v.number_in(d, 1.0, 1000.0, "a layer thickness in mm, from 1 to 1000"),
-        )
-    });
-    let coefficient = t.get("layer_coefficient").map(|v| {
-        (
-            v.place(),
-            v.number_in(
-                d,
-                0.01,
-                1.0,
-                "an AASHTO layer coefficient per inch, from 0.01 to 1 (asphalt ≈ 0.44)",
-            ),
-        )
-    });
-    let sn_after = t.get("sn_after").map(|v| {
-        (
-            v.place(),
-            v.number_in(d, 0.5, 15.0, "a structural number from 0.5 to 15"),
-        )
-    });
+    let iri_after = t.number_at(
+        "iri_after",
+        d,
+        0.3,
+        10.0,
+        "an IRI after the works in m/km, from 0.3 to 10",
+    );
+    let iri_reduction = t.number_at(
+        "iri_reduction",
+        d,
+        0.0,
+        15.0,
+        "a fall in IRI in m/km, from 0 to 15",
+    );
+    let thickness = t.number_at(
+        "thickness_mm",
+        d,
+        1.0,
+        1000.0,
+        "a layer thickness in mm, from 1 to 1000",
+    );
+    let coefficient = t.number_at(
+        "layer_coefficient",
+        d,
+        0.01,
+        1.0,
+        "an AASHTO layer coefficient per inch, from 0.01 to 1 (asphalt ≈ 0.44)",
+    );
+    let sn_after = t.number_at(
+        "sn_after",
+        d,
+        0.5,
+        15.0,
+        "a structural number from 0.5 to 15",
+    );
     let lanes_added = match t.get("lanes_added") {
         Some(v) => v
             .integer_in(d, 0, 6, "a whole number of lanes from 0 to 6")
