@@ -33,9 +33,11 @@ pub fn decode_cp1252(bytes: &[u8]) -> String {
 
 /// Decode an input file's bytes, recording how it was read in `diags`.
 ///
-/// Returns the text with any byte-order mark removed (so later checks still run).
-pub fn decode(file: &str, bytes: &[u8], diags: &mut Diagnostics) -> String {
-    let mut body = bytes;
+/// Returns the text with any byte-order mark removed (so later checks still run). Valid UTF-8
+/// is taken over without a copy.
+pub fn decode(file: &str, bytes: impl Into<Vec<u8>>, diags: &mut Diagnostics) -> String {
+    let mut body: Vec<u8> = bytes.into();
+    let mut offset = 0;
     if body.starts_with(BOM) {
         diags
             .error(
@@ -48,12 +50,14 @@ pub fn decode(file: &str, bytes: &[u8], diags: &mut Diagnostics) -> String {
              or remove the first three bytes"
                 .into(),
         );
-        body = &body[BOM.len()..];
+        body.drain(..BOM.len());
+        offset = BOM.len();
     }
-    let text = match std::str::from_utf8(body) {
-        Ok(s) => s.to_owned(),
+    let text = match String::from_utf8(body) {
+        Ok(s) => s,
         Err(e) => {
-            let at = e.valid_up_to();
+            let at = e.utf8_error().valid_up_to();
+            let body = e.into_bytes();
             let line = 1 + body[..at].iter().filter(|&&b| b == b'\n').count();
             diags
                 .note(
@@ -61,11 +65,11 @@ pub fn decode(file: &str, bytes: &[u8], diags: &mut Diagnostics) -> String {
                     format!(
                         "bytes that are not UTF-8 (first at byte {}); the file was read as \
                          Windows-1252 (Western European)",
-                        at + 1 + bytes.len() - body.len()
+                        at + 1 + offset
                     ),
                 )
                 .hint = Some("save the file as UTF-8 if names look wrong in the output".into());
-            decode_cp1252(body)
+            decode_cp1252(&body)
         }
     };
     if let Some(pos) = text.find("\r\n") {
@@ -129,7 +133,7 @@ mod tests {
     #[test]
     fn bom_is_an_error_and_is_stripped() {
         let mut d = Diagnostics::new();
-        let t = decode("n.csv", b"\xEF\xBB\xBFa,b\n1,2\n", &mut d);
+        let t = decode("n.csv", &b"\xEF\xBB\xBFa,b\n1,2\n"[..], &mut d);
         assert_eq!(t, "a,b\n1,2\n");
         assert_eq!(d.error_count(), 1);
         assert!(d.errors()[0].found.contains("byte-order mark"));
@@ -138,7 +142,7 @@ mod tests {
     #[test]
     fn crlf_and_latin1_are_notes() {
         let mut d = Diagnostics::new();
-        let t = decode("n.csv", b"a,b\r\nS\xE9rignac,2\r\n", &mut d);
+        let t = decode("n.csv", &b"a,b\r\nS\xE9rignac,2\r\n"[..], &mut d);
         assert_eq!(t, "a,b\r\nSérignac,2\r\n");
         assert!(!d.has_errors());
         assert_eq!(d.note_count(), 2);

@@ -94,7 +94,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         Error::Input(d)
     })?;
     let mut diags = Diagnostics::new();
-    let text = crate::text::decode(&label, &bytes, &mut diags);
+    let text = crate::text::decode(&label, bytes, &mut diags);
     let flows = parse(&label, &text, &mut diags);
     let flows = match flows {
         Some(f) if !diags.has_errors() => f,

@@ -84,7 +84,7 @@ fn read_text(
 ) -> Option<(String, String)> {
     let label = source.label(path);
     match source.read(path) {
-        Ok(bytes) => Some((label.clone(), decode(&label, &bytes, d))),
+        Ok(bytes) => Some((label.clone(), decode(&label, bytes, d))),
         Err(e) => {
             let (place, found) = match named_at {
                 Some(p) => (p.clone(), format!("cannot read `{label}`: {e}")),

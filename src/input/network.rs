@@ -268,9 +268,10 @@ impl<'a> Row<'a> {
         record.get(self.cols.required[k]).unwrap_or("")
     }
 
-    fn opt_raw(&self, k: usize) -> Option<&str> {
+    fn opt_raw(&self, k: usize) -> Option<&'a str> {
+        let record: &'a csv::StringRecord = self.record;
         self.cols.optional[k]
-            .and_then(|i| self.record.get(i))
+            .and_then(|i| record.get(i))
             .filter(|s| !s.is_empty())
     }
 
@@ -284,7 +285,6 @@ impl<'a> Row<'a> {
         open_lo: bool,
         expected: &str,
     ) -> Option<f64> {
-        let raw = raw.to_owned();
         if raw.is_empty() {
             self.bad(field, "an empty value".into(), expected);
             return None;
@@ -359,7 +359,7 @@ impl<'a> Row<'a> {
             true,
             "a length in km, more than 0 and at most 1000",
         );
-        let lanes_raw = self.raw(2).to_owned();
+        let lanes_raw = self.raw(2);
         let lanes = match lanes_raw.parse::<u8>() {
             Ok(n) if (1..=12).contains(&n) => Some(n),
             _ => {
@@ -371,7 +371,7 @@ impl<'a> Row<'a> {
                 None
             }
         };
-        let cw_raw = self.raw(3).to_owned();
+        let cw_raw = self.raw(3);
         let carriageway = Carriageway::parse(&cw_raw);
         if carriageway.is_none() {
             self.bad(
@@ -420,19 +420,19 @@ impl<'a> Row<'a> {
         );
 
         let region = self.opt_raw(0).map(str::to_owned);
-        let lane_width_m = match self.opt_raw(1).map(str::to_owned) {
-            Some(r) => Some(self.number(
+        let lane_width_m = match self.opt_raw(1) {
+            Some(r) => self.number(
                 "lane_width_m",
-                &r,
+                r,
                 2.0,
                 6.0,
                 false,
                 "a lane width in metres from 2 to 6",
-            )?),
+            ),
             None => None,
         };
-        let surface = match self.opt_raw(2).map(str::to_owned) {
-            Some(s) if super::tomldoc::is_identifier(&s) => Some(s),
+        let surface = match self.opt_raw(2) {
+            Some(s) if super::tomldoc::is_identifier(s) => Some(s.to_owned()),
             Some(s) => {
                 self.bad(
                     "surface",
@@ -443,10 +443,10 @@ impl<'a> Row<'a> {
             }
             None => None,
         };
-        let subgrade = match self.opt_raw(3).map(str::to_owned) {
+        let subgrade = match self.opt_raw(3) {
             Some(r) => self.number(
                 "subgrade_mr_mpa",
-                &r,
+                r,
                 5.0,
                 1000.0,
                 false,
@@ -454,7 +454,7 @@ impl<'a> Row<'a> {
             ),
             None => None,
         };
-        let last_works_year = match self.opt_raw(4).map(str::to_owned) {
+        let last_works_year = match self.opt_raw(4) {
             Some(r) => match r.parse::<i32>() {
                 Ok(y) if (1900..=2200).contains(&y) => Some(y),
                 _ => {
@@ -468,10 +468,10 @@ impl<'a> Row<'a> {
             },
             None => None,
         };
-        let speed = match self.opt_raw(5).map(str::to_owned) {
+        let speed = match self.opt_raw(5) {
             Some(r) => self.number(
                 "speed_kmh",
-                &r,
+                r,
                 5.0,
                 200.0,
                 false,
@@ -563,6 +563,14 @@ mod tests {
             "{text}"
         );
         assert_eq!(d.error_count(), 7 + 2, "{text}");
+    }
+
+    #[test]
+    fn a_bad_optional_field_does_not_hide_the_next() {
+        let text = format!("{HEAD},lane_width_m,speed_kmh\nA1,1,2,single,2,3,100,0.1,0.02,9,900\n");
+        let (_, d) = read(&text);
+        let t = d.to_string();
+        assert!(t.contains("lane_width_m") && t.contains("speed_kmh"), "{t}");
     }
 
     #[test]
