@@ -372,7 +372,7 @@ impl<'a> Row<'a> {
             }
         };
         let cw_raw = self.raw(3);
-        let carriageway = Carriageway::parse(&cw_raw);
+        let carriageway = Carriageway::parse(cw_raw);
         if carriageway.is_none() {
             self.bad(
                 "carriageway",
