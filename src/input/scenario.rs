@@ -278,7 +278,23 @@ fn read_frame(mut t: Table<'_, '_>, d: &mut Diagnostics) -> (Option<Frame>, Opti
             d,
             "the length of the analysis period in years, e.g. 30",
         )
-        .and_then(|v| v.integer_in(d, 1, 100, "a whole number of years from 1 to 100"));
+        .and_then(|v| {
+            let n = v.integer_in(d, 1, 100, "a whole number of years from 1 to 100");
+            if let Some(n) = n.filter(|n| *n < 30) {
+                // NCHRP pavement-type selection guidance: at least 30 years for rehabilitation,
+                // 40 for new pavement, so that every alternative reaches a comparable state.
+                d.note(
+                    v.place(),
+                    format!("an analysis period of {n} years is short for pavement life-cycle appraisal"),
+                )
+                .hint = Some(
+                    "NCHRP pavement-type selection guidance asks for at least 30 years for \
+                     rehabilitation and 40 for new pavement"
+                        .into(),
+                );
+            }
+            n
+        });
     let rate = t
         .require(
             "discount_rate",
@@ -580,7 +596,7 @@ mod tests {
 [scenario]
 title = "t"
 base_year = 2027
-analysis_years = 20
+analysis_years = 30
 discount_rate = 0.06
 money = "CR"
 
@@ -608,7 +624,7 @@ years = { 2028 = "6500000.50" }
         let mut d = Diagnostics::new();
         let s = parse("s.toml", GOOD, Path::new("/data"), &mut d).expect("parses");
         assert!(d.is_empty(), "{d}");
-        assert_eq!(s.last_year(), 2046);
+        assert_eq!(s.last_year(), 2056);
         assert_eq!(s.files.network.path, PathBuf::from("/data/net.csv"));
         assert_eq!(s.files.strategies.len(), 2);
         assert_eq!(s.unit_values.time.get(VehicleClass::Bus).to_string(), "36");
@@ -641,6 +657,24 @@ years = { 2028 = "6500000.50" }
         }
         // Each names a line.
         assert!(d.errors().iter().all(|e| e.place.line.is_some()));
+    }
+
+    #[test]
+    fn a_short_analysis_period_gets_a_note() {
+        let mut d = Diagnostics::new();
+        let s = parse(
+            "s.toml",
+            &GOOD.replace("analysis_years = 30", "analysis_years = 12"),
+            Path::new("."),
+            &mut d,
+        );
+        assert!(s.is_some());
+        assert_eq!(d.error_count(), 0);
+        assert!(
+            d.to_string()
+                .contains("analysis period of 12 years is short"),
+            "{d}"
+        );
     }
 
     #[test]

@@ -5,8 +5,10 @@
 //! the solver so that the pure-Rust backend (default) and HiGHS (`highs` feature) share one model
 //! builder:
 //!
+//! ```text
 //! maximise Σ value[g,k]·x[g,k]  subject to  Σ_k x[g,k] = 1 for every group g,
 //! Σ cost[g,k,j]·x[g,k] ≤ limit[j] for every row j,  x ∈ {0,1}.
+//! ```
 //!
 //! The caller puts a zero option in any group that may be left without works.
 
