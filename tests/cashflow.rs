@@ -340,3 +340,14 @@ fn help_carries_the_caution_and_exit_codes() {
         .stdout_has("--base-year");
     wd.run(&["frobnicate"]).expect_code(2);
 }
+
+#[test]
+fn an_unwritable_output_is_an_internal_fault_and_leaves_nothing() {
+    let wd = Workdir::new();
+    wd.write("f.csv", "year,benefit,cost\n2027,0,100\n2028,120,0\n");
+    wd.write("blocker", "");
+    wd.run(&["cashflow", "f.csv", "--rate", "0.1", "--out", "blocker/out"])
+        .expect_code(1)
+        .stderr_has("cannot write");
+    assert_eq!(wd.listing(), ["blocker", "f.csv"]);
+}
