@@ -12,6 +12,16 @@ fn close(v: &Value, want: f64, tol: f64) {
     assert!((x - want).abs() <= tol, "{x} vs {want} (±{tol})");
 }
 
+/// `cashflow - --rate RATE --format json` on a single stream of net values from year 0.
+fn appraise_json(rate: &str, values: &[f64]) -> Value {
+    let wd = Workdir::new();
+    let out = wd.run_with_stdin(
+        &["cashflow", "-", "--rate", rate, "--format", "json"],
+        stream(0, values).as_bytes(),
+    );
+    json(out.expect_code(0))
+}
+
 /// Single stream CSV from net values, one a year from `first`.
 fn stream(first: i32, values: &[f64]) -> String {
     let mut s = String::from("year,benefit,cost\n");
@@ -101,32 +111,23 @@ fn numpy_financial_npv_by_default() {
 // Source: shared reference values: [-100, 230, -132] has the two rates 10 % and 20 %.
 #[test]
 fn several_rates_are_all_listed() {
-    let wd = Workdir::new();
-    let out = wd.run_with_stdin(
-        &["cashflow", "-", "--rate", "0.05", "--format", "json"],
-        stream(0, &[-100.0, 230.0, -132.0]).as_bytes(),
-    );
-    let j = json(out.expect_code(0));
+    let j = appraise_json("0.05", &[-100.0, 230.0, -132.0]);
     assert_eq!(j["irr_status"], "multiple");
     close(&j["irr"][0], 0.10, 1e-10);
     close(&j["irr"][1], 0.20, 1e-10);
-    wd.run_with_stdin(
-        &["cashflow", "-", "--rate", "0.05"],
-        stream(0, &[-100.0, 230.0, -132.0]).as_bytes(),
-    )
-    .expect_code(0)
-    .stdout_has("ambiguous: 10.00 %, 20.00 %");
+    Workdir::new()
+        .run_with_stdin(
+            &["cashflow", "-", "--rate", "0.05"],
+            stream(0, &[-100.0, 230.0, -132.0]).as_bytes(),
+        )
+        .expect_code(0)
+        .stdout_has("ambiguous: 10.00 %, 20.00 %");
 }
 
 // Source: numpy-financial returns nan for [-100, 50, -100]: no real rate.
 #[test]
 fn no_rate_is_said() {
-    let wd = Workdir::new();
-    let out = wd.run_with_stdin(
-        &["cashflow", "-", "--rate", "0.05", "--format", "json"],
-        stream(0, &[-100.0, 50.0, -100.0]).as_bytes(),
-    );
-    let j = json(out.expect_code(0));
+    let j = appraise_json("0.05", &[-100.0, 50.0, -100.0]);
     assert_eq!(j["irr_status"], "none");
     assert_eq!(j["irr"], serde_json::json!([]));
 }

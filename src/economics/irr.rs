@@ -125,6 +125,15 @@ fn magnitude(c: &[f64], z: f64) -> f64 {
     c.iter().rev().fold(0.0, |acc, &ci| acc * z + ci.abs())
 }
 
+/// Coefficients of the derivative of Σ c_i z^i.
+fn derivative(c: &[f64]) -> Vec<f64> {
+    c.iter()
+        .enumerate()
+        .skip(1)
+        .map(|(i, v)| v * i as f64)
+        .collect()
+}
+
 fn reversed(c: &[f64]) -> Vec<f64> {
     c.iter().rev().copied().collect()
 }
@@ -184,12 +193,7 @@ struct Bounded {
 
 impl Bounded {
     fn new(c: &[f64]) -> Bounded {
-        let d1: Vec<f64> = c
-            .iter()
-            .enumerate()
-            .skip(1)
-            .map(|(j, v)| v * j as f64)
-            .collect();
+        let d1 = derivative(c);
         let abs0: Vec<f64> = c.iter().map(|v| v.abs()).collect();
         let abs1: Vec<f64> = d1.iter().map(|v| v.abs()).collect();
         let abs2: Vec<f64> = d1
@@ -309,12 +313,7 @@ fn roots_in(c: &[f64], a: f64, b: f64) -> Vec<f64> {
             }
         }
         _ => {
-            let deriv: Vec<f64> = c
-                .iter()
-                .enumerate()
-                .skip(1)
-                .map(|(i, v)| v * i as f64)
-                .collect();
+            let deriv = derivative(&c);
             let crit = roots_in(&deriv, a, b);
             let mut knots = Vec::with_capacity(crit.len() + 2);
             knots.push(a);
