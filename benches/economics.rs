@@ -41,7 +41,7 @@ fn streams(n: usize, conventional: bool) -> Vec<Stream> {
         .collect()
 }
 
-fn time<F: FnMut() -> usize>(name: &str, per_round: usize, mut f: F) {
+fn time<F: FnMut() -> usize>(name: &str, mut f: F) {
     let mut best = f64::INFINITY;
     for _ in 0..3 {
         let t = Instant::now();
@@ -52,7 +52,6 @@ fn time<F: FnMut() -> usize>(name: &str, per_round: usize, mut f: F) {
         best = best.min(t.elapsed().as_secs_f64() / done as f64);
     }
     println!("| {name} | {:.0} | {:.2} µs |", 1.0 / best, best * 1e6);
-    let _ = per_round;
 }
 
 fn main() {
@@ -62,25 +61,25 @@ fn main() {
     let nets: Vec<Vec<f64>> = nonconv.iter().map(Stream::net).collect();
     println!("| case (30-year streams) | per second | each |");
     println!("|---|---|---|");
-    time("NPV (PV of benefits and of costs)", 1000, || {
+    time("NPV (PV of benefits and of costs)", || {
         for s in &conv {
             black_box(d.pv(s.first_year, &s.benefits) - d.pv(s.first_year, &s.costs));
         }
         conv.len()
     });
-    time("full appraisal, conventional stream", 1000, || {
+    time("full appraisal, conventional stream", || {
         for s in &conv {
             black_box(appraise(s, &d));
         }
         conv.len()
     });
-    time("full appraisal, three sign changes", 1000, || {
+    time("full appraisal, three sign changes", || {
         for s in &nonconv {
             black_box(appraise(s, &d));
         }
         nonconv.len()
     });
-    time("IRR alone, three sign changes", 1000, || {
+    time("IRR alone, three sign changes", || {
         for v in &nets {
             black_box(irr(v));
         }

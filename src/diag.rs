@@ -208,6 +208,15 @@ impl Diagnostics {
         v
     }
 
+    /// The closing line of a failed check: `3 problems found in the input`.
+    pub fn problem_line(&self) -> String {
+        let n = self.error_count();
+        format!(
+            "{n} problem{} found in the input",
+            if n == 1 { "" } else { "s" }
+        )
+    }
+
     /// Only the errors, sorted.
     pub fn errors(&self) -> Vec<&Diagnostic> {
         self.sorted()

@@ -40,13 +40,7 @@ pub enum Error {
 }
 
 fn render_input(d: &Diagnostics) -> String {
-    let mut s = d.to_string();
-    let n = d.error_count();
-    s.push_str(&format!(
-        "{n} problem{} found in the input",
-        if n == 1 { "" } else { "s" }
-    ));
-    s
+    format!("{d}{}", d.problem_line())
 }
 
 impl Error {

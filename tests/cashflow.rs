@@ -12,14 +12,17 @@ fn close(v: &Value, want: f64, tol: f64) {
     assert!((x - want).abs() <= tol, "{x} vs {want} (±{tol})");
 }
 
+/// `cashflow - --format json ARGS` with `csv` on stdin; it must succeed.
+fn cashflow_json(csv: &str, args: &[&str]) -> Value {
+    let mut all = vec!["cashflow", "-", "--format", "json"];
+    all.extend_from_slice(args);
+    let out = Workdir::new().run_with_stdin(&all, csv.as_bytes());
+    json(out.expect_code(0))
+}
+
 /// `cashflow - --rate RATE --format json` on a single stream of net values from year 0.
 fn appraise_json(rate: &str, values: &[f64]) -> Value {
-    let wd = Workdir::new();
-    let out = wd.run_with_stdin(
-        &["cashflow", "-", "--rate", rate, "--format", "json"],
-        stream(0, values).as_bytes(),
-    );
-    json(out.expect_code(0))
+    cashflow_json(&stream(0, values), &["--rate", rate])
 }
 
 /// Single stream CSV from net values, one a year from `first`.
@@ -74,35 +77,17 @@ fn incremental_reference_case() {
 // spreadsheet discounts its first value one period, so the base year is the year before.
 #[test]
 fn spreadsheet_npv_by_base_year() {
-    let wd = Workdir::new();
     let csv = stream(2026, &[-10000.0, 3000.0, 4200.0, 6800.0]);
-    let out = wd.run_with_stdin(
-        &[
-            "cashflow",
-            "-",
-            "--rate",
-            "0.1",
-            "--base-year",
-            "2025",
-            "--format",
-            "json",
-        ],
-        csv.as_bytes(),
-    );
-    close(&json(out.expect_code(0))["npv"], 1188.44, 5e-3);
+    let j = cashflow_json(&csv, &["--rate", "0.1", "--base-year", "2025"]);
+    close(&j["npv"], 1188.44, 5e-3);
 }
 
 // Source: numpy-financial 1.0.0 documentation: npv(0.08, [-40000, 5000, 8000, 12000, 30000])
 // = 3065.22267 (first value undiscounted = our default base year, the first year).
 #[test]
 fn numpy_financial_npv_by_default() {
-    let wd = Workdir::new();
     let csv = stream(2030, &[-40000.0, 5000.0, 8000.0, 12000.0, 30000.0]);
-    let out = wd.run_with_stdin(
-        &["cashflow", "-", "--rate", "0.08", "--format", "json"],
-        csv.as_bytes(),
-    );
-    let j = json(out.expect_code(0));
+    let j = cashflow_json(&csv, &["--rate", "0.08"]);
     close(&j["npv"], 3065.22267, 5e-6);
     close(&j["pv_costs"], 40000.0, 1e-9);
     assert_eq!(j["irr_status"], "unique");
@@ -134,20 +119,10 @@ fn no_rate_is_said() {
 
 #[test]
 fn mid_year_discounting() {
-    let wd = Workdir::new();
-    let out = wd.run_with_stdin(
-        &[
-            "cashflow",
-            "-",
-            "--rate",
-            "0.1",
-            "--mid-year",
-            "--format",
-            "json",
-        ],
-        b"year,benefit,cost\n2027,0,0\n2028,100,0\n",
+    let j = cashflow_json(
+        "year,benefit,cost\n2027,0,0\n2028,100,0\n",
+        &["--rate", "0.1", "--mid-year"],
     );
-    let j = json(out.expect_code(0));
     close(&j["npv"], 100.0 / 1.1f64.sqrt(), 1e-9);
     assert_eq!(j["discounting"], "mid-year");
 }
@@ -157,22 +132,7 @@ fn mid_year_discounting() {
 #[test]
 fn independent_projects_within_a_budget() {
     let csv = "alternative,year,benefit,cost\nP1,0,1536,1000\nP2,0,2212,1600\nP3,0,1300,900\n";
-    let wd = Workdir::new();
-    let out = wd.run_with_stdin(
-        &[
-            "cashflow",
-            "-",
-            "--rate",
-            "0.1",
-            "--independent",
-            "--budget",
-            "2000",
-            "--format",
-            "json",
-        ],
-        csv.as_bytes(),
-    );
-    let j = json(out.expect_code(0));
+    let j = cashflow_json(csv, &["--rate", "0.1", "--independent", "--budget", "2000"]);
     assert_eq!(
         j["budget"]["best"]["projects"],
         serde_json::json!(["P1", "P3"])

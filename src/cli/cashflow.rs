@@ -17,9 +17,10 @@ use crate::economics::incremental::{analyse, Analysis};
 use crate::economics::{appraise, Discounting, Indicators, Irr, Timing};
 use crate::error::{Error, Result};
 use crate::input::cashflow::{parse, Flows, SINGLE};
-use crate::io::{input_label, print_stdout, read_input, OutputSet};
+use crate::io::{print_stdout, OutputSet};
 use crate::money::{grouped, Money};
 use serde_json::{json, Value};
+use std::path::Path;
 
 /// Output format on stdout.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -83,18 +84,12 @@ struct BudgetResult {
 
 /// Run `cashflow`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
-    let label = input_label(&args.file);
-    let bytes = read_input(&args.file).map_err(|e| {
-        let mut d = Diagnostics::new();
-        d.error(
-            crate::diag::Place::file(label.clone()),
-            format!("cannot read the file: {e}"),
-            "an existing, readable CSV file",
-        );
-        Error::Input(d)
-    })?;
     let mut diags = Diagnostics::new();
-    let text = crate::text::decode(&label, bytes, &mut diags);
+    let read =
+        crate::input::read_text(&crate::input::Disk, Path::new(&args.file), None, &mut diags);
+    let Some((label, text)) = read else {
+        return Err(Error::Input(diags));
+    };
     let flows = parse(&label, &text, &mut diags);
     let flows = match flows {
         Some(f) if !diags.has_errors() => f,
@@ -112,39 +107,30 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         ),
         None => None,
     };
-    if !ctx.quiet {
-        for d in diags.sorted() {
-            eprintln!("{d}");
-        }
-    }
+    ctx.notes(&diags);
     let result = compute(&label, &flows, &args, budget)?;
 
+    let json = serde_json::to_string_pretty(&to_json(&result)).unwrap_or_default() + "\n";
+    let csv = alternatives_csv(&result);
     let stdout = match args.format {
         Format::Table => table(&result),
-        Format::Csv => alternatives_csv(&result),
-        Format::Json => serde_json::to_string_pretty(&to_json(&result)).unwrap_or_default() + "\n",
+        Format::Csv => csv.clone(),
+        Format::Json => json.clone(),
     };
     if let Some(dir) = &args.out.out {
         let mut set = OutputSet::new();
-        set.add("cashflow.csv", alternatives_csv(&result).into_bytes());
+        set.add("cashflow.csv", csv.into_bytes());
         if result.incremental.is_some() {
             set.add("incremental.csv", incremental_csv(&result).into_bytes());
         }
-        set.add(
-            "cashflow.json",
-            (serde_json::to_string_pretty(&to_json(&result)).unwrap_or_default() + "\n")
-                .into_bytes(),
-        );
+        set.add("cashflow.json", json.into_bytes());
         let written = set.commit(dir)?;
-        if !ctx.quiet {
-            for p in written {
-                eprintln!("wrote {}", p.display());
-            }
+        for p in written {
+            ctx.say(&format!("wrote {}", p.display()));
         }
-        if !ctx.quiet {
-            print_stdout(&stdout)?;
-        }
-    } else {
+    }
+    // With --out the files are the output and stdout is a summary, silenced by --quiet.
+    if args.out.out.is_none() || !ctx.quiet {
         print_stdout(&stdout)?;
     }
     Ok(())
@@ -174,12 +160,20 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
         .map_err(|e| Error::Usage(format!("--rate: {e}")))?;
     let streams: Vec<(String, crate::economics::Stream)> =
         flows.iter().map(|f| (f.name.clone(), f.stream())).collect();
-    let alternatives: Vec<(String, Indicators)> = streams
-        .iter()
-        .map(|(n, s)| (n.clone(), appraise(s, &discounting)))
-        .collect();
     let incremental =
         (flows.len() > 1 && !args.independent).then(|| analyse(&streams, &discounting));
+    // The analysis already appraised every alternative; keep the file's order for the tables.
+    let alternatives: Vec<(String, Indicators)> = match &incremental {
+        Some(a) => streams
+            .iter()
+            .filter_map(|(n, _)| a.alternatives.iter().find(|r| &r.name == n))
+            .map(|r| (r.name.clone(), r.indicators.clone()))
+            .collect(),
+        None => streams
+            .iter()
+            .map(|(n, s)| (n.clone(), appraise(s, &discounting)))
+            .collect(),
+    };
     let budget = match budget {
         Some(b) => {
             let projects: Vec<Project> = alternatives

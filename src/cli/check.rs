@@ -23,11 +23,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let Some(run) = run else {
         return Err(Error::Input(diags));
     };
-    if !ctx.quiet {
-        for d in diags.sorted() {
-            eprintln!("{d}");
-        }
-    }
+    ctx.notes(&diags);
     let s = &run.scenario;
     let net = &run.network;
     let regions = net.regions();

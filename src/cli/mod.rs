@@ -54,6 +54,15 @@ pub struct Context {
 }
 
 impl Context {
+    /// Print the findings of an accepted input (its notes) on stderr unless quiet.
+    pub fn notes(&self, d: &crate::diag::Diagnostics) {
+        if !self.quiet {
+            for item in d.sorted() {
+                eprintln!("{item}");
+            }
+        }
+    }
+
     /// Print a line on stderr unless quiet.
     pub fn say(&self, text: &str) {
         if !self.quiet {
@@ -103,11 +112,7 @@ fn print_error(e: &Error, ctx: Context) {
                     eprintln!("{item}");
                 }
             }
-            let n = d.error_count();
-            eprintln!(
-                "{n} problem{} found in the input",
-                if n == 1 { "" } else { "s" }
-            );
+            eprintln!("{}", d.problem_line());
         }
         other => eprintln!("error: {other}"),
     }

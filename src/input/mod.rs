@@ -75,8 +75,9 @@ pub struct Run {
     pub templates: Vec<Template>,
 }
 
-/// Read a file, recording a failure at `place` (where the file is named) or at the file itself.
-fn read_text(
+/// Read and decode a file, recording a failure at `named_at` (where another file names it) or
+/// at the file itself.
+pub fn read_text(
     source: &dyn Source,
     path: &Path,
     named_at: Option<&Place>,
