@@ -10,15 +10,19 @@
 
 #![deny(clippy::float_cmp)]
 
+pub mod appraise;
 pub mod cli;
 pub mod demo;
 pub mod diag;
 pub mod economics;
+pub mod enumerate;
 pub mod error;
+pub mod format;
 pub mod input;
 pub mod io;
 pub mod money;
 pub mod select;
+pub mod simulate;
 pub mod text;
 
 /// The caution printed by `--help`, by every report and in the README.

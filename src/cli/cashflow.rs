@@ -16,6 +16,7 @@ use crate::economics::budget::{best_set, greedy, Portfolio, Project, Ranking};
 use crate::economics::incremental::{analyse, Analysis};
 use crate::economics::{appraise, Discounting, Indicators, Irr, Timing};
 use crate::error::{Error, Result};
+use crate::format::{csv_field, irr_text, num, opt, pct, rates};
 use crate::input::cashflow::{parse, Flows, SINGLE};
 use crate::io::{print_stdout, OutputSet};
 use crate::money::{grouped, Money};
@@ -205,24 +206,6 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
     })
 }
 
-fn pct(x: Option<f64>) -> String {
-    x.map_or("n/a".to_owned(), |r| format!("{:.2} %", r * 100.0))
-}
-
-fn irr_text(irr: &Irr) -> String {
-    match irr {
-        Irr::Unique(r) => format!("{:.2} %", r * 100.0),
-        Irr::Multiple(v) => format!(
-            "ambiguous: {}",
-            v.iter()
-                .map(|r| format!("{:.2} %", r * 100.0))
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
-        Irr::None => "none".to_owned(),
-    }
-}
-
 fn table(a: &Appraisal) -> String {
     let d = &a.discounting;
     let mut s = format!(
@@ -367,26 +350,6 @@ fn table(a: &Appraisal) -> String {
     s
 }
 
-fn num(x: f64) -> String {
-    if x.is_finite() {
-        format!("{x}")
-    } else {
-        String::new()
-    }
-}
-
-fn opt(x: Option<f64>) -> String {
-    x.map_or(String::new(), num)
-}
-
-fn rates(irr: &Irr) -> String {
-    irr.rates()
-        .iter()
-        .map(|r| num(*r))
-        .collect::<Vec<_>>()
-        .join(";")
-}
-
 fn alternatives_csv(a: &Appraisal) -> String {
     let mut s = String::from("alternative,npv,pv_benefits,pv_costs,bcr,irr,irr_status,mirr,fyrr\n");
     for (n, i) in &a.alternatives {
@@ -426,14 +389,6 @@ fn incremental_csv(a: &Appraisal) -> String {
         }
     }
     s
-}
-
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_owned()
-    }
 }
 
 fn jnum(x: f64) -> Value {

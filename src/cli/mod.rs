@@ -5,6 +5,7 @@
 //! all or nothing, see [`crate::io::OutputSet`]); `--quiet` leaves only errors on stderr (data a
 //! command was asked to print on stdout still prints); `-` reads standard input.
 
+pub mod appraise;
 pub mod cashflow;
 pub mod check;
 
@@ -42,6 +43,9 @@ pub enum Command {
     /// Validate a scenario and every file it names; list every problem.
     #[command(after_help = AFTER_HELP)]
     Check(check::Args),
+    /// Simulate every section under every strategy and appraise each against the base.
+    #[command(after_help = AFTER_HELP)]
+    Appraise(appraise::Args),
     /// Appraise a plain cash-flow stream, or compare alternatives incrementally.
     #[command(after_help = AFTER_HELP)]
     Cashflow(cashflow::Args),
@@ -121,6 +125,7 @@ fn print_error(e: &Error, ctx: Context) {
 fn run(command: Command, ctx: Context) -> Result<()> {
     match command {
         Command::Check(a) => check::run(a, ctx),
+        Command::Appraise(a) => appraise::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

@@ -8,6 +8,7 @@
 
 pub mod cashflow;
 pub mod csvfile;
+pub mod models;
 pub mod network;
 pub mod scenario;
 pub mod templates;
@@ -268,7 +269,29 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
             }
         }
     }
+    let families: Vec<&str> = s
+        .models
+        .condition
+        .families
+        .iter()
+        .map(|f| f.name.as_str())
+        .collect();
     for sec in &net.sections {
+        if let Some(surface) = &sec.surface {
+            if !families.contains(&surface.as_str()) {
+                let e = d.error(
+                    Place::line(net.file.clone(), sec.line).with_field("surface"),
+                    format!("the surface `{surface}`, which has no pavement family"),
+                    format!(
+                        "one of the scenario's [condition.family.NAME] tables: {}",
+                        families.join(", ")
+                    ),
+                );
+                if let Some(m) = did_you_mean(surface, &families) {
+                    e.hint = Some(format!("did you mean `{m}`?"));
+                }
+            }
+        }
         if let Some(y) = sec.last_works_year {
             if y > s.base_year {
                 d.error(

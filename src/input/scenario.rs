@@ -161,6 +161,8 @@ pub struct Scenario {
     pub files: ScenarioFiles,
     pub unit_values: UnitValues,
     pub budget_lines: Vec<BudgetLine>,
+    /// Model coefficients ([`super::models`]); defaults where the file is silent.
+    pub models: super::models::Models,
 }
 
 impl Scenario {
@@ -222,6 +224,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         .and_then(|v| v.table(d))
         .and_then(|t| read_unit_values(t, d));
     let budgets = top.get("budget");
+    let models = super::models::read(&mut top, d);
     top.finish(d);
 
     let budget_lines = match budgets {
@@ -240,6 +243,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
             files,
             unit_values,
             budget_lines,
+            models,
         })
     })();
     Partial {

@@ -1,0 +1,227 @@
+//! Appraisal: every strategy of a section against the section's base strategy — PV of agency
+//! and road-user costs, NPV, BCR, IRR, FYRR — the incremental analysis over the section's
+//! alternatives, and for widening, the NPV and first-year return by widening year.
+//!
+//! A strategy's **benefit** in a year is the road-user cost it saves against the base; its
+//! **cost** is the agency cost it adds (works, routine maintenance, less the residual value
+//! credited the year after the period). Both may be negative: a strategy that lowers routine
+//! maintenance has a negative cost increment in those years. The base strategy's flows against
+//! itself are zero, so its NPV is exactly 0.
+//!
+//! Widening timing (common practice): the first-year rate of return of widening in year W is the
+//! first full year's benefit of the widening (user and agency savings against the same strategy
+//! without the widening) over its cost; widening is well timed in the first year its FYRR
+//! reaches the discount rate. The year of highest NPV is reported beside it; the two agree when
+//! benefits grow steadily.
+
+use crate::economics::incremental::{analyse, Analysis};
+use crate::economics::{appraise, fyrr, Discounting, Indicators, Stream};
+use crate::enumerate::{Enumerator, Strategy};
+use crate::input::network::Section;
+use crate::input::Run;
+use crate::simulate::{SectionSim, Trace};
+use rayon::prelude::*;
+
+/// One strategy's results on one section.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StrategyResult {
+    pub strategy: String,
+    /// The template it came from (`None` for the base).
+    pub template: Option<String>,
+    pub pv_capital: f64,
+    pub pv_routine: f64,
+    pub pv_residual: f64,
+    /// PV of capital + routine − residual.
+    pub pv_agency: f64,
+    pub pv_user: f64,
+    /// Against the base strategy.
+    pub indicators: Indicators,
+    /// Length-independent condition: mean IRI over the period and IRI in its last year.
+    pub mean_iri: f64,
+    pub final_iri: f64,
+    /// Calendar year of its widening works, if any.
+    pub widening_year: Option<i32>,
+}
+
+/// The best strategy that widens in one year.
+#[derive(Debug, Clone, PartialEq)]
+pub struct WideningYear {
+    pub year: i32,
+    pub strategy: String,
+    pub npv: f64,
+    /// The widening's own first-year rate of return.
+    pub fyrr: Option<f64>,
+}
+
+/// NPV and FYRR by widening year, and the two timing rules' answers.
+#[derive(Debug, Clone, PartialEq)]
+pub struct WideningTiming {
+    pub years: Vec<WideningYear>,
+    /// The first year whose FYRR reaches the discount rate.
+    pub by_fyrr: Option<i32>,
+    /// The year of highest NPV.
+    pub by_npv: Option<i32>,
+}
+
+/// Everything appraised for one section.
+#[derive(Debug, Clone)]
+pub struct SectionResult {
+    pub section: String,
+    /// The base first, then every other strategy in enumeration order.
+    pub strategies: Vec<StrategyResult>,
+    pub incremental: Analysis,
+    /// The preferred strategy (`base` when no alternative adds value).
+    pub best: String,
+    pub widening: Option<WideningTiming>,
+    /// Yearly traces, kept only when asked for.
+    pub traces: Vec<(String, Trace)>,
+}
+
+impl SectionResult {
+    pub fn get(&self, strategy: &str) -> Option<&StrategyResult> {
+        self.strategies.iter().find(|s| s.strategy == strategy)
+    }
+}
+
+/// The flows of a strategy against another (benefits: user cost saved; costs: agency cost added).
+pub fn increment(with: &Trace, against: &Trace, first_year: i32) -> Stream {
+    let (ua, ub) = (with.users(), against.users());
+    let (aa, ab) = (with.agency(), against.agency());
+    Stream {
+        first_year,
+        benefits: ub.iter().zip(&ua).map(|(b, a)| b - a).collect(),
+        costs: aa.iter().zip(&ab).map(|(a, b)| a - b).collect(),
+    }
+}
+
+/// Appraise every strategy of one section.
+pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) -> SectionResult {
+    let s = &run.scenario;
+    let d = &s.discounting;
+    let y0 = s.base_year;
+    let n = s.analysis_years;
+    let sim = SectionSim::new(run, sec);
+    let strategies = e.strategies(sec);
+    let mut base = Trace::default();
+    sim.run(&strategies[0], &mut base);
+    let mut trace = Trace::default();
+    let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
+    let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
+    let mut traces = Vec::new();
+    for st in &strategies {
+        let t = if st.is_base() {
+            &base
+        } else {
+            sim.run(st, &mut trace);
+            &trace
+        };
+        let pv_capital = d.pv(y0, &t.capital);
+        let pv_routine = d.pv(y0, &t.routine);
+        let pv_residual = t.residual * d.factor(y0 + n as i32);
+        let flows = increment(t, &base, y0);
+        let indicators = appraise(&flows, d);
+        partial.push(StrategyResult {
+            strategy: st.name.clone(),
+            template: st.template.map(|i| run.templates[i].name.clone()),
+            pv_capital,
+            pv_routine,
+            pv_residual,
+            pv_agency: pv_capital + pv_routine - pv_residual,
+            pv_user: d.pv(y0, &t.users()),
+            indicators,
+            mean_iri: t.iri.iter().sum::<f64>() / t.iri.len().max(1) as f64,
+            final_iri: t.iri.last().copied().unwrap_or(sec.iri),
+            widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w as i32),
+        });
+        if !st.is_base() {
+            alternatives.push((st.name.clone(), flows));
+        }
+        if keep_traces {
+            traces.push((st.name.clone(), t.clone()));
+        }
+    }
+    let incremental = analyse(&alternatives, d);
+    let best = incremental
+        .winner
+        .clone()
+        .unwrap_or_else(|| crate::enumerate::BASE.to_owned());
+    let widening = widening_timing(run, &sim, &strategies, &partial, d);
+    SectionResult {
+        section: sec.id.0.clone(),
+        strategies: partial,
+        incremental,
+        best,
+        widening,
+        traces,
+    }
+}
+
+fn widening_timing(
+    run: &Run,
+    sim: &SectionSim,
+    strategies: &[Strategy],
+    results: &[StrategyResult],
+    d: &Discounting,
+) -> Option<WideningTiming> {
+    let mut best: Vec<(i32, usize)> = Vec::new();
+    for (i, r) in results.iter().enumerate() {
+        let Some(y) = r.widening_year else { continue };
+        match best.iter_mut().find(|(yy, _)| *yy == y) {
+            Some(slot) => {
+                if r.indicators.npv > results[slot.1].indicators.npv {
+                    slot.1 = i;
+                }
+            }
+            None => best.push((y, i)),
+        }
+    }
+    if best.is_empty() {
+        return None;
+    }
+    best.sort_by_key(|b| b.0);
+    let (mut with, mut without) = (Trace::default(), Trace::default());
+    let y0 = run.scenario.base_year;
+    let years: Vec<WideningYear> = best
+        .iter()
+        .map(|&(year, i)| {
+            let st = &strategies[i];
+            sim.run(st, &mut with);
+            sim.run(&st.without_widening(&run.catalogue), &mut without);
+            let flows = increment(&with, &without, y0);
+            WideningYear {
+                year,
+                strategy: st.name.clone(),
+                npv: results[i].indicators.npv,
+                fyrr: fyrr(&flows.net()),
+            }
+        })
+        .collect();
+    let by_fyrr = years
+        .iter()
+        .find(|w| w.fyrr.is_some_and(|f| f >= d.rate()))
+        .map(|w| w.year);
+    let by_npv = years
+        .iter()
+        .max_by(|a, b| a.npv.total_cmp(&b.npv).then(b.year.cmp(&a.year)))
+        .map(|w| w.year);
+    Some(WideningTiming {
+        years,
+        by_fyrr,
+        by_npv,
+    })
+}
+
+/// Appraise `sections` of the run in parallel (one task per section); results in input order.
+pub fn network(run: &Run, sections: &[&Section], keep_traces: bool) -> Vec<SectionResult> {
+    let s = &run.scenario;
+    let e = Enumerator::new(
+        &run.templates,
+        &run.catalogue,
+        s.base_year,
+        s.analysis_years,
+    );
+    sections
+        .par_iter()
+        .map(|sec| section(run, &e, sec, keep_traces))
+        .collect()
+}

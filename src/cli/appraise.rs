@@ -1,0 +1,301 @@
+//! `pavestrat appraise`: simulate every section under every strategy and appraise each strategy
+//! against the section's base strategy (routine maintenance only).
+//!
+//! Prints one line per section (its preferred strategy by the incremental analysis, with NPV,
+//! BCR, IRR and FYRR), then the widening timing of sections that can be widened. With `--out DIR`
+//! it writes `appraisal.csv` (one row per section × strategy), `incremental.csv` (each section's
+//! chain of comparisons), `widening.csv` (NPV and FYRR by widening year) and, when sections are
+//! picked with `--section`, `yearly.csv` (each strategy's condition and costs year by year).
+
+use super::{load_scenario, Context, OutArg};
+use crate::appraise::{self, SectionResult};
+use crate::diag::did_you_mean;
+use crate::error::{Error, Result};
+use crate::format::{csv_field, irr_text, num, opt, pct, rates};
+use crate::input::Run;
+use crate::io::{print_stdout, OutputSet};
+use crate::money::grouped;
+use crate::simulate::condition::classify;
+use std::path::PathBuf;
+
+/// Arguments of `appraise`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Scenario file (TOML). Without it, the built-in demo is used (and said so).
+    #[arg(long, value_name = "FILE")]
+    pub scenario: Option<PathBuf>,
+
+    /// Appraise only these sections (repeat, or list several); also writes yearly.csv.
+    #[arg(long, value_name = "ID", num_args = 1..)]
+    pub section: Vec<String>,
+
+    #[command(flatten)]
+    pub out: OutArg,
+}
+
+/// Run `appraise`.
+pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
+    let Some(run) = run else {
+        return Err(Error::Input(diags));
+    };
+    ctx.notes(&diags);
+    let picked = pick_sections(&run, &args.section)?;
+    let keep = !args.section.is_empty();
+    let results = appraise::network(&run, &picked, keep);
+
+    if let Some(dir) = &args.out.out {
+        let mut set = OutputSet::new();
+        set.add("appraisal.csv", appraisal_csv(&results).into_bytes());
+        set.add("incremental.csv", incremental_csv(&results).into_bytes());
+        set.add("widening.csv", widening_csv(&results).into_bytes());
+        if keep {
+            set.add("yearly.csv", yearly_csv(&run, &results).into_bytes());
+        }
+        for p in set.commit(dir)? {
+            ctx.say(&format!("wrote {}", p.display()));
+        }
+    }
+    if !ctx.quiet {
+        print_stdout(&summary(&run, &results))?;
+    }
+    Ok(())
+}
+
+fn pick_sections<'r>(
+    run: &'r Run,
+    ids: &[String],
+) -> Result<Vec<&'r crate::input::network::Section>> {
+    let all = &run.network.sections;
+    if ids.is_empty() {
+        return Ok(all.iter().collect());
+    }
+    let names: Vec<&str> = all.iter().map(|s| s.id.0.as_str()).collect();
+    let mut out = Vec::new();
+    for id in ids {
+        match all.iter().find(|s| s.id.0 == *id) {
+            Some(s) => {
+                if !out
+                    .iter()
+                    .any(|o: &&crate::input::network::Section| o.id == s.id)
+                {
+                    out.push(s);
+                }
+            }
+            None => {
+                let hint = did_you_mean(id, &names)
+                    .map(|m| format!(" (did you mean `{m}`?)"))
+                    .unwrap_or_default();
+                return Err(Error::Usage(format!(
+                    "--section: no section `{id}` in {}{hint}; expected a section_id of the network",
+                    run.network.file
+                )));
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// `appraisal.csv`: one row per section × strategy.
+pub fn appraisal_csv(results: &[SectionResult]) -> String {
+    let mut s = String::from(
+        "section_id,strategy,template,pv_agency_cost,pv_capital,pv_routine,pv_residual,\
+         pv_user_cost,npv,bcr,irr,irr_status,fyrr,mean_iri,final_iri,preferred\n",
+    );
+    for r in results {
+        for st in &r.strategies {
+            let i = &st.indicators;
+            s.push_str(&format!(
+                "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n",
+                csv_field(&r.section),
+                csv_field(&st.strategy),
+                csv_field(st.template.as_deref().unwrap_or("")),
+                num(st.pv_agency),
+                num(st.pv_capital),
+                num(st.pv_routine),
+                num(st.pv_residual),
+                num(st.pv_user),
+                num(i.npv),
+                opt(i.bcr),
+                rates(&i.irr),
+                i.irr.status(),
+                opt(i.fyrr),
+                num(st.mean_iri),
+                num(st.final_iri),
+                st.strategy == r.best,
+            ));
+        }
+    }
+    s
+}
+
+fn incremental_csv(results: &[SectionResult]) -> String {
+    let mut s = String::from(
+        "section_id,step,challenger,defender,d_pv_benefits,d_pv_costs,d_npv,d_bcr,d_irr,d_irr_status,accepted\n",
+    );
+    for r in results {
+        for (k, st) in r.incremental.steps.iter().enumerate() {
+            s.push_str(&format!(
+                "{},{},{},{},{},{},{},{},{},{},{}\n",
+                csv_field(&r.section),
+                k + 1,
+                csv_field(&st.challenger),
+                csv_field(st.defender.as_deref().unwrap_or(crate::enumerate::BASE)),
+                num(st.d_pv_benefits),
+                num(st.d_pv_costs),
+                num(st.d_npv),
+                opt(st.d_bcr),
+                rates(&st.d_irr),
+                st.d_irr.status(),
+                st.accepted
+            ));
+        }
+    }
+    s
+}
+
+fn widening_csv(results: &[SectionResult]) -> String {
+    let mut s = String::from("section_id,widen_year,strategy,npv,fyrr,best_by_fyrr,best_by_npv\n");
+    for r in results {
+        let Some(w) = &r.widening else { continue };
+        for y in &w.years {
+            s.push_str(&format!(
+                "{},{},{},{},{},{},{}\n",
+                csv_field(&r.section),
+                y.year,
+                csv_field(&y.strategy),
+                num(y.npv),
+                opt(y.fyrr),
+                w.by_fyrr == Some(y.year),
+                w.by_npv == Some(y.year),
+            ));
+        }
+    }
+    s
+}
+
+fn yearly_csv(run: &Run, results: &[SectionResult]) -> String {
+    let mut s = String::from(
+        "section_id,strategy,year,iri,condition,structural_number,capital,routine,operating,time,crashes,work_zone_delay,residual\n",
+    );
+    let y0 = run.scenario.base_year;
+    let cp = &run.scenario.models.condition;
+    for r in results {
+        for (name, t) in &r.traces {
+            for i in 0..t.iri.len() {
+                s.push_str(&format!(
+                    "{},{},{},{},{},{},{},{},{},{},{},{},0\n",
+                    csv_field(&r.section),
+                    csv_field(name),
+                    y0 + i as i32,
+                    num(t.iri[i]),
+                    classify(t.iri[i], cp).name(),
+                    num(t.sn[i]),
+                    num(t.capital[i]),
+                    num(t.routine[i]),
+                    num(t.operating[i]),
+                    num(t.time[i]),
+                    num(t.crashes[i]),
+                    num(t.delay[i]),
+                ));
+            }
+            s.push_str(&format!(
+                "{},{},{},,,,0,0,0,0,0,0,{}\n",
+                csv_field(&r.section),
+                csv_field(name),
+                y0 + t.iri.len() as i32,
+                num(t.residual)
+            ));
+        }
+    }
+    s
+}
+
+fn summary(run: &Run, results: &[SectionResult]) -> String {
+    let sc = &run.scenario;
+    let money = if sc.money_label.is_empty() {
+        String::new()
+    } else {
+        format!(" {}", sc.money_label)
+    };
+    let strategies: usize = results.iter().map(|r| r.strategies.len()).sum();
+    let mut s = format!(
+        "Appraisal of {} — {} sections, {} strategies\nbase year {}, {} years to {}, discount rate {:.2} % real ({}); money in{}\n\n",
+        if sc.title.is_empty() { &sc.file } else { &sc.title },
+        results.len(),
+        strategies,
+        sc.base_year,
+        sc.analysis_years,
+        sc.last_year(),
+        sc.discounting.rate() * 100.0,
+        sc.discounting.timing(),
+        if money.is_empty() { " the scenario's units".to_owned() } else { money.clone() },
+    );
+    s.push_str(&format!(
+        "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}\n",
+        "section", "strat", "preferred (incremental analysis)", "NPV", "BCR", "IRR", "FYRR"
+    ));
+    const SHOWN: usize = 60;
+    let mut total = 0.0;
+    for (k, r) in results.iter().enumerate() {
+        let Some(b) = r.get(&r.best) else { continue };
+        total += b.indicators.npv;
+        if k >= SHOWN {
+            continue;
+        }
+        let i = &b.indicators;
+        s.push_str(&format!(
+            "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}\n",
+            r.section,
+            r.strategies.len(),
+            r.best,
+            grouped(i.npv, 0),
+            i.bcr.map_or("n/a".into(), |x| format!("{x:.2}")),
+            if b.template.is_none() {
+                "n/a".into()
+            } else {
+                irr_text(&i.irr)
+            },
+            pct(i.fyrr),
+        ));
+    }
+    if results.len() > SHOWN {
+        s.push_str(&format!(
+            "… and {} more sections (see appraisal.csv with --out)\n",
+            results.len() - SHOWN
+        ));
+    }
+    s.push_str(&format!(
+        "\nNPV of every section's preferred strategy, with no budget limit: {}{money}\n",
+        grouped(total, 0)
+    ));
+    let widen: Vec<&SectionResult> = results.iter().filter(|r| r.widening.is_some()).collect();
+    if !widen.is_empty() {
+        s.push_str(&format!(
+            "\nWidening timing (first year FYRR reaches {:.2} %, beside the year of highest NPV)\n",
+            sc.discounting.rate() * 100.0
+        ));
+        for r in widen.iter().take(SHOWN) {
+            let Some(w) = &r.widening else { continue };
+            let fy = |y: Option<i32>| {
+                let f = y.and_then(|y| w.years.iter().find(|x| x.year == y));
+                match (y, f) {
+                    (Some(y), Some(f)) => {
+                        format!("{y} (FYRR {}, NPV {})", pct(f.fyrr), grouped(f.npv, 0))
+                    }
+                    _ => "not within the windows".to_owned(),
+                }
+            };
+            s.push_str(&format!(
+                "  {:<10} by FYRR {:<40} highest NPV {}\n",
+                r.section,
+                fy(w.by_fyrr),
+                fy(w.by_npv)
+            ));
+        }
+    }
+    s.push('\n');
+    s.push_str(crate::CAUTION);
+    s.push('\n');
+    s
+}

@@ -1,0 +1,380 @@
+//! Enumeration: the strategies each section can take, expanded from the strategy templates.
+//!
+//! A template's steps range over their windows (years after the base year) or their offsets
+//! after the previous step; a roughness trigger ranges over its thresholds. Expansion keeps only
+//! what can be built on the section: the template's `only_if` rules, the analysis period,
+//! `min_gap_years` between works in different years (counted from the section's last works too),
+//! and the rules of the trade that hold whatever a template says (common practice): a divided
+//! road is not widened again, and a road has at most 12 lanes. Strategies are named from their
+//! tags and calendar years, `strengthen@2029+widen@2034`, or `reseal@iri3.5` with a trigger;
+//! the strategy of routine maintenance only is always first and is named `base`.
+
+use crate::input::network::{Carriageway, Section};
+use crate::input::templates::{StepTiming, Template};
+use crate::input::treatments::{Action, Catalogue};
+use std::collections::HashSet;
+
+/// The name of the routine-maintenance-only strategy in every output.
+pub const BASE: &str = "base";
+
+/// Works of a strategy in one year: a treatment of the catalogue (by index).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Works {
+    /// Years after the base year.
+    pub year: u32,
+    /// Index into [`Catalogue::treatments`].
+    pub treatment: usize,
+}
+
+/// A treatment applied whenever roughness reaches a threshold.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TriggerRule {
+    pub treatment: usize,
+    /// IRI (m/km) at the start of a year at or above which the treatment is done that year.
+    pub iri: f64,
+    /// Least years since the last works.
+    pub min_gap_years: u32,
+}
+
+/// One strategy for one section.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Strategy {
+    pub name: String,
+    /// Index of the template it came from; `None` for the base.
+    pub template: Option<usize>,
+    /// Timed works in year order.
+    pub works: Vec<Works>,
+    pub trigger: Option<TriggerRule>,
+}
+
+impl Strategy {
+    /// The base strategy: routine maintenance only.
+    pub fn base() -> Strategy {
+        Strategy {
+            name: BASE.to_owned(),
+            template: None,
+            works: Vec::new(),
+            trigger: None,
+        }
+    }
+
+    pub fn is_base(&self) -> bool {
+        self.template.is_none()
+    }
+
+    /// The year of its first widening works, if any.
+    pub fn widening_year(&self, cat: &Catalogue) -> Option<u32> {
+        self.works
+            .iter()
+            .find(|w| cat.treatments[w.treatment].action == Action::Widen)
+            .map(|w| w.year)
+    }
+
+    /// The same strategy without its widening works (and named so): what the widening is
+    /// weighed against when its first-year return is worked out.
+    pub fn without_widening(&self, cat: &Catalogue) -> Strategy {
+        Strategy {
+            name: format!("{} without widening", self.name),
+            template: self.template,
+            works: self
+                .works
+                .iter()
+                .copied()
+                .filter(|w| cat.treatments[w.treatment].action != Action::Widen)
+                .collect(),
+            trigger: self.trigger,
+        }
+    }
+}
+
+/// A template with its treatments resolved to catalogue indices.
+#[derive(Debug, Clone)]
+struct Compiled<'a> {
+    index: usize,
+    template: &'a Template,
+    steps: Vec<(usize, &'a str, StepTiming)>,
+    trigger: Option<(usize, &'a str, &'a [f64])>,
+}
+
+/// Expands templates into strategies, section by section.
+#[derive(Debug, Clone)]
+pub struct Enumerator<'a> {
+    compiled: Vec<Compiled<'a>>,
+    catalogue: &'a Catalogue,
+    base_year: i32,
+    period: u32,
+}
+
+impl<'a> Enumerator<'a> {
+    /// Resolve the templates against the catalogue. Treatment names were checked when the
+    /// run was loaded; a template naming an unknown treatment is skipped.
+    pub fn new(
+        templates: &'a [Template],
+        catalogue: &'a Catalogue,
+        base_year: i32,
+        period: u32,
+    ) -> Enumerator<'a> {
+        let idx = |name: &str| catalogue.treatments.iter().position(|t| t.id == name);
+        let compiled = templates
+            .iter()
+            .enumerate()
+            .filter_map(|(index, t)| {
+                let steps = t
+                    .steps
+                    .iter()
+                    .map(|s| Some((idx(&s.treatment)?, s.tag.as_str(), s.timing)))
+                    .collect::<Option<Vec<_>>>()?;
+                let trigger = match &t.trigger {
+                    Some(tr) => Some((idx(&tr.treatment)?, tr.tag.as_str(), tr.iri.as_slice())),
+                    None => None,
+                };
+                Some(Compiled {
+                    index,
+                    template: t,
+                    steps,
+                    trigger,
+                })
+            })
+            .collect();
+        Enumerator {
+            compiled,
+            catalogue,
+            base_year,
+            period,
+        }
+    }
+
+    /// Every strategy of `section`, the base first, then templates in order; names unique.
+    pub fn strategies(&self, section: &Section) -> Vec<Strategy> {
+        let mut out = vec![Strategy::base()];
+        let mut names: HashSet<String> = HashSet::new();
+        names.insert(BASE.to_owned());
+        for c in &self.compiled {
+            if !feasible(c.template, section) {
+                continue;
+            }
+            let mut timed: Vec<Vec<Works>> = Vec::new();
+            self.expand(c, section, 0, &mut Vec::new(), &mut timed);
+            let thresholds: Vec<Option<f64>> = match c.trigger {
+                Some((_, _, iri)) => iri.iter().copied().map(Some).collect(),
+                None => vec![None],
+            };
+            for works in &timed {
+                for thr in &thresholds {
+                    let name = self.name(c, works, *thr);
+                    if !names.insert(name.clone()) {
+                        continue;
+                    }
+                    out.push(Strategy {
+                        name,
+                        template: Some(c.index),
+                        works: works.clone(),
+                        trigger: thr.map(|iri| TriggerRule {
+                            treatment: c.trigger.map_or(0, |t| t.0),
+                            iri,
+                            min_gap_years: c.template.min_gap_years,
+                        }),
+                    });
+                }
+            }
+        }
+        out
+    }
+
+    fn expand(
+        &self,
+        c: &Compiled<'_>,
+        section: &Section,
+        k: usize,
+        so_far: &mut Vec<Works>,
+        out: &mut Vec<Vec<Works>>,
+    ) {
+        if k == c.steps.len() {
+            if self.buildable(so_far, section) {
+                out.push(so_far.clone());
+            }
+            return;
+        }
+        let (treatment, _, timing) = c.steps[k];
+        let (lo, hi, every) = match timing {
+            StepTiming::Window { first, last, every } => (first, last, every),
+            StepTiming::After { min, max, every } => {
+                let prev = so_far.last().map_or(0, |w| w.year);
+                (prev + min, prev + max, every)
+            }
+        };
+        let gap = c.template.min_gap_years;
+        let mut y = lo;
+        while y <= hi && y < self.period {
+            let gap_ok = match so_far.last() {
+                Some(prev) => y == prev.year || y - prev.year >= gap,
+                None => section.last_works_year.is_none_or(|lw| {
+                    i64::from(self.base_year) + i64::from(y) - i64::from(lw) >= i64::from(gap)
+                }),
+            };
+            if gap_ok {
+                so_far.push(Works { year: y, treatment });
+                self.expand(c, section, k + 1, so_far, out);
+                so_far.pop();
+            }
+            y += every.max(1);
+        }
+    }
+
+    /// Whether the works can be built in turn on this section (widening rules).
+    fn buildable(&self, works: &[Works], section: &Section) -> bool {
+        let mut lanes = section.lanes;
+        let mut cw = section.carriageway;
+        for w in works {
+            let t = &self.catalogue.treatments[w.treatment];
+            if t.action == Action::Widen {
+                if cw == Carriageway::Divided || u32::from(lanes) + u32::from(t.lanes_added) > 12 {
+                    return false;
+                }
+                lanes += t.lanes_added;
+                if let Some(after) = t.carriageway_after {
+                    cw = after;
+                }
+            }
+        }
+        true
+    }
+
+    fn name(&self, c: &Compiled<'_>, works: &[Works], threshold: Option<f64>) -> String {
+        let mut parts: Vec<String> = works
+            .iter()
+            .zip(&c.steps)
+            .map(|(w, (_, tag, _))| format!("{tag}@{}", self.base_year + w.year as i32))
+            .collect();
+        if let (Some(thr), Some((_, tag, _))) = (threshold, c.trigger) {
+            parts.push(format!("{tag}@iri{thr}"));
+        }
+        parts.join("+")
+    }
+}
+
+/// Whether a template's `only_if` rules admit the section (as it is in the base year).
+pub fn feasible(t: &Template, s: &Section) -> bool {
+    let f = &t.only_if;
+    f.carriageway.is_none_or(|c| c == s.carriageway)
+        && f.min_lanes.is_none_or(|n| s.lanes >= n)
+        && f.max_lanes.is_none_or(|n| s.lanes <= n)
+        && f.min_aadt.is_none_or(|a| s.aadt >= a)
+        && f.min_iri.is_none_or(|x| s.iri >= x)
+        && f.max_iri.is_none_or(|x| s.iri <= x)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::diag::Diagnostics;
+    use std::path::Path;
+
+    fn demo() -> crate::input::Run {
+        let (run, d) = crate::input::load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO));
+        assert!(!d.has_errors(), "{d}");
+        run.unwrap()
+    }
+
+    #[test]
+    fn expands_windows_offsets_gaps_and_triggers() {
+        let mut d = Diagnostics::new();
+        let templates = crate::input::templates::parse(
+            "t.toml",
+            r#"
+[template.sw]
+only_if = { carriageway = "single" }
+min_gap_years = 3
+steps = [
+  { treatment = "overlay", tag = "strengthen", window = [0, 2] },
+  { treatment = "widen", tag = "widen", after = [0, 4], every = 2 },
+]
+[template.rs]
+trigger = { treatment = "reseal", iri = [3.0, 4.0] }
+"#,
+            &mut d,
+        )
+        .unwrap();
+        let run = demo();
+        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
+        let mut sec = run.network.sections[0].clone();
+        sec.last_works_year = None;
+        let names: Vec<String> = e.strategies(&sec).into_iter().map(|s| s.name).collect();
+        // Offsets 0 (same year), 2 (under the 3-year gap: dropped) and 4, for each of 3 years;
+        // then the two thresholds.
+        assert_eq!(
+            names,
+            [
+                "base",
+                "strengthen@2027+widen@2027",
+                "strengthen@2027+widen@2031",
+                "strengthen@2028+widen@2028",
+                "strengthen@2028+widen@2032",
+                "strengthen@2029+widen@2029",
+                "strengthen@2029+widen@2033",
+                "reseal@iri3",
+                "reseal@iri4",
+            ]
+        );
+        // A divided road gets no widening, by the template's rule or the trade's.
+        let divided = run
+            .network
+            .sections
+            .iter()
+            .find(|s| s.carriageway == Carriageway::Divided)
+            .unwrap();
+        assert!(e
+            .strategies(divided)
+            .iter()
+            .all(|s| s.widening_year(&run.catalogue).is_none()));
+    }
+
+    #[test]
+    fn the_last_works_year_counts_for_the_gap() {
+        let run = demo();
+        let e = Enumerator::new(&run.templates, &run.catalogue, 2027, 30);
+        let mut sec = run.network.sections[0].clone();
+        sec.last_works_year = Some(2026);
+        let tpl = run
+            .templates
+            .iter()
+            .position(|t| t.name == "strengthen-widen")
+            .unwrap();
+        let gap = run.templates[tpl].min_gap_years;
+        assert!(gap >= 2);
+        for s in e
+            .strategies(&sec)
+            .iter()
+            .filter(|s| s.template == Some(tpl))
+        {
+            assert!(
+                2027 + s.works[0].year as i32 - 2026 >= gap as i32,
+                "{}",
+                s.name
+            );
+        }
+    }
+
+    #[test]
+    fn demo_sections_get_base_first_and_unique_names() {
+        let run = demo();
+        let e = Enumerator::new(
+            &run.templates,
+            &run.catalogue,
+            run.scenario.base_year,
+            run.scenario.analysis_years,
+        );
+        for s in &run.network.sections {
+            let st = e.strategies(s);
+            assert_eq!(st[0].name, BASE);
+            assert!(st.len() > 10, "{}: {}", s.id, st.len());
+            let mut names: Vec<&str> = st.iter().map(|x| x.name.as_str()).collect();
+            names.sort_unstable();
+            names.dedup();
+            assert_eq!(names.len(), st.len());
+            for x in &st {
+                assert!(x.works.iter().all(|w| w.year < run.scenario.analysis_years));
+            }
+        }
+    }
+}

@@ -1,0 +1,796 @@
+//! Model coefficients from the scenario file: traffic, capacity and speed, pavement condition and
+//! road-user costs. Every table and key is optional; a missing key takes the default documented
+//! here beside its source, so a scenario states only what it changes.
+//!
+//! ```toml
+//! [traffic]
+//! bus_share_of_heavy = 0.15         # of the heavy vehicles in a section's heavy_share
+//! light_truck_share_of_light = 0.18 # of the other vehicles
+//! standard_axle_kn = 80             # load-equivalency: (load / standard)^exponent per axle
+//! load_exponent = 4                 # fourth-power rule (AASHO Road Test)
+//! axles_kn = { bus = [60, 100], heavy_truck = [60, 100, 80, 80] }   # axle loads of an average vehicle
+//! direction_factor = 0.5            # share of two-way heavy traffic in the heavier direction
+//! lane_factor = [1.0, 0.9, 0.7, 0.6] # share in the design lane, 1, 2, 3, 4+ lanes per direction
+//! pce = { car = 1.0, bus = 1.5, light_truck = 1.0, heavy_truck = 1.5 }
+//! flow_bands = [                    # the year's hours by flow level; hours sum to 8760, shares to 1
+//!   { name = "peak", hours = 200, share = 0.06 },
+//!   ...
+//! ]
+//!
+//! [capacity]
+//! two_lane_pc_h = 3200              # a two-lane single carriageway, both directions
+//! multilane_pc_h_per_lane = 2200
+//! undivided_factor = 0.95           # multilane single carriageway
+//! bpr_alpha = 0.15
+//! bpr_beta = 4
+//! max_vc = 1.5                      # travel time stops rising past this volume/capacity
+//!
+//! [speed]
+//! free_kmh = { single = 90, divided = 100 }   # when the network has no speed_kmh
+//! roughness_onset_iri = 3.0         # free speed falls above this IRI …
+//! drop_per_iri = 0.03               # … by this share per m/km …
+//! min_factor = 0.5                  # … down to this share of the free speed
+//! work_zone_kmh = 40
+//!
+//! [condition]
+//! default_family = "asphalt"        # for sections with no surface
+//! classes_iri = [1.4994, 2.6831]    # good below the first, poor above the second (m/km)
+//! iri_floor = 0.8                   # no treatment makes a road smoother than this
+//! iri_max = 16.0
+//! subgrade_mr_mpa = 50              # when the network has no subgrade_mr_mpa
+//! [condition.family.asphalt]
+//! model = "aashto93"                # p0, psr_min, zr, s0, ageing
+//! [condition.family.surface_treatment]
+//! model = "calibrated"              # rise_per_year, ageing, rise_per_mesa, sn_ref, sn_exponent
+//!
+//! [user_costs]
+//! smooth_iri = 1.0                  # operating cost unit values hold at this roughness
+//! fuel_per_iri = { car = 0.02, ... }  # NCHRP 720: fuel use rise per m/km
+//! fuel_share = { car = 0.35, ... }    # fuel's share of operating cost
+//! repair_share = { car = 0.2, ... }   # repair and maintenance's share of operating cost
+//! repair_at_4 = { ... }  repair_at_5 = { ... }   # NCHRP 720 repair rise at IRI 4 and 5
+//! crash_rate = { single = 0.35, divided = 0.20 } # injury crashes per million vehicle-km
+//! ```
+
+use super::scenario::{PerClass, VehicleClass};
+use super::tomldoc::{is_identifier, Table, Value};
+use crate::diag::Diagnostics;
+
+/// Inches per mile in one m/km of IRI (US 23 CFR 490: 1 m/km = 63.36 in/mi).
+pub const IN_PER_MI_PER_M_PER_KM: f64 = 63.36;
+
+/// A part of the year's hours with one level of flow.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FlowBand {
+    pub name: String,
+    /// Hours a year in this band.
+    pub hours: f64,
+    /// Share of the year's traffic that travels in these hours.
+    pub share: f64,
+}
+
+/// Traffic composition, loading and hourly distribution.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TrafficParams {
+    pub bus_share_of_heavy: f64,
+    pub light_truck_share_of_light: f64,
+    pub standard_axle_kn: f64,
+    pub load_exponent: f64,
+    /// Axle loads (kN) of an average vehicle of each class, by class index; cars and light
+    /// trucks are usually left empty (their load equivalency is negligible).
+    pub axles: [Vec<f64>; 4],
+    pub direction_factor: f64,
+    /// Design-lane factor for 1, 2, 3 and 4 or more lanes per direction.
+    pub lane_factor: [f64; 4],
+    pub pce: PerClass<f64>,
+    pub flow_bands: Vec<FlowBand>,
+}
+
+/// Capacity and the volume-delay relation.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CapacityParams {
+    pub two_lane_pc_h: f64,
+    pub multilane_pc_h_per_lane: f64,
+    pub undivided_factor: f64,
+    pub bpr_alpha: f64,
+    pub bpr_beta: f64,
+    pub max_vc: f64,
+}
+
+/// Free speed and its fall with roughness; work-zone speed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpeedParams {
+    pub free_single_kmh: f64,
+    pub free_divided_kmh: f64,
+    pub roughness_onset_iri: f64,
+    pub drop_per_iri: f64,
+    pub min_factor: f64,
+    pub work_zone_kmh: f64,
+}
+
+/// The AASHTO 1993 flexible serviceability model with an ageing term.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Aashto93Params {
+    /// Initial serviceability of a new surface.
+    pub p0: f64,
+    /// Lowest serviceability the model goes to.
+    pub psr_min: f64,
+    /// Standard normal deviate (0 = mean performance, for prediction).
+    pub zr: f64,
+    /// Overall standard deviation.
+    pub s0: f64,
+    /// Yearly environmental rise in IRI, as a share of IRI.
+    pub ageing: f64,
+}
+
+/// A user-calibrated progression: a yearly rise in IRI of
+/// `rise_per_year + ageing·IRI + rise_per_mesa·MESA·(sn_ref/SN)^sn_exponent`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CalibratedParams {
+    pub rise_per_year: f64,
+    pub ageing: f64,
+    pub rise_per_mesa: f64,
+    pub sn_ref: f64,
+    pub sn_exponent: f64,
+}
+
+/// How one pavement family's roughness progresses.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum FamilyModel {
+    Aashto93(Aashto93Params),
+    Calibrated(CalibratedParams),
+}
+
+impl FamilyModel {
+    pub fn name(&self) -> &'static str {
+        match self {
+            FamilyModel::Aashto93(_) => "aashto93",
+            FamilyModel::Calibrated(_) => "calibrated",
+        }
+    }
+}
+
+/// A pavement family (matched against the network's `surface` column).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Family {
+    pub name: String,
+    pub model: FamilyModel,
+}
+
+/// Condition models and classes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ConditionParams {
+    pub default_family: String,
+    /// IRI (m/km) below which a road is good, and above which it is poor.
+    pub good_below: f64,
+    pub poor_above: f64,
+    pub iri_floor: f64,
+    pub iri_max: f64,
+    pub subgrade_mr_mpa: f64,
+    pub families: Vec<Family>,
+}
+
+impl ConditionParams {
+    pub fn family(&self, name: &str) -> Option<&Family> {
+        self.families.iter().find(|f| f.name == name)
+    }
+}
+
+/// How road-user costs respond to roughness, and crash rates.
+#[derive(Debug, Clone, PartialEq)]
+pub struct UserCostParams {
+    pub smooth_iri: f64,
+    pub fuel_per_iri: PerClass<f64>,
+    pub fuel_share: PerClass<f64>,
+    pub repair_share: PerClass<f64>,
+    pub repair_at_4: PerClass<f64>,
+    pub repair_at_5: PerClass<f64>,
+    /// Injury crashes per million vehicle-km, single carriageway.
+    pub crash_rate_single: f64,
+    /// Injury crashes per million vehicle-km, divided carriageway.
+    pub crash_rate_divided: f64,
+}
+
+/// Every model coefficient of a run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Models {
+    pub traffic: TrafficParams,
+    pub capacity: CapacityParams,
+    pub speed: SpeedParams,
+    pub condition: ConditionParams,
+    pub user_costs: UserCostParams,
+}
+
+impl Default for TrafficParams {
+    fn default() -> Self {
+        TrafficParams {
+            // Calibration defaults: replace with local classified counts.
+            bus_share_of_heavy: 0.15,
+            light_truck_share_of_light: 0.18,
+            // AASHO Road Test: the 80 kN (18-kip) single axle is the standard, and damage rises
+            // with roughly the fourth power of load (re-analyses find 3 to over 6).
+            standard_axle_kn: 80.0,
+            load_exponent: 4.0,
+            // Calibration defaults: the mean axle loads of a bus (two axles) and of a heavy truck
+            // (four axles) over loaded and empty trips, about 1.4 and 1.3 ESALs a vehicle —
+            // replace with local axle-load survey results.
+            axles: [
+                Vec::new(),
+                vec![50.0, 85.0],
+                Vec::new(),
+                vec![45.0, 75.0, 55.0, 55.0],
+            ],
+            // Common practice: half the two-way heavy traffic in each direction.
+            direction_factor: 0.5,
+            // AASHTO 1993 Guide, lane distribution factor by lanes in each direction
+            // (ranges 100 %, 80–100 %, 60–80 %, 50–75 %; values within them, from memory).
+            lane_factor: [1.0, 0.9, 0.7, 0.6],
+            // Passenger-car equivalents of heavy vehicles on level terrain, Highway Capacity
+            // Manual (1.5; from memory).
+            pce: PerClass([1.0, 1.5, 1.0, 1.5]),
+            // Calibration default: a rural flow profile whose peak hour carries about 11 % of
+            // the AADT — replace with local continuous counts.
+            flow_bands: vec![
+                band("peak", 200.0, 0.06),
+                band("busy", 1800.0, 0.30),
+                band("day", 3400.0, 0.44),
+                band("night", 3360.0, 0.20),
+            ],
+        }
+    }
+}
+
+fn band(name: &str, hours: f64, share: f64) -> FlowBand {
+    FlowBand {
+        name: name.to_owned(),
+        hours,
+        share,
+    }
+}
+
+impl Default for CapacityParams {
+    fn default() -> Self {
+        CapacityParams {
+            // Highway Capacity Manual 2000/2010: a two-lane highway carries 3200 pc/h in both
+            // directions together.
+            two_lane_pc_h: 3200.0,
+            // Highway Capacity Manual 2000: 2200 pc/h/ln on a multilane highway at 60 mi/h free
+            // speed (from memory).
+            multilane_pc_h_per_lane: 2200.0,
+            // Calibration default: an undivided multilane road loses some capacity to turning
+            // and opposing traffic.
+            undivided_factor: 0.95,
+            // Bureau of Public Roads, Traffic Assignment Manual (1964).
+            bpr_alpha: 0.15,
+            bpr_beta: 4.0,
+            // Calibration default: demand far past capacity diverts or shifts in time; the
+            // volume-delay curve is not meant to price it.
+            max_vc: 1.5,
+        }
+    }
+}
+
+impl Default for SpeedParams {
+    fn default() -> Self {
+        // Calibration defaults: replace with local speed surveys.
+        SpeedParams {
+            free_single_kmh: 90.0,
+            free_divided_kmh: 100.0,
+            roughness_onset_iri: 3.0,
+            drop_per_iri: 0.03,
+            min_factor: 0.5,
+            work_zone_kmh: 40.0,
+        }
+    }
+}
+
+impl Default for Aashto93Params {
+    fn default() -> Self {
+        Aashto93Params {
+            // AASHTO 1993 Guide: initial serviceability 4.2 for flexible pavements (AASHO Road
+            // Test average).
+            p0: 4.2,
+            // Common practice: serviceability is never taken to zero.
+            psr_min: 0.5,
+            // Prediction at mean performance: reliability 50 % (ZR = 0); S0 0.45 is within the
+            // Guide's 0.40–0.50 for flexible pavements.
+            zr: 0.0,
+            s0: 0.45,
+            // Environmental rise in roughness proportional to roughness, the form of Paterson
+            // (1987), coefficient 0.023 for a temperate non-freezing climate (from memory):
+            // calibration default, replace with local values.
+            ageing: 0.023,
+        }
+    }
+}
+
+impl Default for CalibratedParams {
+    fn default() -> Self {
+        // Calibration defaults: replace with the agency's own fitted curves.
+        CalibratedParams {
+            rise_per_year: 0.05,
+            ageing: 0.03,
+            rise_per_mesa: 0.8,
+            sn_ref: 3.0,
+            sn_exponent: 2.0,
+        }
+    }
+}
+
+impl Default for ConditionParams {
+    fn default() -> Self {
+        ConditionParams {
+            default_family: "asphalt".into(),
+            // US 23 CFR 490.313: good below 95 in/mi, poor above 170 in/mi.
+            good_below: 95.0 / IN_PER_MI_PER_M_PER_KM,
+            poor_above: 170.0 / IN_PER_MI_PER_M_PER_KM,
+            // Calibration defaults.
+            iri_floor: 0.8,
+            iri_max: 16.0,
+            subgrade_mr_mpa: 50.0,
+            families: vec![
+                Family {
+                    name: "asphalt".into(),
+                    model: FamilyModel::Aashto93(Aashto93Params::default()),
+                },
+                Family {
+                    name: "surface_treatment".into(),
+                    model: FamilyModel::Calibrated(CalibratedParams::default()),
+                },
+            ],
+        }
+    }
+}
+
+impl Default for UserCostParams {
+    fn default() -> Self {
+        UserCostParams {
+            smooth_iri: 1.0,
+            // Chatti & Zaabar, NCHRP Report 720 (2012): fuel +2 % per m/km for passenger cars
+            // (light trucks taken alike), +1 % to +2 % for heavy trucks (1.5 % taken, also
+            // for buses).
+            fuel_per_iri: PerClass([0.02, 0.015, 0.02, 0.015]),
+            // Calibration defaults: shares of operating cost — replace with local cost models.
+            fuel_share: PerClass([0.35, 0.40, 0.40, 0.45]),
+            repair_share: PerClass([0.20, 0.25, 0.20, 0.25]),
+            // NCHRP Report 720: repair and maintenance unchanged to IRI 3, +10 % at 4, +40 %
+            // (cars) / +50 % (trucks) at 5 m/km.
+            repair_at_4: PerClass([0.10, 0.10, 0.10, 0.10]),
+            repair_at_5: PerClass([0.40, 0.50, 0.40, 0.50]),
+            // Calibration defaults: replace with local crash records.
+            crash_rate_single: 0.35,
+            crash_rate_divided: 0.20,
+        }
+    }
+}
+
+impl Default for Models {
+    fn default() -> Self {
+        Models {
+            traffic: TrafficParams::default(),
+            capacity: CapacityParams::default(),
+            speed: SpeedParams::default(),
+            condition: ConditionParams::default(),
+            user_costs: UserCostParams::default(),
+        }
+    }
+}
+
+/// Set `*slot` from an optional number key within `lo..=hi`.
+fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, lo: f64, hi: f64, slot: &mut f64) {
+    if let Some((_, Some(x))) = t.number_at(key, d, lo, hi, &format!("a number from {lo} to {hi}"))
+    {
+        *slot = x;
+    }
+}
+
+/// Set classes of `slot` from an optional table of numbers by vehicle class (all four or some).
+fn per_class(
+    t: &mut Table<'_, '_>,
+    key: &str,
+    d: &mut Diagnostics,
+    lo: f64,
+    hi: f64,
+    slot: &mut PerClass<f64>,
+) {
+    let Some(mut ct) = t.get(key).and_then(|v| v.table(d)) else {
+        return;
+    };
+    for c in VehicleClass::ALL {
+        num(&mut ct, c.key(), d, lo, hi, &mut slot.0[c as usize]);
+    }
+    ct.finish(d);
+}
+
+fn carriageway_pair(
+    t: &mut Table<'_, '_>,
+    key: &str,
+    d: &mut Diagnostics,
+    lo: f64,
+    hi: f64,
+    single: &mut f64,
+    divided: &mut f64,
+) {
+    let Some(mut ct) = t.get(key).and_then(|v| v.table(d)) else {
+        return;
+    };
+    num(&mut ct, "single", d, lo, hi, single);
+    num(&mut ct, "divided", d, lo, hi, divided);
+    ct.finish(d);
+}
+
+fn sub<'a, 'i>(top: &mut Table<'a, 'i>, key: &str, d: &mut Diagnostics) -> Option<Table<'a, 'i>> {
+    top.get(key).and_then(|v| v.table(d))
+}
+
+/// Read the model tables of a scenario's top level (`traffic`, `capacity`, `speed`,
+/// `condition`, `user_costs`), starting from the defaults.
+pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> Models {
+    let mut m = Models::default();
+    if let Some(t) = sub(top, "traffic", d) {
+        read_traffic(t, d, &mut m.traffic);
+    }
+    if let Some(mut t) = sub(top, "capacity", d) {
+        let c = &mut m.capacity;
+        num(
+            &mut t,
+            "two_lane_pc_h",
+            d,
+            100.0,
+            10_000.0,
+            &mut c.two_lane_pc_h,
+        );
+        num(
+            &mut t,
+            "multilane_pc_h_per_lane",
+            d,
+            100.0,
+            5_000.0,
+            &mut c.multilane_pc_h_per_lane,
+        );
+        num(
+            &mut t,
+            "undivided_factor",
+            d,
+            0.1,
+            1.0,
+            &mut c.undivided_factor,
+        );
+        num(&mut t, "bpr_alpha", d, 0.0, 10.0, &mut c.bpr_alpha);
+        num(&mut t, "bpr_beta", d, 0.0, 20.0, &mut c.bpr_beta);
+        num(&mut t, "max_vc", d, 0.1, 10.0, &mut c.max_vc);
+        t.finish(d);
+    }
+    if let Some(mut t) = sub(top, "speed", d) {
+        let s = &mut m.speed;
+        carriageway_pair(
+            &mut t,
+            "free_kmh",
+            d,
+            5.0,
+            200.0,
+            &mut s.free_single_kmh,
+            &mut s.free_divided_kmh,
+        );
+        num(
+            &mut t,
+            "roughness_onset_iri",
+            d,
+            0.0,
+            25.0,
+            &mut s.roughness_onset_iri,
+        );
+        num(&mut t, "drop_per_iri", d, 0.0, 1.0, &mut s.drop_per_iri);
+        num(&mut t, "min_factor", d, 0.05, 1.0, &mut s.min_factor);
+        num(&mut t, "work_zone_kmh", d, 1.0, 200.0, &mut s.work_zone_kmh);
+        t.finish(d);
+    }
+    if let Some(t) = sub(top, "condition", d) {
+        read_condition(t, d, &mut m.condition);
+    }
+    if let Some(mut t) = sub(top, "user_costs", d) {
+        let u = &mut m.user_costs;
+        num(&mut t, "smooth_iri", d, 0.0, 10.0, &mut u.smooth_iri);
+        per_class(&mut t, "fuel_per_iri", d, 0.0, 1.0, &mut u.fuel_per_iri);
+        per_class(&mut t, "fuel_share", d, 0.0, 1.0, &mut u.fuel_share);
+        per_class(&mut t, "repair_share", d, 0.0, 1.0, &mut u.repair_share);
+        per_class(&mut t, "repair_at_4", d, 0.0, 10.0, &mut u.repair_at_4);
+        per_class(&mut t, "repair_at_5", d, 0.0, 10.0, &mut u.repair_at_5);
+        carriageway_pair(
+            &mut t,
+            "crash_rate",
+            d,
+            0.0,
+            100.0,
+            &mut u.crash_rate_single,
+            &mut u.crash_rate_divided,
+        );
+        let place = t.place();
+        t.finish(d);
+        for c in VehicleClass::ALL {
+            let (f, r) = (u.fuel_share.get(c), u.repair_share.get(c));
+            if f + r > 1.0 + 1e-9 {
+                d.error(
+                    place.clone().with_subfield("fuel_share"),
+                    format!(
+                        "fuel_share {f} and repair_share {r} of {} add up to more than 1",
+                        c.key()
+                    ),
+                    "shares of operating cost that add up to 1 or less",
+                );
+            }
+            if u.repair_at_5.get(c) < u.repair_at_4.get(c) {
+                d.error(
+                    place.clone().with_subfield("repair_at_5"),
+                    format!("repair_at_5 below repair_at_4 for {}", c.key()),
+                    "a repair rise at IRI 5 no smaller than at IRI 4",
+                );
+            }
+        }
+    }
+    m
+}
+
+fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams) {
+    num(
+        &mut t,
+        "bus_share_of_heavy",
+        d,
+        0.0,
+        1.0,
+        &mut p.bus_share_of_heavy,
+    );
+    num(
+        &mut t,
+        "light_truck_share_of_light",
+        d,
+        0.0,
+        1.0,
+        &mut p.light_truck_share_of_light,
+    );
+    num(
+        &mut t,
+        "standard_axle_kn",
+        d,
+        1.0,
+        1000.0,
+        &mut p.standard_axle_kn,
+    );
+    num(&mut t, "load_exponent", d, 1.0, 10.0, &mut p.load_exponent);
+    num(
+        &mut t,
+        "direction_factor",
+        d,
+        0.5,
+        1.0,
+        &mut p.direction_factor,
+    );
+    if let Some(mut at) = t.get("axles_kn").and_then(|v| v.table(d)) {
+        for c in VehicleClass::ALL {
+            if let Some(v) = at.get(c.key()) {
+                if let Some(items) = v.array(d) {
+                    let loads: Option<Vec<f64>> = items
+                        .iter()
+                        .map(|i| i.number_in(d, 0.0, 1000.0, "an axle load in kN from 0 to 1000"))
+                        .collect();
+                    if let Some(l) = loads {
+                        p.axles[c as usize] = l;
+                    }
+                }
+            }
+        }
+        at.finish(d);
+    }
+    if let Some(v) = t.get("lane_factor") {
+        if let Some(items) = v.array(d) {
+            if items.len() != 4 {
+                d.error(
+                    v.place(),
+                    format!("found {} values", items.len()),
+                    "four design-lane factors: 1, 2, 3 and 4 or more lanes per direction",
+                );
+            } else {
+                let xs: Option<Vec<f64>> = items
+                    .iter()
+                    .map(|i| i.number_in(d, 0.05, 1.0, "a share from 0.05 to 1"))
+                    .collect();
+                if let Some(xs) = xs {
+                    p.lane_factor.copy_from_slice(&xs);
+                }
+            }
+        }
+    }
+    per_class(&mut t, "pce", d, 0.1, 10.0, &mut p.pce);
+    if let Some(v) = t.get("flow_bands") {
+        if let Some(b) = read_bands(&v, d) {
+            p.flow_bands = b;
+        }
+    }
+    t.finish(d);
+}
+
+fn read_bands(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<FlowBand>> {
+    let items = v.array(d)?;
+    let mut out = Vec::new();
+    let mut ok = true;
+    for item in &items {
+        let Some(mut t) = item.table(d) else {
+            ok = false;
+            continue;
+        };
+        let name = t
+            .require("name", d, "a name for the band, e.g. \"peak\"")
+            .and_then(|v| v.identifier(d).map(str::to_owned));
+        let hours = t
+            .require("hours", d, "hours a year in the band")
+            .and_then(|v| v.number_in(d, 1.0, 8760.0, "hours from 1 to 8760"));
+        let share = t
+            .require("share", d, "the share of the year's traffic in the band")
+            .and_then(|v| v.number_in(d, 0.0, 1.0, "a share from 0 to 1"));
+        t.finish(d);
+        match (name, hours, share) {
+            (Some(name), Some(hours), Some(share)) => out.push(FlowBand { name, hours, share }),
+            _ => ok = false,
+        }
+    }
+    if !ok {
+        return None;
+    }
+    if out.is_empty() {
+        d.error(v.place(), "an empty list", "at least one flow band");
+        return None;
+    }
+    let hours: f64 = out.iter().map(|b| b.hours).sum();
+    let share: f64 = out.iter().map(|b| b.share).sum();
+    if (hours - 8760.0).abs() > 0.5 {
+        d.error(
+            v.place(),
+            format!("bands that cover {hours} hours"),
+            "bands whose hours add up to the 8760 hours of a year",
+        );
+        return None;
+    }
+    if (share - 1.0).abs() > 1e-6 {
+        d.error(
+            v.place(),
+            format!("shares that add up to {share}"),
+            "shares of the year's traffic that add up to 1",
+        );
+        return None;
+    }
+    Some(out)
+}
+
+fn read_condition(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut ConditionParams) {
+    let place = t.place();
+    let default_family = t
+        .get("default_family")
+        .map(|v| (v.place(), v.identifier(d).map(str::to_owned)));
+    if let Some(v) = t.get("classes_iri") {
+        if let Some(items) = v.array(d) {
+            let xs: Option<Vec<f64>> = items
+                .iter()
+                .map(|i| i.number_in(d, 0.1, 25.0, "an IRI in m/km from 0.1 to 25"))
+                .collect();
+            match xs.as_deref() {
+                Some([a, b]) if a < b => {
+                    p.good_below = *a;
+                    p.poor_above = *b;
+                }
+                Some(_) => {
+                    d.error(
+                        v.place(),
+                        format!("found {} values", items.len()),
+                        "two ascending IRI limits [good_below, poor_above] in m/km",
+                    );
+                }
+                None => {}
+            }
+        }
+    }
+    num(&mut t, "iri_floor", d, 0.1, 10.0, &mut p.iri_floor);
+    num(&mut t, "iri_max", d, 2.0, 30.0, &mut p.iri_max);
+    num(
+        &mut t,
+        "subgrade_mr_mpa",
+        d,
+        5.0,
+        1000.0,
+        &mut p.subgrade_mr_mpa,
+    );
+    if let Some(mut ft) = t.get("family").and_then(|v| v.table(d)) {
+        let mut families = Vec::new();
+        for (name, val) in ft.entries() {
+            if !is_identifier(&name) {
+                d.error(
+                    val.place(),
+                    format!("the family name `{name}`"),
+                    "a name of letters, digits, `_` and `-`",
+                );
+                continue;
+            }
+            if let Some(fam) = val.table(d).and_then(|x| read_family(x, d)) {
+                families.push(Family { name, model: fam });
+            }
+        }
+        ft.finish(d);
+        if families.is_empty() {
+            d.error(
+                place.clone().with_subfield("family"),
+                "no pavement families",
+                "at least one [condition.family.NAME] table",
+            );
+        } else {
+            p.families = families;
+        }
+    }
+    t.finish(d);
+    if let Some((fplace, Some(name))) = default_family {
+        p.default_family = name;
+        if p.family(&p.default_family).is_none() {
+            let names: Vec<&str> = p.families.iter().map(|f| f.name.as_str()).collect();
+            d.error(
+                fplace,
+                format!("the family `{}`, which is not defined", p.default_family),
+                format!("one of {}", names.join(", ")),
+            );
+        }
+    } else if p.family(&p.default_family).is_none() {
+        d.error(
+            place.clone().with_subfield("default_family"),
+            format!(
+                "no default_family, and no family named `{}`",
+                p.default_family
+            ),
+            "default_family naming one of the [condition.family.NAME] tables",
+        );
+    }
+    if p.iri_floor >= p.iri_max {
+        d.error(
+            place.with_subfield("iri_floor"),
+            format!(
+                "iri_floor {} at or above iri_max {}",
+                p.iri_floor, p.iri_max
+            ),
+            "iri_floor below iri_max",
+        );
+    }
+}
+
+fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel> {
+    let model = t
+        .require("model", d, "the progression model: aashto93 or calibrated")
+        .and_then(|v| v.word(d, &["aashto93", "calibrated"]).map(str::to_owned));
+    let out = match model.as_deref() {
+        Some("aashto93") => {
+            let mut a = Aashto93Params::default();
+            num(&mut t, "p0", d, 1.0, 5.0, &mut a.p0);
+            num(&mut t, "psr_min", d, 0.05, 3.0, &mut a.psr_min);
+            num(&mut t, "zr", d, -5.0, 5.0, &mut a.zr);
+            num(&mut t, "s0", d, 0.0, 1.0, &mut a.s0);
+            num(&mut t, "ageing", d, 0.0, 0.5, &mut a.ageing);
+            if a.psr_min >= a.p0 {
+                d.error(
+                    t.place(),
+                    format!("psr_min {} at or above p0 {}", a.psr_min, a.p0),
+                    "psr_min below p0",
+                );
+                None
+            } else {
+                Some(FamilyModel::Aashto93(a))
+            }
+        }
+        Some(_) => {
+            let mut c = CalibratedParams::default();
+            num(&mut t, "rise_per_year", d, 0.0, 5.0, &mut c.rise_per_year);
+            num(&mut t, "ageing", d, 0.0, 0.5, &mut c.ageing);
+            num(&mut t, "rise_per_mesa", d, 0.0, 50.0, &mut c.rise_per_mesa);
+            num(&mut t, "sn_ref", d, 0.5, 15.0, &mut c.sn_ref);
+            num(&mut t, "sn_exponent", d, 0.0, 10.0, &mut c.sn_exponent);
+            Some(FamilyModel::Calibrated(c))
+        }
+        None => None,
+    };
+    t.finish(d);
+    out
+}

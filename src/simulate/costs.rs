@@ -1,0 +1,139 @@
+//! Agency and road-user cost relations: treatment quantities, routine maintenance, vehicle
+//! operating cost against roughness, and the residual value of works at the end of the period.
+
+use crate::input::models::UserCostParams;
+use crate::input::scenario::VehicleClass;
+use crate::input::treatments::CostBasis;
+
+/// Quantity a treatment's unit cost is multiplied by: km of section, lane-km, or m² of
+/// carriageway (length × lanes × lane width). The simulation passes a widening's added lanes,
+/// and for every other action the lanes it works on (the lanes before the works).
+pub fn quantity(basis: CostBasis, length_km: f64, lanes_worked: u8, lane_width_m: f64) -> f64 {
+    let lanes = f64::from(lanes_worked);
+    match basis {
+        CostBasis::Km => length_km,
+        CostBasis::LaneKm => length_km * lanes,
+        CostBasis::SquareMetre => length_km * 1000.0 * lanes * lane_width_m,
+    }
+}
+
+/// Routine maintenance for one year: (per lane-km + per lane-km per m/km × IRI) × lane-km.
+/// Common practice: patching and crack sealing grow with roughness; the coefficients are the
+/// catalogue's (calibration defaults).
+pub fn routine_cost(per_lane_km: f64, per_lane_km_per_iri: f64, iri: f64, lane_km: f64) -> f64 {
+    (per_lane_km + per_lane_km_per_iri * iri) * lane_km
+}
+
+/// Rise in repair and maintenance cost at roughness `iri`, as a share: none up to IRI 3, then
+/// linear to `at_4` at IRI 4 and to `at_5` at IRI 5, and held at `at_5` past 5.
+///
+/// Source: Chatti & Zaabar, NCHRP Report 720 (2012) (no effect to IRI 3; +10 % at 4; +40 %
+/// cars / +50 % trucks at 5 m/km). Straight lines between those points are our reading; past
+/// IRI 5 the report's range ends, and holding the rise there is a conservative choice of ours.
+pub fn repair_rise(iri: f64, at_4: f64, at_5: f64) -> f64 {
+    if iri <= 3.0 {
+        0.0
+    } else if iri <= 4.0 {
+        at_4 * (iri - 3.0)
+    } else {
+        at_4 + (at_5 - at_4) * (iri - 4.0).min(1.0)
+    }
+}
+
+/// Operating cost of one vehicle of class `c` per km at roughness `iri`, relative to its cost on
+/// a smooth road: 1 + fuel share × fuel rise per m/km × (IRI − smooth IRI)⁺ + repair share ×
+/// repair rise (NCHRP Report 720 relations; the shares are calibration defaults).
+pub fn operating_factor(c: VehicleClass, iri: f64, p: &UserCostParams) -> f64 {
+    let fuel = p.fuel_per_iri.get(c) * (iri - p.smooth_iri).max(0.0);
+    let repair = repair_rise(iri, p.repair_at_4.get(c), p.repair_at_5.get(c));
+    1.0 + p.fuel_share.get(c) * fuel + p.repair_share.get(c) * repair
+}
+
+/// Residual value of works at the end of the analysis period: cost × remaining life ÷ life.
+///
+/// Source: FHWA-SA-98-079, *Life-Cycle Cost Analysis in Pavement Design* (Walls & Smith, 1998):
+/// the last activity's cost prorated by its remaining service life, credited at the end of the
+/// period. The works year counts as the first year of service, as in that report's example
+/// (a 12-year rehabilitation placed in year 32 of a 35-year period has 9 years left).
+/// `works_year` and `period_years` count from the base year (year 0).
+pub fn residual_value(cost: f64, works_year: u32, life_years: u32, period_years: u32) -> f64 {
+    if life_years == 0 {
+        return 0.0;
+    }
+    let end_of_service = works_year + life_years;
+    let remaining = end_of_service.saturating_sub(period_years);
+    cost * f64::from(remaining.min(life_years)) / f64::from(life_years)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::economics::{Discounting, Timing};
+    use approx::assert_abs_diff_eq;
+
+    #[test]
+    fn quantities_by_basis() {
+        assert_abs_diff_eq!(quantity(CostBasis::Km, 2.5, 2, 3.5), 2.5, epsilon = 1e-12);
+        assert_abs_diff_eq!(
+            quantity(CostBasis::LaneKm, 2.5, 2, 3.5),
+            5.0,
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(
+            quantity(CostBasis::SquareMetre, 2.5, 2, 3.5),
+            17_500.0,
+            epsilon = 1e-9
+        );
+    }
+
+    #[test]
+    fn remaining_service_life_example() {
+        // FHWA-SA-98-079 (Walls & Smith 1998), method from memory, arithmetic in the shared
+        // reference list: 1000 placed in year 32 of a 35-year period, 12-year life → 750,
+        // PV at 4 % = 190.06.
+        let rv = residual_value(1000.0, 32, 12, 35);
+        assert_abs_diff_eq!(rv, 750.0, epsilon = 1e-9);
+        let d = Discounting::new(0.04, 2000, Timing::EndOfYear).unwrap();
+        // Credited at the end of the period: year 0 + 35.
+        assert_abs_diff_eq!(rv * d.factor(2035), 190.06, epsilon = 0.005);
+        // Works that end within the period leave nothing.
+        assert_abs_diff_eq!(residual_value(1000.0, 10, 12, 35), 0.0, epsilon = 1e-12);
+    }
+
+    #[test]
+    fn nchrp_720_roughness_effects() {
+        // Chatti & Zaabar, NCHRP Report 720 (2012): repair +0 % to IRI 3, +10 % at 4, +40 %
+        // (cars) / +50 % (trucks) at 5; fuel +2 % per m/km for cars.
+        assert_abs_diff_eq!(repair_rise(2.5, 0.1, 0.4), 0.0, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(3.0, 0.1, 0.4), 0.0, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(4.0, 0.1, 0.4), 0.10, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(5.0, 0.1, 0.4), 0.40, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(5.0, 0.1, 0.5), 0.50, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(4.5, 0.1, 0.4), 0.25, epsilon = 1e-12);
+        assert_abs_diff_eq!(repair_rise(8.0, 0.1, 0.4), 0.40, epsilon = 1e-12);
+        let p = UserCostParams::default();
+        let only_fuel = UserCostParams {
+            fuel_share: crate::input::scenario::PerClass([1.0; 4]),
+            repair_share: crate::input::scenario::PerClass([0.0; 4]),
+            ..p.clone()
+        };
+        // Each m/km above the smooth road (IRI 1) adds 2 % fuel for a car.
+        assert_abs_diff_eq!(
+            operating_factor(VehicleClass::Car, 2.0, &only_fuel),
+            1.02,
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(
+            operating_factor(VehicleClass::Car, 3.0, &only_fuel),
+            1.04,
+            epsilon = 1e-12
+        );
+        // Operating cost never falls as roughness rises.
+        let mut last = 0.0;
+        for k in 0..200 {
+            let f = operating_factor(VehicleClass::HeavyTruck, f64::from(k) * 0.1, &p);
+            assert!(f >= last);
+            last = f;
+        }
+    }
+}

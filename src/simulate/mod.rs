@@ -1,0 +1,397 @@
+//! Simulation: every section under every strategy, year by year — traffic, capacity and speed,
+//! pavement condition, treatments, agency costs, road-user costs and residual value.
+//!
+//! [`SectionSim`] holds everything about one section that no strategy changes (traffic by year,
+//! the hourly flow profile, unit costs per vehicle-km), worked out once; [`SectionSim::run`] then
+//! plays one strategy into a reusable [`Trace`]. The year's order of events (common practice for
+//! yearly life-cycle models):
+//! 1. works due this year are decided: timed works, or the strategy's roughness trigger when the
+//!    IRI at the start of the year has reached its threshold and the least gap since the last
+//!    works has passed;
+//! 2. the year's agency costs (works at the lanes before the works, routine maintenance at the
+//!    year's roughness) and road-user costs (operating cost, travel time, crashes, and work-zone
+//!    delay in construction years) are counted at the condition the road had all year;
+//! 3. the pavement ages under the year's design-lane ESALs;
+//! 4. the works take effect for the next year: structural number, roughness, lanes,
+//!    carriageway and crash rate.
+//!
+//! Two runs of the same section follow exactly the same arithmetic until their works differ, so a
+//! strategy's flows minus the base's are exactly zero before its first works.
+
+pub mod capacity;
+pub mod condition;
+pub mod costs;
+pub mod traffic;
+
+use crate::enumerate::Strategy;
+use crate::input::network::{Carriageway, Section};
+use crate::input::scenario::VehicleClass;
+use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
+use crate::input::Run;
+use condition::{Condition, Progression, SectionModel};
+
+/// Lane width (m) taken where the network gives none: a common rural lane (common practice,
+/// 3.5 m). Used only for treatments costed per m².
+pub const DEFAULT_LANE_WIDTH_M: f64 = 3.5;
+
+/// What one strategy did to one section, year by year (index 0 = the base year).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Trace {
+    /// Treatments of the capital category.
+    pub capital: Vec<f64>,
+    /// Routine maintenance, plus treatments of the routine category.
+    pub routine: Vec<f64>,
+    /// Vehicle operating cost.
+    pub operating: Vec<f64>,
+    /// Travel time.
+    pub time: Vec<f64>,
+    /// Crashes.
+    pub crashes: Vec<f64>,
+    /// Extra travel time through work zones.
+    pub delay: Vec<f64>,
+    /// IRI during the year (m/km).
+    pub iri: Vec<f64>,
+    /// Structural number during the year.
+    pub sn: Vec<f64>,
+    /// Works done: (year index, treatment index, cost).
+    pub works: Vec<(u32, usize, f64)>,
+    /// Residual value of the last works, credited the year after the period ends.
+    pub residual: f64,
+}
+
+impl Trace {
+    fn reset(&mut self, n: usize) {
+        for v in [
+            &mut self.capital,
+            &mut self.routine,
+            &mut self.operating,
+            &mut self.time,
+            &mut self.crashes,
+            &mut self.delay,
+            &mut self.iri,
+            &mut self.sn,
+        ] {
+            v.clear();
+            v.resize(n, 0.0);
+        }
+        self.works.clear();
+        self.residual = 0.0;
+    }
+
+    /// Agency cost of each year and, last, the year after the period with the residual value
+    /// as a negative cost.
+    pub fn agency(&self) -> Vec<f64> {
+        let mut v: Vec<f64> = self
+            .capital
+            .iter()
+            .zip(&self.routine)
+            .map(|(a, b)| a + b)
+            .collect();
+        v.push(-self.residual);
+        v
+    }
+
+    /// Road-user cost of each year, and zero the year after the period.
+    pub fn users(&self) -> Vec<f64> {
+        let mut v: Vec<f64> = (0..self.capital.len())
+            .map(|i| self.operating[i] + self.time[i] + self.crashes[i] + self.delay[i])
+            .collect();
+        v.push(0.0);
+        v
+    }
+}
+
+/// A treatment as the simulation needs it: money as f64, effects resolved.
+#[derive(Debug, Clone)]
+struct Works {
+    unit_cost: f64,
+    cost_per: CostBasis,
+    capital: bool,
+    action: Action,
+    iri: IriEffect,
+    structure: StructuralEffect,
+    lanes_added: u8,
+    carriageway_after: Option<Carriageway>,
+    crash_factor: f64,
+    life_years: u32,
+    work_zone_days: u32,
+}
+
+/// One section, ready to run strategies on.
+#[derive(Debug, Clone)]
+pub struct SectionSim {
+    years: usize,
+    length_km: f64,
+    lanes: u8,
+    carriageway: Carriageway,
+    lane_width_m: f64,
+    last_works: Option<i64>,
+    model: SectionModel,
+    start: Condition,
+    aadt: Vec<f64>,
+    /// Vehicle-km of each year.
+    vkm: Vec<f64>,
+    esal_two_way: Vec<f64>,
+    /// Each flow band's share of the year's traffic, and its base-year flow in pc/h.
+    bands: Vec<(f64, f64)>,
+    /// Travel-time cost per vehicle-km at free speed on a smooth road.
+    time_per_vkm: f64,
+    /// Per class: share × smooth-road operating cost per vehicle-km.
+    voc_weight: [f64; 4],
+    crash_per_vkm: f64,
+    /// Work-zone delay cost per vehicle-km of one day of works.
+    delay_per_vkm: f64,
+    routine_per_lane_km: f64,
+    routine_per_lane_km_per_iri: f64,
+    iri_floor: f64,
+    treatments: Vec<Works>,
+    models: crate::input::models::Models,
+}
+
+impl SectionSim {
+    /// Work out everything about `section` that no strategy changes.
+    pub fn new(run: &Run, section: &Section) -> SectionSim {
+        let s = &run.scenario;
+        let m = &s.models;
+        let years = s.analysis_years as usize;
+        let t = traffic::series(section, years, &m.traffic);
+        let family_name = section
+            .surface
+            .as_deref()
+            .unwrap_or(&m.condition.default_family);
+        // `load` checked every surface against the families; the default family exists.
+        let family = m
+            .condition
+            .family(family_name)
+            .or_else(|| m.condition.families.first())
+            .map(|f| f.model)
+            .unwrap_or(crate::input::models::FamilyModel::Aashto93(
+                Default::default(),
+            ));
+        let mr = section
+            .subgrade_mr_mpa
+            .unwrap_or(m.condition.subgrade_mr_mpa);
+        let model = SectionModel::new(&family, mr, m.condition.iri_max);
+        let start = model.start(
+            section.iri.min(m.condition.iri_max),
+            section.structural_number,
+        );
+        let pce_mix: f64 = VehicleClass::ALL
+            .iter()
+            .map(|c| t.shares[*c as usize] * m.traffic.pce.get(*c))
+            .sum();
+        let bands = m
+            .traffic
+            .flow_bands
+            .iter()
+            .map(|b| (b.share, section.aadt * 365.0 * b.share / b.hours * pce_mix))
+            .collect();
+        let uv = &s.unit_values;
+        let vot: f64 = VehicleClass::ALL
+            .iter()
+            .map(|c| t.shares[*c as usize] * uv.time.get(*c).to_f64())
+            .sum();
+        let v0 = capacity::free_speed_kmh(section.speed_kmh, section.carriageway, &m.speed);
+        let mut voc_weight = [0.0; 4];
+        for c in VehicleClass::ALL {
+            voc_weight[c as usize] = t.shares[c as usize] * uv.operating.get(c).to_f64();
+        }
+        let base_rate = match section.carriageway {
+            Carriageway::Single => m.user_costs.crash_rate_single,
+            Carriageway::Divided => m.user_costs.crash_rate_divided,
+        };
+        let extra_h_per_km = (1.0 / m.speed.work_zone_kmh - 1.0 / v0).max(0.0);
+        let length = section.length_km;
+        let treatments = run
+            .catalogue
+            .treatments
+            .iter()
+            .map(|tr| Works {
+                unit_cost: tr.cost.to_f64(),
+                cost_per: tr.cost_per,
+                capital: tr.category != crate::input::scenario::Category::Routine,
+                action: tr.action,
+                iri: tr.iri,
+                structure: tr.structure,
+                lanes_added: tr.lanes_added,
+                carriageway_after: tr.carriageway_after,
+                crash_factor: tr.crash_factor,
+                life_years: tr.life_years,
+                work_zone_days: tr.work_zone_days,
+            })
+            .collect();
+        SectionSim {
+            years,
+            length_km: length,
+            lanes: section.lanes,
+            carriageway: section.carriageway,
+            lane_width_m: section.lane_width_m.unwrap_or(DEFAULT_LANE_WIDTH_M),
+            last_works: section
+                .last_works_year
+                .map(|y| i64::from(y) - i64::from(s.base_year)),
+            model,
+            start,
+            vkm: t.aadt.iter().map(|a| a * 365.0 * length).collect(),
+            aadt: t.aadt,
+            esal_two_way: t.esal_two_way,
+            bands,
+            time_per_vkm: vot / v0,
+            voc_weight,
+            crash_per_vkm: base_rate * 1e-6 * uv.crash.to_f64(),
+            delay_per_vkm: extra_h_per_km * vot,
+            routine_per_lane_km: run.catalogue.routine.per_lane_km.to_f64(),
+            routine_per_lane_km_per_iri: run.catalogue.routine.per_lane_km_per_iri.to_f64(),
+            iri_floor: m.condition.iri_floor,
+            treatments,
+            models: m.clone(),
+        }
+    }
+
+    /// Years simulated (the analysis period).
+    pub fn years(&self) -> usize {
+        self.years
+    }
+
+    /// Play `strategy` into `out` (its buffers are reused).
+    pub fn run(&self, strategy: &Strategy, out: &mut Trace) {
+        let n = self.years;
+        out.reset(n);
+        let m = &self.models;
+        let mut cond = self.start;
+        let mut lanes = self.lanes;
+        let mut cw = self.carriageway;
+        let mut crash_factor = 1.0;
+        let mut cap = capacity::capacity_pc_h(lanes, cw, &m.capacity);
+        let mut lane_factor = traffic::design_lane_factor(lanes, &m.traffic);
+        let mut last_works = self.last_works;
+        let mut next = 0usize;
+        let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
+        let mut done: [usize; 8] = [0; 8];
+        for y in 0..n {
+            // 1. Works due this year.
+            let first = next;
+            while next < strategy.works.len() && strategy.works[next].year as usize == y {
+                next += 1;
+            }
+            let mut count = 0;
+            for w in &strategy.works[first..next] {
+                if count < done.len() {
+                    done[count] = w.treatment;
+                    count += 1;
+                }
+            }
+            if count == 0 {
+                if let Some(tr) = &strategy.trigger {
+                    let gap_ok =
+                        last_works.is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
+                    if cond.iri >= tr.iri && gap_ok {
+                        done[0] = tr.treatment;
+                        count = 1;
+                    }
+                }
+            }
+            // 2. The year's costs.
+            let mut zone_days = 0u32;
+            for &ti in &done[..count] {
+                let w = &self.treatments[ti];
+                let lanes_worked = if w.action == Action::Widen {
+                    w.lanes_added
+                } else {
+                    lanes
+                };
+                let q =
+                    costs::quantity(w.cost_per, self.length_km, lanes_worked, self.lane_width_m);
+                let cost = w.unit_cost * q;
+                if w.capital {
+                    out.capital[y] += cost;
+                } else {
+                    out.routine[y] += cost;
+                }
+                zone_days += w.work_zone_days;
+                out.works.push((y as u32, ti, cost));
+            }
+            let iri = cond.iri;
+            let lane_km = self.length_km * f64::from(lanes);
+            out.routine[y] += costs::routine_cost(
+                self.routine_per_lane_km,
+                self.routine_per_lane_km_per_iri,
+                iri,
+                lane_km,
+            );
+            let growth = self.aadt[y] / aadt0;
+            let mut congestion = 0.0;
+            for &(share, pc_h) in &self.bands {
+                congestion += share * capacity::bpr_factor(pc_h * growth / cap, &m.capacity);
+            }
+            let vkm = self.vkm[y];
+            let speed = capacity::roughness_speed_factor(iri, &m.speed);
+            out.time[y] = vkm * self.time_per_vkm * congestion / speed;
+            let mut voc = 0.0;
+            for c in VehicleClass::ALL {
+                voc += self.voc_weight[c as usize] * costs::operating_factor(c, iri, &m.user_costs);
+            }
+            out.operating[y] = vkm * voc;
+            out.crashes[y] = vkm * self.crash_per_vkm * crash_factor;
+            out.delay[y] =
+                f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
+            out.iri[y] = iri;
+            out.sn[y] = cond.sn;
+            // 3. Ageing under the year's traffic.
+            self.model
+                .age(&mut cond, self.esal_two_way[y] * lane_factor);
+            // 4. The works take effect.
+            if count > 0 {
+                last_works = Some(y as i64);
+                for &ti in &done[..count] {
+                    let w = &self.treatments[ti];
+                    match w.structure {
+                        StructuralEffect::None => {}
+                        StructuralEffect::SetTo(sn) => self.model.restructure(&mut cond, sn),
+                        layer @ StructuralEffect::Layer { .. } => {
+                            let sn = cond.sn + layer.added_sn().unwrap_or(0.0);
+                            self.model.restructure(&mut cond, sn);
+                        }
+                    }
+                    match w.iri {
+                        IriEffect::ResetTo(x) => {
+                            let to = cond.iri.min(x);
+                            self.model.resurface(&mut cond, to);
+                        }
+                        IriEffect::Reduce(r) => {
+                            let to = (cond.iri - r).max(self.iri_floor).min(cond.iri);
+                            cond.lower(to);
+                        }
+                    }
+                    if w.action == Action::Widen {
+                        lanes = lanes.saturating_add(w.lanes_added).min(12);
+                        if let Some(after) = w.carriageway_after {
+                            cw = after;
+                        }
+                        cap = capacity::capacity_pc_h(lanes, cw, &m.capacity);
+                        lane_factor = traffic::design_lane_factor(lanes, &m.traffic);
+                    }
+                    crash_factor *= w.crash_factor;
+                }
+            }
+        }
+        out.residual = self.residual(&out.works);
+    }
+
+    /// Residual value of the last pavement works and of the last widening (each group's last
+    /// year of works), FHWA-SA-98-079's remaining-service-life method.
+    fn residual(&self, works: &[(u32, usize, f64)]) -> f64 {
+        let mut total = 0.0;
+        for widen in [false, true] {
+            let group =
+                |w: &&(u32, usize, f64)| (self.treatments[w.1].action == Action::Widen) == widen;
+            let Some(last) = works.iter().filter(group).map(|w| w.0).max() else {
+                continue;
+            };
+            for w in works.iter().filter(group).filter(|w| w.0 == last) {
+                let life = self.treatments[w.1].life_years;
+                total += costs::residual_value(w.2, w.0, life, self.years as u32);
+            }
+        }
+        total
+    }
+}
