@@ -5,25 +5,22 @@
 //! A plain harness (no benchmarking crate) keeps the default build light: each case is timed over
 //! enough repetitions to last about a second, and the best of three rounds is reported.
 
+use pavestrat::demo::synth::SplitMix64;
 use pavestrat::economics::{appraise, irr, Discounting, Stream, Timing};
 use std::hint::black_box;
 use std::time::Instant;
 
-/// A small deterministic generator (SplitMix64), so runs are comparable.
-struct Mix(u64);
+/// The library's deterministic generator, so runs are comparable.
+struct Mix(SplitMix64);
 
 impl Mix {
     fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
+        self.0.unit()
     }
 }
 
 fn streams(n: usize, conventional: bool) -> Vec<Stream> {
-    let mut g = Mix(42);
+    let mut g = Mix(SplitMix64::new(42));
     (0..n)
         .map(|_| {
             let mut rows = vec![(2027, 0.0, 1e6 * (0.5 + g.next()))];

@@ -21,6 +21,7 @@ use crate::input::network::Section;
 use crate::input::Run;
 use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
+use std::collections::HashMap;
 
 /// One strategy's results on one section.
 #[derive(Debug, Clone, PartialEq)]
@@ -119,7 +120,6 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         let pv_routine = d.pv(y0, &t.routine);
         let pv_residual = t.residual * d.factor(y0 + n as i32);
         let flows = increment(t, &base, y0);
-        let indicators = appraise(&flows, d);
         partial.push(StrategyResult {
             strategy: st.name.clone(),
             template: st.template.map(|i| run.templates[i].name.clone()),
@@ -128,7 +128,9 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             pv_residual,
             pv_agency: pv_capital + pv_routine - pv_residual,
             pv_user: d.pv(y0, &t.users()),
-            indicators,
+            // The base's own (all zero); the others' come from the incremental analysis below,
+            // which appraises every alternative once.
+            indicators: appraise(&Stream::default(), d),
             mean_iri: t.iri.iter().sum::<f64>() / t.iri.len().max(1) as f64,
             final_iri: t.iri.last().copied().unwrap_or(sec.iri),
             widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w as i32),
@@ -141,6 +143,22 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         }
     }
     let incremental = analyse(&alternatives, d);
+    let position: HashMap<&str, usize> = partial
+        .iter()
+        .enumerate()
+        .map(|(i, r)| (r.strategy.as_str(), i))
+        .collect();
+    let mut own: Vec<Option<Indicators>> = vec![None; partial.len()];
+    for alt in &incremental.alternatives {
+        if let Some(&i) = position.get(alt.name.as_str()) {
+            own[i] = Some(alt.indicators.clone());
+        }
+    }
+    for (r, ind) in partial.iter_mut().zip(own) {
+        if let Some(ind) = ind {
+            r.indicators = ind;
+        }
+    }
     let best = incremental
         .winner
         .clone()

@@ -300,20 +300,20 @@ trigger = { treatment = "reseal", iri = [3.0, 4.0] }
         let mut sec = run.network.sections[0].clone();
         sec.last_works_year = None;
         let names: Vec<String> = e.strategies(&sec).into_iter().map(|s| s.name).collect();
-        // Offsets 0 (same year), 2 (under the 3-year gap: dropped) and 4, for each of 3 years;
-        // then the two thresholds.
+        // Templates come in name order (`rs` before `sw`): the two thresholds; then offsets 0
+        // (same year), 2 (under the 3-year gap: dropped) and 4, for each of 3 years.
         assert_eq!(
             names,
             [
                 "base",
+                "reseal@iri3",
+                "reseal@iri4",
                 "strengthen@2027+widen@2027",
                 "strengthen@2027+widen@2031",
                 "strengthen@2028+widen@2028",
                 "strengthen@2028+widen@2032",
                 "strengthen@2029+widen@2029",
                 "strengthen@2029+widen@2033",
-                "reseal@iri3",
-                "reseal@iri4",
             ]
         );
         // A divided road gets no widening, by the template's rule or the trade's.

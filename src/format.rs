@@ -54,3 +54,82 @@ pub fn irr_text(irr: &Irr) -> String {
         Irr::None => "none".to_owned(),
     }
 }
+
+/// Money for CSV: two decimals, empty when not finite (written without allocating).
+#[derive(Debug, Clone, Copy)]
+pub struct Amount(pub f64);
+
+impl std::fmt::Display for Amount {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        if !self.0.is_finite() {
+            return Ok(());
+        }
+        // No "-0.00": a value that rounds to zero prints as zero.
+        let x = if self.0.abs() < 0.005 { 0.0 } else { self.0 };
+        write!(f, "{x:.2}")
+    }
+}
+
+/// A ratio or rate for CSV with `digits` decimals, empty when undefined or not finite.
+#[derive(Debug, Clone, Copy)]
+pub struct Fixed(pub Option<f64>, pub usize);
+
+impl std::fmt::Display for Fixed {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.0 {
+            Some(x) if x.is_finite() => write!(f, "{x:.*}", self.1),
+            _ => Ok(()),
+        }
+    }
+}
+
+/// Every IRR of a stream for CSV, six decimals, joined by `;`.
+#[derive(Debug, Clone, Copy)]
+pub struct Rates<'a>(pub &'a Irr);
+
+impl std::fmt::Display for Rates<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        for (i, r) in self.0.rates().iter().enumerate() {
+            if i > 0 {
+                f.write_str(";")?;
+            }
+            write!(f, "{}", Fixed(Some(*r), 6))?;
+        }
+        Ok(())
+    }
+}
+
+/// A text field for CSV, quoted when it holds a comma, quote or line break.
+#[derive(Debug, Clone, Copy)]
+pub struct Field<'a>(pub &'a str);
+
+impl std::fmt::Display for Field<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        if self.0.contains([',', '"', '\n', '\r']) {
+            write!(f, "\"{}\"", self.0.replace('"', "\"\""))
+        } else {
+            f.write_str(self.0)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn csv_formats() {
+        assert_eq!(Amount(1234.567).to_string(), "1234.57");
+        assert_eq!(Amount(-0.001).to_string(), "0.00");
+        assert_eq!(Amount(f64::NAN).to_string(), "");
+        assert_eq!(Fixed(Some(0.1234567), 6).to_string(), "0.123457");
+        assert_eq!(Fixed(None, 6).to_string(), "");
+        assert_eq!(
+            Rates(&Irr::Multiple(vec![0.1, 0.2])).to_string(),
+            "0.100000;0.200000"
+        );
+        assert_eq!(Field("a,b").to_string(), "\"a,b\"");
+        assert_eq!(Field("plain").to_string(), "plain");
+        assert_eq!(Field("a\"b,").to_string(), "\"a\"\"b,\"");
+    }
+}

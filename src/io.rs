@@ -77,6 +77,14 @@ impl OutputSet {
                 .tempfile_in(dir)
                 .map_err(write)?;
             tmp.write_all(contents).map_err(write)?;
+            // Temporary files are private (0600); an output is an ordinary file.
+            #[cfg(unix)]
+            {
+                use std::os::unix::fs::PermissionsExt;
+                tmp.as_file()
+                    .set_permissions(std::fs::Permissions::from_mode(0o644))
+                    .map_err(write)?;
+            }
             tmp.as_file().sync_all().map_err(write)?;
             staged.push((tmp, target));
         }

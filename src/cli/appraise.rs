@@ -11,11 +11,12 @@ use super::{load_scenario, Context, OutArg};
 use crate::appraise::{self, SectionResult};
 use crate::diag::did_you_mean;
 use crate::error::{Error, Result};
-use crate::format::{csv_field, irr_text, num, opt, pct, rates};
+use crate::format::{irr_text, pct, Amount, Field, Fixed, Rates};
 use crate::input::Run;
 use crate::io::{print_stdout, OutputSet};
 use crate::money::grouped;
 use crate::simulate::condition::classify;
+use std::fmt::Write as _;
 use std::path::PathBuf;
 
 /// Arguments of `appraise`.
@@ -105,25 +106,26 @@ pub fn appraisal_csv(results: &[SectionResult]) -> String {
     for r in results {
         for st in &r.strategies {
             let i = &st.indicators;
-            s.push_str(&format!(
-                "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n",
-                csv_field(&r.section),
-                csv_field(&st.strategy),
-                csv_field(st.template.as_deref().unwrap_or("")),
-                num(st.pv_agency),
-                num(st.pv_capital),
-                num(st.pv_routine),
-                num(st.pv_residual),
-                num(st.pv_user),
-                num(i.npv),
-                opt(i.bcr),
-                rates(&i.irr),
+            let _ = writeln!(
+                s,
+                "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+                Field(&r.section),
+                Field(&st.strategy),
+                Field(st.template.as_deref().unwrap_or("")),
+                Amount(st.pv_agency),
+                Amount(st.pv_capital),
+                Amount(st.pv_routine),
+                Amount(st.pv_residual),
+                Amount(st.pv_user),
+                Amount(i.npv),
+                Fixed(i.bcr, 6),
+                Rates(&i.irr),
                 i.irr.status(),
-                opt(i.fyrr),
-                num(st.mean_iri),
-                num(st.final_iri),
+                Fixed(i.fyrr, 6),
+                Fixed(Some(st.mean_iri), 3),
+                Fixed(Some(st.final_iri), 3),
                 st.strategy == r.best,
-            ));
+            );
         }
     }
     s
@@ -135,20 +137,21 @@ fn incremental_csv(results: &[SectionResult]) -> String {
     );
     for r in results {
         for (k, st) in r.incremental.steps.iter().enumerate() {
-            s.push_str(&format!(
-                "{},{},{},{},{},{},{},{},{},{},{}\n",
-                csv_field(&r.section),
+            let _ = writeln!(
+                s,
+                "{},{},{},{},{},{},{},{},{},{},{}",
+                Field(&r.section),
                 k + 1,
-                csv_field(&st.challenger),
-                csv_field(st.defender.as_deref().unwrap_or(crate::enumerate::BASE)),
-                num(st.d_pv_benefits),
-                num(st.d_pv_costs),
-                num(st.d_npv),
-                opt(st.d_bcr),
-                rates(&st.d_irr),
+                Field(&st.challenger),
+                Field(st.defender.as_deref().unwrap_or(crate::enumerate::BASE)),
+                Amount(st.d_pv_benefits),
+                Amount(st.d_pv_costs),
+                Amount(st.d_npv),
+                Fixed(st.d_bcr, 6),
+                Rates(&st.d_irr),
                 st.d_irr.status(),
                 st.accepted
-            ));
+            );
         }
     }
     s
@@ -159,16 +162,17 @@ fn widening_csv(results: &[SectionResult]) -> String {
     for r in results {
         let Some(w) = &r.widening else { continue };
         for y in &w.years {
-            s.push_str(&format!(
-                "{},{},{},{},{},{},{}\n",
-                csv_field(&r.section),
+            let _ = writeln!(
+                s,
+                "{},{},{},{},{},{},{}",
+                Field(&r.section),
                 y.year,
-                csv_field(&y.strategy),
-                num(y.npv),
-                opt(y.fyrr),
+                Field(&y.strategy),
+                Amount(y.npv),
+                Fixed(y.fyrr, 6),
                 w.by_fyrr == Some(y.year),
                 w.by_npv == Some(y.year),
-            ));
+            );
         }
     }
     s
@@ -183,29 +187,32 @@ fn yearly_csv(run: &Run, results: &[SectionResult]) -> String {
     for r in results {
         for (name, t) in &r.traces {
             for i in 0..t.iri.len() {
-                s.push_str(&format!(
-                    "{},{},{},{},{},{},{},{},{},{},{},{},0\n",
-                    csv_field(&r.section),
-                    csv_field(name),
+                let _ = writeln!(
+                    s,
+                    "{},{},{},{},{},{},{},{},{},{},{},{},0.00",
+                    Field(&r.section),
+                    Field(name),
                     y0 + i as i32,
-                    num(t.iri[i]),
+                    Fixed(Some(t.iri[i]), 3),
                     classify(t.iri[i], cp).name(),
-                    num(t.sn[i]),
-                    num(t.capital[i]),
-                    num(t.routine[i]),
-                    num(t.operating[i]),
-                    num(t.time[i]),
-                    num(t.crashes[i]),
-                    num(t.delay[i]),
-                ));
+                    Fixed(Some(t.sn[i]), 3),
+                    Amount(t.capital[i]),
+                    Amount(t.routine[i]),
+                    Amount(t.operating[i]),
+                    Amount(t.time[i]),
+                    Amount(t.crashes[i]),
+                    Amount(t.delay[i]),
+                );
             }
-            s.push_str(&format!(
-                "{},{},{},,,,0,0,0,0,0,0,{}\n",
-                csv_field(&r.section),
-                csv_field(name),
+            // The residual value is credited the year after the period ends.
+            let _ = writeln!(
+                s,
+                "{},{},{},,,,0.00,0.00,0.00,0.00,0.00,0.00,{}",
+                Field(&r.section),
+                Field(name),
                 y0 + t.iri.len() as i32,
-                num(t.residual)
-            ));
+                Amount(t.residual)
+            );
         }
     }
     s

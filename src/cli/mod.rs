@@ -8,6 +8,7 @@
 pub mod appraise;
 pub mod cashflow;
 pub mod check;
+pub mod init;
 
 use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use clap::{Parser, Subcommand};
@@ -46,6 +47,9 @@ pub enum Command {
     /// Simulate every section under every strategy and appraise each against the base.
     #[command(after_help = AFTER_HELP)]
     Appraise(appraise::Args),
+    /// Write the demo scenario's files (or a synthetic network) into a directory to edit.
+    #[command(after_help = AFTER_HELP)]
+    Init(init::Args),
     /// Appraise a plain cash-flow stream, or compare alternatives incrementally.
     #[command(after_help = AFTER_HELP)]
     Cashflow(cashflow::Args),
@@ -126,6 +130,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
     match command {
         Command::Check(a) => check::run(a, ctx),
         Command::Appraise(a) => appraise::run(a, ctx),
+        Command::Init(a) => init::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

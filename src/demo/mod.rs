@@ -5,6 +5,8 @@
 //! are the shipped ones in `strategies/`. Inside the binary all four sit side by side, as they
 //! would in a directory a user sets up for their own network.
 
+pub mod synth;
+
 use crate::input::Embedded;
 
 /// Name of the demo's scenario file among [`SOURCE`]'s files.

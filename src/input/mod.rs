@@ -199,6 +199,31 @@ fn check_template_treatments(
         }
         false
     };
+    // A tag names one treatment across all templates, so that a strategy's name says what it does.
+    let mut tags: Vec<(&str, &str, &Place)> = Vec::new();
+    let works = templates.iter().flat_map(|t| {
+        t.steps
+            .iter()
+            .map(|s| (s.tag.as_str(), s.treatment.as_str(), &s.place))
+            .chain(
+                t.trigger
+                    .iter()
+                    .map(|r| (r.tag.as_str(), r.treatment.as_str(), &r.place)),
+            )
+    });
+    for (tag, treatment, place) in works {
+        match tags.iter().find(|(t, _, _)| *t == tag) {
+            Some((_, other, first)) if *other != treatment => {
+                d.error(
+                    place.clone(),
+                    format!("the tag `{tag}` on the treatment `{treatment}`; it names `{other}` at {first}"),
+                    "one treatment per tag across all templates, so that strategy names are unambiguous",
+                );
+            }
+            Some(_) => {}
+            None => tags.push((tag, treatment, place)),
+        }
+    }
     for t in templates {
         for s in &t.steps {
             known(&s.treatment, &s.place, d);

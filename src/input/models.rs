@@ -87,7 +87,7 @@ pub struct TrafficParams {
 }
 
 /// Capacity and the volume-delay relation.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub struct CapacityParams {
     pub two_lane_pc_h: f64,
     pub multilane_pc_h_per_lane: f64,
@@ -98,7 +98,7 @@ pub struct CapacityParams {
 }
 
 /// Free speed and its fall with roughness; work-zone speed.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SpeedParams {
     pub free_single_kmh: f64,
     pub free_divided_kmh: f64,
@@ -192,7 +192,7 @@ pub struct UserCostParams {
 }
 
 /// Every model coefficient of a run.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct Models {
     pub traffic: TrafficParams,
     pub capacity: CapacityParams,
@@ -364,17 +364,6 @@ impl Default for UserCostParams {
     }
 }
 
-impl Default for Models {
-    fn default() -> Self {
-        Models {
-            traffic: TrafficParams::default(),
-            capacity: CapacityParams::default(),
-            speed: SpeedParams::default(),
-            condition: ConditionParams::default(),
-            user_costs: UserCostParams::default(),
-        }
-    }
-}
 
 /// Set `*slot` from an optional number key within `lo..=hi`.
 fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, lo: f64, hi: f64, slot: &mut f64) {
@@ -793,4 +782,90 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
     };
     t.finish(d);
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::input::tomldoc::Doc;
+
+    fn read_text(text: &str) -> (Models, Diagnostics) {
+        let mut d = Diagnostics::new();
+        let doc = Doc::parse("s.toml", text, &mut d);
+        let mut top = doc.table();
+        let m = read(&mut top, &mut d);
+        (m, d)
+    }
+
+    #[test]
+    fn an_empty_file_gives_the_defaults() {
+        let (m, d) = read_text("");
+        assert!(d.is_empty(), "{d}");
+        assert_eq!(m, Models::default());
+    }
+
+    #[test]
+    fn the_demo_writes_out_the_defaults() {
+        // The demo scenario spells every model key out; its values must be the defaults the
+        // README documents (classes to the precision written there).
+        let text = String::from_utf8(
+            crate::demo::FILES
+                .iter()
+                .find(|f| f.0 == "scenario.toml")
+                .unwrap()
+                .1
+                .to_vec(),
+        )
+        .unwrap();
+        let mut d = Diagnostics::new();
+        let doc = Doc::parse("s.toml", &text, &mut d);
+        let mut top = doc.table();
+        for k in ["scenario", "files", "unit_values", "budget"] {
+            top.get(k);
+        }
+        let mut m = read(&mut top, &mut d);
+        top.finish(&mut d);
+        assert!(!d.has_errors(), "{d}");
+        let def = Models::default();
+        assert!((m.condition.good_below - def.condition.good_below).abs() < 1e-4);
+        assert!((m.condition.poor_above - def.condition.poor_above).abs() < 1e-4);
+        m.condition.good_below = def.condition.good_below;
+        m.condition.poor_above = def.condition.poor_above;
+        assert_eq!(m, def);
+    }
+
+    #[test]
+    fn every_bad_value_is_named() {
+        let (_, d) = read_text(
+            r#"
+[traffic]
+load_exponent = 40
+flow_bands = [ { name = "a", hours = 8000, share = 0.5 }, { name = "b", hours = 760, share = 0.4 } ]
+lane_factor = [1.0, 0.9]
+[speed]
+free_kmh = { single = 90, dual = 100 }
+[condition]
+default_family = "concrete"
+[condition.family.asphalt]
+model = "aashto93"
+p0 = 0.3
+[user_costs]
+fuel_share = { car = 0.9 }
+repair_share = { car = 0.3 }
+"#,
+        );
+        let t = d.to_string();
+        for want in [
+            "traffic.load_exponent",
+            "shares that add up to 0.9",
+            "found 2 values",
+            "unknown key `speed.free_kmh.dual`",
+            "the family `concrete`, which is not defined",
+            "condition.family.asphalt.p0",
+            "add up to more than 1",
+        ] {
+            assert!(t.contains(want), "missing {want} in\n{t}");
+        }
+        assert!(d.errors().iter().all(|e| e.place.line.is_some()), "{t}");
+    }
 }

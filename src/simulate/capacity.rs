@@ -74,7 +74,7 @@ mod tests {
         // The general exponent path agrees with the fast one.
         let q = CapacityParams {
             bpr_beta: 4.000001,
-            ..p.clone()
+            ..p
         };
         assert_abs_diff_eq!(bpr_factor(0.8, &q), 1.06144, epsilon = 1e-5);
         // Capped past max_vc.

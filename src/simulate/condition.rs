@@ -155,12 +155,14 @@ impl Aashto93 {
         self.p.p0 - self.p.psr_min
     }
 
-    /// Traffic-related IRI after `w` ESALs.
+    /// Traffic-related IRI after `w` ESALs: the design equation solved for ΔPSI,
+    /// ΔPSI = 2.7·10^((log10 W − K)·D), written with natural logarithms (K·ln 10 is cached).
     fn load_iri(&self, c: &Condition, w: f64) -> f64 {
         if w <= 0.0 {
             return iri_from_psr(self.p.p0);
         }
-        let dpsi = (2.7 * 10f64.powf((w.log10() - c.k) * c.dd)).min(self.max_loss());
+        let dpsi =
+            (2.7 * ((w.ln() - c.k * std::f64::consts::LN_10) * c.dd).exp()).min(self.max_loss());
         iri_from_psr(self.p.p0 - dpsi)
     }
 

@@ -49,6 +49,49 @@ pub fn operating_factor(c: VehicleClass, iri: f64, p: &UserCostParams) -> f64 {
     1.0 + p.fuel_share.get(c) * fuel + p.repair_share.get(c) * repair
 }
 
+/// A section's operating cost per vehicle-km as a function of roughness, with the class mix and
+/// unit values folded in: the same relation as Σ share × unit cost × [`operating_factor`],
+/// rearranged into four coefficients so that the yearly loop does no per-class work.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct OperatingCurve {
+    smooth_iri: f64,
+    base: f64,
+    fuel: f64,
+    repair_3_4: f64,
+    repair_4_5: f64,
+}
+
+impl OperatingCurve {
+    /// `weight[c]` is class c's share of traffic × its smooth-road operating cost per km.
+    pub fn new(weight: [f64; 4], p: &UserCostParams) -> OperatingCurve {
+        let mut k = OperatingCurve {
+            smooth_iri: p.smooth_iri,
+            base: 0.0,
+            fuel: 0.0,
+            repair_3_4: 0.0,
+            repair_4_5: 0.0,
+        };
+        for c in VehicleClass::ALL {
+            let w = weight[c as usize];
+            let (a4, a5) = (p.repair_at_4.get(c), p.repair_at_5.get(c));
+            k.base += w;
+            k.fuel += w * p.fuel_share.get(c) * p.fuel_per_iri.get(c);
+            k.repair_3_4 += w * p.repair_share.get(c) * a4;
+            k.repair_4_5 += w * p.repair_share.get(c) * (a5 - a4);
+        }
+        k
+    }
+
+    /// Operating cost per vehicle-km at roughness `iri`.
+    #[inline]
+    pub fn per_vkm(&self, iri: f64) -> f64 {
+        self.base
+            + self.fuel * (iri - self.smooth_iri).max(0.0)
+            + self.repair_3_4 * (iri - 3.0).clamp(0.0, 1.0)
+            + self.repair_4_5 * (iri - 4.0).clamp(0.0, 1.0)
+    }
+}
+
 /// Residual value of works at the end of the analysis period: cost × remaining life ÷ life.
 ///
 /// Source: FHWA-SA-98-079, *Life-Cycle Cost Analysis in Pavement Design* (Walls & Smith, 1998):
@@ -70,6 +113,21 @@ mod tests {
     use super::*;
     use crate::economics::{Discounting, Timing};
     use approx::assert_abs_diff_eq;
+
+    #[test]
+    fn the_folded_curve_is_the_per_class_relation() {
+        let p = UserCostParams::default();
+        let weight = [0.6 * 0.19, 0.03 * 0.92, 0.15 * 0.34, 0.22 * 0.88];
+        let k = OperatingCurve::new(weight, &p);
+        for i in 0..160 {
+            let iri = f64::from(i) * 0.1;
+            let direct: f64 = VehicleClass::ALL
+                .iter()
+                .map(|c| weight[*c as usize] * operating_factor(*c, iri, &p))
+                .sum();
+            assert_abs_diff_eq!(k.per_vkm(iri), direct, epsilon = 1e-12);
+        }
+    }
 
     #[test]
     fn quantities_by_basis() {

@@ -23,7 +23,11 @@ pub mod condition;
 pub mod costs;
 pub mod traffic;
 
+#[cfg(test)]
+mod behaviour;
+
 use crate::enumerate::Strategy;
+use crate::input::models::{CapacityParams, SpeedParams};
 use crate::input::network::{Carriageway, Section};
 use crate::input::scenario::VehicleClass;
 use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
@@ -136,8 +140,8 @@ pub struct SectionSim {
     bands: Vec<(f64, f64)>,
     /// Travel-time cost per vehicle-km at free speed on a smooth road.
     time_per_vkm: f64,
-    /// Per class: share × smooth-road operating cost per vehicle-km.
-    voc_weight: [f64; 4],
+    /// Operating cost per vehicle-km against roughness.
+    operating: costs::OperatingCurve,
     crash_per_vkm: f64,
     /// Work-zone delay cost per vehicle-km of one day of works.
     delay_per_vkm: f64,
@@ -145,7 +149,10 @@ pub struct SectionSim {
     routine_per_lane_km_per_iri: f64,
     iri_floor: f64,
     treatments: Vec<Works>,
-    models: crate::input::models::Models,
+    capacity: CapacityParams,
+    speed: SpeedParams,
+    direction_factor: f64,
+    lane_factor: [f64; 4],
 }
 
 impl SectionSim {
@@ -236,14 +243,17 @@ impl SectionSim {
             esal_two_way: t.esal_two_way,
             bands,
             time_per_vkm: vot / v0,
-            voc_weight,
+            operating: costs::OperatingCurve::new(voc_weight, &m.user_costs),
             crash_per_vkm: base_rate * 1e-6 * uv.crash.to_f64(),
             delay_per_vkm: extra_h_per_km * vot,
             routine_per_lane_km: run.catalogue.routine.per_lane_km.to_f64(),
             routine_per_lane_km_per_iri: run.catalogue.routine.per_lane_km_per_iri.to_f64(),
             iri_floor: m.condition.iri_floor,
             treatments,
-            models: m.clone(),
+            capacity: m.capacity,
+            speed: m.speed,
+            direction_factor: m.traffic.direction_factor,
+            lane_factor: m.traffic.lane_factor,
         }
     }
 
@@ -256,13 +266,12 @@ impl SectionSim {
     pub fn run(&self, strategy: &Strategy, out: &mut Trace) {
         let n = self.years;
         out.reset(n);
-        let m = &self.models;
         let mut cond = self.start;
         let mut lanes = self.lanes;
         let mut cw = self.carriageway;
         let mut crash_factor = 1.0;
-        let mut cap = capacity::capacity_pc_h(lanes, cw, &m.capacity);
-        let mut lane_factor = traffic::design_lane_factor(lanes, &m.traffic);
+        let mut per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
+        let mut lane_factor = traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
         let mut last_works = self.last_works;
         let mut next = 0usize;
         let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
@@ -318,19 +327,15 @@ impl SectionSim {
                 iri,
                 lane_km,
             );
-            let growth = self.aadt[y] / aadt0;
+            let growth = self.aadt[y] / aadt0 * per_cap;
             let mut congestion = 0.0;
             for &(share, pc_h) in &self.bands {
-                congestion += share * capacity::bpr_factor(pc_h * growth / cap, &m.capacity);
+                congestion += share * capacity::bpr_factor(pc_h * growth, &self.capacity);
             }
             let vkm = self.vkm[y];
-            let speed = capacity::roughness_speed_factor(iri, &m.speed);
+            let speed = capacity::roughness_speed_factor(iri, &self.speed);
             out.time[y] = vkm * self.time_per_vkm * congestion / speed;
-            let mut voc = 0.0;
-            for c in VehicleClass::ALL {
-                voc += self.voc_weight[c as usize] * costs::operating_factor(c, iri, &m.user_costs);
-            }
-            out.operating[y] = vkm * voc;
+            out.operating[y] = vkm * self.operating.per_vkm(iri);
             out.crashes[y] = vkm * self.crash_per_vkm * crash_factor;
             out.delay[y] =
                 f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
@@ -367,8 +372,9 @@ impl SectionSim {
                         if let Some(after) = w.carriageway_after {
                             cw = after;
                         }
-                        cap = capacity::capacity_pc_h(lanes, cw, &m.capacity);
-                        lane_factor = traffic::design_lane_factor(lanes, &m.traffic);
+                        per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
+                        lane_factor =
+                            traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
                     }
                     crash_factor *= w.crash_factor;
                 }

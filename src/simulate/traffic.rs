@@ -42,8 +42,13 @@ pub fn lanes_per_direction(lanes: u8) -> u8 {
 /// The design-lane share of the heavier direction's traffic, from the AASHTO 1993 lane
 /// distribution factor by lanes per direction (scenario values).
 pub fn design_lane_factor(lanes: u8, p: &TrafficParams) -> f64 {
+    lane_share(lanes, p.direction_factor, &p.lane_factor)
+}
+
+/// [`design_lane_factor`] from its two coefficients.
+pub fn lane_share(lanes: u8, direction_factor: f64, lane_factor: &[f64; 4]) -> f64 {
     let per_dir = usize::from(lanes_per_direction(lanes)).min(4);
-    p.direction_factor * p.lane_factor[per_dir - 1]
+    direction_factor * lane_factor[per_dir - 1]
 }
 
 /// A section's traffic, year by year from the base year.

@@ -1,0 +1,201 @@
+//! Behaviour a practitioner knows (common practice), checked on the whole simulation and
+//! appraisal rather than on one model at a time.
+
+use crate::appraise;
+use crate::enumerate::{Enumerator, Strategy, Works};
+use crate::input::network::Section;
+use crate::input::Run;
+use crate::simulate::{SectionSim, Trace};
+use proptest::prelude::*;
+use std::path::Path;
+
+fn demo() -> Run {
+    let (run, d) = crate::input::load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO));
+    assert!(!d.has_errors(), "{d}");
+    run.unwrap()
+}
+
+fn section(run: &Run, id: &str) -> Section {
+    run.network
+        .sections
+        .iter()
+        .find(|s| s.id.0 == id)
+        .unwrap()
+        .clone()
+}
+
+fn trace(run: &Run, sec: &Section, st: &Strategy) -> Trace {
+    let mut t = Trace::default();
+    SectionSim::new(run, sec).run(st, &mut t);
+    t
+}
+
+fn one_works(run: &Run, treatment: &str, year: u32) -> Strategy {
+    Strategy {
+        name: format!("{treatment}@{year}"),
+        template: Some(0),
+        works: vec![Works {
+            year,
+            treatment: run
+                .catalogue
+                .treatments
+                .iter()
+                .position(|t| t.id == treatment)
+                .unwrap(),
+        }],
+        trigger: None,
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(200))]
+
+    /// Without works, roughness never falls, whatever the section (common practice).
+    #[test]
+    fn base_roughness_never_falls(
+        iri in 0.5f64..14.0,
+        sn in 1.0f64..7.0,
+        aadt in 50.0f64..60_000.0,
+        heavy in 0.0f64..0.5,
+        growth in -0.02f64..0.08,
+        mr in 20.0f64..200.0,
+        calibrated in any::<bool>(),
+    ) {
+        let run = demo();
+        let mut sec = section(&run, "OR-02");
+        sec.iri = iri;
+        sec.structural_number = sn;
+        sec.aadt = aadt;
+        sec.heavy_share = heavy;
+        sec.growth_rate = growth;
+        sec.subgrade_mr_mpa = Some(mr);
+        sec.surface = Some(if calibrated { "surface_treatment" } else { "asphalt" }.into());
+        let t = trace(&run, &sec, &Strategy::base());
+        for w in t.iri.windows(2) {
+            prop_assert!(w[1] >= w[0], "{:?}", t.iri);
+        }
+        prop_assert!(t.iri.iter().all(|x| x.is_finite()));
+        prop_assert!(t.capital.iter().all(|x| x.abs() <= 0.0));
+    }
+}
+
+#[test]
+fn an_overlay_lowers_roughness_and_raises_structural_number() {
+    let run = demo();
+    for id in ["OR-04", "ML-02", "VA-01"] {
+        let sec = section(&run, id);
+        let base = trace(&run, &sec, &Strategy::base());
+        let ov = trace(&run, &sec, &one_works(&run, "overlay", 3));
+        // Works in year 3 take effect from year 4.
+        assert!(ov.iri[4] < ov.iri[3], "{id}: {:?}", &ov.iri[..6]);
+        assert!(ov.iri[4] < base.iri[4]);
+        assert!(ov.sn[4] > ov.sn[3]);
+        assert!(ov.capital[3] > 0.0);
+        // Identical to the base before the works, bit for bit.
+        assert_eq!(&ov.iri[..4], &base.iri[..4]);
+        assert_eq!(&ov.routine[..3], &base.routine[..3]);
+        // A rougher road afterwards costs its users more than the smoother one.
+        assert!(ov.operating[4] < base.operating[4]);
+    }
+}
+
+#[test]
+fn user_costs_rise_with_roughness_and_with_congestion() {
+    let run = demo();
+    let sec = section(&run, "CP-04");
+    let per_vkm = |s: &Section| {
+        let t = trace(&run, s, &Strategy::base());
+        let vkm = s.aadt * 365.0 * s.length_km;
+        (
+            t.operating[0] / vkm,
+            t.time[0] / vkm,
+            (t.operating[0] + t.time[0] + t.crashes[0]) / vkm,
+        )
+    };
+    let mut rough = sec.clone();
+    rough.iri = sec.iri + 3.0;
+    let (o1, t1, u1) = per_vkm(&sec);
+    let (o2, t2, u2) = per_vkm(&rough);
+    assert!(o2 > o1 && t2 > t1 && u2 > u1);
+    // More traffic on the same road: a higher v/c, so more time per vehicle-km.
+    let mut busy = sec.clone();
+    busy.aadt = sec.aadt * 1.6;
+    let (_, t3, _) = per_vkm(&busy);
+    assert!(t3 > t1);
+}
+
+#[test]
+fn the_base_strategy_against_itself_is_exactly_zero() {
+    let run = demo();
+    let picked: Vec<&Section> = run.network.sections.iter().take(6).collect();
+    for r in appraise::network(&run, &picked, false) {
+        let b = r.get("base").unwrap();
+        assert!(
+            b.indicators.npv.abs() <= 0.0,
+            "{}: {}",
+            r.section,
+            b.indicators.npv
+        );
+        assert!(b.indicators.pv_benefits.abs() <= 0.0 && b.indicators.pv_costs.abs() <= 0.0);
+        assert_eq!(b.indicators.irr, crate::economics::Irr::None);
+        // The preferred strategy has the highest NPV, and is the base only when nothing beats it.
+        let max = r
+            .strategies
+            .iter()
+            .map(|s| s.indicators.npv)
+            .fold(f64::MIN, f64::max);
+        let best = r.get(&r.best).unwrap();
+        assert!(
+            (best.indicators.npv - max).abs() <= 1e-6 * max.abs().max(1.0),
+            "{}",
+            r.section
+        );
+    }
+}
+
+fn widening(run: &Run, sec: &Section) -> appraise::WideningTiming {
+    let s = &run.scenario;
+    let e = Enumerator::new(
+        &run.templates,
+        &run.catalogue,
+        s.base_year,
+        s.analysis_years,
+    );
+    appraise::section(run, &e, sec, false)
+        .widening
+        .expect("widening strategies")
+}
+
+#[test]
+fn faster_growth_brings_widening_earlier() {
+    let run = demo();
+    let mut slow = section(&run, "CP-01");
+    slow.growth_rate = 0.02;
+    let mut fast = slow.clone();
+    fast.growth_rate = 0.05;
+    let (ws, wf) = (widening(&run, &slow), widening(&run, &fast));
+    let (Some(fs), Some(ff)) = (ws.by_fyrr, wf.by_fyrr) else {
+        panic!("both reach the rate: {ws:?} {wf:?}");
+    };
+    assert!(ff < fs, "FYRR rule: fast {ff}, slow {fs}");
+    assert!(wf.by_npv.unwrap() <= ws.by_npv.unwrap(), "{wf:?}\n{ws:?}");
+}
+
+#[test]
+fn a_higher_discount_rate_delays_widening_or_removes_it() {
+    let mut low = demo();
+    let sec = section(&low, "FW-01");
+    let mut high = low.clone();
+    low.scenario.discounting = low.scenario.discounting.with_rate(0.04).unwrap();
+    high.scenario.discounting = high.scenario.discounting.with_rate(0.12).unwrap();
+    let (wl, wh) = (widening(&low, &sec), widening(&high, &sec));
+    let later = |a: Option<i32>, b: Option<i32>| match (a, b) {
+        (Some(l), Some(h)) => h >= l,
+        (_, None) => true,
+        (None, Some(_)) => false,
+    };
+    assert!(wl.by_fyrr.is_some());
+    assert!(later(wl.by_fyrr, wh.by_fyrr), "{wl:?}\n{wh:?}");
+    assert!(later(wl.by_npv, wh.by_npv), "{wl:?}\n{wh:?}");
+    assert!(wh.by_fyrr != wl.by_fyrr || wh.by_fyrr.is_none());
+}
