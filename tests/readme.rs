@@ -115,3 +115,22 @@ fn file_format_examples_parse() {
     );
     assert!(t.is_some_and(|t| t.len() == 2) && !d.has_errors(), "{d}");
 }
+
+#[test]
+fn appraise_examples_run() {
+    let wd = Workdir::new();
+    let mut ran = 0;
+    for line in block_after("### `appraise`").lines() {
+        let cmd = line.split('#').next().unwrap().trim();
+        let Some(rest) = cmd.strip_prefix("pavestrat ") else {
+            continue;
+        };
+        let mut args: Vec<&str> = rest.split_whitespace().collect();
+        args.push("--quiet");
+        wd.run(&args).expect_code(0);
+        ran += 1;
+    }
+    assert_eq!(ran, 5);
+    assert!(wd.join("results/yearly.csv").exists());
+    assert_eq!(wd.read("big/network.csv").lines().count(), 10_001);
+}

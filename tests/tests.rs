@@ -1,6 +1,7 @@
 //! The integration tests: one binary, a module per command. Each test runs the real executable in
 //! a temporary directory; on failure it prints the command, its stdout and stderr.
 
+mod appraise;
 mod cashflow;
 mod check;
 mod readme;

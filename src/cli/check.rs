@@ -81,10 +81,18 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         run.catalogue.treatments.len(),
         run.catalogue.file
     ));
+    let e = crate::enumerate::Enumerator::new(
+        &run.templates,
+        &run.catalogue,
+        s.base_year,
+        s.analysis_years,
+    );
+    let strategies: usize = net.sections.iter().map(|x| e.strategies(x).len()).sum();
     out.push_str(&format!(
-        "  templates   {}, at most {} strategies per section before feasibility rules (base included)\n",
+        "  templates   {}, at most {} strategies per section before feasibility rules (base included); {} strategies in all after them\n",
         run.templates.len(),
-        per_section
+        per_section,
+        strategies
     ));
     if s.budget_lines.is_empty() {
         out.push_str("  budgets     none (selection will be unconstrained)\n");

@@ -364,7 +364,6 @@ impl Default for UserCostParams {
     }
 }
 
-
 /// Set `*slot` from an optional number key within `lo..=hi`.
 fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, lo: f64, hi: f64, slot: &mut f64) {
     if let Some((_, Some(x))) = t.number_at(key, d, lo, hi, &format!("a number from {lo} to {hi}"))

@@ -1,0 +1,245 @@
+//! `pavestrat appraise` and `pavestrat init`: the main job on the demo and on a user's own
+//! scenario, its output files, and bad input (exit 2, the place named, nothing written).
+
+use crate::util::Workdir;
+
+/// Rows of a CSV text as maps from column name to field (fields hold no commas here).
+fn rows(text: &str) -> Vec<std::collections::HashMap<String, String>> {
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    lines
+        .map(|l| {
+            head.iter()
+                .zip(l.split(','))
+                .map(|(h, v)| ((*h).to_owned(), v.to_owned()))
+                .collect()
+        })
+        .collect()
+}
+
+#[test]
+fn appraises_the_built_in_demo() {
+    let wd = Workdir::new();
+    let out = wd.run(&["appraise", "--out", "res"]);
+    out.expect_code(0)
+        .stderr_has("using the built-in demo")
+        .stdout_has("Planning-level estimates only")
+        .stdout_has("Widening timing");
+    let text = wd.read("res/appraisal.csv");
+    let head = text.lines().next().unwrap();
+    for col in [
+        "section_id",
+        "strategy",
+        "pv_agency_cost",
+        "pv_user_cost",
+        "npv",
+        "bcr",
+        "irr",
+        "irr_status",
+        "fyrr",
+    ] {
+        assert!(head.split(',').any(|h| h == col), "missing {col} in {head}");
+    }
+    let rows = rows(&text);
+    let sections: std::collections::BTreeSet<&str> =
+        rows.iter().map(|r| r["section_id"].as_str()).collect();
+    assert_eq!(sections.len(), 40);
+    for s in &sections {
+        let of: Vec<_> = rows.iter().filter(|r| r["section_id"] == *s).collect();
+        // The base is there once, with NPV zero against itself; one strategy is preferred.
+        let base: Vec<_> = of.iter().filter(|r| r["strategy"] == "base").collect();
+        assert_eq!(base.len(), 1, "{s}");
+        assert_eq!(base[0]["npv"], "0.00");
+        assert_eq!(
+            of.iter().filter(|r| r["preferred"] == "true").count(),
+            1,
+            "{s}"
+        );
+        // Names are unique within a section.
+        let mut names: Vec<&str> = of.iter().map(|r| r["strategy"].as_str()).collect();
+        names.sort_unstable();
+        names.dedup();
+        assert_eq!(names.len(), of.len());
+    }
+    // Strategy names follow tag@year and tag@iriX.
+    assert!(
+        rows.iter()
+            .any(|r| r["strategy"].starts_with("strengthen@20")
+                && r["strategy"].contains("+widen@20"))
+    );
+    assert!(rows.iter().any(|r| r["strategy"].starts_with("reseal@iri")));
+    let widening = rows_of(&wd, "res/widening.csv");
+    assert!(!widening.is_empty());
+    assert!(wd.read("res/incremental.csv").lines().count() > 40);
+    assert!(!wd.join("res/yearly.csv").exists());
+}
+
+fn rows_of(wd: &Workdir, name: &str) -> Vec<std::collections::HashMap<String, String>> {
+    rows(&wd.read(name))
+}
+
+#[test]
+fn picked_sections_get_their_yearly_trace() {
+    let wd = Workdir::new();
+    wd.run(&[
+        "appraise",
+        "--section",
+        "OR-01",
+        "ML-02",
+        "--out",
+        "res",
+        "--quiet",
+    ])
+    .expect_code(0);
+    let yearly = rows_of(&wd, "res/yearly.csv");
+    let base: Vec<f64> = yearly
+        .iter()
+        .filter(|r| r["section_id"] == "ML-02" && r["strategy"] == "base" && !r["iri"].is_empty())
+        .map(|r| r["iri"].parse().unwrap())
+        .collect();
+    assert_eq!(base.len(), 30);
+    assert!(base.windows(2).all(|w| w[1] >= w[0]), "{base:?}");
+    let sections: std::collections::BTreeSet<String> = rows_of(&wd, "res/appraisal.csv")
+        .into_iter()
+        .map(|r| r["section_id"].clone())
+        .collect();
+    assert_eq!(sections.into_iter().collect::<Vec<_>>(), ["ML-02", "OR-01"]);
+}
+
+#[test]
+fn an_unknown_section_is_named_with_a_suggestion() {
+    let wd = Workdir::new();
+    wd.run(&["appraise", "--section", "OR-1", "--out", "res"])
+        .expect_code(2)
+        .stderr_has("no section `OR-1`")
+        .stderr_has("did you mean `OR-01`?");
+    assert!(wd.listing().is_empty());
+}
+
+#[test]
+fn bad_model_input_is_located_and_nothing_is_written() {
+    let wd = Workdir::new();
+    wd.run(&["init", "mine", "--quiet"]).expect_code(0);
+    let good = wd.read("mine/scenario.toml");
+    wd.write(
+        "mine/scenario.toml",
+        good.replace(
+            "{ name = \"night\", hours = 3360, share = 0.20 }",
+            "{ name = \"night\", hours = 3360, share = 0.25 }",
+        ),
+    );
+    wd.run(&[
+        "appraise",
+        "--scenario",
+        "mine/scenario.toml",
+        "--out",
+        "res",
+    ])
+    .expect_code(2)
+    .stderr_has("scenario.toml:")
+    .stderr_has("traffic.flow_bands")
+    .stderr_has("shares that add up to 1.05");
+    assert!(!wd.join("res").exists());
+
+    // A surface with no pavement family.
+    wd.write("mine/scenario.toml", good);
+    let net = wd
+        .read("mine/network.csv")
+        .replacen(",asphalt,", ",ashpalt,", 1);
+    wd.write("mine/network.csv", net);
+    wd.run(&[
+        "appraise",
+        "--scenario",
+        "mine/scenario.toml",
+        "--out",
+        "res",
+    ])
+    .expect_code(2)
+    .stderr_has("network.csv:2")
+    .stderr_has("surface")
+    .stderr_has("did you mean `asphalt`?");
+    assert!(!wd.join("res").exists());
+}
+
+#[test]
+fn init_writes_an_editable_scenario_and_never_overwrites() {
+    let wd = Workdir::new();
+    wd.run(&["init", "mine"]).expect_code(0).stderr_has("wrote");
+    let mut names: Vec<String> = std::fs::read_dir(wd.join("mine"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    assert_eq!(
+        names,
+        [
+            "network.csv",
+            "scenario.toml",
+            "templates.toml",
+            "treatments.toml"
+        ]
+    );
+    wd.run(&["check", "--scenario", "mine/scenario.toml"])
+        .expect_code(0);
+    wd.run(&[
+        "appraise",
+        "--scenario",
+        "mine/scenario.toml",
+        "--quiet",
+        "--out",
+        "a",
+    ])
+    .expect_code(0);
+    // The same numbers as the built-in demo.
+    wd.run(&["appraise", "--quiet", "--out", "b"])
+        .expect_code(0);
+    assert_eq!(wd.read("a/appraisal.csv"), wd.read("b/appraisal.csv"));
+    // A second init refuses, and leaves the user's edits alone.
+    wd.write("mine/network.csv", "edited");
+    wd.run(&["init", "mine"])
+        .expect_code(2)
+        .stderr_has("already exist")
+        .stderr_has("--force");
+    assert_eq!(wd.read("mine/network.csv"), "edited");
+    wd.run(&["init", "mine", "--force", "--quiet"])
+        .expect_code(0);
+    assert_ne!(wd.read("mine/network.csv"), "edited");
+}
+
+#[test]
+fn init_draws_synthetic_networks_reproducibly() {
+    let wd = Workdir::new();
+    wd.run(&["init", "a", "--sections", "120", "--seed", "9", "--quiet"])
+        .expect_code(0);
+    wd.run(&["init", "b", "--sections", "120", "--seed", "9", "--quiet"])
+        .expect_code(0);
+    wd.run(&["init", "c", "--sections", "120", "--seed", "10", "--quiet"])
+        .expect_code(0);
+    assert_eq!(wd.read("a/network.csv"), wd.read("b/network.csv"));
+    assert_ne!(wd.read("a/network.csv"), wd.read("c/network.csv"));
+    assert_eq!(wd.read("a/network.csv").lines().count(), 121);
+    // Budgets are scaled to the network's size (120 sections: three times the demo's 40).
+    assert!(wd
+        .read("a/scenario.toml")
+        .contains("per_year = \"19500000\""));
+    wd.run(&[
+        "appraise",
+        "--scenario",
+        "a/scenario.toml",
+        "--quiet",
+        "--out",
+        "res",
+    ])
+    .expect_code(0);
+    assert_eq!(
+        rows_of(&wd, "res/appraisal.csv")
+            .iter()
+            .filter(|r| r["strategy"] == "base")
+            .count(),
+        120
+    );
+    wd.run(&["init", "d", "--seed", "3"])
+        .expect_code(2)
+        .stderr_has("--sections");
+    wd.run(&["init", "d", "--sections", "0"]).expect_code(2);
+}
