@@ -207,7 +207,8 @@ impl<'a> Enumerator<'a> {
         let mut y = lo;
         while y <= hi && y < self.period {
             let gap_ok = match so_far.last() {
-                Some(prev) => y == prev.year || y - prev.year >= gap,
+                // Steps are in time order: a window before the previous step's year is skipped.
+                Some(prev) => y == prev.year || (y > prev.year && y - prev.year >= gap),
                 None => section.last_works_year.is_none_or(|lw| {
                     i64::from(self.base_year) + i64::from(y) - i64::from(lw) >= i64::from(gap)
                 }),
@@ -327,6 +328,29 @@ trigger = { treatment = "reseal", iri = [3.0, 4.0] }
             .strategies(divided)
             .iter()
             .all(|s| s.widening_year(&run.catalogue).is_none()));
+    }
+
+    #[test]
+    fn steps_out_of_time_order_give_nothing() {
+        let mut d = Diagnostics::new();
+        let templates = crate::input::templates::parse(
+            "t.toml",
+            r#"
+[template.backwards]
+steps = [
+  { treatment = "overlay", window = [5, 6] },
+  { treatment = "reseal", window = [0, 5] },
+]
+"#,
+            &mut d,
+        )
+        .unwrap();
+        let run = demo();
+        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
+        let mut sec = run.network.sections[0].clone();
+        sec.last_works_year = None;
+        let names: Vec<String> = e.strategies(&sec).into_iter().map(|s| s.name).collect();
+        assert_eq!(names, ["base", "overlay@2032+reseal@2032"]);
     }
 
     #[test]

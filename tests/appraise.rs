@@ -243,3 +243,28 @@ fn init_draws_synthetic_networks_reproducibly() {
         .stderr_has("--sections");
     wd.run(&["init", "d", "--sections", "0"]).expect_code(2);
 }
+
+#[test]
+fn templates_that_cannot_be_expanded_sensibly_are_refused() {
+    let wd = Workdir::new();
+    wd.run(&["init", "mine", "--quiet"]).expect_code(0);
+    let extra = r#"
+[template.everything]
+steps = [
+  { treatment = "overlay", tag = "strengthen", window = [0, 29] },
+  { treatment = "reseal", after = [0, 29] },
+  { treatment = "mill-inlay", tag = "inlay", after = [0, 29] },
+]
+
+[template.clash]
+steps = [ { treatment = "thick-overlay", tag = "strengthen", window = [0, 3] } ]
+"#;
+    let t = wd.read("mine/templates.toml") + extra;
+    wd.write("mine/templates.toml", t);
+    wd.run(&["check", "--scenario", "mine/scenario.toml"])
+        .expect_code(2)
+        .stderr_has("templates.toml:")
+        .stderr_has("`everything` expands into up to 27000 strategies per section")
+        .stderr_has("every = 2")
+        .stderr_has("the tag `strengthen` on the treatment `overlay`; it names `thick-overlay`");
+}

@@ -162,6 +162,7 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
     }
     let scenario = scenario?;
     check_template_years(&templates, &scenario, d);
+    check_template_sizes(&templates, d);
     if let Some(net) = &network {
         check_network_against_scenario(net, &scenario, d);
     }
@@ -268,6 +269,33 @@ fn check_template_years(templates: &[Template], s: &Scenario, d: &mut Diagnostic
                     );
                 }
             }
+        }
+    }
+}
+
+/// Most steps a template may have (the works of one year are held in a fixed-size buffer).
+pub const MAX_STEPS: usize = 8;
+/// Most strategies one template may yield for one section.
+pub const MAX_STRATEGIES_PER_TEMPLATE: u64 = 10_000;
+
+fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
+    for t in templates {
+        if t.steps.len() > MAX_STEPS {
+            d.error(
+                t.place.clone(),
+                format!("{} steps in `{}`", t.steps.len(), t.name),
+                format!("at most {MAX_STEPS} steps in one template"),
+            );
+        }
+        let n = t.max_strategies();
+        if n > MAX_STRATEGIES_PER_TEMPLATE {
+            d.error(
+                t.place.clone(),
+                format!("`{}` expands into up to {n} strategies per section", t.name),
+                format!("at most {MAX_STRATEGIES_PER_TEMPLATE} per template"),
+            )
+            .hint =
+                Some("narrow the windows, or step through them with `every = 2` or more".into());
         }
     }
 }
