@@ -3,8 +3,10 @@
 //! against the base case, and choosing the best strategy per section within yearly budgets.
 //!
 //! The library follows the data one way: [`input`] reads and validates every file into one
-//! resolved [`input::Run`]; [`economics`] appraises money streams; [`select`] chooses under
-//! budgets; [`cli`] holds one module per subcommand. The binary only calls [`cli::main`].
+//! resolved [`input::Run`]; [`enumerate`] expands the strategy templates per section;
+//! [`simulate`] plays each strategy year by year; [`appraise`] weighs each against the base with
+//! the arithmetic of [`economics`]; [`select`] chooses under budgets; [`cli`] holds one module per
+//! subcommand. The binary only calls [`cli::main`].
 //!
 //! All results are planning-level estimates: see [`CAUTION`].
 
