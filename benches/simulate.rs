@@ -31,12 +31,7 @@ fn main() {
     run.network = network::parse("synthetic", &network_csv(sections, 20261202), &mut d)
         .unwrap_or_else(|| panic!("the synthetic network parses: {d}"));
     let s = &run.scenario;
-    let e = Enumerator::new(
-        &run.templates,
-        &run.catalogue,
-        s.base_year,
-        s.analysis_years,
-    );
+    let e = Enumerator::for_run(&run);
     let strategies: Vec<Vec<Strategy>> = run
         .network
         .sections

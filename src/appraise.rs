@@ -231,13 +231,7 @@ fn widening_timing(
 
 /// Appraise `sections` of the run in parallel (one task per section); results in input order.
 pub fn network(run: &Run, sections: &[&Section], keep_traces: bool) -> Vec<SectionResult> {
-    let s = &run.scenario;
-    let e = Enumerator::new(
-        &run.templates,
-        &run.catalogue,
-        s.base_year,
-        s.analysis_years,
-    );
+    let e = Enumerator::for_run(run);
     sections
         .par_iter()
         .map(|sec| section(run, &e, sec, keep_traces))

@@ -144,6 +144,17 @@ impl<'a> Enumerator<'a> {
         }
     }
 
+    /// The enumerator of a loaded run: its templates, catalogue and analysis period.
+    pub fn for_run(run: &'a crate::input::Run) -> Enumerator<'a> {
+        let s = &run.scenario;
+        Enumerator::new(
+            &run.templates,
+            &run.catalogue,
+            s.base_year,
+            s.analysis_years,
+        )
+    }
+
     /// Every strategy of `section`, the base first, then templates in order; names unique.
     pub fn strategies(&self, section: &Section) -> Vec<Strategy> {
         let mut out = vec![Strategy::base()];
@@ -277,11 +288,21 @@ mod tests {
         run.unwrap()
     }
 
+    /// The strategy names the templates in `text` give the demo's first section (with no last
+    /// works year), base year 2027, 30 years.
+    fn names_for(text: &str) -> Vec<String> {
+        let mut d = Diagnostics::new();
+        let templates = crate::input::templates::parse("t.toml", text, &mut d).unwrap();
+        let run = demo();
+        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
+        let mut sec = run.network.sections[0].clone();
+        sec.last_works_year = None;
+        e.strategies(&sec).into_iter().map(|s| s.name).collect()
+    }
+
     #[test]
     fn expands_windows_offsets_gaps_and_triggers() {
-        let mut d = Diagnostics::new();
-        let templates = crate::input::templates::parse(
-            "t.toml",
+        let names = names_for(
             r#"
 [template.sw]
 only_if = { carriageway = "single" }
@@ -293,14 +314,7 @@ steps = [
 [template.rs]
 trigger = { treatment = "reseal", iri = [3.0, 4.0] }
 "#,
-            &mut d,
-        )
-        .unwrap();
-        let run = demo();
-        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
-        let mut sec = run.network.sections[0].clone();
-        sec.last_works_year = None;
-        let names: Vec<String> = e.strategies(&sec).into_iter().map(|s| s.name).collect();
+        );
         // Templates come in name order (`rs` before `sw`): the two thresholds; then offsets 0
         // (same year), 2 (under the 3-year gap: dropped) and 4, for each of 3 years.
         assert_eq!(
@@ -318,6 +332,8 @@ trigger = { treatment = "reseal", iri = [3.0, 4.0] }
             ]
         );
         // A divided road gets no widening, by the template's rule or the trade's.
+        let run = demo();
+        let e = Enumerator::for_run(&run);
         let divided = run
             .network
             .sections
@@ -332,9 +348,7 @@ trigger = { treatment = "reseal", iri = [3.0, 4.0] }
 
     #[test]
     fn steps_out_of_time_order_give_nothing() {
-        let mut d = Diagnostics::new();
-        let templates = crate::input::templates::parse(
-            "t.toml",
+        let names = names_for(
             r#"
 [template.backwards]
 steps = [
@@ -342,21 +356,14 @@ steps = [
   { treatment = "reseal", window = [0, 5] },
 ]
 "#,
-            &mut d,
-        )
-        .unwrap();
-        let run = demo();
-        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
-        let mut sec = run.network.sections[0].clone();
-        sec.last_works_year = None;
-        let names: Vec<String> = e.strategies(&sec).into_iter().map(|s| s.name).collect();
+        );
         assert_eq!(names, ["base", "overlay@2032+reseal@2032"]);
     }
 
     #[test]
     fn the_last_works_year_counts_for_the_gap() {
         let run = demo();
-        let e = Enumerator::new(&run.templates, &run.catalogue, 2027, 30);
+        let e = Enumerator::for_run(&run);
         let mut sec = run.network.sections[0].clone();
         sec.last_works_year = Some(2026);
         let tpl = run
@@ -382,12 +389,7 @@ steps = [
     #[test]
     fn demo_sections_get_base_first_and_unique_names() {
         let run = demo();
-        let e = Enumerator::new(
-            &run.templates,
-            &run.catalogue,
-            run.scenario.base_year,
-            run.scenario.analysis_years,
-        );
+        let e = Enumerator::for_run(&run);
         for s in &run.network.sections {
             let st = e.strategies(s);
             assert_eq!(st[0].name, BASE);

@@ -42,7 +42,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     };
     ctx.notes(&diags);
     let picked = pick_sections(&run, &args.section)?;
-    let keep = !args.section.is_empty();
+    let keep = !args.section.is_empty() && args.out.out.is_some();
     let results = appraise::network(&run, &picked, keep);
 
     if let Some(dir) = &args.out.out {

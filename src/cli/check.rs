@@ -81,12 +81,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         run.catalogue.treatments.len(),
         run.catalogue.file
     ));
-    let e = crate::enumerate::Enumerator::new(
-        &run.templates,
-        &run.catalogue,
-        s.base_year,
-        s.analysis_years,
-    );
+    let e = crate::enumerate::Enumerator::for_run(&run);
     let strategies: usize = net.sections.iter().map(|x| e.strategies(x).len()).sum();
     out.push_str(&format!(
         "  templates   {}, at most {} strategies per section before feasibility rules (base included); {} strategies in all after them\n",

@@ -154,13 +154,7 @@ fn the_base_strategy_against_itself_is_exactly_zero() {
 }
 
 fn widening(run: &Run, sec: &Section) -> appraise::WideningTiming {
-    let s = &run.scenario;
-    let e = Enumerator::new(
-        &run.templates,
-        &run.catalogue,
-        s.base_year,
-        s.analysis_years,
-    );
+    let e = Enumerator::for_run(run);
     appraise::section(run, &e, sec, false)
         .widening
         .expect("widening strategies")
