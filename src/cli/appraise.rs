@@ -238,9 +238,13 @@ fn summary(run: &Run, results: &[SectionResult]) -> String {
         sc.discounting.timing(),
         if money.is_empty() { " the scenario's units".to_owned() } else { money.clone() },
     );
+    s.push_str(
+        "Each section's preferred strategy, chosen by incremental analysis (the highest NPV against\n\
+         the base), out of its `opts` strategies (base included); NPV, BCR, IRR and FYRR against the base.\n\n",
+    );
     s.push_str(&format!(
         "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}\n",
-        "section", "strat", "preferred (incremental analysis)", "NPV", "BCR", "IRR", "FYRR"
+        "section", "opts", "preferred strategy", "NPV", "BCR", "IRR", "FYRR"
     ));
     const SHOWN: usize = 60;
     let mut total = 0.0;

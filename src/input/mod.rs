@@ -123,6 +123,7 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
     // Even when the scenario has errors, the files it names are read and checked too.
     let files = partial.files?;
     let scenario = partial.scenario;
+    let families = partial.families;
 
     let read = |f: &FileRef, d: &mut Diagnostics| read_text(source, &f.path, Some(&f.place), d);
 
@@ -160,9 +161,12 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
         let label = source.label(&files.treatments.path);
         check_template_treatments(&templates, &label, &treatment_names, catalogue.as_ref(), d);
     }
+    check_template_sizes(&templates, d);
+    if let (Some(net), Some(families)) = (&network, &families) {
+        check_surfaces(net, families, d);
+    }
     let scenario = scenario?;
     check_template_years(&templates, &scenario, d);
-    check_template_sizes(&templates, d);
     if let Some(net) = &network {
         check_network_against_scenario(net, &scenario, d);
     }
@@ -300,6 +304,30 @@ fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
     }
 }
 
+/// Every section's surface must name a pavement family of the scenario.
+fn check_surfaces(net: &Network, families: &[String], d: &mut Diagnostics) {
+    let families: Vec<&str> = families.iter().map(String::as_str).collect();
+    for sec in &net.sections {
+        let Some(surface) = &sec.surface else {
+            continue;
+        };
+        if families.contains(&surface.as_str()) {
+            continue;
+        }
+        let e = d.error(
+            Place::line(net.file.clone(), sec.line).with_field("surface"),
+            format!("the surface `{surface}`, which has no pavement family"),
+            format!(
+                "one of the scenario's [condition.family.NAME] tables: {}",
+                families.join(", ")
+            ),
+        );
+        if let Some(m) = did_you_mean(surface, &families) {
+            e.hint = Some(format!("did you mean `{m}`?"));
+        }
+    }
+}
+
 fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnostics) {
     let regions = net.regions();
     let mut reported: Vec<&str> = Vec::new();
@@ -322,29 +350,7 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
             }
         }
     }
-    let families: Vec<&str> = s
-        .models
-        .condition
-        .families
-        .iter()
-        .map(|f| f.name.as_str())
-        .collect();
     for sec in &net.sections {
-        if let Some(surface) = &sec.surface {
-            if !families.contains(&surface.as_str()) {
-                let e = d.error(
-                    Place::line(net.file.clone(), sec.line).with_field("surface"),
-                    format!("the surface `{surface}`, which has no pavement family"),
-                    format!(
-                        "one of the scenario's [condition.family.NAME] tables: {}",
-                        families.join(", ")
-                    ),
-                );
-                if let Some(m) = did_you_mean(surface, &families) {
-                    e.hint = Some(format!("did you mean `{m}`?"));
-                }
-            }
-        }
         if let Some(y) = sec.last_works_year {
             if y > s.base_year {
                 d.error(

@@ -412,8 +412,10 @@ fn sub<'a, 'i>(top: &mut Table<'a, 'i>, key: &str, d: &mut Diagnostics) -> Optio
 }
 
 /// Read the model tables of a scenario's top level (`traffic`, `capacity`, `speed`,
-/// `condition`, `user_costs`), starting from the defaults.
-pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> Models {
+/// `condition`, `user_costs`), starting from the defaults. The flag says whether the
+/// `condition` table was free of errors (its pavement families can then be trusted even if
+/// other tables were wrong).
+pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> (Models, bool) {
     let mut m = Models::default();
     if let Some(t) = sub(top, "traffic", d) {
         read_traffic(t, d, &mut m.traffic);
@@ -473,9 +475,11 @@ pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> Models {
         num(&mut t, "work_zone_kmh", d, 1.0, 200.0, &mut s.work_zone_kmh);
         t.finish(d);
     }
+    let before = d.error_count();
     if let Some(t) = sub(top, "condition", d) {
         read_condition(t, d, &mut m.condition);
     }
+    let condition_ok = d.error_count() == before;
     if let Some(mut t) = sub(top, "user_costs", d) {
         let u = &mut m.user_costs;
         num(&mut t, "smooth_iri", d, 0.0, 10.0, &mut u.smooth_iri);
@@ -516,7 +520,7 @@ pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> Models {
             }
         }
     }
-    m
+    (m, condition_ok)
 }
 
 fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams) {
@@ -792,7 +796,7 @@ mod tests {
         let mut d = Diagnostics::new();
         let doc = Doc::parse("s.toml", text, &mut d);
         let mut top = doc.table();
-        let m = read(&mut top, &mut d);
+        let (m, _) = read(&mut top, &mut d);
         (m, d)
     }
 
@@ -822,7 +826,7 @@ mod tests {
         for k in ["scenario", "files", "unit_values", "budget"] {
             top.get(k);
         }
-        let mut m = read(&mut top, &mut d);
+        let (mut m, _) = read(&mut top, &mut d);
         top.finish(&mut d);
         assert!(!d.has_errors(), "{d}");
         let def = Models::default();

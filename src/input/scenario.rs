@@ -181,6 +181,9 @@ const YEARS: (i64, i64) = (1950, 2200);
 pub struct Partial {
     pub scenario: Option<Scenario>,
     pub files: Option<ScenarioFiles>,
+    /// The pavement families, when the model tables were read without error (so that the
+    /// network's surfaces can be checked even if something else in the scenario is wrong).
+    pub families: Option<Vec<String>>,
 }
 
 /// Read a scenario from its text; relative file paths resolve against `dir`.
@@ -224,7 +227,15 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         .and_then(|v| v.table(d))
         .and_then(|t| read_unit_values(t, d));
     let budgets = top.get("budget");
-    let models = super::models::read(&mut top, d);
+    let (models, families_ok) = super::models::read(&mut top, d);
+    let families = families_ok.then(|| {
+        models
+            .condition
+            .families
+            .iter()
+            .map(|f| f.name.clone())
+            .collect()
+    });
     top.finish(d);
 
     let budget_lines = match budgets {
@@ -249,6 +260,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
     Partial {
         scenario: scenario.filter(|_| d.error_count() == before),
         files,
+        families,
     }
 }
 

@@ -107,7 +107,7 @@ impl Trace {
 
 /// A treatment as the simulation needs it: money as f64, effects resolved.
 #[derive(Debug, Clone)]
-struct Works {
+struct Effect {
     unit_cost: f64,
     cost_per: CostBasis,
     capital: bool,
@@ -148,7 +148,7 @@ pub struct SectionSim {
     routine_per_lane_km: f64,
     routine_per_lane_km_per_iri: f64,
     iri_floor: f64,
-    treatments: Vec<Works>,
+    treatments: Vec<Effect>,
     capacity: CapacityParams,
     speed: SpeedParams,
     direction_factor: f64,
@@ -213,7 +213,7 @@ impl SectionSim {
             .catalogue
             .treatments
             .iter()
-            .map(|tr| Works {
+            .map(|tr| Effect {
                 unit_cost: tr.cost.to_f64(),
                 cost_per: tr.cost_per,
                 capital: tr.category != crate::input::scenario::Category::Routine,
