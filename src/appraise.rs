@@ -128,9 +128,13 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             pv_residual,
             pv_agency: pv_capital + pv_routine - pv_residual,
             pv_user: d.pv(y0, &t.users()),
-            // The base's own (all zero); the others' come from the incremental analysis below,
-            // which appraises every alternative once.
-            indicators: appraise(&Stream::default(), d),
+            // The base against itself (flows exactly zero); the others' indicators come from the
+            // incremental analysis below, which appraises every alternative once.
+            indicators: if st.is_base() {
+                appraise(&flows, d)
+            } else {
+                appraise(&Stream::default(), d)
+            },
             mean_iri: t.iri.iter().sum::<f64>() / t.iri.len().max(1) as f64,
             final_iri: t.iri.last().copied().unwrap_or(sec.iri),
             widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w as i32),

@@ -1,9 +1,10 @@
 //! Reading inputs and writing outputs, in one place for every command.
 //!
-//! Inputs are a path or `-` for standard input. Outputs are staged: a command builds every file
-//! it will write in memory, then [`OutputSet::commit`] writes each to a temporary name inside the
-//! target directory and renames them into place only once all were written. A run that fails —
-//! on bad input, or half-way through writing — leaves no partial file behind.
+//! Inputs are a path or `-` for standard input. Outputs are staged: every file is written to a
+//! temporary name inside the target directory — all at once from memory ([`OutputSet`]) or
+//! progressively as a long command goes ([`StreamSet`]) — and renamed into place only once all
+//! were written. A run that fails — on bad input, or half-way through writing — leaves no partial
+//! file behind.
 
 use crate::error::{Error, Result};
 use std::io::{Read, Write};
@@ -32,7 +33,7 @@ pub fn input_label(path: &str) -> String {
     }
 }
 
-/// Files to write into an output directory, all or none.
+/// Files to write into an output directory, all or none, built in memory first.
 #[derive(Debug, Default)]
 pub struct OutputSet {
     files: Vec<(String, Vec<u8>)>,
@@ -60,32 +61,85 @@ impl OutputSet {
     /// Write every staged file into `dir` (created if missing): first all to temporary names,
     /// then rename each into place. Returns the paths written.
     pub fn commit(self, dir: &Path) -> Result<Vec<PathBuf>> {
+        let names: Vec<&str> = self.names().collect();
+        let mut out = StreamSet::create(dir, &names)?;
+        for (i, (_, contents)) in self.files.iter().enumerate() {
+            out.write(i, contents)?;
+        }
+        out.commit()
+    }
+}
+
+/// Files written progressively into an output directory, all or none: each is written under a
+/// temporary name inside the directory as the command goes, and renamed into place only by
+/// [`StreamSet::commit`]. Dropped without a commit (an error, a panic), the temporaries are
+/// removed, and so is the directory if this created it and it is empty.
+#[derive(Debug)]
+pub struct StreamSet {
+    dir: PathBuf,
+    created: bool,
+    files: Vec<(std::io::BufWriter<tempfile::NamedTempFile>, PathBuf)>,
+    committed: bool,
+}
+
+impl StreamSet {
+    /// Create `dir` if missing and one temporary file for each name (plain names, no
+    /// directories), to be written by index in the order given.
+    pub fn create(dir: &Path, names: &[&str]) -> Result<StreamSet> {
+        let created = !dir.exists();
         std::fs::create_dir_all(dir).map_err(|source| Error::Write {
             path: dir.to_owned(),
             source,
         })?;
-        let mut staged = Vec::with_capacity(self.files.len());
-        for (name, contents) in &self.files {
+        let mut set = StreamSet {
+            dir: dir.to_owned(),
+            created,
+            files: Vec::with_capacity(names.len()),
+            committed: false,
+        };
+        for name in names {
             let target = dir.join(name);
-            let write = |source| Error::Write {
-                path: target.clone(),
-                source,
-            };
-            let mut tmp = tempfile::Builder::new()
+            let tmp = tempfile::Builder::new()
                 .prefix(&format!(".{name}."))
                 .suffix(".tmp")
                 .tempfile_in(dir)
-                .map_err(write)?;
-            tmp.write_all(contents).map_err(write)?;
+                .map_err(|source| Error::Write {
+                    path: target.clone(),
+                    source,
+                })?;
+            set.files
+                .push((std::io::BufWriter::with_capacity(1 << 20, tmp), target));
+        }
+        Ok(set)
+    }
+
+    /// Append `bytes` to file `i`.
+    pub fn write(&mut self, i: usize, bytes: &[u8]) -> Result<()> {
+        let (w, target) = &mut self.files[i];
+        w.write_all(bytes).map_err(|source| Error::Write {
+            path: target.clone(),
+            source,
+        })
+    }
+
+    /// Flush every file to disk, then rename each into place. Returns the paths written.
+    pub fn commit(mut self) -> Result<Vec<PathBuf>> {
+        let mut staged = Vec::with_capacity(self.files.len());
+        for (w, target) in std::mem::take(&mut self.files) {
+            let fail = |source| Error::Write {
+                path: target.clone(),
+                source,
+            };
+            let tmp = w.into_inner().map_err(|e| fail(e.into_error()))?;
+            tmp.as_file().sync_all().map_err(fail)?;
             // Temporary files are private (0600); an output is an ordinary file.
             #[cfg(unix)]
             {
                 use std::os::unix::fs::PermissionsExt;
                 tmp.as_file()
                     .set_permissions(std::fs::Permissions::from_mode(0o644))
-                    .map_err(write)?;
+                    .map_err(fail)?;
             }
-            tmp.as_file().sync_all().map_err(write)?;
             staged.push((tmp, target));
         }
         // Every file is on disk under a temporary name; now move them into place. If this loop
@@ -98,7 +152,21 @@ impl OutputSet {
             })?;
             written.push(target);
         }
+        self.committed = true;
         Ok(written)
+    }
+}
+
+impl Drop for StreamSet {
+    fn drop(&mut self) {
+        if self.committed {
+            return;
+        }
+        // Remove the temporaries first, then the directory if this set made it and it is empty.
+        self.files.clear();
+        if self.created {
+            let _ = std::fs::remove_dir(&self.dir);
+        }
     }
 }
 
@@ -135,6 +203,44 @@ mod tests {
         names.sort();
         assert_eq!(names, vec!["a.csv", "b.json"]);
         assert_eq!(std::fs::read(out.join("a.csv")).unwrap(), b"x\n");
+    }
+
+    #[test]
+    fn an_uncommitted_stream_set_leaves_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let out = dir.path().join("fresh");
+        {
+            let mut set = StreamSet::create(&out, &["a.csv", "b.csv"]).unwrap();
+            set.write(0, b"half a file").unwrap();
+            assert_eq!(std::fs::read_dir(&out).unwrap().count(), 2);
+            // Dropped here, as on an error part-way.
+        }
+        assert!(!out.exists());
+        // An existing directory is kept, and emptied of the temporaries.
+        let keep = dir.path().join("kept");
+        std::fs::create_dir(&keep).unwrap();
+        drop(StreamSet::create(&keep, &["a.csv"]).unwrap());
+        assert!(keep.exists());
+        assert_eq!(std::fs::read_dir(&keep).unwrap().count(), 0);
+    }
+
+    #[test]
+    fn a_stream_set_writes_progressively() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut set = StreamSet::create(dir.path(), &["a.csv"]).unwrap();
+        set.write(0, b"x,").unwrap();
+        set.write(0, b"y\n").unwrap();
+        set.commit().unwrap();
+        assert_eq!(std::fs::read(dir.path().join("a.csv")).unwrap(), b"x,y\n");
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::PermissionsExt;
+            let mode = std::fs::metadata(dir.path().join("a.csv"))
+                .unwrap()
+                .permissions()
+                .mode();
+            assert_eq!(mode & 0o777, 0o644);
+        }
     }
 
     #[test]

@@ -13,7 +13,7 @@ use crate::diag::did_you_mean;
 use crate::error::{Error, Result};
 use crate::format::{irr_text, pct, Amount, Field, Fixed, Rates};
 use crate::input::Run;
-use crate::io::{print_stdout, OutputSet};
+use crate::io::{print_stdout, StreamSet};
 use crate::money::grouped;
 use crate::simulate::condition::classify;
 use std::fmt::Write as _;
@@ -34,6 +34,10 @@ pub struct Args {
     pub out: OutArg,
 }
 
+/// Sections appraised together before their rows are written: bounds memory whatever the
+/// network's size, while giving every thread plenty of work.
+const CHUNK: usize = 2048;
+
 /// Run `appraise`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
     let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
@@ -43,22 +47,44 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     ctx.notes(&diags);
     let picked = pick_sections(&run, &args.section)?;
     let keep = !args.section.is_empty() && args.out.out.is_some();
-    let results = appraise::network(&run, &picked, keep);
-
-    if let Some(dir) = &args.out.out {
-        let mut set = OutputSet::new();
-        set.add("appraisal.csv", appraisal_csv(&results).into_bytes());
-        set.add("incremental.csv", incremental_csv(&results).into_bytes());
-        set.add("widening.csv", widening_csv(&results).into_bytes());
-        if keep {
-            set.add("yearly.csv", yearly_csv(&run, &results).into_bytes());
+    let mut files = match &args.out.out {
+        Some(dir) => {
+            let mut names = vec!["appraisal.csv", "incremental.csv", "widening.csv"];
+            if keep {
+                names.push("yearly.csv");
+            }
+            let mut set = StreamSet::create(dir, &names)?;
+            for (i, head) in [APPRAISAL_HEAD, INCREMENTAL_HEAD, WIDENING_HEAD, YEARLY_HEAD]
+                .iter()
+                .take(names.len())
+                .enumerate()
+            {
+                set.write(i, head.as_bytes())?;
+            }
+            Some(set)
         }
-        for p in set.commit(dir)? {
+        None => None,
+    };
+    let mut summary = Summary::default();
+    for chunk in picked.chunks(CHUNK) {
+        let results = appraise::network(&run, chunk, keep);
+        if let Some(set) = &mut files {
+            set.write(0, appraisal_rows(&results).as_bytes())?;
+            set.write(1, incremental_rows(&results).as_bytes())?;
+            set.write(2, widening_rows(&results).as_bytes())?;
+            if keep {
+                set.write(3, yearly_rows(&run, &results).as_bytes())?;
+            }
+        }
+        summary.add(&results);
+    }
+    if let Some(set) = files {
+        for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
     }
     if !ctx.quiet {
-        print_stdout(&summary(&run, &results))?;
+        print_stdout(&summary.render(&run))?;
     }
     Ok(())
 }
@@ -97,12 +123,22 @@ fn pick_sections<'r>(
     Ok(out)
 }
 
-/// `appraisal.csv`: one row per section × strategy.
-pub fn appraisal_csv(results: &[SectionResult]) -> String {
-    let mut s = String::from(
-        "section_id,strategy,template,pv_agency_cost,pv_capital,pv_routine,pv_residual,\
-         pv_user_cost,npv,bcr,irr,irr_status,fyrr,mean_iri,final_iri,preferred\n",
-    );
+/// Header of `appraisal.csv` (one row per section × strategy).
+pub const APPRAISAL_HEAD: &str = "section_id,strategy,template,pv_agency_cost,pv_capital,\
+pv_routine,pv_residual,pv_user_cost,npv,bcr,irr,irr_status,fyrr,mean_iri,final_iri,preferred\n";
+/// Header of `incremental.csv` (one row per comparison).
+pub const INCREMENTAL_HEAD: &str = "section_id,step,challenger,defender,d_pv_benefits,d_pv_costs,\
+d_npv,d_bcr,d_irr,d_irr_status,accepted\n";
+/// Header of `widening.csv` (one row per section × widening year).
+pub const WIDENING_HEAD: &str =
+    "section_id,widen_year,strategy,npv,fyrr,best_by_fyrr,best_by_npv\n";
+/// Header of `yearly.csv` (one row per section × strategy × year).
+pub const YEARLY_HEAD: &str = "section_id,strategy,year,iri,condition,structural_number,capital,\
+routine,operating,time,crashes,work_zone_delay,residual\n";
+
+/// Rows of `appraisal.csv`.
+pub fn appraisal_rows(results: &[SectionResult]) -> String {
+    let mut s = String::new();
     for r in results {
         for st in &r.strategies {
             let i = &st.indicators;
@@ -131,10 +167,8 @@ pub fn appraisal_csv(results: &[SectionResult]) -> String {
     s
 }
 
-fn incremental_csv(results: &[SectionResult]) -> String {
-    let mut s = String::from(
-        "section_id,step,challenger,defender,d_pv_benefits,d_pv_costs,d_npv,d_bcr,d_irr,d_irr_status,accepted\n",
-    );
+fn incremental_rows(results: &[SectionResult]) -> String {
+    let mut s = String::new();
     for r in results {
         for (k, st) in r.incremental.steps.iter().enumerate() {
             let _ = writeln!(
@@ -157,8 +191,8 @@ fn incremental_csv(results: &[SectionResult]) -> String {
     s
 }
 
-fn widening_csv(results: &[SectionResult]) -> String {
-    let mut s = String::from("section_id,widen_year,strategy,npv,fyrr,best_by_fyrr,best_by_npv\n");
+fn widening_rows(results: &[SectionResult]) -> String {
+    let mut s = String::new();
     for r in results {
         let Some(w) = &r.widening else { continue };
         for y in &w.years {
@@ -178,10 +212,8 @@ fn widening_csv(results: &[SectionResult]) -> String {
     s
 }
 
-fn yearly_csv(run: &Run, results: &[SectionResult]) -> String {
-    let mut s = String::from(
-        "section_id,strategy,year,iri,condition,structural_number,capital,routine,operating,time,crashes,work_zone_delay,residual\n",
-    );
+fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
+    let mut s = String::new();
     let y0 = run.scenario.base_year;
     let cp = &run.scenario.models.condition;
     for r in results {
@@ -218,77 +250,52 @@ fn yearly_csv(run: &Run, results: &[SectionResult]) -> String {
     s
 }
 
-fn summary(run: &Run, results: &[SectionResult]) -> String {
-    let sc = &run.scenario;
-    let money = if sc.money_label.is_empty() {
-        String::new()
-    } else {
-        format!(" {}", sc.money_label)
-    };
-    let strategies: usize = results.iter().map(|r| r.strategies.len()).sum();
-    let mut s = format!(
-        "Appraisal of {} — {} sections, {} strategies\nbase year {}, {} years to {}, discount rate {:.2} % real ({}); money in{}\n\n",
-        if sc.title.is_empty() { &sc.file } else { &sc.title },
-        results.len(),
-        strategies,
-        sc.base_year,
-        sc.analysis_years,
-        sc.last_year(),
-        sc.discounting.rate() * 100.0,
-        sc.discounting.timing(),
-        if money.is_empty() { " the scenario's units".to_owned() } else { money.clone() },
-    );
-    s.push_str(
-        "Each section's preferred strategy, chosen by incremental analysis (the highest NPV against\n\
-         the base), out of its `opts` strategies (base included); NPV, BCR, IRR and FYRR against the base.\n\n",
-    );
-    s.push_str(&format!(
-        "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}\n",
-        "section", "opts", "preferred strategy", "NPV", "BCR", "IRR", "FYRR"
-    ));
-    const SHOWN: usize = 60;
-    let mut total = 0.0;
-    for (k, r) in results.iter().enumerate() {
-        let Some(b) = r.get(&r.best) else { continue };
-        total += b.indicators.npv;
-        if k >= SHOWN {
-            continue;
-        }
-        let i = &b.indicators;
-        s.push_str(&format!(
-            "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}\n",
-            r.section,
-            r.strategies.len(),
-            r.best,
-            grouped(i.npv, 0),
-            i.bcr.map_or("n/a".into(), |x| format!("{x:.2}")),
-            if b.template.is_none() {
-                "n/a".into()
-            } else {
-                irr_text(&i.irr)
-            },
-            pct(i.fyrr),
-        ));
-    }
-    if results.len() > SHOWN {
-        s.push_str(&format!(
-            "… and {} more sections (see appraisal.csv with --out)\n",
-            results.len() - SHOWN
-        ));
-    }
-    s.push_str(&format!(
-        "\nNPV of every section's preferred strategy, with no budget limit: {}{money}\n",
-        grouped(total, 0)
-    ));
-    let widen: Vec<&SectionResult> = results.iter().filter(|r| r.widening.is_some()).collect();
-    if !widen.is_empty() {
-        s.push_str(&format!(
-            "\nWidening timing (first year FYRR reaches {:.2} %, beside the year of highest NPV)\n",
-            sc.discounting.rate() * 100.0
-        ));
-        for r in widen.iter().take(SHOWN) {
+/// Sections listed one by one in the terminal summary; the rest are counted and in the files.
+const SHOWN: usize = 60;
+
+/// What the terminal summary needs, gathered chunk by chunk: totals, and the lines of the first
+/// sections.
+#[derive(Debug, Default)]
+struct Summary {
+    sections: usize,
+    strategies: usize,
+    total_npv: f64,
+    lines: String,
+    widening_sections: usize,
+    widening_lines: String,
+}
+
+impl Summary {
+    fn add(&mut self, results: &[SectionResult]) {
+        for r in results {
+            self.sections += 1;
+            self.strategies += r.strategies.len();
+            let Some(b) = r.get(&r.best) else { continue };
+            self.total_npv += b.indicators.npv;
+            if self.sections <= SHOWN {
+                let i = &b.indicators;
+                let _ = writeln!(
+                    self.lines,
+                    "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}",
+                    r.section,
+                    r.strategies.len(),
+                    r.best,
+                    grouped(i.npv, 0),
+                    i.bcr.map_or("n/a".into(), |x| format!("{x:.2}")),
+                    if b.template.is_none() {
+                        "n/a".into()
+                    } else {
+                        irr_text(&i.irr)
+                    },
+                    pct(i.fyrr),
+                );
+            }
             let Some(w) = &r.widening else { continue };
-            let fy = |y: Option<i32>| {
+            self.widening_sections += 1;
+            if self.widening_sections > SHOWN {
+                continue;
+            }
+            let at = |y: Option<i32>| {
                 let f = y.and_then(|y| w.years.iter().find(|x| x.year == y));
                 match (y, f) {
                     (Some(y), Some(f)) => {
@@ -297,16 +304,75 @@ fn summary(run: &Run, results: &[SectionResult]) -> String {
                     _ => "not within the windows".to_owned(),
                 }
             };
-            s.push_str(&format!(
-                "  {:<10} by FYRR {:<40} highest NPV {}\n",
+            let _ = writeln!(
+                self.widening_lines,
+                "  {:<10} by FYRR {:<40} highest NPV {}",
                 r.section,
-                fy(w.by_fyrr),
-                fy(w.by_npv)
-            ));
+                at(w.by_fyrr),
+                at(w.by_npv)
+            );
         }
     }
-    s.push('\n');
-    s.push_str(crate::CAUTION);
-    s.push('\n');
-    s
+
+    fn render(&self, run: &Run) -> String {
+        let sc = &run.scenario;
+        let money = if sc.money_label.is_empty() {
+            String::new()
+        } else {
+            format!(" {}", sc.money_label)
+        };
+        let mut s = format!(
+            "Appraisal of {} — {} sections, {} strategies\nbase year {}, {} years to {}, discount rate {:.2} % real ({}); money in{}\n\n",
+            if sc.title.is_empty() { &sc.file } else { &sc.title },
+            self.sections,
+            self.strategies,
+            sc.base_year,
+            sc.analysis_years,
+            sc.last_year(),
+            sc.discounting.rate() * 100.0,
+            sc.discounting.timing(),
+            if money.is_empty() { " the scenario's units".to_owned() } else { money.clone() },
+        );
+        s.push_str(
+            "Each section's preferred strategy, chosen by incremental analysis (the highest NPV against\n\
+             the base), out of its `opts` strategies (base included); NPV, BCR, IRR and FYRR against the base.\n\n",
+        );
+        let _ = writeln!(
+            s,
+            "{:<10} {:>5}  {:<34} {:>14} {:>7} {:>9} {:>9}",
+            "section", "opts", "preferred strategy", "NPV", "BCR", "IRR", "FYRR"
+        );
+        s.push_str(&self.lines);
+        if self.sections > SHOWN {
+            let _ = writeln!(
+                s,
+                "… and {} more sections (see appraisal.csv with --out)",
+                self.sections - SHOWN
+            );
+        }
+        let _ = writeln!(
+            s,
+            "\nNPV of every section's preferred strategy, with no budget limit: {}{money}",
+            grouped(self.total_npv, 0)
+        );
+        if self.widening_sections > 0 {
+            let _ = writeln!(
+                s,
+                "\nWidening timing (first year FYRR reaches {:.2} %, beside the year of highest NPV)",
+                sc.discounting.rate() * 100.0
+            );
+            s.push_str(&self.widening_lines);
+            if self.widening_sections > SHOWN {
+                let _ = writeln!(
+                    s,
+                    "  … and {} more sections (see widening.csv with --out)",
+                    self.widening_sections - SHOWN
+                );
+            }
+        }
+        s.push('\n');
+        s.push_str(crate::CAUTION);
+        s.push('\n');
+        s
+    }
 }
