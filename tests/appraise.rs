@@ -255,3 +255,21 @@ steps = [ { treatment = "thick-overlay", tag = "strengthen", window = [0, 3] } ]
         .stderr_has("every = 2")
         .stderr_has("the tag `strengthen` on the treatment `overlay`; it names `thick-overlay`");
 }
+
+#[test]
+fn quiet_keeps_the_data_asked_for() {
+    let wd = Workdir::new();
+    // Without --out the summary is the output: --quiet only drops the notes.
+    let out = wd.run(&["appraise", "--quiet", "--section", "VA-01"]);
+    out.expect_code(0).stdout_has("VA-01");
+    assert!(out.stderr.is_empty(), "{}", out.shown);
+    // With --out, the files are the output and nothing is printed.
+    let out = wd.run(&["appraise", "--quiet", "--section", "VA-01", "--out", "res"]);
+    out.expect_code(0);
+    assert!(
+        out.stdout.is_empty() && out.stderr.is_empty(),
+        "{}",
+        out.shown
+    );
+    assert!(wd.join("res/yearly.csv").exists());
+}

@@ -83,7 +83,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             ctx.say(&format!("wrote {}", p.display()));
         }
     }
-    if !ctx.quiet {
+    // Without --out the summary is the output; with it, the summary is news that --quiet silences.
+    if args.out.out.is_none() || !ctx.quiet {
         print_stdout(&summary.render(&run))?;
     }
     Ok(())
