@@ -275,7 +275,7 @@ impl SectionSim {
         let mut last_works = self.last_works;
         let mut next = 0usize;
         let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
-        let mut done: [usize; 8] = [0; 8];
+        let mut done = [0usize; crate::input::MAX_STEPS];
         for y in 0..n {
             // 1. Works due this year.
             let first = next;
