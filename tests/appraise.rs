@@ -273,3 +273,59 @@ fn quiet_keeps_the_data_asked_for() {
     );
     assert!(wd.join("res/yearly.csv").exists());
 }
+
+#[test]
+fn a_users_own_template_file_needs_no_code() {
+    let wd = Workdir::new();
+    wd.run(&["init", "mine", "--quiet"]).expect_code(0);
+    wd.write(
+        "mine/extra.toml",
+        r#"
+[template.seal-then-overlay]
+label = "Seal soon, overlay some years later"
+only_if = { max_iri = 4.0 }
+min_gap_years = 4
+steps = [
+  { treatment = "reseal", tag = "reseal", window = [0, 1] },
+  { treatment = "overlay", tag = "resurface", after = [4, 6], every = 2 },
+]
+"#,
+    );
+    let scenario = wd.read("mine/scenario.toml").replace(
+        "strategies = [\"templates.toml\"]",
+        "strategies = [\"templates.toml\", \"extra.toml\"]",
+    );
+    wd.write("mine/scenario.toml", scenario);
+    wd.run(&[
+        "appraise",
+        "--scenario",
+        "mine/scenario.toml",
+        "--section",
+        "OR-01",
+        "ML-02",
+        "--out",
+        "res",
+        "--quiet",
+    ])
+    .expect_code(0);
+    let rows = rows_of(&wd, "res/appraisal.csv");
+    let mine: Vec<&str> = rows
+        .iter()
+        .filter(|r| r["template"] == "seal-then-overlay")
+        .map(|r| r["strategy"].as_str())
+        .collect();
+    // OR-01 (IRI 2.7) qualifies, ML-02 (IRI 7.9) does not; 2 seal years × offsets 4 and 6.
+    assert_eq!(
+        mine,
+        [
+            "reseal@2027+resurface@2031",
+            "reseal@2027+resurface@2033",
+            "reseal@2028+resurface@2032",
+            "reseal@2028+resurface@2034",
+        ]
+    );
+    assert!(rows
+        .iter()
+        .filter(|r| r["template"] == "seal-then-overlay")
+        .all(|r| r["section_id"] == "OR-01"));
+}
