@@ -329,3 +329,22 @@ steps = [
         .filter(|r| r["template"] == "seal-then-overlay")
         .all(|r| r["section_id"] == "OR-01"));
 }
+
+#[test]
+fn results_do_not_depend_on_the_thread_count() {
+    let wd = Workdir::new();
+    wd.run(&["init", "net", "--sections", "120", "--seed", "4", "--quiet"])
+        .expect_code(0);
+    for (threads, dir) in [("1", "one"), ("2", "two"), ("3", "three")] {
+        wd.run_env(
+            &["appraise", "--scenario", "net/scenario.toml", "--quiet", "--out", dir],
+            &[("RAYON_NUM_THREADS", threads)],
+        )
+        .expect_code(0);
+    }
+    for file in ["appraisal.csv", "incremental.csv", "widening.csv"] {
+        let one = wd.read(&format!("one/{file}"));
+        assert_eq!(one, wd.read(&format!("two/{file}")), "{file}");
+        assert_eq!(one, wd.read(&format!("three/{file}")), "{file}");
+    }
+}

@@ -91,8 +91,18 @@ impl Workdir {
 
     /// Run `pavestrat ARGS` here, with `stdin` on standard input.
     pub fn run_with_stdin(&self, args: &[&str], stdin: &[u8]) -> Output {
+        self.run_full(args, stdin, &[])
+    }
+
+    /// Run `pavestrat ARGS` here with extra environment variables.
+    pub fn run_env(&self, args: &[&str], env: &[(&str, &str)]) -> Output {
+        self.run_full(args, b"", env)
+    }
+
+    fn run_full(&self, args: &[&str], stdin: &[u8], env: &[(&str, &str)]) -> Output {
         use std::io::Write;
         let mut cmd = Command::new(env!("CARGO_BIN_EXE_pavestrat"));
+        cmd.envs(env.iter().copied());
         cmd.args(args)
             .current_dir(self.path())
             .stdin(Stdio::piped())
