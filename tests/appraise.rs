@@ -24,7 +24,8 @@ fn appraises_the_built_in_demo() {
     out.expect_code(0)
         .stderr_has("using the built-in demo")
         .stdout_has("Planning-level estimates only")
-        .stdout_has("Widening timing");
+        .stdout_has("Widening timing")
+        .stdout_has("of the length in poor condition");
     let text = wd.read("res/appraisal.csv");
     let head = text.lines().next().unwrap();
     for col in [
@@ -337,7 +338,14 @@ fn results_do_not_depend_on_the_thread_count() {
         .expect_code(0);
     for (threads, dir) in [("1", "one"), ("2", "two"), ("3", "three")] {
         wd.run_env(
-            &["appraise", "--scenario", "net/scenario.toml", "--quiet", "--out", dir],
+            &[
+                "appraise",
+                "--scenario",
+                "net/scenario.toml",
+                "--quiet",
+                "--out",
+                dir,
+            ],
             &[("RAYON_NUM_THREADS", threads)],
         )
         .expect_code(0);

@@ -12,10 +12,12 @@ use crate::appraise::{self, SectionResult};
 use crate::diag::did_you_mean;
 use crate::error::{Error, Result};
 use crate::format::{irr_text, pct, Amount, Field, Fixed, Rates};
+use crate::input::models::ConditionParams;
+use crate::input::network::Section;
 use crate::input::Run;
 use crate::io::{print_stdout, StreamSet};
 use crate::money::grouped;
-use crate::simulate::condition::classify;
+use crate::simulate::condition::{classify, ConditionClass};
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
@@ -76,7 +78,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
                 set.write(3, yearly_rows(&run, &results).as_bytes())?;
             }
         }
-        summary.add(&results);
+        summary.add(chunk, &results, &run.scenario.models.condition);
     }
     if let Some(set) = files {
         for p in set.commit()? {
@@ -264,15 +266,32 @@ struct Summary {
     lines: String,
     widening_sections: usize,
     widening_lines: String,
+    /// Length (km), and length × IRI and length in poor condition in the period's last year,
+    /// under the base and under the preferred strategies.
+    length: f64,
+    iri_km: [f64; 2],
+    poor_km: [f64; 2],
+    /// Length × mean IRI over the period, base and preferred.
+    mean_iri_km: [f64; 2],
 }
 
 impl Summary {
-    fn add(&mut self, results: &[SectionResult]) {
-        for r in results {
+    fn add(&mut self, sections: &[&Section], results: &[SectionResult], cp: &ConditionParams) {
+        for (sec, r) in sections.iter().zip(results) {
             self.sections += 1;
             self.strategies += r.strategies.len();
-            let Some(b) = r.get(&r.best) else { continue };
+            let (Some(b), Some(base)) = (r.get(&r.best), r.get(crate::enumerate::BASE)) else {
+                continue;
+            };
             self.total_npv += b.indicators.npv;
+            self.length += sec.length_km;
+            for (k, st) in [base, b].into_iter().enumerate() {
+                self.iri_km[k] += sec.length_km * st.final_iri;
+                self.mean_iri_km[k] += sec.length_km * st.mean_iri;
+                if classify(st.final_iri, cp) == ConditionClass::Poor {
+                    self.poor_km[k] += sec.length_km;
+                }
+            }
             if self.sections <= SHOWN {
                 let i = &b.indicators;
                 let _ = writeln!(
@@ -356,6 +375,21 @@ impl Summary {
             "\nNPV of every section's preferred strategy, with no budget limit: {}{money}",
             grouped(self.total_npv, 0)
         );
+        if self.length > 0.0 {
+            let l = self.length;
+            let _ = writeln!(
+                s,
+                "Condition, length-weighted, base vs preferred strategies: mean IRI over the period {:.2} vs {:.2} m/km;\n\
+                 in {} IRI {:.2} vs {:.2} m/km, and {:.0} % vs {:.0} % of the length in poor condition.",
+                self.mean_iri_km[0] / l,
+                self.mean_iri_km[1] / l,
+                sc.last_year(),
+                self.iri_km[0] / l,
+                self.iri_km[1] / l,
+                100.0 * self.poor_km[0] / l,
+                100.0 * self.poor_km[1] / l,
+            );
+        }
         if self.widening_sections > 0 {
             let _ = writeln!(
                 s,
