@@ -193,3 +193,72 @@ fn a_higher_discount_rate_delays_widening_or_removes_it() {
     assert!(later(wl.by_npv, wh.by_npv), "{wl:?}\n{wh:?}");
     assert!(wh.by_fyrr != wl.by_fyrr || wh.by_fyrr.is_none());
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(60))]
+
+    /// Whatever coefficients the scenario reader accepts, every strategy's yearly results are
+    /// finite numbers, and the base's roughness never falls.
+    #[test]
+    fn any_accepted_coefficients_give_finite_results(
+        exponent in 1.0f64..10.0,
+        beta in 0.0f64..20.0,
+        max_vc in 0.1f64..10.0,
+        two_lane in 100.0f64..10_000.0,
+        drop in 0.0f64..1.0,
+        min_factor in 0.05f64..1.0,
+        zone in 1.0f64..200.0,
+        p0 in 1.0f64..5.0,
+        psr_min_share in 0.01f64..0.99,
+        zr in -5.0f64..5.0,
+        s0 in 0.0f64..1.0,
+        ageing in 0.0f64..0.5,
+        rise in 0.0f64..50.0,
+        sn_exp in 0.0f64..10.0,
+        sn in 0.01f64..15.0,
+        mr in 5.0f64..1000.0,
+    ) {
+        use crate::input::models::{Aashto93Params, CalibratedParams, FamilyModel};
+        let mut run = demo();
+        let m = &mut run.scenario.models;
+        m.traffic.load_exponent = exponent;
+        m.capacity.bpr_beta = beta;
+        m.capacity.max_vc = max_vc;
+        m.capacity.two_lane_pc_h = two_lane;
+        m.speed.drop_per_iri = drop;
+        m.speed.min_factor = min_factor;
+        m.speed.work_zone_kmh = zone;
+        let psr_min = (p0 * psr_min_share).max(0.05);
+        for f in &mut m.condition.families {
+            f.model = match f.model {
+                FamilyModel::Aashto93(_) => FamilyModel::Aashto93(Aashto93Params { p0, psr_min, zr, s0, ageing }),
+                FamilyModel::Calibrated(_) => FamilyModel::Calibrated(CalibratedParams {
+                    rise_per_mesa: rise,
+                    sn_exponent: sn_exp,
+                    ageing,
+                    ..CalibratedParams::default()
+                }),
+            };
+        }
+        let e = Enumerator::for_run(&run);
+        for id in ["CP-04", "ML-03", "VA-02"] {
+            let mut sec = section(&run, id);
+            sec.structural_number = sn;
+            sec.subgrade_mr_mpa = Some(mr);
+            let sim = SectionSim::new(&run, &sec);
+            let mut t = Trace::default();
+            for (k, st) in e.strategies(&sec).iter().enumerate().step_by(7) {
+                sim.run(st, &mut t);
+                let all = t.capital.iter().chain(&t.routine).chain(&t.operating).chain(&t.time)
+                    .chain(&t.crashes).chain(&t.delay).chain(&t.iri).chain(&t.sn);
+                for v in all {
+                    prop_assert!(v.is_finite(), "{id} {}: {v}", st.name);
+                }
+                prop_assert!(t.residual.is_finite());
+                if k == 0 {
+                    prop_assert!(t.iri.windows(2).all(|w| w[1] >= w[0]), "{:?}", t.iri);
+                }
+            }
+        }
+    }
+}
