@@ -25,6 +25,7 @@ pub mod io;
 pub mod money;
 pub mod select;
 pub mod simulate;
+pub mod stats;
 pub mod text;
 
 /// The caution printed by `--help`, by every report and in the README.

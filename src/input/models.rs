@@ -39,7 +39,7 @@
 //! iri_max = 16.0
 //! subgrade_mr_mpa = 50              # when the network has no subgrade_mr_mpa
 //! [condition.family.asphalt]
-//! model = "aashto93"                # p0, psr_min, zr, s0, ageing
+//! model = "aashto93"                # p0, psr_min, zr (or reliability), s0, ageing
 //! [condition.family.surface_treatment]
 //! model = "calibrated"              # rise_per_year, ageing, rise_per_mesa, sn_ref, sn_exponent
 //!
@@ -362,6 +362,12 @@ impl Default for UserCostParams {
             crash_rate_divided: 0.20,
         }
     }
+}
+
+/// The standard normal deviate of a design reliability, ZR = −Φ⁻¹(R) (AASHTO 1993, Table 4.1:
+/// 95 % → −1.645).
+pub fn zr_for_reliability(r: f64) -> f64 {
+    -crate::stats::normal_quantile(r)
 }
 
 /// Set `*slot` from an optional number key within `lo..=hi`.
@@ -756,9 +762,28 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
     let out = match model.as_deref() {
         Some("aashto93") => {
             let mut a = Aashto93Params::default();
+            let t_has_zr = t.get("zr").is_some();
             num(&mut t, "p0", d, 1.0, 5.0, &mut a.p0);
             num(&mut t, "psr_min", d, 0.05, 3.0, &mut a.psr_min);
             num(&mut t, "zr", d, -5.0, 5.0, &mut a.zr);
+            // Reliability as designers state it, instead of its deviate: ZR = −Φ⁻¹(R).
+            if let Some((place, r)) = t.number_at(
+                "reliability",
+                d,
+                0.5,
+                0.9999,
+                "a reliability from 0.5 to 0.9999 (0.95 for 95 %)",
+            ) {
+                if t_has_zr {
+                    d.error(
+                        place,
+                        "both zr and reliability",
+                        "one of them (zr = −Φ⁻¹(reliability))",
+                    );
+                } else if let Some(r) = r {
+                    a.zr = zr_for_reliability(r);
+                }
+            }
             num(&mut t, "s0", d, 0.0, 1.0, &mut a.s0);
             num(&mut t, "ageing", d, 0.0, 0.5, &mut a.ageing);
             if a.psr_min >= a.p0 {
@@ -798,6 +823,27 @@ mod tests {
         let mut top = doc.table();
         let (m, _) = read(&mut top, &mut d);
         (m, d)
+    }
+
+    #[test]
+    fn reliability_to_deviate() {
+        // AASHTO 1993 Table 4.1: 95 % → −1.645 (confirmed); 90 % → −1.282, 99 % → −2.327 (from
+        // memory); the table's values lie within ±0.002 of the exact normal quantiles.
+        for (r, zr) in [(0.95, -1.645), (0.90, -1.282), (0.99, -2.327), (0.5, 0.0)] {
+            assert!(
+                (zr_for_reliability(r) - zr).abs() <= 0.002,
+                "{r}: {}",
+                zr_for_reliability(r)
+            );
+        }
+        let (m, d) = read_text("[condition.family.a]\nmodel = \"aashto93\"\nreliability = 0.95\n[condition]\ndefault_family = \"a\"\n");
+        assert!(!d.has_errors(), "{d}");
+        let FamilyModel::Aashto93(p) = m.condition.families[0].model else {
+            panic!()
+        };
+        assert!((p.zr + 1.645).abs() < 0.001);
+        let (_, d) = read_text("[condition]\ndefault_family = \"a\"\n[condition.family.a]\nmodel = \"aashto93\"\nzr = -1\nreliability = 0.9\n");
+        assert!(d.to_string().contains("both zr and reliability"), "{d}");
     }
 
     #[test]

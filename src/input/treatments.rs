@@ -483,6 +483,22 @@ work_zone_days = 120
 "#;
 
     #[test]
+    fn layer_equation_reference_pavement() {
+        // AASHTO 1993 layer equation SN = a1·D1 + a2·D2·m2 + a3·D3·m3 (D in inches), shared
+        // reference list: 4 in of asphalt (a1 0.44) + 10 in of base (a2 0.14) + 8 in of subbase
+        // (a3 0.11), drainage m = 1 → SN 4.04 (formula confirmed, coefficients typical).
+        let layer = |inches: f64, a: f64| StructuralEffect::Layer {
+            thickness_mm: inches * 25.4,
+            layer_coefficient: a,
+        };
+        let sn: f64 = [layer(4.0, 0.44), layer(10.0, 0.14), layer(8.0, 0.11)]
+            .iter()
+            .map(|l| l.added_sn().unwrap())
+            .sum();
+        assert!((sn - 4.04).abs() < 1e-12, "{sn}");
+    }
+
+    #[test]
     fn reads_a_good_catalogue() {
         let mut d = Diagnostics::new();
         let (c, names) = parse("t.toml", GOOD, &mut d);
