@@ -19,7 +19,7 @@ use crate::economics::{appraise, fyrr, Discounting, Indicators, Stream};
 use crate::enumerate::{Enumerator, Strategy};
 use crate::input::network::Section;
 use crate::input::Run;
-use crate::simulate::{SectionSim, Trace};
+use crate::simulate::{Flows, SectionSim, Trace};
 use rayon::prelude::*;
 use std::collections::HashMap;
 
@@ -85,13 +85,21 @@ impl SectionResult {
 }
 
 /// The flows of a strategy against another (benefits: user cost saved; costs: agency cost added).
-pub fn increment(with: &Trace, against: &Trace, first_year: i32) -> Stream {
-    let (ua, ub) = (with.users(), against.users());
-    let (aa, ab) = (with.agency(), against.agency());
+pub fn increment(with: &Flows, against: &Flows, first_year: i32) -> Stream {
     Stream {
         first_year,
-        benefits: ub.iter().zip(&ua).map(|(b, a)| b - a).collect(),
-        costs: aa.iter().zip(&ab).map(|(a, b)| a - b).collect(),
+        benefits: against
+            .users
+            .iter()
+            .zip(&with.users)
+            .map(|(b, a)| b - a)
+            .collect(),
+        costs: with
+            .agency
+            .iter()
+            .zip(&against.agency)
+            .map(|(a, b)| a - b)
+            .collect(),
     }
 }
 
@@ -105,6 +113,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     let strategies = e.strategies(sec);
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
+    let base_flows = base.flows();
     let mut trace = Trace::default();
     let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
@@ -119,7 +128,8 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         let pv_capital = d.pv(y0, &t.capital);
         let pv_routine = d.pv(y0, &t.routine);
         let pv_residual = t.residual * d.factor(y0 + n as i32);
-        let flows = increment(t, &base, y0);
+        let own = t.flows();
+        let flows = increment(&own, &base_flows, y0);
         partial.push(StrategyResult {
             strategy: st.name.clone(),
             template: st.template.map(|i| run.templates[i].name.clone()),
@@ -127,7 +137,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             pv_routine,
             pv_residual,
             pv_agency: pv_capital + pv_routine - pv_residual,
-            pv_user: d.pv(y0, &t.users()),
+            pv_user: d.pv(y0, &own.users),
             // The base against itself (flows exactly zero); the others' indicators come from the
             // incremental analysis below, which appraises every alternative once.
             indicators: if st.is_base() {
@@ -209,7 +219,7 @@ fn widening_timing(
             let st = &strategies[i];
             sim.run(st, &mut with);
             sim.run(&st.without_widening(&run.catalogue), &mut without);
-            let flows = increment(&with, &without, y0);
+            let flows = increment(&with.flows(), &without.flows(), y0);
             WideningYear {
                 year,
                 strategy: st.name.clone(),

@@ -82,27 +82,31 @@ impl Trace {
         self.residual = 0.0;
     }
 
-    /// Agency cost of each year and, last, the year after the period with the residual value
-    /// as a negative cost.
-    pub fn agency(&self) -> Vec<f64> {
-        let mut v: Vec<f64> = self
+    /// The trace's money as two flows: agency cost of each year and, last, the year after the
+    /// period with the residual value as a negative cost; road-user cost of each year, and zero
+    /// the year after the period.
+    pub fn flows(&self) -> Flows {
+        let mut agency: Vec<f64> = self
             .capital
             .iter()
             .zip(&self.routine)
             .map(|(a, b)| a + b)
             .collect();
-        v.push(-self.residual);
-        v
-    }
-
-    /// Road-user cost of each year, and zero the year after the period.
-    pub fn users(&self) -> Vec<f64> {
-        let mut v: Vec<f64> = (0..self.capital.len())
+        agency.push(-self.residual);
+        let mut users: Vec<f64> = (0..self.capital.len())
             .map(|i| self.operating[i] + self.time[i] + self.crashes[i] + self.delay[i])
             .collect();
-        v.push(0.0);
-        v
+        users.push(0.0);
+        Flows { agency, users }
     }
+}
+
+/// A strategy's yearly agency and road-user costs, from the base year to the year after the
+/// period (see [`Trace::flows`]).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Flows {
+    pub agency: Vec<f64>,
+    pub users: Vec<f64>,
 }
 
 /// A treatment as the simulation needs it: money as f64, effects resolved.
