@@ -23,6 +23,7 @@ pub mod format;
 pub mod input;
 pub mod io;
 pub mod money;
+pub mod plan;
 pub mod select;
 pub mod simulate;
 pub mod stats;

@@ -10,6 +10,7 @@ pub mod cashflow;
 pub mod csvfile;
 pub mod models;
 pub mod network;
+pub mod plan;
 pub mod scenario;
 pub mod templates;
 pub mod tomldoc;
@@ -171,6 +172,24 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
         check_network_against_scenario(net, &scenario, d);
     }
     let (network, catalogue) = (network?, catalogue?);
+    for c in &scenario.plan.commitments {
+        if let plan::Held::Treatment { treatment, .. } = &c.held {
+            if catalogue.get(treatment).is_none() {
+                let names: Vec<&str> = treatment_names.iter().map(String::as_str).collect();
+                let e = d.error(
+                    c.place.clone().with_subfield("treatment"),
+                    format!("unknown treatment `{treatment}`"),
+                    format!("a treatment of the catalogue: {}", names.join(", ")),
+                );
+                if let Some(m) = did_you_mean(treatment, &names) {
+                    e.hint = Some(format!("did you mean `{m}`?"));
+                }
+            }
+        }
+    }
+    if d.has_errors() {
+        return None;
+    }
     if !templates_ok {
         return None;
     }
@@ -331,12 +350,22 @@ fn check_surfaces(net: &Network, families: &[String], d: &mut Diagnostics) {
 fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnostics) {
     let regions = net.regions();
     let mut reported: Vec<&str> = Vec::new();
-    for b in &s.budget_lines {
-        if let Some(r) = &b.region {
-            if !regions.contains(&r.as_str()) && !reported.contains(&b.group.as_str()) {
-                reported.push(&b.group);
+    let regional = s
+        .budget_lines
+        .iter()
+        .map(|b| (&b.region, b.group.as_str(), &b.place))
+        .chain(
+            s.plan
+                .targets
+                .iter()
+                .map(|t| (&t.region, t.group.as_str(), &t.place)),
+        );
+    for (region, group, place) in regional {
+        if let Some(r) = region {
+            if !regions.contains(&r.as_str()) && !reported.contains(&group) {
+                reported.push(group);
                 let e = d.error(
-                    b.place.clone().with_subfield("region"),
+                    place.clone().with_subfield("region"),
                     format!("the region `{r}`, which no section of {} has", net.file),
                     if regions.is_empty() {
                         "a region column in the network file".to_owned()
@@ -348,6 +377,17 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
                     e.hint = Some(format!("did you mean `{m}`?"));
                 }
             }
+        }
+    }
+    let ids: std::collections::HashSet<&str> =
+        net.sections.iter().map(|s| s.id.0.as_str()).collect();
+    for c in &s.plan.commitments {
+        if !ids.contains(c.section.as_str()) {
+            d.error(
+                c.place.clone().with_subfield("section"),
+                format!("the section `{}`, which {} does not have", c.section, net.file),
+                "a section_id of the network file",
+            );
         }
     }
     for sec in &net.sections {

@@ -161,6 +161,8 @@ pub struct Scenario {
     pub files: ScenarioFiles,
     pub unit_values: UnitValues,
     pub budget_lines: Vec<BudgetLine>,
+    /// Objective, commitments and condition targets for `plan`.
+    pub plan: super::plan::PlanRules,
     /// Model coefficients ([`super::models`]); defaults where the file is silent.
     pub models: super::models::Models,
 }
@@ -227,6 +229,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         .and_then(|v| v.table(d))
         .and_then(|t| read_unit_values(t, d));
     let budgets = top.get("budget");
+    let plan = super::plan::read(&mut top, period, d);
     let (models, families_ok) = super::models::read(&mut top, d);
     let families = families_ok.then(|| {
         models
@@ -242,6 +245,15 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         Some(v) => read_budgets(&v, period, d),
         None => Vec::new(),
     };
+    for t in &plan.targets {
+        if let Some(b) = budget_lines.iter().find(|b| b.group == t.group) {
+            d.error(
+                t.place.clone().with_subfield("name"),
+                format!("the name `{}`, also a [[budget]] name (line {})", t.group, b.place.line.unwrap_or(0)),
+                "target names that differ from budget names, so that every line has its own name",
+            );
+        }
+    }
     let scenario = (|| {
         let (frame, files, unit_values) = (frame?, files.clone()?, unit_values?);
         Some(Scenario {
@@ -254,6 +266,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
             files,
             unit_values,
             budget_lines,
+            plan,
             models,
         })
     })();

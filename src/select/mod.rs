@@ -12,6 +12,10 @@
 //!
 //! The caller puts a zero option in any group that may be left without works.
 
+pub mod dual;
+pub mod network;
+pub mod problem;
+
 use good_lp::{
     constraint, variable, Expression, ResolutionError, Solution, SolutionStatus, Solver,
     SolverModel, Variable,

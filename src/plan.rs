@@ -1,0 +1,563 @@
+//! Network planning: every section's strategies become candidates (value, and use of each budget
+//! line and condition target), the selection chooses one per section, and the chosen plan is
+//! re-checked against every budget line in exact decimal arithmetic.
+//!
+//! Only what selection needs is computed here — NPV (or PV agency cost), the yearly money each
+//! budget line counts and the condition each target counts — not the IRRs and incremental
+//! analysis of `appraise`, so that a million sections fit in time and memory.
+//!
+//! Rows: the budget lines first, in scenario order, then the target lines. A budget line counts
+//! a section's agency spending of its category in its year when the section is in its region (or
+//! the line has none); each section-year amount is rounded to the cent, the unit of the work
+//! programme. The residual value is credited after the period and counts against no line.
+
+use crate::diag::{Diagnostics, Place};
+use crate::economics::Discounting;
+use crate::enumerate::{Enumerator, Strategy};
+use crate::input::network::Section;
+use crate::input::plan::{Held, Measure, Objective};
+use crate::input::scenario::Category;
+use crate::input::Run;
+use crate::money::Money;
+use crate::select::network::{self, Infeasible, Options, Outcome};
+use crate::select::problem::{Offer, Problem};
+use crate::simulate::condition::{classify, ConditionClass};
+use crate::simulate::{SectionSim, Trace};
+use rayon::prelude::*;
+use rust_decimal::Decimal;
+use std::collections::HashMap;
+
+/// Sections per parallel chunk while building candidates.
+const CHUNK: usize = 512;
+
+/// What a row limits.
+#[derive(Debug, Clone, PartialEq)]
+pub enum RowKind {
+    /// Index into the scenario's budget lines.
+    Budget(usize),
+    /// Index into the scenario's target lines.
+    Target(usize),
+}
+
+/// One row of the selection.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Row {
+    pub name: String,
+    pub kind: RowKind,
+    /// The limit as the scenario gives it (after `--budget-scale`): money for budget lines;
+    /// for targets, the measure's limit (m/km or share).
+    pub limit: f64,
+    /// The limit in the row's own units (targets: length-weighted, km·m/km or km).
+    pub row_limit: f64,
+    /// Exact limit of a budget line.
+    pub money: Option<Money>,
+}
+
+/// Every section's candidates, ready for selection.
+#[derive(Debug, Clone)]
+pub struct Candidates {
+    pub rows: Vec<Row>,
+    pub problem: Problem,
+    pub objective: Objective,
+    /// Per candidate: the strategy's position in its section's enumeration, its NPV against the
+    /// base and its PV agency cost.
+    pub strategy: Vec<u32>,
+    pub npv: Vec<f64>,
+    pub pv_agency: Vec<f64>,
+    /// Per section (network order): the strategies enumerated, and the best one with no limits
+    /// (commitments still held) as (strategy position, NPV, PV agency cost).
+    pub enumerated: Vec<u32>,
+    pub unconstrained: Vec<(u32, f64, f64)>,
+    /// Per section: the base's PV agency cost.
+    pub base_pv_agency: Vec<f64>,
+}
+
+/// Settings of a planning run.
+#[derive(Debug, Clone, Copy)]
+pub struct Settings {
+    pub objective: Objective,
+    pub budget_scale: f64,
+    pub select: Options,
+}
+
+/// A checked plan.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    pub candidates: Candidates,
+    pub outcome: Outcome,
+    /// Per budget line (scenario order): the exact amount the plan spends.
+    pub spent: Vec<Money>,
+    /// Per target line: the plan's measure (mean IRI or poor share).
+    pub achieved: Vec<f64>,
+}
+
+impl Candidates {
+    pub fn sections(&self) -> usize {
+        self.problem.groups()
+    }
+
+    /// The global candidate index of the plan's choice for section `g`.
+    pub fn chosen(&self, plan: &[u16], g: usize) -> usize {
+        self.problem.global(g, plan[g])
+    }
+
+    /// A plan's objective as reported: total NPV, or total PV agency cost.
+    pub fn objective_of(&self, value: f64) -> f64 {
+        match self.objective {
+            Objective::Npv => value,
+            Objective::LeastCost => -value,
+        }
+    }
+}
+
+fn cents(x: f64) -> f64 {
+    (x * 100.0).round() / 100.0
+}
+
+/// A section's use of each row by one strategy's trace, as sparse (row, use).
+fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, f64)>) {
+    out.clear();
+    let s = &run.scenario;
+    let y0 = s.base_year;
+    for (j, row) in rows.iter().enumerate() {
+        let u = match row.kind {
+            RowKind::Budget(b) => {
+                let line = &s.budget_lines[b];
+                if line.region.is_some() && line.region != sec.region {
+                    continue;
+                }
+                let i = (line.year - y0) as usize;
+                let x = match line.category {
+                    Category::Capital => t.capital[i],
+                    Category::Routine => t.routine[i],
+                    Category::All => t.capital[i] + t.routine[i],
+                };
+                cents(x)
+            }
+            RowKind::Target(k) => {
+                let line = &s.plan.targets[k];
+                if line.region.is_some() && line.region != sec.region {
+                    continue;
+                }
+                let iri = t.iri[(line.year - y0) as usize];
+                match line.measure {
+                    Measure::MeanIri => sec.length_km * iri,
+                    Measure::PoorShare => {
+                        if classify(iri, &s.models.condition) == ConditionClass::Poor {
+                            sec.length_km
+                        } else {
+                            0.0
+                        }
+                    }
+                }
+            }
+        };
+        if u != 0.0 {
+            out.push((j as u16, u));
+        }
+    }
+}
+
+/// The rows of a run: its budget lines (scaled) and target lines.
+pub fn rows(run: &Run, budget_scale: f64) -> Vec<Row> {
+    let s = &run.scenario;
+    let mut rows = Vec::new();
+    let scale = Decimal::try_from(budget_scale).unwrap_or(Decimal::ONE);
+    for (b, line) in s.budget_lines.iter().enumerate() {
+        let m = Money((line.limit.0 * scale).round_dp(2));
+        rows.push(Row {
+            name: line.name.clone(),
+            kind: RowKind::Budget(b),
+            limit: m.to_f64(),
+            row_limit: m.to_f64(),
+            money: Some(m),
+        });
+    }
+    for (k, t) in s.plan.targets.iter().enumerate() {
+        let length: f64 = run
+            .network
+            .sections
+            .iter()
+            .filter(|sec| t.region.is_none() || sec.region == t.region)
+            .map(|sec| sec.length_km)
+            .sum();
+        rows.push(Row {
+            name: t.name.clone(),
+            kind: RowKind::Target(k),
+            limit: t.at_most,
+            row_limit: t.at_most * length,
+            money: None,
+        });
+    }
+    rows
+}
+
+struct SectionCands {
+    offers: Vec<Offer>,
+    strategy: Vec<u32>,
+    npv: Vec<f64>,
+    pv_agency: Vec<f64>,
+    enumerated: u32,
+    unconstrained: (u32, f64, f64),
+    base_pv_agency: f64,
+}
+
+/// The commitments of each section, by section id.
+fn commitments(run: &Run) -> HashMap<&str, Vec<&crate::input::plan::Commitment>> {
+    let mut m: HashMap<&str, Vec<_>> = HashMap::new();
+    for c in &run.scenario.plan.commitments {
+        m.entry(c.section.as_str()).or_default().push(c);
+    }
+    m
+}
+
+/// Simulate one section's strategies into candidates.
+fn section_candidates(
+    run: &Run,
+    e: &Enumerator<'_>,
+    rows: &[Row],
+    objective: Objective,
+    sec: &Section,
+    held: Option<&Vec<&crate::input::plan::Commitment>>,
+    problems: &mut Vec<(Place, String, String)>,
+) -> SectionCands {
+    let s = &run.scenario;
+    let d: &Discounting = &s.discounting;
+    let y0 = s.base_year;
+    let sim = SectionSim::new(run, sec);
+    let strategies: Vec<Strategy> = e.strategies(sec);
+    let mut base = Trace::default();
+    sim.run(&strategies[0], &mut base);
+    let base_flows = base.flows();
+    let mut trace = Trace::default();
+    let mut out = SectionCands {
+        offers: Vec::with_capacity(strategies.len()),
+        strategy: Vec::with_capacity(strategies.len()),
+        npv: Vec::with_capacity(strategies.len()),
+        pv_agency: Vec::with_capacity(strategies.len()),
+        enumerated: strategies.len() as u32,
+        unconstrained: (0, 0.0, 0.0),
+        base_pv_agency: d.pv(y0, &base_flows.agency),
+    };
+    let mut best: Option<(f64, u32, f64, f64)> = None;
+    let mut u = Vec::new();
+    for (i, st) in strategies.iter().enumerate() {
+        let t = if i == 0 {
+            &base
+        } else {
+            sim.run(st, &mut trace);
+            &trace
+        };
+        if let Some(cs) = held {
+            let ok = cs.iter().all(|c| match &c.held {
+                Held::Strategy(name) => *name == st.name,
+                Held::Treatment { treatment, year } => t.works.iter().any(|(wy, wt, _)| {
+                    y0 + *wy as i32 == *year && run.catalogue.treatments[*wt].id == *treatment
+                }),
+            });
+            if !ok {
+                continue;
+            }
+        }
+        let own = t.flows();
+        let flows = crate::appraise::increment(&own, &base_flows, y0);
+        let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
+        let pv_agency = d.pv(y0, &own.agency);
+        let value = match objective {
+            Objective::Npv => npv,
+            Objective::LeastCost => -pv_agency,
+        };
+        if best.is_none_or(|b| value > b.0) {
+            best = Some((value, i as u32, npv, pv_agency));
+        }
+        uses(run, rows, sec, t, &mut u);
+        out.offers.push(Offer {
+            value,
+            uses: u.clone(),
+        });
+        out.strategy.push(i as u32);
+        out.npv.push(npv);
+        out.pv_agency.push(pv_agency);
+    }
+    match best {
+        Some((_, i, npv, pva)) => out.unconstrained = (i, npv, pva),
+        None => {
+            // No strategy keeps every commitment of this section.
+            let cs = held.map(Vec::as_slice).unwrap_or(&[]);
+            for c in cs {
+                let (field, what) = match &c.held {
+                    Held::Strategy(n) => ("strategy", format!("the strategy `{n}`")),
+                    Held::Treatment { treatment, year } => (
+                        "treatment",
+                        format!("the treatment `{treatment}` in {year}"),
+                    ),
+                };
+                let names: Vec<&str> = strategies.iter().take(6).map(|s| s.name.as_str()).collect();
+                problems.push((
+                    c.place.clone().with_subfield(field),
+                    format!(
+                        "{what}, which no strategy of section `{}` gives{}",
+                        sec.id,
+                        if cs.len() > 1 { " together with its other commitments" } else { "" }
+                    ),
+                    format!(
+                        "one of its {} strategies (e.g. {}), or a treatment and year one of them applies",
+                        strategies.len(),
+                        names.join(", ")
+                    ),
+                ));
+            }
+        }
+    }
+    out
+}
+
+/// Simulate every section and build the selection problem. Bad commitments are input errors.
+pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::error::Error> {
+    let e = Enumerator::for_run(run);
+    let rows = rows(run, settings.budget_scale);
+    // Money rows get a margin of a cent and a part in 10⁹ below their limit, so that the
+    // selection's floating-point sums can never pass a limit the exact re-check holds.
+    let limits: Vec<f64> = rows
+        .iter()
+        .map(|r| match r.kind {
+            RowKind::Budget(_) => r.row_limit - 0.01 - 2e-9 * r.row_limit.abs(),
+            RowKind::Target(_) => r.row_limit,
+        })
+        .collect();
+    let held = commitments(run);
+    let secs = &run.network.sections;
+    type ChunkOut = (Problem, Vec<u32>, Vec<f64>, Vec<f64>, Vec<u32>, Vec<(u32, f64, f64)>, Vec<f64>, Vec<(Place, String, String)>, Option<String>);
+    let chunks: Vec<ChunkOut> = secs
+        .par_chunks(CHUNK)
+        .map(|chunk| {
+            let mut p = Problem::new(limits.clone());
+            let (mut st, mut npv, mut pva) = (Vec::new(), Vec::new(), Vec::new());
+            let (mut en, mut un, mut bp) = (Vec::new(), Vec::new(), Vec::new());
+            let mut problems = Vec::new();
+            let mut fault = None;
+            for sec in chunk {
+                let c = section_candidates(
+                    run,
+                    &e,
+                    &rows,
+                    settings.objective,
+                    sec,
+                    held.get(sec.id.0.as_str()),
+                    &mut problems,
+                );
+                en.push(c.enumerated);
+                un.push(c.unconstrained);
+                bp.push(c.base_pv_agency);
+                if c.offers.is_empty() {
+                    continue;
+                }
+                match p.push_group(&c.offers) {
+                    Ok(kept) => {
+                        for k in kept {
+                            st.push(c.strategy[k]);
+                            npv.push(c.npv[k]);
+                            pva.push(c.pv_agency[k]);
+                        }
+                    }
+                    Err(err) => {
+                        fault.get_or_insert(format!("section {}: {err}", sec.id));
+                    }
+                }
+            }
+            (p, st, npv, pva, en, un, bp, problems, fault)
+        })
+        .collect();
+    let mut out = Candidates {
+        rows,
+        problem: Problem::new(limits),
+        objective: settings.objective,
+        strategy: Vec::new(),
+        npv: Vec::new(),
+        pv_agency: Vec::new(),
+        enumerated: Vec::with_capacity(secs.len()),
+        unconstrained: Vec::with_capacity(secs.len()),
+        base_pv_agency: Vec::with_capacity(secs.len()),
+    };
+    let mut d = Diagnostics::new();
+    for (p, st, npv, pva, en, un, bp, problems, fault) in chunks {
+        if let Some(f) = fault {
+            return Err(crate::error::Error::Internal(f));
+        }
+        for (place, found, expected) in problems {
+            d.error(place, found, expected);
+        }
+        out.problem.append(p);
+        out.strategy.extend(st);
+        out.npv.extend(npv);
+        out.pv_agency.extend(pva);
+        out.enumerated.extend(en);
+        out.unconstrained.extend(un);
+        out.base_pv_agency.extend(bp);
+    }
+    if d.has_errors() {
+        return Err(crate::error::Error::Input(d));
+    }
+    Ok(out)
+}
+
+/// Build the candidates, select, and re-check the plan exactly.
+pub fn plan(run: &Run, settings: &Settings) -> Result<Plan, crate::error::Error> {
+    let candidates = candidates(run, settings)?;
+    select(run, candidates, &settings.select)
+}
+
+/// Select on built candidates and re-check the plan exactly.
+pub fn select(
+    run: &Run,
+    candidates: Candidates,
+    options: &Options,
+) -> Result<Plan, crate::error::Error> {
+    let outcome = match network::solve(&candidates.problem, options) {
+        Ok(o) => o,
+        Err(inf) => return Err(infeasible(run, &candidates, inf)),
+    };
+    let (spent, achieved) = recheck(run, &candidates, &outcome.plan)?;
+    Ok(Plan {
+        candidates,
+        outcome,
+        spent,
+        achieved,
+    })
+}
+
+fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error {
+    let money = &run.scenario.money_label;
+    let describe = |j: usize, amount: f64, verb: &str| -> String {
+        let row = &c.rows[j];
+        match row.kind {
+            RowKind::Budget(_) => format!(
+                "{}: limit {} {money}, {verb} {} {money}",
+                row.name,
+                crate::money::grouped(row.row_limit, 2),
+                crate::money::grouped(amount, 2)
+            ),
+            RowKind::Target(k) => {
+                let t = &run.scenario.plan.targets[k];
+                let per = if row.row_limit > 0.0 {
+                    amount / (row.row_limit / t.at_most.max(f64::MIN_POSITIVE))
+                } else {
+                    amount
+                };
+                format!(
+                    "{}: {} at most {}, {verb} {:.4}",
+                    row.name,
+                    t.measure.name(),
+                    t.at_most,
+                    per
+                )
+            }
+        }
+    };
+    let text = match inf {
+        Infeasible::Rows(rows) => {
+            let lines: Vec<String> = rows
+                .iter()
+                .map(|&(j, least)| describe(j, least, "least possible"))
+                .collect();
+            format!(
+                "these lines cannot be met even with the least spending (and best condition) every \
+                 section's commitments allow:\n  {}",
+                lines.join("\n  ")
+            )
+        }
+        Infeasible::Together(rows) => {
+            let lines: Vec<String> = rows
+                .iter()
+                .map(|&(j, used)| describe(j, used, "closest plan found"))
+                .collect();
+            format!(
+                "no plan was found that meets every line together; the closest plan found breaks:\n  {}",
+                lines.join("\n  ")
+            )
+        }
+    };
+    crate::error::Error::Infeasible(text)
+}
+
+/// Re-simulate the chosen strategies and sum every budget line's spending in exact decimal
+/// arithmetic (each section-year amount to the cent); fail if any line is exceeded. Also returns
+/// each target's achieved measure.
+pub fn recheck(
+    run: &Run,
+    c: &Candidates,
+    plan: &[u16],
+) -> Result<(Vec<Money>, Vec<f64>), crate::error::Error> {
+    let s = &run.scenario;
+    let e = Enumerator::for_run(run);
+    let secs = &run.network.sections;
+    let nb = s.budget_lines.len();
+    let nt = s.plan.targets.len();
+    let parts: Vec<(Vec<Decimal>, Vec<f64>)> = secs
+        .par_chunks(CHUNK)
+        .enumerate()
+        .map(|(ci, chunk)| {
+            let mut spent = vec![Decimal::ZERO; nb];
+            let mut target = vec![0.0; nt];
+            let mut t = Trace::default();
+            let mut u = Vec::new();
+            for (i, sec) in chunk.iter().enumerate() {
+                let g = ci * CHUNK + i;
+                let k = c.strategy[c.chosen(plan, g)] as usize;
+                let strategies = e.strategies(sec);
+                SectionSim::new(run, sec).run(&strategies[k], &mut t);
+                uses(run, &c.rows, sec, &t, &mut u);
+                for &(j, x) in &u {
+                    match c.rows[j as usize].kind {
+                        RowKind::Budget(b) => {
+                            spent[b] += Money::from_f64_rounded(x).map_or(Decimal::MAX, |m| m.0)
+                        }
+                        RowKind::Target(k) => target[k] += x,
+                    }
+                }
+            }
+            (spent, target)
+        })
+        .collect();
+    let mut spent = vec![Decimal::ZERO; nb];
+    let mut target = vec![0.0; nt];
+    for (sp, tg) in parts {
+        for (a, b) in spent.iter_mut().zip(sp) {
+            *a = a.saturating_add(b);
+        }
+        for (a, b) in target.iter_mut().zip(tg) {
+            *a += b;
+        }
+    }
+    let mut over = Vec::new();
+    for row in &c.rows {
+        if let (RowKind::Budget(b), Some(limit)) = (&row.kind, row.money) {
+            if spent[*b] > limit.0 {
+                over.push(format!("{} spends {} over {}", row.name, spent[*b], limit.0));
+            }
+        }
+    }
+    if !over.is_empty() {
+        return Err(crate::error::Error::Internal(format!(
+            "the chosen plan failed the exact re-check of its budget lines ({}); nothing was written",
+            over.join("; ")
+        )));
+    }
+    let mut achieved = Vec::with_capacity(nt);
+    for row in &c.rows {
+        if let RowKind::Target(k) = row.kind {
+            let length = if row.limit > 0.0 { row.row_limit / row.limit } else { 0.0 };
+            let length = if length > 0.0 {
+                length
+            } else {
+                let t = &s.plan.targets[k];
+                secs.iter()
+                    .filter(|sec| t.region.is_none() || sec.region == t.region)
+                    .map(|sec| sec.length_km)
+                    .sum()
+            };
+            achieved.push(if length > 0.0 { target[k] / length } else { 0.0 });
+        }
+    }
+    Ok((spent.into_iter().map(Money).collect(), achieved))
+}

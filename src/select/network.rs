@@ -1,0 +1,662 @@
+//! Network selection: one candidate per group, most total value, every row within its limit —
+//! by two paths behind one entry point, [`solve`].
+//!
+//! - **decomposed**: budget prices from the Lagrangian dual ([`super::dual`]); the groups the
+//!   final combination of price plans settles are fixed, the rest (contested) are chosen by a
+//!   repair to feasibility, an upgrade pass at the prices, and an exact MIP on the contested
+//!   groups over the money the fixed ones leave.
+//! - **exact**: the whole 0/1 programme through good_lp (microlp, or HiGHS with the `highs`
+//!   feature), warm-started from the decomposed plan and stopped at the time limit.
+//!
+//! Either way the dual gives an upper bound on every plan's value, so each run reports the
+//! plan's value, a bound and the gap between them — a certificate that needs no trust in the
+//! path that found the plan.
+
+use super::dual::{self, Prices};
+use super::problem::Problem;
+use good_lp::{
+    constraint, variable, Expression, ProblemVariables, ResolutionError, Solution,
+    SolutionStatus, Solver, SolverModel, Variable, WithInitialSolution, WithMipGap, WithTimeLimit,
+};
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
+
+/// Which path to take.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Method {
+    /// Exact for small problems, decomposed otherwise.
+    #[default]
+    Auto,
+    Exact,
+    Decomposed,
+}
+
+impl Method {
+    pub fn name(self) -> &'static str {
+        match self {
+            Method::Auto => "auto",
+            Method::Exact => "exact",
+            Method::Decomposed => "decomposed",
+        }
+    }
+}
+
+/// How a run ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Status {
+    /// The plan is proven optimal (gap within rounding).
+    Optimal,
+    /// The gap is within the requested gap.
+    WithinGap,
+    /// The time limit stopped the search with the gap above the requested one.
+    TimeLimit,
+    /// Every path finished but the gap stays above the requested one (the bound cannot be
+    /// tightened by these methods: a real integrality gap or an unsolved contested part).
+    GapOpen,
+}
+
+impl Status {
+    pub fn name(self) -> &'static str {
+        match self {
+            Status::Optimal => "optimal",
+            Status::WithinGap => "within-gap",
+            Status::TimeLimit => "time-limit",
+            Status::GapOpen => "gap-open",
+        }
+    }
+}
+
+/// Settings of a run.
+#[derive(Debug, Clone, Copy)]
+pub struct Options {
+    pub method: Method,
+    /// Requested relative gap.
+    pub gap: f64,
+    pub time_limit: Duration,
+}
+
+impl Default for Options {
+    fn default() -> Options {
+        Options {
+            method: Method::Auto,
+            gap: 1e-4,
+            time_limit: Duration::from_secs(60),
+        }
+    }
+}
+
+/// The result of a run.
+#[derive(Debug, Clone)]
+pub struct Outcome {
+    /// Position of the chosen candidate in each group.
+    pub plan: Vec<u16>,
+    pub value: f64,
+    pub used: Vec<f64>,
+    /// Upper bound on the value of any plan.
+    pub bound: f64,
+    pub gap: f64,
+    pub status: Status,
+    /// The path that ran (`exact` or `decomposed`).
+    pub method: Method,
+    /// Budget prices: value per unit of each row (zero where the row cannot bind).
+    pub prices: Vec<f64>,
+    /// Price updates of the dual.
+    pub iterations: usize,
+    /// Groups left contested by the price plans.
+    pub contested: usize,
+}
+
+/// Why there is no plan.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum Infeasible {
+    /// These rows cannot be met even if every group takes its smallest use of them: (row, least
+    /// possible use).
+    #[error("rows that no plan can meet")]
+    Rows(Vec<(usize, f64)>),
+    /// No plan was found that meets every row; these rows were broken by the closest plan found
+    /// (row, its use).
+    #[error("no plan found that meets every row together")]
+    Together(Vec<(usize, f64)>),
+}
+
+/// Problems at most this many candidates go to the exact path when the method is `auto`.
+pub const EXACT_AUTO_CANDIDATES: usize = 4000;
+/// Most groups handed to the exact solver as the contested part.
+const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 2000 } else { 150 };
+/// A group is settled when the price plans give one candidate at least this weight.
+const SETTLED: f64 = 0.9;
+
+fn tolerance(limit: f64) -> f64 {
+    1e-9 * limit.abs().max(1.0)
+}
+
+fn fits(used: &[f64], limits: &[f64]) -> bool {
+    used.iter()
+        .zip(limits)
+        .all(|(u, l)| *u <= l + tolerance(*l))
+}
+
+/// The relative gap between a plan's value and a bound.
+pub fn relative_gap(value: f64, bound: f64) -> f64 {
+    let diff = (bound - value).max(0.0);
+    if diff == 0.0 {
+        return 0.0;
+    }
+    diff / bound.abs().max(value.abs()).max(1e-9)
+}
+
+/// Choose one candidate per group.
+pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
+    let start = Instant::now();
+    let deadline = start + o.time_limit;
+    let rows = p.rows();
+    // Rows no plan can meet, even at each group's least use.
+    let mut least = vec![0.0; rows];
+    for g in 0..p.groups() {
+        let mut m = vec![f64::INFINITY; rows];
+        let mut seen = vec![false; rows];
+        let n = p.candidates(g).len();
+        let mut counts = vec![0usize; rows];
+        for c in p.candidates(g) {
+            let (rs, vs) = p.uses(c);
+            for (&j, &u) in rs.iter().zip(vs) {
+                let j = j as usize;
+                m[j] = m[j].min(u);
+                seen[j] = true;
+                counts[j] += 1;
+            }
+        }
+        for j in 0..rows {
+            if seen[j] {
+                // A candidate that does not use the row uses 0 of it.
+                let lo = if counts[j] < n { m[j].min(0.0) } else { m[j] };
+                least[j] += lo;
+            }
+        }
+    }
+    let broken: Vec<(usize, f64)> = (0..rows)
+        .filter(|&j| least[j] > p.limits[j] + tolerance(p.limits[j]))
+        .map(|j| (j, least[j]))
+        .collect();
+    if !broken.is_empty() {
+        return Err(Infeasible::Rows(broken));
+    }
+
+    let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
+    let prices = dual::minimise(p, dual_tol, 3000, deadline);
+    let bound = prices.bound;
+    let (mut plan, contested) = recover(p, &prices);
+    let mut used = p.plan_use(&plan);
+    if !fits(&used, &p.limits) {
+        repair(p, &mut plan, &mut used);
+    }
+    if fits(&used, &p.limits) {
+        upgrade(p, &mut plan, &mut used, &prices.prices);
+    }
+    let mut method = Method::Decomposed;
+    let mut proven = false;
+    let small = p.candidate_count() <= EXACT_AUTO_CANDIDATES;
+    let want_exact = match o.method {
+        Method::Exact => true,
+        Method::Auto => small,
+        Method::Decomposed => false,
+    };
+    let value_now = |plan: &[u16]| p.plan_value(plan);
+    let gap_now = |plan: &[u16], used: &[f64]| {
+        if fits(used, &p.limits) {
+            relative_gap(value_now(plan), bound)
+        } else {
+            f64::INFINITY
+        }
+    };
+    if want_exact {
+        method = Method::Exact;
+        if gap_now(&plan, &used) > o.gap * 1e-3 {
+            let warm = fits(&used, &p.limits).then(|| plan.clone());
+            let left = deadline.saturating_duration_since(Instant::now());
+            match exact(p.clone(), warm, left, o.gap) {
+                Some((x, optimal)) => {
+                    let u = p.plan_use(&x);
+                    if fits(&u, &p.limits)
+                        && (!fits(&used, &p.limits) || p.plan_value(&x) >= p.plan_value(&plan))
+                    {
+                        plan = x;
+                        used = u;
+                    }
+                    proven = optimal && fits(&used, &p.limits);
+                }
+                None => {}
+            }
+        }
+    } else if gap_now(&plan, &used) > o.gap && Instant::now() < deadline {
+        improve_contested(p, &mut plan, &mut used, &prices, deadline, o.gap);
+    }
+    if !fits(&used, &p.limits) {
+        let broken = (0..rows)
+            .filter(|&j| used[j] > p.limits[j] + tolerance(p.limits[j]))
+            .map(|j| (j, used[j]))
+            .collect();
+        return Err(Infeasible::Together(broken));
+    }
+    let value = p.plan_value(&plan);
+    // A solver's proof is to within the gap it was asked for.
+    let bound = if proven {
+        bound.min(value + o.gap * value.abs()).max(value)
+    } else {
+        bound.max(value)
+    };
+    let gap = relative_gap(value, bound);
+    let timed_out = Instant::now() >= deadline;
+    let status = if proven || gap <= 1e-9 {
+        Status::Optimal
+    } else if gap <= o.gap {
+        Status::WithinGap
+    } else if timed_out {
+        Status::TimeLimit
+    } else {
+        Status::GapOpen
+    };
+    Ok(Outcome {
+        plan,
+        value,
+        used,
+        bound,
+        gap,
+        status,
+        method,
+        prices: prices.prices,
+        iterations: prices.iterations,
+        contested,
+    })
+}
+
+/// The plan the price plans' combination points to: each group's heaviest candidate. Returns
+/// it and the number of groups with no candidate of weight ≥ [`SETTLED`].
+fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, usize) {
+    if prices.weights.is_empty() {
+        return (prices.at_best.plan.clone(), 0);
+    }
+    let mut plan = vec![0u16; p.groups()];
+    let mut contested = 0;
+    let mut w: Vec<(u16, f64)> = Vec::new();
+    for (g, slot) in plan.iter_mut().enumerate() {
+        w.clear();
+        for (pl, mu) in prices.plans.iter().zip(&prices.weights) {
+            if *mu <= 0.0 {
+                continue;
+            }
+            let k = pl.0[g];
+            match w.iter_mut().find(|(kk, _)| *kk == k) {
+                Some(e) => e.1 += mu,
+                None => w.push((k, *mu)),
+            }
+        }
+        let (k, m) = w
+            .iter()
+            .copied()
+            .max_by(|a, b| a.1.total_cmp(&b.1).then(b.0.cmp(&a.0)))
+            .unwrap_or((prices.at_best.plan[g], 1.0));
+        *slot = k;
+        if m < SETTLED {
+            contested += 1;
+        }
+    }
+    (plan, contested)
+}
+
+/// Move groups to other candidates until every row fits, giving up as little value as possible
+/// per unit of excess removed. Returns whether the plan fits.
+fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64]) -> bool {
+    let rows = p.rows();
+    let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
+    let excess = |used: &[f64]| -> f64 {
+        (0..rows)
+            .map(|j| (used[j] - p.limits[j]).max(0.0) / scale[j])
+            .sum()
+    };
+    for _round in 0..50 {
+        if fits(used, &p.limits) {
+            return true;
+        }
+        let over: Vec<bool> = (0..rows)
+            .map(|j| used[j] > p.limits[j] + tolerance(p.limits[j]))
+            .collect();
+        // Every move of a group that uses an over-limit row, scored by the excess it removes
+        // (alone) per value given up.
+        let mut moves: Vec<(f64, usize, u16)> = Vec::new();
+        let e0 = excess(used);
+        let mut trial = used.to_vec();
+        for g in 0..p.groups() {
+            let cur = p.global(g, plan[g]);
+            let (rs, _) = p.uses(cur);
+            if !rs.iter().any(|&j| over[j as usize]) {
+                continue;
+            }
+            for c in p.candidates(g) {
+                if c == cur {
+                    continue;
+                }
+                trial.copy_from_slice(used);
+                apply(p, &mut trial, cur, c);
+                let removed = e0 - excess(&trial);
+                if removed <= 0.0 {
+                    continue;
+                }
+                let loss = (p.value(cur) - p.value(c)).max(0.0) + 1e-12 * (p.value(cur).abs() + 1.0);
+                moves.push((removed / loss, g, (c - p.candidates(g).start) as u16));
+            }
+        }
+        if moves.is_empty() {
+            return false;
+        }
+        moves.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+        let mut moved = false;
+        let mut done_groups: Vec<usize> = Vec::new();
+        for (_, g, k) in moves {
+            if fits(used, &p.limits) {
+                break;
+            }
+            if done_groups.contains(&g) {
+                continue;
+            }
+            let cur = p.global(g, plan[g]);
+            let c = p.global(g, k);
+            trial.copy_from_slice(used);
+            apply(p, &mut trial, cur, c);
+            if excess(&trial) < excess(used) {
+                used.copy_from_slice(&trial);
+                plan[g] = k;
+                moved = true;
+                done_groups.push(g);
+            }
+        }
+        if !moved {
+            return false;
+        }
+    }
+    fits(used, &p.limits)
+}
+
+/// Replace candidate `from` by `to` in a row-use vector.
+fn apply(p: &Problem, used: &mut [f64], from: usize, to: usize) {
+    let (rs, vs) = p.uses(from);
+    for (&j, &u) in rs.iter().zip(vs) {
+        used[j as usize] -= u;
+    }
+    let (rs, vs) = p.uses(to);
+    for (&j, &u) in rs.iter().zip(vs) {
+        used[j as usize] += u;
+    }
+}
+
+/// Whether replacing `from` by `to` keeps every row within its limit.
+fn move_fits(p: &Problem, used: &[f64], from: usize, to: usize, delta: &mut [f64]) -> bool {
+    let (rs, vs) = p.uses(to);
+    for (&j, &u) in rs.iter().zip(vs) {
+        delta[j as usize] += u;
+    }
+    let (rs, vs) = p.uses(from);
+    for (&j, &u) in rs.iter().zip(vs) {
+        delta[j as usize] -= u;
+    }
+    let mut ok = true;
+    for rs in [p.uses(to).0, p.uses(from).0] {
+        for &j in rs {
+            let j = j as usize;
+            if delta[j] > 0.0 && used[j] + delta[j] > p.limits[j] + tolerance(p.limits[j]) {
+                ok = false;
+            }
+        }
+    }
+    for rs in [p.uses(to).0, p.uses(from).0] {
+        for &j in rs {
+            delta[j as usize] = 0.0;
+        }
+    }
+    ok
+}
+
+/// Upgrade groups to candidates of more value while the rows allow, best value per priced use
+/// first, until a pass changes nothing.
+fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
+    let rows = p.rows();
+    let mut delta = vec![0.0; rows];
+    for _pass in 0..20 {
+        let mut moves: Vec<(f64, usize, u16)> = Vec::new();
+        for g in 0..p.groups() {
+            let cur = p.global(g, plan[g]);
+            let v0 = p.value(cur);
+            let mut best: Option<(f64, u16)> = None;
+            for c in p.candidates(g) {
+                let gain = p.value(c) - v0;
+                if gain <= 0.0 || !move_fits(p, used, cur, c, &mut delta) {
+                    continue;
+                }
+                let (rs, vs) = p.uses(c);
+                let mut cost: f64 = rs
+                    .iter()
+                    .zip(vs)
+                    .map(|(&j, &u)| prices[j as usize] * u)
+                    .sum();
+                let (rs, vs) = p.uses(cur);
+                cost -= rs
+                    .iter()
+                    .zip(vs)
+                    .map(|(&j, &u)| prices[j as usize] * u)
+                    .sum::<f64>();
+                let score = gain / cost.max(1e-12 * gain);
+                if best.is_none_or(|b| score > b.0) {
+                    best = Some((score, (c - p.candidates(g).start) as u16));
+                }
+            }
+            if let Some((s, k)) = best {
+                moves.push((s, g, k));
+            }
+        }
+        if moves.is_empty() {
+            return;
+        }
+        moves.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut changed = false;
+        for (_, g, k) in moves {
+            let cur = p.global(g, plan[g]);
+            let c = p.global(g, k);
+            if p.value(c) > p.value(cur) && move_fits(p, used, cur, c, &mut delta) {
+                apply(p, used, cur, c);
+                plan[g] = k;
+                changed = true;
+            }
+        }
+        if !changed {
+            return;
+        }
+    }
+}
+
+/// Solve the contested groups (and the nearest ties at the final prices) exactly over the rows'
+/// room left by the others; keep the result if it is worth more.
+fn improve_contested(
+    p: &Problem,
+    plan: &mut [u16],
+    used: &mut [f64],
+    prices: &Prices,
+    deadline: Instant,
+    gap: f64,
+) {
+    let lambda = &prices.prices;
+    // Rank groups by how close their best two candidates are at the final prices, contested
+    // (split by the price plans) first.
+    let mut weight_split = vec![false; p.groups()];
+    if !prices.weights.is_empty() {
+        for g in 0..p.groups() {
+            let mut first: Option<u16> = None;
+            for (pl, mu) in prices.plans.iter().zip(&prices.weights) {
+                if *mu <= 1e-12 {
+                    continue;
+                }
+                match first {
+                    None => first = Some(pl.0[g]),
+                    Some(k) if k != pl.0[g] => weight_split[g] = true,
+                    _ => {}
+                }
+            }
+        }
+    }
+    let mut ranked: Vec<(bool, f64, usize)> = (0..p.groups())
+        .filter(|&g| p.candidates(g).len() > 1)
+        .map(|g| {
+            let mut r: Vec<f64> = p
+                .candidates(g)
+                .map(|c| {
+                    let (rs, vs) = p.uses(c);
+                    p.value(c)
+                        - rs.iter()
+                            .zip(vs)
+                            .map(|(&j, &u)| lambda[j as usize] * u)
+                            .sum::<f64>()
+                })
+                .collect();
+            r.sort_by(|a, b| b.total_cmp(a));
+            let margin = (r[0] - r[1]) / (r[0].abs().max(1.0));
+            (!weight_split[g], margin, g)
+        })
+        .collect();
+    ranked.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.total_cmp(&b.1)).then(a.2.cmp(&b.2)));
+    let mut chosen: Vec<usize> = ranked.iter().take(CONTESTED_CAP).map(|r| r.2).collect();
+    if chosen.is_empty() {
+        return;
+    }
+    chosen.sort_unstable();
+    let mut limits = p.limits.clone();
+    let mut inside = vec![false; p.groups()];
+    for &g in &chosen {
+        inside[g] = true;
+    }
+    let others = {
+        let mut u = vec![0.0; p.rows()];
+        for g in 0..p.groups() {
+            if inside[g] {
+                continue;
+            }
+            let (rs, vs) = p.uses(p.global(g, plan[g]));
+            for (&j, &x) in rs.iter().zip(vs) {
+                u[j as usize] += x;
+            }
+        }
+        u
+    };
+    for (l, o) in limits.iter_mut().zip(&others) {
+        *l -= o;
+    }
+    let sub = p.subset(&chosen, limits);
+    let warm: Vec<u16> = chosen.iter().map(|&g| plan[g]).collect();
+    let left = deadline.saturating_duration_since(Instant::now());
+    if let Some((x, _)) = exact(sub, Some(warm.clone()), left, gap) {
+        let mut candidate = plan.to_vec();
+        for (&g, &k) in chosen.iter().zip(&x) {
+            candidate[g] = k;
+        }
+        let u = p.plan_use(&candidate);
+        if fits(&u, &p.limits) && p.plan_value(&candidate) > p.plan_value(plan) {
+            plan.copy_from_slice(&candidate);
+            used.copy_from_slice(&u);
+        }
+    }
+}
+
+/// The whole problem `p` as a 0/1 programme, solved with this build's solver within `time`;
+/// `None` when it found no plan. The flag is true when the solver proved the plan optimal.
+/// The solve runs on its own thread and is abandoned (its result ignored) if it overruns the
+/// time by more than a second: solvers do not always stop on time.
+pub fn exact(p: Problem, warm: Option<Vec<u16>>, time: Duration, gap: f64) -> Option<(Vec<u16>, bool)> {
+    if time.is_zero() {
+        return None;
+    }
+    let (tx, rx) = mpsc::channel();
+    let secs = time.as_secs_f64();
+    std::thread::Builder::new()
+        .name("exact-selection".into())
+        .spawn(move || {
+            #[cfg(feature = "highs")]
+            let r = exact_with(good_lp::highs, &p, warm.as_deref(), secs, gap);
+            #[cfg(not(feature = "highs"))]
+            let r = exact_with(good_lp::microlp, &p, warm.as_deref(), secs, gap);
+            let _ = tx.send(r);
+        })
+        .ok()?;
+    rx.recv_timeout(time + Duration::from_secs(1)).ok().flatten()
+}
+
+fn exact_with<S: Solver>(
+    solver: S,
+    p: &Problem,
+    warm: Option<&[u16]>,
+    secs: f64,
+    gap: f64,
+) -> Option<(Vec<u16>, bool)>
+where
+    S::Model: WithTimeLimit + WithInitialSolution + WithMipGap,
+    <S::Model as SolverModel>::Error: Into<ResolutionError>,
+{
+    let mut vars = ProblemVariables::new();
+    let x: Vec<Vec<Variable>> = (0..p.groups())
+        .map(|g| p.candidates(g).map(|_| vars.add(variable().binary())).collect())
+        .collect();
+    let vscale = (0..p.candidate_count())
+        .map(|c| p.value(c).abs())
+        .fold(1.0, f64::max);
+    let mut objective = Expression::from(0.0);
+    for (g, xs) in x.iter().enumerate() {
+        for (c, v) in p.candidates(g).zip(xs) {
+            objective.add_mul(p.value(c) / vscale, *v);
+        }
+    }
+    let mut rows: Vec<Expression> = (0..p.rows()).map(|_| Expression::from(0.0)).collect();
+    let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
+    for (g, xs) in x.iter().enumerate() {
+        for (c, v) in p.candidates(g).zip(xs) {
+            let (rs, vs) = p.uses(c);
+            for (&j, &u) in rs.iter().zip(vs) {
+                rows[j as usize].add_mul(u / scale[j as usize], *v);
+            }
+        }
+    }
+    let mut model = vars.maximise(objective).using(solver);
+    for xs in &x {
+        let one: Expression = xs.iter().copied().sum();
+        model = model.with(constraint!(one == 1.0));
+    }
+    for (j, row) in rows.into_iter().enumerate() {
+        model = model.with(constraint!(row <= p.limits[j] / scale[j]));
+    }
+    if let Some(w) = warm {
+        let start: Vec<(Variable, f64)> = x
+            .iter()
+            .zip(w)
+            .flat_map(|(xs, &k)| {
+                xs.iter()
+                    .enumerate()
+                    .map(move |(i, v)| (*v, if i == k as usize { 1.0 } else { 0.0 }))
+            })
+            .collect();
+        model = model.with_initial_solution(start);
+    }
+    model = model.with_time_limit(secs.max(0.01));
+    if let Ok(m) = model.with_mip_gap((gap as f32).max(0.0)) {
+        model = m;
+    } else {
+        return None;
+    }
+    let s = model.solve().map_err(Into::into).ok()?;
+    let optimal = matches!(s.status(), SolutionStatus::Optimal);
+    let plan: Vec<u16> = x
+        .iter()
+        .map(|xs| {
+            xs.iter()
+                .enumerate()
+                .max_by(|a, b| s.value(*a.1).total_cmp(&s.value(*b.1)))
+                .map_or(0, |(k, _)| k as u16)
+        })
+        .collect();
+    Some((plan, optimal))
+}
