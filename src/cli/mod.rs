@@ -9,6 +9,7 @@ pub mod appraise;
 pub mod cashflow;
 pub mod check;
 pub mod init;
+pub mod plan;
 
 use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use clap::{Parser, Subcommand};
@@ -47,6 +48,10 @@ pub enum Command {
     /// Simulate every section under every strategy and appraise each against the base.
     #[command(after_help = AFTER_HELP)]
     Appraise(appraise::Args),
+    /// Choose every section's strategy within the budget lines: the work programme, with
+    /// budget prices and an optimality certificate.
+    #[command(after_help = AFTER_HELP)]
+    Plan(plan::Args),
     /// Write the demo scenario's files (or a synthetic network) into a directory to edit.
     #[command(after_help = AFTER_HELP)]
     Init(init::Args),
@@ -131,6 +136,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Check(a) => check::run(a, ctx),
         Command::Appraise(a) => appraise::run(a, ctx),
         Command::Init(a) => init::run(a, ctx),
+        Command::Plan(a) => plan::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

@@ -80,7 +80,7 @@ impl Default for Options {
         Options {
             method: Method::Auto,
             gap: 1e-4,
-            time_limit: Duration::from_secs(60),
+            time_limit: Duration::from_secs(10),
         }
     }
 }
@@ -122,7 +122,11 @@ pub enum Infeasible {
 /// Problems at most this many candidates go to the exact path when the method is `auto`.
 pub const EXACT_AUTO_CANDIDATES: usize = 4000;
 /// Most groups handed to the exact solver as the contested part.
-const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 2000 } else { 150 };
+const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 1000 } else { 60 };
+/// Problems at most this many candidates get the pair-exchange search.
+const SWAP_CANDIDATES: usize = 60_000;
+/// Most time one window of the neighbourhood search may take.
+const WINDOW_TIME: Duration = Duration::from_secs(2);
 /// A group is settled when the price plans give one candidate at least this weight.
 const SETTLED: f64 = 0.9;
 
@@ -192,6 +196,19 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
     if fits(&used, &p.limits) {
         upgrade(p, &mut plan, &mut used, &prices.prices);
+        if p.candidate_count() <= SWAP_CANDIDATES {
+            swap_search(p, &mut plan, &mut used, deadline);
+        }
+    }
+    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
+    if debug {
+        eprintln!(
+            "dual: bound {bound} after {} updates, {:.2} s; recovered plan {} fits {} contested {contested}",
+            prices.iterations,
+            start.elapsed().as_secs_f64(),
+            p.plan_value(&plan),
+            fits(&used, &p.limits)
+        );
     }
     let mut method = Method::Decomposed;
     let mut proven = false;
@@ -473,8 +490,75 @@ fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
     }
 }
 
-/// Solve the contested groups (and the nearest ties at the final prices) exactly over the rows'
-/// room left by the others; keep the result if it is worth more.
+/// Pair exchanges: move two groups at once (typically one gives up money that lets the other
+/// take a better candidate) when the pair raises the plan's value and every row still fits.
+/// Takes the best exchange found in each sweep until none improves or the deadline passes.
+fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instant) {
+    let rows = p.rows();
+    let n = p.candidate_count();
+    // Each candidate's group.
+    let mut group = vec![0usize; n];
+    for g in 0..p.groups() {
+        for c in p.candidates(g) {
+            group[c] = g;
+        }
+    }
+    let mut delta = vec![0.0; rows];
+    for _sweep in 0..1000 {
+        // Moves away from the current plan, with their value gain, best first.
+        let mut moves: Vec<(f64, usize)> = (0..n)
+            .filter(|&c| c != p.global(group[c], plan[group[c]]))
+            .map(|c| (p.value(c) - p.value(p.global(group[c], plan[group[c]])), c))
+            .collect();
+        moves.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut best: Option<(f64, usize, usize)> = None;
+        'outer: for (i, &(g1, c1)) in moves.iter().enumerate() {
+            if Instant::now() >= deadline {
+                break;
+            }
+            if g1 <= best.map_or(0.0, |b| b.0) / 2.0 && g1 <= 0.0 {
+                break;
+            }
+            let cur1 = p.global(group[c1], plan[group[c1]]);
+            for &(g2, c2) in &moves[i + 1..] {
+                let gain = g1 + g2;
+                if gain <= best.map_or(1e-9 * p.value(cur1).abs().max(1.0), |b| b.0) {
+                    continue 'outer;
+                }
+                if group[c2] == group[c1] {
+                    continue;
+                }
+                let cur2 = p.global(group[c2], plan[group[c2]]);
+                for (c, sign) in [(c1, 1.0), (cur1, -1.0), (c2, 1.0), (cur2, -1.0)] {
+                    let (rs, vs) = p.uses(c);
+                    for (&j, &u) in rs.iter().zip(vs) {
+                        delta[j as usize] += sign * u;
+                    }
+                }
+                let ok = (0..rows).all(|j| {
+                    delta[j] <= 0.0 || used[j] + delta[j] <= p.limits[j] + tolerance(p.limits[j])
+                });
+                delta.iter_mut().for_each(|d| *d = 0.0);
+                if ok {
+                    best = Some((gain, c1, c2));
+                }
+            }
+        }
+        let Some((_, c1, c2)) = best else { return };
+        for c in [c1, c2] {
+            let g = group[c];
+            let cur = p.global(g, plan[g]);
+            apply(p, used, cur, c);
+            plan[g] = (c - p.candidates(g).start) as u16;
+        }
+    }
+}
+
+/// Neighbourhood search: solve windows of groups exactly over the rows' room the other groups
+/// leave, keeping each result that is worth more. The windows come from a ranking with the
+/// contested groups (split by the price plans) first, then by how close each group's best two
+/// candidates are at the final prices; the first window is the most contested part. Stops when
+/// the plan is within `gap` of `bound`, at the deadline, or after a full sweep with no gain.
 fn improve_contested(
     p: &Problem,
     plan: &mut [u16],
@@ -484,8 +568,6 @@ fn improve_contested(
     gap: f64,
 ) {
     let lambda = &prices.prices;
-    // Rank groups by how close their best two candidates are at the final prices, contested
-    // (split by the price plans) first.
     let mut weight_split = vec![false; p.groups()];
     if !prices.weights.is_empty() {
         for g in 0..p.groups() {
@@ -522,36 +604,46 @@ fn improve_contested(
         })
         .collect();
     ranked.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.total_cmp(&b.1)).then(a.2.cmp(&b.2)));
-    let mut chosen: Vec<usize> = ranked.iter().take(CONTESTED_CAP).map(|r| r.2).collect();
-    if chosen.is_empty() {
+    if ranked.is_empty() {
         return;
     }
-    chosen.sort_unstable();
-    let mut limits = p.limits.clone();
+    let order: Vec<usize> = ranked.iter().map(|r| r.2).collect();
+    let size = CONTESTED_CAP.min(order.len());
+    let step = (size / 2).max(1);
+    let mut offset = 0;
+    let mut since_gain = 0;
     let mut inside = vec![false; p.groups()];
-    for &g in &chosen {
-        inside[g] = true;
-    }
-    let others = {
-        let mut u = vec![0.0; p.rows()];
+    while Instant::now() < deadline && since_gain < order.len() + size {
+        if relative_gap(p.plan_value(plan), prices.bound) <= gap {
+            return;
+        }
+        let mut chosen: Vec<usize> = (0..size).map(|i| order[(offset + i) % order.len()]).collect();
+        chosen.sort_unstable();
+        chosen.dedup();
+        offset = (offset + step) % order.len();
+        since_gain += step;
+        for &g in &chosen {
+            inside[g] = true;
+        }
+        let mut limits = p.limits.clone();
         for g in 0..p.groups() {
             if inside[g] {
                 continue;
             }
             let (rs, vs) = p.uses(p.global(g, plan[g]));
             for (&j, &x) in rs.iter().zip(vs) {
-                u[j as usize] += x;
+                limits[j as usize] -= x;
             }
         }
-        u
-    };
-    for (l, o) in limits.iter_mut().zip(&others) {
-        *l -= o;
-    }
-    let sub = p.subset(&chosen, limits);
-    let warm: Vec<u16> = chosen.iter().map(|&g| plan[g]).collect();
-    let left = deadline.saturating_duration_since(Instant::now());
-    if let Some((x, _)) = exact(sub, Some(warm.clone()), left, gap) {
+        for &g in &chosen {
+            inside[g] = false;
+        }
+        let sub = p.subset(&chosen, limits);
+        let warm: Vec<u16> = chosen.iter().map(|&g| plan[g]).collect();
+        let left = deadline.saturating_duration_since(Instant::now());
+        let Some((x, _)) = exact(sub, Some(warm), left.min(WINDOW_TIME), gap / 10.0) else {
+            continue;
+        };
         let mut candidate = plan.to_vec();
         for (&g, &k) in chosen.iter().zip(&x) {
             candidate[g] = k;
@@ -560,6 +652,11 @@ fn improve_contested(
         if fits(&u, &p.limits) && p.plan_value(&candidate) > p.plan_value(plan) {
             plan.copy_from_slice(&candidate);
             used.copy_from_slice(&u);
+            since_gain = 0;
+        }
+        if order.len() <= size {
+            // One window holds every group: nothing else to try.
+            return;
         }
     }
 }
@@ -648,7 +745,8 @@ where
         return None;
     }
     let s = model.solve().map_err(Into::into).ok()?;
-    let optimal = matches!(s.status(), SolutionStatus::Optimal);
+    // Proven optimal, or proven within the gap it was given.
+    let optimal = matches!(s.status(), SolutionStatus::Optimal | SolutionStatus::GapLimit);
     let plan: Vec<u16> = x
         .iter()
         .map(|xs| {

@@ -1,0 +1,524 @@
+//! `pavestrat plan`: choose every section's strategy so that the network's total NPV (or least
+//! PV agency cost, within condition targets) is best within the scenario's budget lines.
+//!
+//! Prints the plan's value against the unconstrained choice and the base, spending against every
+//! line with its budget price, and the certificate (value, bound, gap, status). With `--out DIR`
+//! it writes:
+//! - `work_programme.csv`: `year,section_id,treatment,cost,region,category` — every treatment
+//!   of the plan, by year;
+//! - `section_plan.csv`: each section's strategy, NPV and PV agency cost, and what it would get
+//!   with no limits;
+//! - `budget_use.csv`: `line,year,limit,used,price,category,region,slack` — one row per budget
+//!   line; `price` is the budget price, value per unit of money in that line;
+//! - `target_use.csv`: one row per condition-target line;
+//! - `candidates.csv`: every candidate left after dominated ones are removed —
+//!   `section_id,strategy,npv,pv_agency_cost`, then `cost:<line>` per budget line and
+//!   `use:<line>` per target line (length-weighted), enough to re-solve the selection elsewhere;
+//! - `summary.json`: the certificate and the run's facts.
+
+use super::{load_scenario, parse_rate, Context, OutArg};
+use crate::enumerate::Enumerator;
+use crate::error::{Error, Result};
+use crate::format::{Amount, Field};
+use crate::input::plan::Objective;
+use crate::input::Run;
+use crate::io::{print_stdout, StreamSet};
+use crate::money::grouped;
+use crate::plan::{Candidates, Plan, RowKind, Settings};
+use crate::select::network::{Method, Options};
+use crate::simulate::{SectionSim, Trace};
+use rayon::prelude::*;
+use std::fmt::Write as _;
+use std::path::PathBuf;
+use std::time::{Duration, Instant};
+
+/// Arguments of `plan`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Scenario file (TOML). Without it, the built-in demo is used (and said so).
+    #[arg(long, value_name = "FILE")]
+    pub scenario: Option<PathBuf>,
+
+    /// Multiply every budget line's limit by this factor (e.g. 0.8 for a 20 % cut).
+    #[arg(long, value_name = "X", default_value_t = 1.0, value_parser = parse_scale)]
+    pub budget_scale: f64,
+
+    /// What to optimise; overrides the scenario's [plan] objective.
+    #[arg(long, value_name = "WHAT", value_parser = ["npv", "least-cost"])]
+    pub objective: Option<String>,
+
+    /// Solution path: exact (the whole 0/1 programme), decomposed (budget prices, then the
+    /// contested sections exactly), or auto (exact for small networks).
+    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "exact", "decomposed"])]
+    pub method: String,
+
+    /// Stop once the plan is proven within this relative gap of the bound (fraction or %).
+    #[arg(long, value_name = "GAP", default_value = "0.0001", value_parser = parse_gap)]
+    pub gap: f64,
+
+    /// Most seconds the selection may take (the simulation before it is not counted).
+    #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
+    pub time_limit: f64,
+
+    #[command(flatten)]
+    pub out: OutArg,
+}
+
+fn parse_scale(s: &str) -> std::result::Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(x) if x.is_finite() && x >= 0.0 && x <= 1e6 => Ok(x),
+        _ => Err(format!(
+            "`{s}` is not a budget factor; expected a number from 0 to 1000000, e.g. 0.8"
+        )),
+    }
+}
+
+fn parse_gap(s: &str) -> std::result::Result<f64, String> {
+    let g = parse_rate(s)?;
+    if !(0.0..1.0).contains(&g) {
+        return Err(format!(
+            "`{s}` is not a usable gap; expected a fraction from 0 to below 1, e.g. 0.0001 or 0.01%"
+        ));
+    }
+    Ok(g)
+}
+
+fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(x) if x.is_finite() && x > 0.0 && x <= 1e6 => Ok(x),
+        _ => Err(format!(
+            "`{s}` is not a time limit; expected seconds above 0, e.g. 60"
+        )),
+    }
+}
+
+/// The output files, in the order they are created.
+pub const FILES: [&str; 6] = [
+    "work_programme.csv",
+    "section_plan.csv",
+    "budget_use.csv",
+    "target_use.csv",
+    "candidates.csv",
+    "summary.json",
+];
+
+/// Run `plan`.
+pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let started = Instant::now();
+    let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
+    let Some(run) = run else {
+        return Err(Error::Input(diags));
+    };
+    ctx.notes(&diags);
+    let objective = match args.objective.as_deref() {
+        Some(o) => Objective::parse(o).unwrap_or_default(),
+        None => run.scenario.plan.objective,
+    };
+    let method = match args.method.as_str() {
+        "exact" => Method::Exact,
+        "decomposed" => Method::Decomposed,
+        _ => Method::Auto,
+    };
+    let settings = Settings {
+        objective,
+        budget_scale: args.budget_scale,
+        select: Options {
+            method,
+            gap: args.gap,
+            time_limit: Duration::from_secs_f64(args.time_limit),
+        },
+    };
+    let candidates = crate::plan::candidates(&run, &settings)?;
+    let built = started.elapsed();
+    let selecting = Instant::now();
+    let plan = crate::plan::select(&run, candidates, &settings.select)?;
+    let selection_seconds = selecting.elapsed().as_secs_f64();
+    let facts = Facts {
+        seconds: started.elapsed().as_secs_f64(),
+        candidate_seconds: built.as_secs_f64(),
+        selection_seconds,
+        budget_scale: args.budget_scale,
+        requested_gap: args.gap,
+    };
+    if let Some(dir) = &args.out.out {
+        let mut set = StreamSet::create(dir, &FILES)?;
+        write_files(&run, &plan, &facts, &mut set)?;
+        for p in set.commit()? {
+            ctx.say(&format!("wrote {}", p.display()));
+        }
+    }
+    if args.out.out.is_none() || !ctx.quiet {
+        print_stdout(&render(&run, &plan, &facts))?;
+    }
+    Ok(())
+}
+
+/// Facts about a run besides the plan.
+#[derive(Debug, Clone, Copy)]
+pub struct Facts {
+    pub seconds: f64,
+    pub candidate_seconds: f64,
+    pub selection_seconds: f64,
+    pub budget_scale: f64,
+    pub requested_gap: f64,
+}
+
+/// Totals of a plan for reporting: (plan, unconstrained, base), as NPV and as PV agency cost.
+pub struct Totals {
+    pub npv: [f64; 3],
+    pub pv_agency: [f64; 3],
+}
+
+pub fn totals(c: &Candidates, plan: &[u16]) -> Totals {
+    let mut t = Totals {
+        npv: [0.0; 3],
+        pv_agency: [0.0; 3],
+    };
+    for g in 0..c.sections() {
+        let k = c.chosen(plan, g);
+        t.npv[0] += c.npv[k];
+        t.pv_agency[0] += c.pv_agency[k];
+        t.npv[1] += c.unconstrained[g].1;
+        t.pv_agency[1] += c.unconstrained[g].2;
+        t.pv_agency[2] += c.base_pv_agency[g];
+    }
+    t
+}
+
+fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Result<()> {
+    let c = &p.candidates;
+    let s = &run.scenario;
+    let secs = &run.network.sections;
+    let e = Enumerator::for_run(run);
+    let plan = &p.outcome.plan;
+    // Work programme: re-simulate the chosen strategies for their works, then sort by year.
+    let mut works: Vec<(u32, usize, usize, f64)> = secs
+        .par_iter()
+        .enumerate()
+        .map(|(g, sec)| {
+            let st = &e.strategies(sec)[c.strategy[c.chosen(plan, g)] as usize];
+            let mut t = Trace::default();
+            SectionSim::new(run, sec).run(st, &mut t);
+            t.works
+                .iter()
+                .map(|&(y, k, cost)| (y, g, k, cost))
+                .collect::<Vec<_>>()
+        })
+        .flatten()
+        .collect();
+    works.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.cmp(&b.1)));
+    let mut text = String::from("year,section_id,treatment,cost,region,category\n");
+    for (y, g, k, cost) in works {
+        let t = &run.catalogue.treatments[k];
+        let _ = writeln!(
+            text,
+            "{},{},{},{},{},{}",
+            s.base_year + y as i32,
+            Field(&secs[g].id.0),
+            Field(&t.id),
+            Amount(cost),
+            Field(secs[g].region.as_deref().unwrap_or("")),
+            t.category.name()
+        );
+        if text.len() > 1 << 20 {
+            set.write(0, text.as_bytes())?;
+            text.clear();
+        }
+    }
+    set.write(0, text.as_bytes())?;
+
+    // Section plan and candidates, chunk by chunk (names come from re-enumerating).
+    set.write(
+        1,
+        b"section_id,region,strategy,npv,pv_agency_cost,unconstrained_strategy,unconstrained_npv,same\n",
+    )?;
+    let mut head = String::from("section_id,strategy,npv,pv_agency_cost");
+    for row in &c.rows {
+        match row.kind {
+            RowKind::Budget(_) => {
+                let _ = write!(head, ",{}", Field(&format!("cost:{}", row.name)));
+            }
+            RowKind::Target(_) => {
+                let _ = write!(head, ",{}", Field(&format!("use:{}", row.name)));
+            }
+        }
+    }
+    head.push('\n');
+    set.write(4, head.as_bytes())?;
+    const CHUNK: usize = 4096;
+    for (ci, chunk) in secs.chunks(CHUNK).enumerate() {
+        let texts: Vec<(String, String)> = chunk
+            .par_iter()
+            .enumerate()
+            .map(|(i, sec)| {
+                let g = ci * CHUNK + i;
+                let strategies = e.strategies(sec);
+                let k = c.chosen(plan, g);
+                let (u, unpv, _) = c.unconstrained[g];
+                let chosen_name = &strategies[c.strategy[k] as usize].name;
+                let un_name = &strategies[u as usize].name;
+                let sp = format!(
+                    "{},{},{},{},{},{},{},{}\n",
+                    Field(&sec.id.0),
+                    Field(sec.region.as_deref().unwrap_or("")),
+                    Field(chosen_name),
+                    Amount(c.npv[k]),
+                    Amount(c.pv_agency[k]),
+                    Field(un_name),
+                    Amount(unpv),
+                    chosen_name == un_name
+                );
+                let mut cs = String::new();
+                let mut dense = vec![0.0; c.rows.len()];
+                for cand in c.problem.candidates(g) {
+                    dense.iter_mut().for_each(|x| *x = 0.0);
+                    let (rs, vs) = c.problem.uses(cand);
+                    for (&j, &x) in rs.iter().zip(vs) {
+                        dense[j as usize] = x;
+                    }
+                    let _ = write!(
+                        cs,
+                        "{},{},{},{}",
+                        Field(&sec.id.0),
+                        Field(&strategies[c.strategy[cand] as usize].name),
+                        Amount(c.npv[cand]),
+                        Amount(c.pv_agency[cand])
+                    );
+                    for (j, x) in dense.iter().enumerate() {
+                        match (c.rows[j].kind.clone(), *x == 0.0) {
+                            (_, true) => cs.push_str(",0"),
+                            (RowKind::Budget(_), false) => {
+                                let _ = write!(cs, ",{}", Amount(*x));
+                            }
+                            (RowKind::Target(_), false) => {
+                                let _ = write!(cs, ",{x:.6}");
+                            }
+                        }
+                    }
+                    cs.push('\n');
+                }
+                (sp, cs)
+            })
+            .collect();
+        let (mut a, mut b) = (String::new(), String::new());
+        for (x, y) in texts {
+            a.push_str(&x);
+            b.push_str(&y);
+        }
+        set.write(1, a.as_bytes())?;
+        set.write(4, b.as_bytes())?;
+    }
+
+    // Budget and target use.
+    let o = &p.outcome;
+    let mut bu = String::from("line,year,limit,used,price,category,region,slack\n");
+    let mut tu = String::from("line,year,measure,at_most,achieved,price,region\n");
+    for (j, row) in c.rows.iter().enumerate() {
+        match row.kind {
+            RowKind::Budget(b) => {
+                let line = &s.budget_lines[b];
+                let limit = row.money.unwrap_or_default();
+                let used = p.spent[b];
+                let _ = writeln!(
+                    bu,
+                    "{},{},{},{},{},{},{},{}",
+                    Field(&row.name),
+                    line.year,
+                    limit.0.round_dp(2),
+                    used.0.round_dp(2),
+                    price_text(o.prices[j]),
+                    line.category.name(),
+                    Field(line.region.as_deref().unwrap_or("")),
+                    (limit.0 - used.0).round_dp(2)
+                );
+            }
+            RowKind::Target(k) => {
+                let t = &s.plan.targets[k];
+                let ti = c.rows[..j]
+                    .iter()
+                    .filter(|r| matches!(r.kind, RowKind::Target(_)))
+                    .count();
+                let _ = writeln!(
+                    tu,
+                    "{},{},{},{},{:.6},{},{}",
+                    Field(&row.name),
+                    t.year,
+                    t.measure.name(),
+                    t.at_most,
+                    p.achieved[ti],
+                    price_text(o.prices[j]),
+                    Field(t.region.as_deref().unwrap_or(""))
+                );
+            }
+        }
+    }
+    set.write(2, bu.as_bytes())?;
+    set.write(3, tu.as_bytes())?;
+    set.write(5, summary_json(run, p, facts).as_bytes())?;
+    Ok(())
+}
+
+/// A budget price for CSV: full precision, `0` when zero.
+fn price_text(x: f64) -> String {
+    if x == 0.0 {
+        "0".to_owned()
+    } else {
+        format!("{x}")
+    }
+}
+
+/// `summary.json`.
+pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
+    let o = &p.outcome;
+    let c = &p.candidates;
+    let t = totals(c, &o.plan);
+    let binding: Vec<serde_json::Value> = c
+        .rows
+        .iter()
+        .zip(&o.prices)
+        .filter(|(_, x)| **x > 0.0)
+        .map(|(r, x)| serde_json::json!({ "line": r.name, "price": x }))
+        .collect();
+    let v = serde_json::json!({
+        "objective": c.objective_of(o.value),
+        "bound": c.objective_of(o.bound),
+        "gap": o.gap,
+        "status": o.status.name(),
+        "method": o.method.name(),
+        "sections": c.sections(),
+        "candidates": c.problem.candidate_count(),
+        "seconds": f.seconds,
+        "objective_kind": c.objective.name(),
+        "requested_gap": f.requested_gap,
+        "time_limit_reached": o.status == crate::select::network::Status::TimeLimit,
+        "selection_seconds": f.selection_seconds,
+        "candidate_seconds": f.candidate_seconds,
+        "strategies_enumerated": c.enumerated.iter().map(|&x| x as u64).sum::<u64>(),
+        "price_updates": o.iterations,
+        "contested_sections": o.contested,
+        "budget_scale": f.budget_scale,
+        "npv": { "plan": t.npv[0], "unconstrained": t.npv[1], "base": 0.0 },
+        "pv_agency_cost": { "plan": t.pv_agency[0], "unconstrained": t.pv_agency[1], "base": t.pv_agency[2] },
+        "binding": binding,
+        "money": run.scenario.money_label,
+        "caution": crate::CAUTION,
+    });
+    let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
+    s.push('\n');
+    s
+}
+
+/// The terminal summary.
+pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
+    let sc = &run.scenario;
+    let c = &p.candidates;
+    let o = &p.outcome;
+    let money = &sc.money_label;
+    let t = totals(c, &o.plan);
+    let mut s = format!(
+        "Work programme for {} — {} sections, {} candidates after dominated ones were removed\n",
+        if sc.title.is_empty() { &sc.file } else { &sc.title },
+        c.sections(),
+        c.problem.candidate_count()
+    );
+    if f.budget_scale != 1.0 {
+        let _ = writeln!(s, "every budget line scaled by {}", f.budget_scale);
+    }
+    let _ = writeln!(
+        s,
+        "objective: {}\n",
+        match c.objective {
+            Objective::Npv => "largest total NPV against the base",
+            Objective::LeastCost => "least PV agency cost within the condition targets",
+        }
+    );
+    let _ = writeln!(
+        s,
+        "{:<28} {:>18} {:>20}",
+        "", "NPV", "PV agency cost"
+    );
+    for (label, i) in [("this plan", 0), ("no budget limits", 1), ("base (routine only)", 2)] {
+        let _ = writeln!(
+            s,
+            "{:<28} {:>18} {:>20}",
+            label,
+            grouped(t.npv[i], 0),
+            grouped(t.pv_agency[i], 0)
+        );
+    }
+    if t.npv[1].abs() > 0.0 {
+        let _ = writeln!(
+            s,
+            "the plan keeps {:.1} % of the NPV the network could earn with no budget limits",
+            100.0 * t.npv[0] / t.npv[1]
+        );
+    }
+    let _ = writeln!(s, "\nBudget lines (money in {money}; price = NPV per unit of money added to the line):");
+    let _ = writeln!(
+        s,
+        "{:<26} {:>16} {:>16} {:>7} {:>10}",
+        "line", "limit", "used", "use", "price"
+    );
+    for (j, row) in c.rows.iter().enumerate() {
+        match row.kind {
+            RowKind::Budget(b) => {
+                let limit = row.money.unwrap_or_default().to_f64();
+                let used = p.spent[b].to_f64();
+                let _ = writeln!(
+                    s,
+                    "{:<26} {:>16} {:>16} {:>6.1}% {:>10}",
+                    row.name,
+                    grouped(limit, 0),
+                    grouped(used, 0),
+                    if limit > 0.0 { 100.0 * used / limit } else { 0.0 },
+                    if o.prices[j] > 0.0 {
+                        format!("{:.4}", o.prices[j])
+                    } else {
+                        "slack".to_owned()
+                    }
+                );
+            }
+            RowKind::Target(_) => {}
+        }
+    }
+    if !sc.plan.targets.is_empty() {
+        let _ = writeln!(s, "\nCondition targets:");
+        let mut ti = 0;
+        for (j, row) in c.rows.iter().enumerate() {
+            if let RowKind::Target(k) = row.kind {
+                let tl = &sc.plan.targets[k];
+                let _ = writeln!(
+                    s,
+                    "{:<26} {:<11} at most {:<8} achieved {:<10.4} price {}",
+                    row.name,
+                    tl.measure.name(),
+                    tl.at_most,
+                    p.achieved[ti],
+                    if o.prices[j] > 0.0 {
+                        format!("{:.4}", o.prices[j])
+                    } else {
+                        "slack".to_owned()
+                    }
+                );
+                ti += 1;
+            }
+        }
+    }
+    let binding = o.prices.iter().filter(|x| **x > 0.0).count();
+    let _ = writeln!(s, "\n{binding} of {} lines bind (price above zero).", c.rows.len());
+    let _ = writeln!(
+        s,
+        "Certificate: plan {} {money}, bound {} {money}, gap {:.4} % — {} ({} path, {} price updates, {} contested sections, {:.2} s selection, {:.2} s simulation)",
+        grouped(c.objective_of(o.value), 0),
+        grouped(c.objective_of(o.bound), 0),
+        o.gap * 100.0,
+        o.status.name(),
+        o.method.name(),
+        o.iterations,
+        o.contested,
+        f.selection_seconds,
+        f.candidate_seconds
+    );
+    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    s
+}
