@@ -8,6 +8,7 @@
 pub mod appraise;
 pub mod cashflow;
 pub mod check;
+pub mod explain;
 pub mod init;
 pub mod plan;
 
@@ -52,6 +53,9 @@ pub enum Command {
     /// budget prices and an optimality certificate.
     #[command(after_help = AFTER_HELP)]
     Plan(plan::Args),
+    /// Why a section got its strategy in a plan (read from `plan --out DIR`).
+    #[command(after_help = AFTER_HELP)]
+    Explain(explain::Args),
     /// Write the demo scenario's files (or a synthetic network) into a directory to edit.
     #[command(after_help = AFTER_HELP)]
     Init(init::Args),
@@ -137,6 +141,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Appraise(a) => appraise::run(a, ctx),
         Command::Init(a) => init::run(a, ctx),
         Command::Plan(a) => plan::run(a, ctx),
+        Command::Explain(a) => explain::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

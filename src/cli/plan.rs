@@ -453,7 +453,7 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
             100.0 * t.npv[0] / t.npv[1]
         );
     }
-    let _ = writeln!(s, "\nBudget lines (money in {money}; price = NPV per unit of money added to the line):");
+    let _ = writeln!(s, "\nBudget lines (money in {money}; price = gain in the objective per unit of money added to the line):");
     let _ = writeln!(
         s,
         "{:<26} {:>16} {:>16} {:>7} {:>10}",

@@ -264,9 +264,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     };
     let gap = relative_gap(value, bound);
     let timed_out = Instant::now() >= deadline;
-    let status = if proven || gap <= 1e-9 {
+    let status = if gap <= 1e-9 {
         Status::Optimal
-    } else if gap <= o.gap {
+    } else if proven || gap <= o.gap {
         Status::WithinGap
     } else if timed_out {
         Status::TimeLimit

@@ -1,0 +1,254 @@
+//! `pavestrat explain SECTION`: why a section got its strategy in a plan, read back from the
+//! plan's output directory.
+//!
+//! Every candidate of the section is valued at the plan's budget prices: its objective value
+//! (NPV, or −PV agency cost for a least-cost plan) less the priced use of every line, Σ price ×
+//! use. The chosen strategy is normally the one with the highest priced value; the margin to the
+//! runner-up says how firm the choice is. Where the chosen one is not the highest, the section
+//! is one of the few the budgets split (the whole-plan search placed it), and the report says so.
+
+use super::Context;
+use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::error::{Error, Result};
+use crate::io::print_stdout;
+use crate::money::grouped;
+use std::collections::HashMap;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+
+/// Arguments of `explain`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The section_id to explain.
+    #[arg(value_name = "SECTION")]
+    pub section: String,
+
+    /// The directory `pavestrat plan --out DIR` wrote.
+    #[arg(long, value_name = "DIR", default_value = ".")]
+    pub from: PathBuf,
+}
+
+/// A CSV file read whole: its header and rows, with the file's name for messages.
+struct Table {
+    label: String,
+    head: Vec<String>,
+    rows: Vec<(usize, csv::StringRecord)>,
+}
+
+fn read_table(dir: &Path, name: &str, keep: impl Fn(&csv::StringRecord) -> bool) -> Result<Table> {
+    let path = dir.join(name);
+    let label = path.display().to_string();
+    let file = std::fs::File::open(&path).map_err(|e| {
+        Error::Usage(format!(
+            "cannot read {label}: {e}; expected the output directory of `pavestrat plan --out DIR` (give it with --from DIR)"
+        ))
+    })?;
+    let mut r = csv::ReaderBuilder::new().has_headers(true).from_reader(file);
+    let bad = |line: usize, what: String| {
+        let mut d = Diagnostics::new();
+        d.error(Place::line(label.clone(), line), what, format!("a {name} as `pavestrat plan` writes it"));
+        Error::Input(d)
+    };
+    let head: Vec<String> = r
+        .headers()
+        .map_err(|e| bad(1, format!("an unreadable header ({e})")))?
+        .iter()
+        .map(str::to_owned)
+        .collect();
+    let mut rows = Vec::new();
+    for (i, rec) in r.records().enumerate() {
+        let rec = rec.map_err(|e| bad(i + 2, format!("an unreadable row ({e})")))?;
+        if keep(&rec) {
+            rows.push((i + 2, rec));
+        }
+    }
+    Ok(Table { label, head, rows })
+}
+
+impl Table {
+    fn column(&self, name: &str) -> Result<usize> {
+        self.head.iter().position(|h| h == name).ok_or_else(|| {
+            let mut d = Diagnostics::new();
+            d.error(
+                Place::line(self.label.clone(), 1),
+                format!("no `{name}` column"),
+                format!("the header `pavestrat plan` writes, with `{name}`"),
+            );
+            Error::Input(d)
+        })
+    }
+
+    fn number(&self, line: usize, rec: &csv::StringRecord, col: usize) -> Result<f64> {
+        let text = rec.get(col).unwrap_or("");
+        text.parse::<f64>().ok().filter(|x| x.is_finite()).ok_or_else(|| {
+            let mut d = Diagnostics::new();
+            d.error(
+                Place::line(self.label.clone(), line).with_field(self.head[col].clone()),
+                format!("found `{text}`"),
+                "a number",
+            );
+            Error::Input(d)
+        })
+    }
+}
+
+struct Candidate {
+    strategy: String,
+    value: f64,
+    npv: f64,
+    priced: f64,
+}
+
+/// Run `explain`.
+pub fn run(args: Args, _ctx: Context) -> Result<()> {
+    let dir = &args.from;
+    let summary_path = dir.join("summary.json");
+    let summary: serde_json::Value = std::fs::read_to_string(&summary_path)
+        .ok()
+        .and_then(|t| serde_json::from_str(&t).ok())
+        .ok_or_else(|| {
+            Error::Usage(format!(
+                "cannot read {}; expected the output directory of `pavestrat plan --out DIR` (give it with --from DIR)",
+                summary_path.display()
+            ))
+        })?;
+    let least_cost = summary["objective_kind"].as_str() == Some("least-cost");
+    let money = summary["money"].as_str().unwrap_or("").to_owned();
+
+    let mut prices: HashMap<String, f64> = HashMap::new();
+    for (file, prefix) in [("budget_use.csv", "cost:"), ("target_use.csv", "use:")] {
+        let t = read_table(dir, file, |_| true)?;
+        let (cl, cp) = (t.column("line")?, t.column("price")?);
+        for (line, rec) in &t.rows {
+            let p = t.number(*line, rec, cp)?;
+            prices.insert(format!("{prefix}{}", rec.get(cl).unwrap_or("")), p);
+        }
+    }
+    let id = args.section.as_str();
+    let plan = read_table(dir, "section_plan.csv", |_| true)?;
+    let (ps, pst, pu) = (
+        plan.column("section_id")?,
+        plan.column("strategy")?,
+        plan.column("unconstrained_strategy")?,
+    );
+    let Some((_, row)) = plan.rows.iter().find(|(_, r)| r.get(ps) == Some(id)) else {
+        let names: Vec<&str> = plan.rows.iter().filter_map(|(_, r)| r.get(ps)).collect();
+        let hint = did_you_mean(id, &names)
+            .map(|m| format!(" (did you mean `{m}`?)"))
+            .unwrap_or_default();
+        return Err(Error::Usage(format!(
+            "no section `{id}` in {}{hint}; expected a section_id of the plan",
+            plan.label
+        )));
+    };
+    let chosen = row.get(pst).unwrap_or("").to_owned();
+    let unconstrained = row.get(pu).unwrap_or("").to_owned();
+
+    let cands = read_table(dir, "candidates.csv", |r| r.get(0) == Some(id))?;
+    let (cs, cn, ca) = (
+        cands.column("strategy")?,
+        cands.column("npv")?,
+        cands.column("pv_agency_cost")?,
+    );
+    let priced_cols: Vec<(usize, f64)> = cands
+        .head
+        .iter()
+        .enumerate()
+        .filter_map(|(i, h)| prices.get(h).map(|p| (i, *p)))
+        .collect();
+    let mut opts: Vec<Candidate> = Vec::new();
+    for (line, rec) in &cands.rows {
+        let npv = cands.number(*line, rec, cn)?;
+        let pva = cands.number(*line, rec, ca)?;
+        let mut priced = 0.0;
+        for &(col, price) in &priced_cols {
+            if price != 0.0 {
+                priced += price * cands.number(*line, rec, col)?;
+            }
+        }
+        opts.push(Candidate {
+            strategy: rec.get(cs).unwrap_or("").to_owned(),
+            value: if least_cost { -pva } else { npv },
+            npv,
+            priced,
+        });
+    }
+    opts.sort_by(|a, b| {
+        (b.value - b.priced)
+            .total_cmp(&(a.value - a.priced))
+            .then(a.strategy.cmp(&b.strategy))
+    });
+    print_stdout(&render(id, &chosen, &unconstrained, &opts, least_cost, &money))
+}
+
+fn render(
+    id: &str,
+    chosen: &str,
+    unconstrained: &str,
+    opts: &[Candidate],
+    least_cost: bool,
+    money: &str,
+) -> String {
+    let mut s = format!(
+        "Section {id}: the plan gives it `{chosen}`{}.\n\n",
+        if chosen == unconstrained {
+            " — also its best with no budget limits".to_owned()
+        } else {
+            format!("; with no budget limits it would get `{unconstrained}`")
+        }
+    );
+    let value_name = if least_cost { "−PV agency" } else { "NPV" };
+    let _ = writeln!(
+        s,
+        "Each candidate at the plan's budget prices (money in {money}); priced value = {value_name} − Σ price × use:"
+    );
+    let _ = writeln!(
+        s,
+        "  {:<36} {:>16} {:>16} {:>16}",
+        "strategy", value_name, "priced use", "priced value"
+    );
+    for o in opts {
+        let mark = if o.strategy == chosen { "*" } else { " " };
+        let _ = writeln!(
+            s,
+            "{mark} {:<36} {:>16} {:>16} {:>16}",
+            o.strategy,
+            grouped(o.value, 0),
+            grouped(o.priced, 0),
+            grouped(o.value - o.priced, 0)
+        );
+    }
+    let pos = opts.iter().position(|o| o.strategy == chosen);
+    match pos {
+        Some(0) if opts.len() > 1 => {
+            let m = (opts[0].value - opts[0].priced) - (opts[1].value - opts[1].priced);
+            let _ = writeln!(
+                s,
+                "\n`{chosen}` has the highest priced value, {} {money} ahead of the runner-up `{}`.",
+                grouped(m, 0),
+                opts[1].strategy
+            );
+            if m.abs() < 1e-6 * opts[0].value.abs().max(1.0) {
+                s.push_str("The two tie at these prices: the budgets split between them.\n");
+            }
+        }
+        Some(0) => s.push_str("\nIt is the only candidate left (the others are dominated or excluded by commitments).\n"),
+        Some(k) => {
+            let m = (opts[0].value - opts[0].priced) - (opts[k].value - opts[k].priced);
+            let _ = writeln!(
+                s,
+                "\n`{}` has a higher priced value by {} {money}, but the budgets cannot give every section its \
+                 best at these prices: this section is one the whole-plan search settled, trading with others \
+                 for whole projects.",
+                opts[0].strategy,
+                grouped(m, 0)
+            );
+        }
+        None => s.push_str("\nThe chosen strategy is missing from candidates.csv: the directory's files do not belong to one run.\n"),
+    }
+    if let Some(o) = opts.iter().find(|o| o.strategy == chosen) {
+        let _ = writeln!(s, "Its NPV against the base: {} {money}.", grouped(o.npv, 0));
+    }
+    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    s
+}
