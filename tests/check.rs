@@ -258,7 +258,7 @@ fn unknown_columns_and_budget_regions() {
     wd.write("network.csv", demo_network());
     wd.run(&["check", "--scenario", "scenario.toml"])
         .expect_code(2)
-        .stderr_has("budget[3].region: the region `nort`, which no section of")
+        .stderr_has("budget[4].region: the region `nort`, which no section of")
         .stderr_has("did you mean `north`?");
 }
 

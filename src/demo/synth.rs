@@ -107,7 +107,7 @@ pub fn network_csv(n: usize, seed: u64) -> String {
 
 /// The demo scenario with every budget amount (`per_year` and single-year `years` limits)
 /// multiplied by `factor`, rounded to whole units: budgets for a synthetic network of another
-/// size.
+/// size. Commitments are left out: they name the demo's own sections.
 pub fn scaled_scenario(text: &str, factor: f64) -> String {
     let scale = |amount: &str| -> String {
         match amount.parse::<f64>() {
@@ -116,8 +116,21 @@ pub fn scaled_scenario(text: &str, factor: f64) -> String {
         }
     };
     let mut out = String::with_capacity(text.len());
+    // Commitments name the demo's sections, which a synthetic network does not have.
+    let mut in_commit = false;
     for line in text.lines() {
         let t = line.trim_start();
+        if t.starts_with("[[commit]]") {
+            in_commit = true;
+            continue;
+        }
+        if in_commit {
+            if t.is_empty() || t.starts_with('[') {
+                in_commit = false;
+            } else {
+                continue;
+            }
+        }
         if t.starts_with("per_year") || t.starts_with("years") {
             // Replace every quoted amount on the line.
             let mut rest = line;

@@ -123,6 +123,9 @@ pub enum Infeasible {
 pub const EXACT_AUTO_CANDIDATES: usize = 4000;
 /// Most groups handed to the exact solver as the contested part.
 const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 1000 } else { 60 };
+/// Most binaries in one window of the neighbourhood search (microlp stops improving on larger
+/// ones within seconds; HiGHS copes with more).
+const WINDOW_BINARIES: usize = if cfg!(feature = "highs") { 20_000 } else { 150 };
 /// Problems at most this many candidates get the pair-exchange search.
 const SWAP_CANDIDATES: usize = 60_000;
 /// Most time one window of the neighbourhood search may take.
@@ -189,18 +192,56 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
     let bound = prices.bound;
-    let (mut plan, contested) = recover(p, &prices);
+    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
+    let (mut plan, mut open) = recover(p, &prices);
+    let contested = open.len();
+    // Settle the contested part again on the room the settled groups leave: its own prices and
+    // combination, a few times, while it shrinks.
+    for _round in 0..6 {
+        if open.len() <= CONTESTED_CAP || Instant::now() >= deadline {
+            break;
+        }
+        let mut limits = p.limits.clone();
+        let mut inside = vec![false; p.groups()];
+        for &g in &open {
+            inside[g] = true;
+        }
+        for g in 0..p.groups() {
+            if !inside[g] {
+                let (rs, vs) = p.uses(p.global(g, plan[g]));
+                for (&j, &x) in rs.iter().zip(vs) {
+                    limits[j as usize] -= x;
+                }
+            }
+        }
+        let sub = p.subset(&open, limits);
+        let sp = dual::minimise(&sub, dual_tol, 3000, deadline);
+        let (sub_plan, sub_open) = recover(&sub, &sp);
+        for (i, &g) in open.iter().enumerate() {
+            plan[g] = sub_plan[i];
+        }
+        let next: Vec<usize> = sub_open.iter().map(|&i| open[i]).collect();
+        if debug {
+            eprintln!("round: {} contested -> {}", open.len(), next.len());
+        }
+        if next.len() * 10 > open.len() * 9 {
+            break;
+        }
+        open = next;
+    }
     let mut used = p.plan_use(&plan);
     if !fits(&used, &p.limits) {
         repair(p, &mut plan, &mut used);
     }
     if fits(&used, &p.limits) {
         upgrade(p, &mut plan, &mut used, &prices.prices);
-        if p.candidate_count() <= SWAP_CANDIDATES {
+        if debug {
+            eprintln!("upgrade: {} at {:.2} s", p.plan_value(&plan), start.elapsed().as_secs_f64());
+        }
+        if p.candidate_count() <= EXACT_AUTO_CANDIDATES {
             swap_search(p, &mut plan, &mut used, deadline);
         }
     }
-    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
     if debug {
         eprintln!(
             "dual: bound {bound} after {} updates, {:.2} s; recovered plan {} fits {} contested {contested}",
@@ -247,6 +288,12 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         }
     } else if gap_now(&plan, &used) > o.gap && Instant::now() < deadline {
         improve_contested(p, &mut plan, &mut used, &prices, deadline, o.gap);
+        if p.candidate_count() <= SWAP_CANDIDATES && gap_now(&plan, &used) > o.gap {
+            swap_search(p, &mut plan, &mut used, deadline);
+        }
+        if debug {
+            eprintln!("windows: {} at {:.2} s", p.plan_value(&plan), start.elapsed().as_secs_f64());
+        }
     }
     if !fits(&used, &p.limits) {
         let broken = (0..rows)
@@ -288,13 +335,13 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
 }
 
 /// The plan the price plans' combination points to: each group's heaviest candidate. Returns
-/// it and the number of groups with no candidate of weight ≥ [`SETTLED`].
-fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, usize) {
+/// it and the groups with no candidate of weight ≥ [`SETTLED`] (contested).
+fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
     if prices.weights.is_empty() {
-        return (prices.at_best.plan.clone(), 0);
+        return (prices.at_best.plan.clone(), Vec::new());
     }
     let mut plan = vec![0u16; p.groups()];
-    let mut contested = 0;
+    let mut contested = Vec::new();
     let mut w: Vec<(u16, f64)> = Vec::new();
     for (g, slot) in plan.iter_mut().enumerate() {
         w.clear();
@@ -315,7 +362,7 @@ fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, usize) {
             .unwrap_or((prices.at_best.plan[g], 1.0));
         *slot = k;
         if m < SETTLED {
-            contested += 1;
+            contested.push(g);
         }
     }
     (plan, contested)
@@ -609,7 +656,6 @@ fn improve_contested(
     }
     let order: Vec<usize> = ranked.iter().map(|r| r.2).collect();
     let size = CONTESTED_CAP.min(order.len());
-    let step = (size / 2).max(1);
     let mut offset = 0;
     let mut since_gain = 0;
     let mut inside = vec![false; p.groups()];
@@ -617,9 +663,22 @@ fn improve_contested(
         if relative_gap(p.plan_value(plan), prices.bound) <= gap {
             return;
         }
-        let mut chosen: Vec<usize> = (0..size).map(|i| order[(offset + i) % order.len()]).collect();
+        // A window: groups in ranked order while their candidates fit the solver's comfortable
+        // size.
+        let mut chosen: Vec<usize> = Vec::new();
+        let mut binaries = 0;
+        for i in 0..size {
+            let g = order[(offset + i) % order.len()];
+            binaries += p.candidates(g).len();
+            if !chosen.is_empty() && binaries > WINDOW_BINARIES {
+                break;
+            }
+            chosen.push(g);
+        }
+        let taken = chosen.len();
         chosen.sort_unstable();
         chosen.dedup();
+        let step = (taken / 2).max(1);
         offset = (offset + step) % order.len();
         since_gain += step;
         for &g in &chosen {
@@ -654,7 +713,7 @@ fn improve_contested(
             used.copy_from_slice(&u);
             since_gain = 0;
         }
-        if order.len() <= size {
+        if taken >= order.len() {
             // One window holds every group: nothing else to try.
             return;
         }
