@@ -327,7 +327,17 @@ pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::e
         .collect();
     let held = commitments(run);
     let secs = &run.network.sections;
-    type ChunkOut = (Problem, Vec<u32>, Vec<f64>, Vec<f64>, Vec<u32>, Vec<(u32, f64, f64)>, Vec<f64>, Vec<(Place, String, String)>, Option<String>);
+    type ChunkOut = (
+        Problem,
+        Vec<u32>,
+        Vec<f64>,
+        Vec<f64>,
+        Vec<u32>,
+        Vec<(u32, f64, f64)>,
+        Vec<f64>,
+        Vec<(Place, String, String)>,
+        Option<String>,
+    );
     let chunks: Vec<ChunkOut> = secs
         .par_chunks(CHUNK)
         .map(|chunk| {
@@ -533,7 +543,10 @@ pub fn recheck(
     for row in &c.rows {
         if let (RowKind::Budget(b), Some(limit)) = (&row.kind, row.money) {
             if spent[*b] > limit.0 {
-                over.push(format!("{} spends {} over {}", row.name, spent[*b], limit.0));
+                over.push(format!(
+                    "{} spends {} over {}",
+                    row.name, spent[*b], limit.0
+                ));
             }
         }
     }
@@ -546,7 +559,11 @@ pub fn recheck(
     let mut achieved = Vec::with_capacity(nt);
     for row in &c.rows {
         if let RowKind::Target(k) = row.kind {
-            let length = if row.limit > 0.0 { row.row_limit / row.limit } else { 0.0 };
+            let length = if row.limit > 0.0 {
+                row.row_limit / row.limit
+            } else {
+                0.0
+            };
             let length = if length > 0.0 {
                 length
             } else {
@@ -556,7 +573,11 @@ pub fn recheck(
                     .map(|sec| sec.length_km)
                     .sum()
             };
-            achieved.push(if length > 0.0 { target[k] / length } else { 0.0 });
+            achieved.push(if length > 0.0 {
+                target[k] / length
+            } else {
+                0.0
+            });
         }
     }
     Ok((spent.into_iter().map(Money).collect(), achieved))

@@ -4,5 +4,6 @@
 mod appraise;
 mod cashflow;
 mod check;
+mod plan;
 mod readme;
 mod util;

@@ -43,10 +43,16 @@ fn read_table(dir: &Path, name: &str, keep: impl Fn(&csv::StringRecord) -> bool)
             "cannot read {label}: {e}; expected the output directory of `pavestrat plan --out DIR` (give it with --from DIR)"
         ))
     })?;
-    let mut r = csv::ReaderBuilder::new().has_headers(true).from_reader(file);
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(true)
+        .from_reader(file);
     let bad = |line: usize, what: String| {
         let mut d = Diagnostics::new();
-        d.error(Place::line(label.clone(), line), what, format!("a {name} as `pavestrat plan` writes it"));
+        d.error(
+            Place::line(label.clone(), line),
+            what,
+            format!("a {name} as `pavestrat plan` writes it"),
+        );
         Error::Input(d)
     };
     let head: Vec<String> = r
@@ -80,15 +86,18 @@ impl Table {
 
     fn number(&self, line: usize, rec: &csv::StringRecord, col: usize) -> Result<f64> {
         let text = rec.get(col).unwrap_or("");
-        text.parse::<f64>().ok().filter(|x| x.is_finite()).ok_or_else(|| {
-            let mut d = Diagnostics::new();
-            d.error(
-                Place::line(self.label.clone(), line).with_field(self.head[col].clone()),
-                format!("found `{text}`"),
-                "a number",
-            );
-            Error::Input(d)
-        })
+        text.parse::<f64>()
+            .ok()
+            .filter(|x| x.is_finite())
+            .ok_or_else(|| {
+                let mut d = Diagnostics::new();
+                d.error(
+                    Place::line(self.label.clone(), line).with_field(self.head[col].clone()),
+                    format!("found `{text}`"),
+                    "a number",
+                );
+                Error::Input(d)
+            })
     }
 }
 
@@ -178,7 +187,14 @@ pub fn run(args: Args, _ctx: Context) -> Result<()> {
             .total_cmp(&(a.value - a.priced))
             .then(a.strategy.cmp(&b.strategy))
     });
-    print_stdout(&render(id, &chosen, &unconstrained, &opts, least_cost, &money))
+    print_stdout(&render(
+        id,
+        &chosen,
+        &unconstrained,
+        &opts,
+        least_cost,
+        &money,
+    ))
 }
 
 fn render(
@@ -247,7 +263,11 @@ fn render(
         None => s.push_str("\nThe chosen strategy is missing from candidates.csv: the directory's files do not belong to one run.\n"),
     }
     if let Some(o) = opts.iter().find(|o| o.strategy == chosen) {
-        let _ = writeln!(s, "Its NPV against the base: {} {money}.", grouped(o.npv, 0));
+        let _ = writeln!(
+            s,
+            "Its NPV against the base: {} {money}.",
+            grouped(o.npv, 0)
+        );
     }
     let _ = writeln!(s, "\n{}", crate::CAUTION);
     s

@@ -52,7 +52,23 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         Some(n) => {
             let scenario = String::from_utf8_lossy(&file("scenario.toml")).into_owned();
-            let scenario = synth::scaled_scenario(&scenario, n as f64 / DEMO_SECTIONS).replace(
+            // Regional lines follow the sections each region got, against the demo's.
+            let demo_net = String::from_utf8_lossy(&file("network.csv")).into_owned();
+            let net_text = synth::network_csv(n as usize, args.seed);
+            let count = |text: &str, region: &str| {
+                text.lines()
+                    .filter(|l| l.split(',').nth(9) == Some(region))
+                    .count() as f64
+            };
+            let regional = |r: &str| {
+                let demo = count(&demo_net, r);
+                if demo > 0.0 {
+                    count(&net_text, r) / demo
+                } else {
+                    n as f64 / DEMO_SECTIONS
+                }
+            };
+            let scenario = synth::scaled_scenario(&scenario, n as f64 / DEMO_SECTIONS, &regional).replace(
                 "# Demo scenario: the Vellmark district",
                 &format!(
                     "# Synthetic network of {n} sections (seed {}), budgets scaled from the demo.\n# Demo scenario: the Vellmark district",
@@ -60,10 +76,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
                 ),
             );
             set.add("scenario.toml", scenario.into_bytes());
-            set.add(
-                "network.csv",
-                synth::network_csv(n as usize, args.seed).into_bytes(),
-            );
+            set.add("network.csv", net_text.into_bytes());
             set.add("treatments.toml", file("treatments.toml"));
             set.add("templates.toml", file("templates.toml"));
         }

@@ -10,7 +10,8 @@
 //!   with no limits;
 //! - `budget_use.csv`: `line,year,limit,used,price,category,region,slack` — one row per budget
 //!   line; `price` is the budget price, value per unit of money in that line;
-//! - `target_use.csv`: one row per condition-target line;
+//! - `target_use.csv`: one row per condition-target line, with the length it counts (the row
+//!   is Σ use ≤ at_most × length_km);
 //! - `candidates.csv`: every candidate left after dominated ones are removed —
 //!   `section_id,strategy,npv,pv_agency_cost`, then `cost:<line>` per budget line and
 //!   `use:<line>` per target line (length-weighted), enough to re-solve the selection elsewhere;
@@ -312,7 +313,7 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
     // Budget and target use.
     let o = &p.outcome;
     let mut bu = String::from("line,year,limit,used,price,category,region,slack\n");
-    let mut tu = String::from("line,year,measure,at_most,achieved,price,region\n");
+    let mut tu = String::from("line,year,measure,at_most,achieved,price,region,length_km\n");
     for (j, row) in c.rows.iter().enumerate() {
         match row.kind {
             RowKind::Budget(b) => {
@@ -338,16 +339,24 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
                     .iter()
                     .filter(|r| matches!(r.kind, RowKind::Target(_)))
                     .count();
+                let length: f64 = run
+                    .network
+                    .sections
+                    .iter()
+                    .filter(|sec| t.region.is_none() || sec.region == t.region)
+                    .map(|sec| sec.length_km)
+                    .sum();
                 let _ = writeln!(
                     tu,
-                    "{},{},{},{},{:.6},{},{}",
+                    "{},{},{},{},{:.6},{},{},{}",
                     Field(&row.name),
                     t.year,
                     t.measure.name(),
                     t.at_most,
                     p.achieved[ti],
                     price_text(o.prices[j]),
-                    Field(t.region.as_deref().unwrap_or(""))
+                    Field(t.region.as_deref().unwrap_or("")),
+                    length
                 );
             }
         }
@@ -415,7 +424,8 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
     let o = &p.outcome;
     let money = &sc.money_label;
     let t = totals(c, &o.plan);
-    let mut s = format!(
+    let mut s =
+        format!(
         "Work programme for {} — {} sections, {} candidates after dominated ones were removed\n",
         if sc.title.is_empty() { &sc.file } else { &sc.title },
         c.sections(),
@@ -432,12 +442,12 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
             Objective::LeastCost => "least PV agency cost within the condition targets",
         }
     );
-    let _ = writeln!(
-        s,
-        "{:<28} {:>18} {:>20}",
-        "", "NPV", "PV agency cost"
-    );
-    for (label, i) in [("this plan", 0), ("no budget limits", 1), ("base (routine only)", 2)] {
+    let _ = writeln!(s, "{:<28} {:>18} {:>20}", "", "NPV", "PV agency cost");
+    for (label, i) in [
+        ("this plan", 0),
+        ("no budget limits", 1),
+        ("base (routine only)", 2),
+    ] {
         let _ = writeln!(
             s,
             "{:<28} {:>18} {:>20}",
@@ -470,7 +480,11 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
                     row.name,
                     grouped(limit, 0),
                     grouped(used, 0),
-                    if limit > 0.0 { 100.0 * used / limit } else { 0.0 },
+                    if limit > 0.0 {
+                        100.0 * used / limit
+                    } else {
+                        0.0
+                    },
                     if o.prices[j] > 0.0 {
                         format!("{:.4}", o.prices[j])
                     } else {
@@ -505,7 +519,11 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
         }
     }
     let binding = o.prices.iter().filter(|x| **x > 0.0).count();
-    let _ = writeln!(s, "\n{binding} of {} lines bind (price above zero).", c.rows.len());
+    let _ = writeln!(
+        s,
+        "\n{binding} of {} lines bind (price above zero).",
+        c.rows.len()
+    );
     let _ = writeln!(
         s,
         "Certificate: plan {} {money}, bound {} {money}, gap {:.4} % — {} ({} path, {} price updates, {} contested sections, {:.2} s selection, {:.2} s simulation)",

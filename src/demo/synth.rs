@@ -107,18 +107,51 @@ pub fn network_csv(n: usize, seed: u64) -> String {
 
 /// The demo scenario with every budget amount (`per_year` and single-year `years` limits)
 /// multiplied by `factor`, rounded to whole units: budgets for a synthetic network of another
-/// size. Commitments are left out: they name the demo's own sections.
-pub fn scaled_scenario(text: &str, factor: f64) -> String {
-    let scale = |amount: &str| -> String {
-        match amount.parse::<f64>() {
-            Ok(x) => format!("{:.0}", x * factor),
-            Err(_) => amount.to_owned(),
+/// size. A `[[budget]]` entry with a `region` is multiplied by `regional(region)` instead, so
+/// that regional lines follow the number of sections the draw put in each region. Commitments
+/// are left out: they name the demo's own sections.
+pub fn scaled_scenario(text: &str, factor: f64, regional: &dyn Fn(&str) -> f64) -> String {
+    // Each line's factor: that of the [[budget]] entry it belongs to.
+    let lines: Vec<&str> = text.lines().collect();
+    let mut factors = vec![factor; lines.len()];
+    let mut i = 0;
+    while i < lines.len() {
+        if lines[i].trim_start().starts_with("[[budget]]") {
+            let mut end = i + 1;
+            while end < lines.len()
+                && !lines[end].trim().is_empty()
+                && !lines[end].trim_start().starts_with('[')
+            {
+                end += 1;
+            }
+            let region = lines[i + 1..end].iter().find_map(|l| {
+                let t = l
+                    .trim_start()
+                    .strip_prefix("region")?
+                    .trim_start()
+                    .strip_prefix('=')?;
+                Some(t.trim().split('"').nth(1)?.to_owned())
+            });
+            if let Some(r) = region {
+                for f in &mut factors[i..end] {
+                    *f = regional(&r);
+                }
+            }
+            i = end;
+        } else {
+            i += 1;
         }
-    };
+    }
     let mut out = String::with_capacity(text.len());
     // Commitments name the demo's sections, which a synthetic network does not have.
     let mut in_commit = false;
-    for line in text.lines() {
+    for (line, factor) in lines.iter().copied().zip(factors) {
+        let scale = |amount: &str| -> String {
+            match amount.parse::<f64>() {
+                Ok(x) => format!("{:.0}", x * factor),
+                Err(_) => amount.to_owned(),
+            }
+        };
         let t = line.trim_start();
         if t.starts_with("[[commit]]") {
             in_commit = true;
@@ -184,7 +217,10 @@ mod tests {
     #[test]
     fn budgets_scale() {
         let text = "[[budget]]\nper_year = \"100\"\nyears = { 2027 = \"40\", 2028 = \"10.5\" }\nname = \"x\"\n";
-        let s = scaled_scenario(text, 2.5);
+        let s = scaled_scenario(text, 2.5, &|_| 9.0);
         assert_eq!(s, "[[budget]]\nper_year = \"250\"\nyears = { 2027 = \"100\", 2028 = \"26\" }\nname = \"x\"\n");
+        let text = "[[budget]]\nregion = \"north\"\nper_year = \"100\"\n\n[[budget]]\nper_year = \"100\"\n";
+        let s = scaled_scenario(text, 2.0, &|r| if r == "north" { 3.0 } else { 0.0 });
+        assert_eq!(s, "[[budget]]\nregion = \"north\"\nper_year = \"300\"\n\n[[budget]]\nper_year = \"200\"\n");
     }
 }

@@ -385,7 +385,10 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
         if !ids.contains(c.section.as_str()) {
             d.error(
                 c.place.clone().with_subfield("section"),
-                format!("the section `{}`, which {} does not have", c.section, net.file),
+                format!(
+                    "the section `{}`, which {} does not have",
+                    c.section, net.file
+                ),
                 "a section_id of the network file",
             );
         }

@@ -869,7 +869,15 @@ mod tests {
         let mut d = Diagnostics::new();
         let doc = Doc::parse("s.toml", &text, &mut d);
         let mut top = doc.table();
-        for k in ["scenario", "files", "unit_values", "budget", "plan", "commit", "target"] {
+        for k in [
+            "scenario",
+            "files",
+            "unit_values",
+            "budget",
+            "plan",
+            "commit",
+            "target",
+        ] {
             top.get(k);
         }
         let (mut m, _) = read(&mut top, &mut d);

@@ -134,7 +134,12 @@ pub fn read(top: &mut Table<'_, '_>, period: Option<(i64, i64)>, d: &mut Diagnos
     rules
 }
 
-fn read_commitments(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostics) -> Vec<Commitment> {
+fn read_commitments(
+    v: &Value<'_, '_>,
+    first: i64,
+    last: i64,
+    d: &mut Diagnostics,
+) -> Vec<Commitment> {
     let Some(items) = v.array(d) else {
         return Vec::new();
     };
@@ -145,10 +150,19 @@ fn read_commitments(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostic
         let section = t
             .require("section", d, "the section_id of the committed section")
             .and_then(|v| v.string(d).map(str::to_owned));
-        let strategy = t.get("strategy").and_then(|v| v.string(d).map(str::to_owned));
-        let treatment = t.get("treatment").and_then(|v| v.string(d).map(str::to_owned));
+        let strategy = t
+            .get("strategy")
+            .and_then(|v| v.string(d).map(str::to_owned));
+        let treatment = t
+            .get("treatment")
+            .and_then(|v| v.string(d).map(str::to_owned));
         let year = t.get("year").and_then(|v| {
-            v.integer_in(d, first, last, &format!("a year of the analysis period, {first} to {last}"))
+            v.integer_in(
+                d,
+                first,
+                last,
+                &format!("a year of the analysis period, {first} to {last}"),
+            )
         });
         let had_year = year.is_some();
         t.finish(d);
@@ -231,14 +245,14 @@ fn read_targets(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostics) -
                     _ => Measure::PoorShare,
                 })
             });
-        let at_most = t.require("at_most", d, "the largest value allowed").and_then(|v| {
-            match measure {
+        let at_most = t
+            .require("at_most", d, "the largest value allowed")
+            .and_then(|v| match measure {
                 Some(Measure::PoorShare) => {
                     v.number_in(d, 0.0, 1.0, "a share of length from 0 to 1")
                 }
                 _ => v.number_in(d, 0.0, 30.0, "an IRI in m/km from 0 to 30"),
-            }
-        });
+            });
         let y0 = t
             .require("first_year", d, "the first year the target applies to")
             .and_then(|v| v.integer_in(d, first, last, &in_period));

@@ -249,7 +249,11 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         if let Some(b) = budget_lines.iter().find(|b| b.group == t.group) {
             d.error(
                 t.place.clone().with_subfield("name"),
-                format!("the name `{}`, also a [[budget]] name (line {})", t.group, b.place.line.unwrap_or(0)),
+                format!(
+                    "the name `{}`, also a [[budget]] name (line {})",
+                    t.group,
+                    b.place.line.unwrap_or(0)
+                ),
                 "target names that differ from budget names, so that every line has its own name",
             );
         }

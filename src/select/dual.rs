@@ -168,12 +168,8 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
             used: e.used,
         }
     };
-    let unscale = |l: &[f64]| -> Vec<f64> {
-        l.iter()
-            .zip(&scale)
-            .map(|(x, s)| x * vscale / s)
-            .collect()
-    };
+    let unscale =
+        |l: &[f64]| -> Vec<f64> { l.iter().zip(&scale).map(|(x, s)| x * vscale / s).collect() };
 
     let mut centre = vec![0.0; rows];
     let mut f_up = first.bound / vscale;
@@ -181,15 +177,17 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
     let mut cuts = vec![to_cut(first, &centre)];
     let mut f_low = f64::NEG_INFINITY;
     let mut iterations = 1;
-    let fits = best_eval
-        .used
-        .iter()
-        .zip(&p.limits)
-        .all(|(u, l)| u <= l);
+    let fits = best_eval.used.iter().zip(&p.limits).all(|(u, l)| u <= l);
     if !fits && rows > 0 {
         while iterations < max_iter && Instant::now() < deadline {
             let m = master_min(&cuts, rows, cap);
-            if std::env::var_os("PAVESTRAT_DEBUG_DUAL").is_some() { eprintln!("it {iterations} f_up {f_up} master {:?} cuts {}", m.as_ref().map(|x| x.0), cuts.len()); }
+            if std::env::var_os("PAVESTRAT_DEBUG_DUAL").is_some() {
+                eprintln!(
+                    "it {iterations} f_up {f_up} master {:?} cuts {}",
+                    m.as_ref().map(|x| x.0),
+                    cuts.len()
+                );
+            }
             let Some((low, _)) = m else {
                 break;
             };
@@ -386,8 +384,10 @@ mod tests {
     #[test]
     fn bound_at_zero_prices_is_the_unconstrained_best() {
         let mut p = Problem::new(vec![5.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])]).unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])]).unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])])
+            .unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])])
+            .unwrap();
         let e = evaluate(&p, &[0.0]);
         assert_eq!(e.bound, 7.0);
         assert_eq!(e.plan, vec![1, 1]);
@@ -399,8 +399,10 @@ mod tests {
         // Two items of use 3 under a limit of 5: the LP takes the better whole and 2/3 of the
         // other, 4 + 2/3·3 = 6 (worked by hand).
         let mut p = Problem::new(vec![5.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])]).unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])]).unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])])
+            .unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])])
+            .unwrap();
         let r = minimise(&p, 1e-9, 500, Instant::now() + Duration::from_secs(30));
         assert!((r.bound - 6.0).abs() < 1e-6, "bound {}", r.bound);
         assert!((r.prices[0] - 1.0).abs() < 1e-6, "price {}", r.prices[0]);
@@ -411,8 +413,10 @@ mod tests {
     #[test]
     fn rows_that_cannot_bind_have_zero_price() {
         let mut p = Problem::new(vec![5.0, 100.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0), (1, 1.0)])]).unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0), (1, 1.0)])]).unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0), (1, 1.0)])])
+            .unwrap();
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0), (1, 1.0)])])
+            .unwrap();
         let r = minimise(&p, 1e-9, 500, Instant::now() + Duration::from_secs(30));
         assert_eq!(r.prices[1], 0.0);
         assert!(r.prices[0] > 0.0);

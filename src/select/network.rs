@@ -15,8 +15,8 @@
 use super::dual::{self, Prices};
 use super::problem::Problem;
 use good_lp::{
-    constraint, variable, Expression, ProblemVariables, ResolutionError, Solution,
-    SolutionStatus, Solver, SolverModel, Variable, WithInitialSolution, WithMipGap, WithTimeLimit,
+    constraint, variable, Expression, ProblemVariables, ResolutionError, Solution, SolutionStatus,
+    Solver, SolverModel, Variable, WithInitialSolution, WithMipGap, WithTimeLimit,
 };
 use std::sync::mpsc;
 use std::time::{Duration, Instant};
@@ -192,6 +192,8 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
     let bound = prices.bound;
+    // A plan worth this much is within the requested gap.
+    let enough = bound - o.gap * bound.abs();
     let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
     let (mut plan, mut open) = recover(p, &prices);
     let contested = open.len();
@@ -236,10 +238,14 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     if fits(&used, &p.limits) {
         upgrade(p, &mut plan, &mut used, &prices.prices);
         if debug {
-            eprintln!("upgrade: {} at {:.2} s", p.plan_value(&plan), start.elapsed().as_secs_f64());
+            eprintln!(
+                "upgrade: {} at {:.2} s",
+                p.plan_value(&plan),
+                start.elapsed().as_secs_f64()
+            );
         }
         if p.candidate_count() <= EXACT_AUTO_CANDIDATES {
-            swap_search(p, &mut plan, &mut used, deadline);
+            swap_search(p, &mut plan, &mut used, deadline, enough);
         }
     }
     if debug {
@@ -289,10 +295,14 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     } else if gap_now(&plan, &used) > o.gap && Instant::now() < deadline {
         improve_contested(p, &mut plan, &mut used, &prices, deadline, o.gap);
         if p.candidate_count() <= SWAP_CANDIDATES && gap_now(&plan, &used) > o.gap {
-            swap_search(p, &mut plan, &mut used, deadline);
+            swap_search(p, &mut plan, &mut used, deadline, enough);
         }
         if debug {
-            eprintln!("windows: {} at {:.2} s", p.plan_value(&plan), start.elapsed().as_secs_f64());
+            eprintln!(
+                "windows: {} at {:.2} s",
+                p.plan_value(&plan),
+                start.elapsed().as_secs_f64()
+            );
         }
     }
     if !fits(&used, &p.limits) {
@@ -406,7 +416,8 @@ fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64]) -> bool {
                 if removed <= 0.0 {
                     continue;
                 }
-                let loss = (p.value(cur) - p.value(c)).max(0.0) + 1e-12 * (p.value(cur).abs() + 1.0);
+                let loss =
+                    (p.value(cur) - p.value(c)).max(0.0) + 1e-12 * (p.value(cur).abs() + 1.0);
                 moves.push((removed / loss, g, (c - p.candidates(g).start) as u16));
             }
         }
@@ -540,7 +551,7 @@ fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
 /// Pair exchanges: move two groups at once (typically one gives up money that lets the other
 /// take a better candidate) when the pair raises the plan's value and every row still fits.
 /// Takes the best exchange found in each sweep until none improves or the deadline passes.
-fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instant) {
+fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instant, enough: f64) {
     let rows = p.rows();
     let n = p.candidate_count();
     // Each candidate's group.
@@ -552,6 +563,9 @@ fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instan
     }
     let mut delta = vec![0.0; rows];
     for _sweep in 0..1000 {
+        if p.plan_value(plan) >= enough {
+            return;
+        }
         // Moves away from the current plan, with their value gain, best first.
         let mut moves: Vec<(f64, usize)> = (0..n)
             .filter(|&c| c != p.global(group[c], plan[group[c]]))
@@ -724,7 +738,12 @@ fn improve_contested(
 /// `None` when it found no plan. The flag is true when the solver proved the plan optimal.
 /// The solve runs on its own thread and is abandoned (its result ignored) if it overruns the
 /// time by more than a second: solvers do not always stop on time.
-pub fn exact(p: Problem, warm: Option<Vec<u16>>, time: Duration, gap: f64) -> Option<(Vec<u16>, bool)> {
+pub fn exact(
+    p: Problem,
+    warm: Option<Vec<u16>>,
+    time: Duration,
+    gap: f64,
+) -> Option<(Vec<u16>, bool)> {
     if time.is_zero() {
         return None;
     }
@@ -740,7 +759,9 @@ pub fn exact(p: Problem, warm: Option<Vec<u16>>, time: Duration, gap: f64) -> Op
             let _ = tx.send(r);
         })
         .ok()?;
-    rx.recv_timeout(time + Duration::from_secs(1)).ok().flatten()
+    rx.recv_timeout(time + Duration::from_secs(1))
+        .ok()
+        .flatten()
 }
 
 fn exact_with<S: Solver>(
@@ -756,7 +777,11 @@ where
 {
     let mut vars = ProblemVariables::new();
     let x: Vec<Vec<Variable>> = (0..p.groups())
-        .map(|g| p.candidates(g).map(|_| vars.add(variable().binary())).collect())
+        .map(|g| {
+            p.candidates(g)
+                .map(|_| vars.add(variable().binary()))
+                .collect()
+        })
         .collect();
     let vscale = (0..p.candidate_count())
         .map(|c| p.value(c).abs())
@@ -805,7 +830,10 @@ where
     }
     let s = model.solve().map_err(Into::into).ok()?;
     // Proven optimal, or proven within the gap it was given.
-    let optimal = matches!(s.status(), SolutionStatus::Optimal | SolutionStatus::GapLimit);
+    let optimal = matches!(
+        s.status(),
+        SolutionStatus::Optimal | SolutionStatus::GapLimit
+    );
     let plan: Vec<u16> = x
         .iter()
         .map(|xs| {
@@ -816,4 +844,170 @@ where
         })
         .collect();
     Some((plan, optimal))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::problem::Offer;
+    use super::*;
+    use proptest::prelude::*;
+
+    fn problem(groups: &[Vec<(f64, Vec<f64>)>], limits: &[f64]) -> Problem {
+        let mut p = Problem::new(limits.to_vec());
+        for g in groups {
+            let offers: Vec<Offer> = g
+                .iter()
+                .map(|(v, c)| Offer {
+                    value: *v,
+                    uses: c
+                        .iter()
+                        .enumerate()
+                        .filter(|(_, x)| **x != 0.0)
+                        .map(|(j, x)| (j as u16, *x))
+                        .collect(),
+                })
+                .collect();
+            p.push_group(&offers).unwrap();
+        }
+        p
+    }
+
+    /// Best value by trying every combination; `None` when none fits.
+    fn brute(groups: &[Vec<(f64, Vec<f64>)>], limits: &[f64]) -> Option<f64> {
+        let mut best: Option<f64> = None;
+        let mut idx = vec![0usize; groups.len()];
+        loop {
+            let mut used = vec![0.0; limits.len()];
+            let mut v = 0.0;
+            for (g, &k) in groups.iter().zip(&idx) {
+                v += g[k].0;
+                for (u, c) in used.iter_mut().zip(&g[k].1) {
+                    *u += c;
+                }
+            }
+            if used.iter().zip(limits).all(|(u, l)| *u <= l + 1e-9) {
+                best = Some(best.map_or(v, |b: f64| b.max(v)));
+            }
+            let mut i = 0;
+            loop {
+                if i == groups.len() {
+                    return best;
+                }
+                idx[i] += 1;
+                if idx[i] < groups[i].len() {
+                    break;
+                }
+                idx[i] = 0;
+                i += 1;
+            }
+        }
+    }
+
+    fn opts(method: Method) -> Options {
+        Options {
+            method,
+            gap: 0.0,
+            time_limit: Duration::from_secs(5),
+        }
+    }
+
+    #[test]
+    fn budget_reference_case() {
+        // ../shared/REFERENCES.md, budget-constrained selection: budget 2000, P1 (1000, 536),
+        // P2 (1600, 612), P3 (900, 400): the best set is P1 + P3 = 936, where taking the largest
+        // NPV first gives 612.
+        let groups = vec![
+            vec![(0.0, vec![0.0]), (536.0, vec![1000.0])],
+            vec![(0.0, vec![0.0]), (612.0, vec![1600.0])],
+            vec![(0.0, vec![0.0]), (400.0, vec![900.0])],
+        ];
+        for m in [Method::Exact, Method::Decomposed] {
+            let o = solve(&problem(&groups, &[2000.0]), &opts(m)).unwrap();
+            assert!((o.value - 936.0).abs() < 1e-9, "{m:?}: {}", o.value);
+            assert_eq!(o.plan, vec![1, 0, 1]);
+            assert!(o.bound >= 936.0 - 1e-9);
+        }
+    }
+
+    #[test]
+    fn unlimited_budgets_give_every_group_its_best() {
+        let groups = vec![
+            vec![
+                (0.0, vec![0.0, 0.0]),
+                (5.0, vec![3.0, 1.0]),
+                (7.0, vec![9.0, 2.0]),
+            ],
+            vec![(0.0, vec![0.0, 0.0]), (2.0, vec![1.0, 0.0])],
+        ];
+        let o = solve(&problem(&groups, &[1e9, 1e9]), &opts(Method::Decomposed)).unwrap();
+        assert_eq!(o.plan, vec![2, 1]);
+        assert_eq!(o.status, Status::Optimal);
+        assert_eq!(o.prices, vec![0.0, 0.0]);
+    }
+
+    #[test]
+    fn rows_nobody_can_meet_are_named() {
+        let groups = vec![vec![(0.0, vec![5.0]), (1.0, vec![6.0])]];
+        match solve(&problem(&groups, &[4.0]), &opts(Method::Auto)) {
+            Err(Infeasible::Rows(r)) => assert_eq!(r, vec![(0, 5.0)]),
+            other => panic!("{other:?}"),
+        }
+    }
+
+    fn arb_case() -> impl Strategy<Value = (Vec<Vec<(f64, Vec<f64>)>>, Vec<f64>)> {
+        (1usize..=3).prop_flat_map(|rows| {
+            let cand = (
+                -20.0f64..100.0,
+                proptest::collection::vec(prop_oneof![Just(0.0), 0.0f64..50.0], rows),
+            );
+            let group = proptest::collection::vec(cand, 1..4).prop_map(move |mut g| {
+                // Every group may do nothing, as a section's base.
+                g.insert(0, (0.0, vec![0.0; rows]));
+                g
+            });
+            (
+                proptest::collection::vec(group, 1..6),
+                proptest::collection::vec(0.0f64..120.0, rows),
+            )
+        })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 64, ..ProptestConfig::default() })]
+
+        /// Both paths against brute force: the plan fits every row, is worth no more than the
+        /// optimum, lies within its reported gap of it, and the bound is never below it.
+        #[test]
+        fn both_paths_agree_with_brute_force((groups, limits) in arb_case()) {
+            let best = brute(&groups, &limits).expect("the do-nothing plan fits");
+            for m in [Method::Exact, Method::Decomposed] {
+                let o = solve(&problem(&groups, &limits), &opts(m)).unwrap();
+                let used = problem(&groups, &limits).plan_use(&o.plan);
+                for (u, l) in used.iter().zip(&limits) {
+                    prop_assert!(*u <= l + 1e-9, "{m:?} uses {u} of {l}");
+                }
+                prop_assert!(o.value <= best + 1e-9, "{m:?} {} above optimum {best}", o.value);
+                prop_assert!(o.bound >= best - 1e-6 * best.abs().max(1.0), "{m:?} bound {} below {best}", o.bound);
+                prop_assert!(o.value >= best - o.gap * o.bound.abs() - 1e-6, "{m:?} {} not within gap {} of {best}", o.value, o.gap);
+                // A row whose limit is above every possible use has a zero price.
+                for (j, l) in limits.iter().enumerate() {
+                    let most: f64 = groups.iter().map(|g| g.iter().map(|c| c.1[j]).fold(0.0, f64::max)).sum();
+                    if most <= *l {
+                        prop_assert_eq!(o.prices[j], 0.0);
+                    }
+                }
+            }
+        }
+
+        /// Raising a budget never lowers the optimum (exact path, proven optimal).
+        #[test]
+        fn more_money_never_hurts((groups, limits) in arb_case(), extra in 0.0f64..60.0) {
+            let a = solve(&problem(&groups, &limits), &opts(Method::Exact)).unwrap();
+            let more: Vec<f64> = limits.iter().map(|l| l + extra).collect();
+            let b = solve(&problem(&groups, &more), &opts(Method::Exact)).unwrap();
+            if a.status == Status::Optimal && b.status == Status::Optimal {
+                prop_assert!(b.value >= a.value - 1e-9, "{} < {}", b.value, a.value);
+            }
+        }
+    }
 }

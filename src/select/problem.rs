@@ -140,8 +140,7 @@ impl Problem {
             let row_i = &dense[i * w..(i + 1) * w];
             let dominated = kept.iter().any(|&k| {
                 let row_k = &dense[k * w..(k + 1) * w];
-                offers[k].value >= offers[i].value
-                    && row_k.iter().zip(row_i).all(|(a, b)| a <= b)
+                offers[k].value >= offers[i].value && row_k.iter().zip(row_i).all(|(a, b)| a <= b)
             });
             if !dominated {
                 kept.push(i);
@@ -238,10 +237,10 @@ mod tests {
             .push_group(&[
                 offer(0.0, &[]),
                 offer(5.0, &[(0, 3.0)]),
-                offer(4.0, &[(0, 3.0)]),             // less value, same use: dominated
-                offer(6.0, &[(0, 2.0), (1, 1.0)]),   // more value but uses row 1: kept
-                offer(5.0, &[(0, 3.0)]),             // duplicate of the second: dropped
-                offer(-1.0, &[(1, 0.5)]),            // the first does better for nothing
+                offer(4.0, &[(0, 3.0)]), // less value, same use: dominated
+                offer(6.0, &[(0, 2.0), (1, 1.0)]), // more value but uses row 1: kept
+                offer(5.0, &[(0, 3.0)]), // duplicate of the second: dropped
+                offer(-1.0, &[(1, 0.5)]), // the first does better for nothing
             ])
             .unwrap();
         assert_eq!(kept, vec![0, 1, 3]);

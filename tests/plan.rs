@@ -1,0 +1,312 @@
+//! `pavestrat plan` and `pavestrat explain`: the network selection on the demo and on synthetic
+//! networks, its files, its promises (no line exceeded, exact and decomposed paths agreeing within
+//! their reported gaps, unlimited budgets giving every section its best) and bad input.
+
+use crate::util::Workdir;
+use std::collections::HashMap;
+
+/// Rows of a CSV text as maps from column name to field (fields hold no commas here).
+fn rows(text: &str) -> Vec<HashMap<String, String>> {
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    lines
+        .map(|l| {
+            head.iter()
+                .zip(l.split(','))
+                .map(|(h, v)| ((*h).to_owned(), v.to_owned()))
+                .collect()
+        })
+        .collect()
+}
+
+/// An amount written to the cent, as whole cents.
+fn cents(s: &str) -> i64 {
+    let x: f64 = s.parse().unwrap_or_else(|_| panic!("not an amount: {s:?}"));
+    (x * 100.0).round() as i64
+}
+
+fn summary(wd: &Workdir, dir: &str) -> serde_json::Value {
+    serde_json::from_str(&wd.read(&format!("{dir}/summary.json"))).unwrap()
+}
+
+#[test]
+fn plans_the_built_in_demo_within_every_line() {
+    let wd = Workdir::new();
+    wd.run(&["plan", "--out", "res", "--time-limit", "3"])
+        .expect_code(0)
+        .stdout_has("Certificate: plan")
+        .stdout_has("licensed engineer");
+    let mut names = std::fs::read_dir(wd.join("res"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect::<Vec<_>>();
+    names.sort();
+    assert_eq!(
+        names,
+        [
+            "budget_use.csv",
+            "candidates.csv",
+            "section_plan.csv",
+            "summary.json",
+            "target_use.csv",
+            "work_programme.csv"
+        ]
+    );
+    let budget = rows(&wd.read("res/budget_use.csv"));
+    assert_eq!(budget.len(), 30, "the demo has 30 budget lines");
+    for b in &budget {
+        assert!(
+            cents(&b["used"]) <= cents(&b["limit"]),
+            "{} uses {} of {}",
+            b["line"],
+            b["used"],
+            b["limit"]
+        );
+        let price: f64 = b["price"].parse().unwrap();
+        assert!(price >= 0.0);
+    }
+    // Every treatment of the work programme, summed by year, is what the capital lines without a
+    // region count (the capital treatments; routine ones go to the upkeep lines).
+    let works = rows(&wd.read("res/work_programme.csv"));
+    let mut by_year: HashMap<String, i64> = HashMap::new();
+    for w in &works {
+        if w["category"] == "capital" {
+            *by_year.entry(w["year"].clone()).or_default() += cents(&w["cost"]);
+        }
+    }
+    for b in budget
+        .iter()
+        .filter(|b| b["region"].is_empty() && b["category"] == "capital")
+    {
+        let sum = by_year.get(&b["year"]).copied().unwrap_or(0);
+        assert!(
+            (sum - cents(&b["used"])).abs() <= 5,
+            "{}: work programme {sum} vs used {}",
+            b["line"],
+            b["used"]
+        );
+    }
+    // The commitment is kept: HER-02 gets an overlay in 2028.
+    assert!(works.iter().any(|w| w["section_id"] == "HER-02"
+        && w["year"] == "2028"
+        && w["treatment"] == "overlay"));
+    let plan = rows(&wd.read("res/section_plan.csv"));
+    assert_eq!(plan.len(), 40);
+    let targets = rows(&wd.read("res/target_use.csv"));
+    assert_eq!(targets.len(), 6);
+    for t in &targets {
+        let a: f64 = t["achieved"].parse().unwrap();
+        assert!(a <= 0.10 + 1e-9, "{}: {a}", t["line"]);
+    }
+    let s = summary(&wd, "res");
+    for key in [
+        "objective",
+        "bound",
+        "gap",
+        "status",
+        "method",
+        "sections",
+        "candidates",
+        "seconds",
+    ] {
+        assert!(!s[key].is_null(), "summary.json lacks {key}");
+    }
+    let (v, bound, gap) = (
+        s["objective"].as_f64().unwrap(),
+        s["bound"].as_f64().unwrap(),
+        s["gap"].as_f64().unwrap(),
+    );
+    assert!(v <= bound + 1e-6 * bound.abs());
+    assert!((bound - v) / bound.abs() <= gap + 1e-12);
+    // The plan's NPV is the sum of the sections' NPVs.
+    let total: f64 = plan.iter().map(|r| r["npv"].parse::<f64>().unwrap()).sum();
+    assert!(
+        (total - v).abs() < 0.01 * plan.len() as f64,
+        "{total} vs {v}"
+    );
+
+    // explain: the chosen strategy is marked, with the margin or the reason.
+    let out = wd.run(&["explain", "OR-01", "--from", "res"]);
+    out.expect_code(0)
+        .stdout_has("Section OR-01: the plan gives it");
+    let chosen = &plan.iter().find(|r| r["section_id"] == "OR-01").unwrap()["strategy"];
+    assert!(
+        out.stdout.contains(&format!("* {chosen}")),
+        "{}",
+        out.stdout
+    );
+    wd.run(&["explain", "OR-1", "--from", "res"])
+        .expect_code(2)
+        .stderr_has("did you mean `OR-01`?");
+    wd.run(&["explain", "OR-01", "--from", "nowhere"])
+        .expect_code(2)
+        .stderr_has("summary.json");
+}
+
+#[test]
+fn with_unlimited_budgets_every_section_gets_its_best() {
+    let wd = Workdir::new();
+    wd.run(&["plan", "--out", "res", "--budget-scale", "1000", "--quiet"])
+        .expect_code(0);
+    for r in rows(&wd.read("res/section_plan.csv")) {
+        assert_eq!(
+            r["same"], "true",
+            "{}: {} vs {}",
+            r["section_id"], r["strategy"], r["unconstrained_strategy"]
+        );
+    }
+    for b in rows(&wd.read("res/budget_use.csv")) {
+        assert_eq!(b["price"], "0", "{} is slack", b["line"]);
+    }
+    assert_eq!(summary(&wd, "res")["status"], "optimal");
+}
+
+#[test]
+fn exact_and_decomposed_agree_within_their_gaps() {
+    let wd = Workdir::new();
+    wd.run(&["init", "net", "--sections", "60", "--seed", "5", "--quiet"])
+        .expect_code(0);
+    let mut got = Vec::new();
+    for m in ["exact", "decomposed"] {
+        let dir = format!("res-{m}");
+        wd.run(&[
+            "plan",
+            "--scenario",
+            "net/scenario.toml",
+            "--method",
+            m,
+            "--time-limit",
+            "4",
+            "--out",
+            &dir,
+            "--quiet",
+        ])
+        .expect_code(0);
+        let s = summary(&wd, &dir);
+        assert_eq!(s["method"], m);
+        got.push((
+            s["objective"].as_f64().unwrap(),
+            s["bound"].as_f64().unwrap(),
+        ));
+    }
+    // Each plan is worth no more than either bound.
+    for (v, _) in &got {
+        for (_, b) in &got {
+            assert!(*v <= b + 1e-6 * b.abs(), "{v} above bound {b}");
+        }
+    }
+}
+
+#[test]
+fn raising_the_budget_never_lowers_the_plan_value_much() {
+    // The optimum cannot fall when money is added. Plans are proven only within their gap, so
+    // the comparison allows the two gaps.
+    let wd = Workdir::new();
+    let mut last: Option<(f64, f64)> = None;
+    for scale in ["0.9", "1", "1.5"] {
+        let dir = format!("res-{scale}");
+        wd.run(&[
+            "plan",
+            "--budget-scale",
+            scale,
+            "--time-limit",
+            "2",
+            "--out",
+            &dir,
+            "--quiet",
+        ])
+        .expect_code(0);
+        let s = summary(&wd, &dir);
+        let (v, b) = (
+            s["objective"].as_f64().unwrap(),
+            s["bound"].as_f64().unwrap(),
+        );
+        if let Some((pv, pb)) = last {
+            assert!(b >= pb - 1e-6 * pb.abs(), "bound fell from {pb} to {b}");
+            assert!(
+                v >= pv - (pb - pv) - 1e-6 * pv.abs(),
+                "value fell from {pv} to {v}"
+            );
+        }
+        last = Some((v, b));
+    }
+}
+
+#[test]
+fn lines_that_cannot_be_met_exit_3_and_are_named() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let s = wd
+        .read("scenario.toml")
+        .replace("per_year = \"430000\"", "per_year = \"1000\"");
+    wd.write("scenario.toml", s);
+    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res"])
+        .expect_code(3)
+        .stderr_has("north-upkeep-2027: limit 1,000.00");
+    assert!(!wd.join("res").exists(), "nothing is written");
+}
+
+#[test]
+fn bad_commitments_are_located() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let s = wd.read("scenario.toml");
+    let bad = s.replace(
+        "section = \"HER-02\"\ntreatment = \"overlay\"\nyear = 2028",
+        "section = \"HER-02\"\nstrategy = \"overlay@never\"",
+    );
+    assert_ne!(bad, s);
+    wd.write("scenario.toml", &bad);
+    wd.run(&["plan", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("commit[1].strategy: the strategy `overlay@never`, which no strategy of section `HER-02` gives");
+    let bad = s.replace("section = \"HER-02\"", "section = \"HER-99\"");
+    wd.write("scenario.toml", &bad);
+    wd.run(&["plan", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("commit[1].section: the section `HER-99`");
+    let bad = s.replace(
+        "treatment = \"overlay\"\nyear = 2028",
+        "treatment = \"overlai\"\nyear = 2028",
+    );
+    wd.write("scenario.toml", &bad);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("did you mean `overlay`?");
+    let bad = s.replace("measure = \"poor-share\"", "measure = \"poorness\"");
+    wd.write("scenario.toml", &bad);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("target[1].measure");
+    wd.run(&["plan", "--gap", "2"]).expect_code(2);
+    wd.run(&["plan", "--time-limit", "0"]).expect_code(2);
+    wd.run(&["plan", "--budget-scale", "-1"]).expect_code(2);
+}
+
+#[test]
+fn least_cost_meets_the_targets() {
+    let wd = Workdir::new();
+    wd.run(&[
+        "plan",
+        "--objective",
+        "least-cost",
+        "--time-limit",
+        "2",
+        "--out",
+        "res",
+        "--quiet",
+    ])
+    .expect_code(0);
+    let s = summary(&wd, "res");
+    assert_eq!(s["objective_kind"], "least-cost");
+    // The objective is the PV agency cost, no less than the bound (a lower bound on cost).
+    let (v, b) = (
+        s["objective"].as_f64().unwrap(),
+        s["bound"].as_f64().unwrap(),
+    );
+    assert!(v >= b - 1e-6 * b.abs(), "{v} below its bound {b}");
+    for t in rows(&wd.read("res/target_use.csv")) {
+        let a: f64 = t["achieved"].parse().unwrap();
+        assert!(a <= 0.10 + 1e-9, "{}: {a}", t["line"]);
+    }
+}
