@@ -238,7 +238,7 @@ fn lines_that_cannot_be_met_exit_3_and_are_named() {
     wd.demo_files();
     let s = wd
         .read("scenario.toml")
-        .replace("per_year = \"430000\"", "per_year = \"1000\"");
+        .replace("per_year = \"560000\"", "per_year = \"1000\"");
     wd.write("scenario.toml", s);
     wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res"])
         .expect_code(3)
