@@ -44,7 +44,7 @@ pub struct Args {
     #[arg(long, value_name = "X", default_value_t = 1.0, value_parser = parse_scale)]
     pub budget_scale: f64,
 
-    /// What to optimise; overrides the scenario's [plan] objective.
+    /// What to optimise; overrides the scenario's `[plan]` objective.
     #[arg(long, value_name = "WHAT", value_parser = ["npv", "least-cost"])]
     pub objective: Option<String>,
 
@@ -67,7 +67,7 @@ pub struct Args {
 
 fn parse_scale(s: &str) -> std::result::Result<f64, String> {
     match s.trim().parse::<f64>() {
-        Ok(x) if x.is_finite() && x >= 0.0 && x <= 1e6 => Ok(x),
+        Ok(x) if (0.0..=1e6).contains(&x) => Ok(x),
         _ => Err(format!(
             "`{s}` is not a budget factor; expected a number from 0 to 1000000, e.g. 0.8"
         )),
@@ -431,7 +431,7 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
         c.sections(),
         c.problem.candidate_count()
     );
-    if f.budget_scale != 1.0 {
+    if (f.budget_scale - 1.0).abs() > 1e-12 {
         let _ = writeln!(s, "every budget line scaled by {}", f.budget_scale);
     }
     let _ = writeln!(

@@ -369,6 +369,7 @@ pub fn combine(plans: &[(Vec<u16>, f64, Vec<f64>)], limits: &[f64]) -> Vec<f64> 
 }
 
 #[cfg(test)]
+#[allow(clippy::float_cmp)]
 mod tests {
     use super::super::problem::Offer;
     use super::*;

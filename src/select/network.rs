@@ -153,6 +153,7 @@ pub fn relative_gap(value: f64, bound: f64) -> f64 {
 }
 
 /// Choose one candidate per group.
+#[allow(clippy::needless_range_loop)]
 pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     let start = Instant::now();
     let deadline = start + o.time_limit;
@@ -278,18 +279,15 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         if gap_now(&plan, &used) > o.gap * 1e-3 {
             let warm = fits(&used, &p.limits).then(|| plan.clone());
             let left = deadline.saturating_duration_since(Instant::now());
-            match exact(p.clone(), warm, left, o.gap) {
-                Some((x, optimal)) => {
-                    let u = p.plan_use(&x);
-                    if fits(&u, &p.limits)
-                        && (!fits(&used, &p.limits) || p.plan_value(&x) >= p.plan_value(&plan))
-                    {
-                        plan = x;
-                        used = u;
-                    }
-                    proven = optimal && fits(&used, &p.limits);
+            if let Some((x, optimal)) = exact(p.clone(), warm, left, o.gap) {
+                let u = p.plan_use(&x);
+                if fits(&u, &p.limits)
+                    && (!fits(&used, &p.limits) || p.plan_value(&x) >= p.plan_value(&plan))
+                {
+                    plan = x;
+                    used = u;
                 }
-                None => {}
+                proven = optimal && fits(&used, &p.limits);
             }
         }
     } else if gap_now(&plan, &used) > o.gap && Instant::now() < deadline {
@@ -346,6 +344,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
 
 /// The plan the price plans' combination points to: each group's heaviest candidate. Returns
 /// it and the groups with no candidate of weight ≥ [`SETTLED`] (contested).
+#[allow(clippy::needless_range_loop)]
 fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
     if prices.weights.is_empty() {
         return (prices.at_best.plan.clone(), Vec::new());
@@ -380,6 +379,7 @@ fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
 
 /// Move groups to other candidates until every row fits, giving up as little value as possible
 /// per unit of excess removed. Returns whether the plan fits.
+#[allow(clippy::needless_range_loop)]
 fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64]) -> bool {
     let rows = p.rows();
     let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
@@ -493,6 +493,7 @@ fn move_fits(p: &Problem, used: &[f64], from: usize, to: usize, delta: &mut [f64
 
 /// Upgrade groups to candidates of more value while the rows allow, best value per priced use
 /// first, until a pass changes nothing.
+#[allow(clippy::needless_range_loop)]
 fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
     let rows = p.rows();
     let mut delta = vec![0.0; rows];
@@ -620,6 +621,7 @@ fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instan
 /// contested groups (split by the price plans) first, then by how close each group's best two
 /// candidates are at the final prices; the first window is the most contested part. Stops when
 /// the plan is within `gap` of `bound`, at the deadline, or after a full sweep with no gain.
+#[allow(clippy::needless_range_loop)]
 fn improve_contested(
     p: &Problem,
     plan: &mut [u16],
@@ -847,12 +849,15 @@ where
 }
 
 #[cfg(test)]
+#[allow(clippy::float_cmp)]
 mod tests {
     use super::super::problem::Offer;
     use super::*;
     use proptest::prelude::*;
 
-    fn problem(groups: &[Vec<(f64, Vec<f64>)>], limits: &[f64]) -> Problem {
+    type Groups = [Vec<(f64, Vec<f64>)>];
+
+    fn problem(groups: &Groups, limits: &[f64]) -> Problem {
         let mut p = Problem::new(limits.to_vec());
         for g in groups {
             let offers: Vec<Offer> = g
@@ -873,7 +878,7 @@ mod tests {
     }
 
     /// Best value by trying every combination; `None` when none fits.
-    fn brute(groups: &[Vec<(f64, Vec<f64>)>], limits: &[f64]) -> Option<f64> {
+    fn brute(groups: &Groups, limits: &[f64]) -> Option<f64> {
         let mut best: Option<f64> = None;
         let mut idx = vec![0usize; groups.len()];
         loop {
@@ -954,7 +959,9 @@ mod tests {
         }
     }
 
-    fn arb_case() -> impl Strategy<Value = (Vec<Vec<(f64, Vec<f64>)>>, Vec<f64>)> {
+    type Case = (Vec<Vec<(f64, Vec<f64>)>>, Vec<f64>);
+
+    fn arb_case() -> impl Strategy<Value = Case> {
         (1usize..=3).prop_flat_map(|rows| {
             let cand = (
                 -20.0f64..100.0,
