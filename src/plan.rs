@@ -29,6 +29,8 @@ use std::collections::HashMap;
 
 /// Sections per parallel chunk while building candidates.
 const CHUNK: usize = 512;
+/// Sections per block of candidate building (see [`candidates`]).
+const BLOCK: usize = 65_536;
 
 /// What a row limits.
 #[derive(Debug, Clone, PartialEq)]
@@ -338,49 +340,9 @@ pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::e
         Vec<(Place, String, String)>,
         Option<String>,
     );
-    let chunks: Vec<ChunkOut> = secs
-        .par_chunks(CHUNK)
-        .map(|chunk| {
-            let mut p = Problem::new(limits.clone());
-            let (mut st, mut npv, mut pva) = (Vec::new(), Vec::new(), Vec::new());
-            let (mut en, mut un, mut bp) = (Vec::new(), Vec::new(), Vec::new());
-            let mut problems = Vec::new();
-            let mut fault = None;
-            for sec in chunk {
-                let c = section_candidates(
-                    run,
-                    &e,
-                    &rows,
-                    settings.objective,
-                    sec,
-                    held.get(sec.id.0.as_str()),
-                    &mut problems,
-                );
-                en.push(c.enumerated);
-                un.push(c.unconstrained);
-                bp.push(c.base_pv_agency);
-                if c.offers.is_empty() {
-                    continue;
-                }
-                match p.push_group(&c.offers) {
-                    Ok(kept) => {
-                        for k in kept {
-                            st.push(c.strategy[k]);
-                            npv.push(c.npv[k]);
-                            pva.push(c.pv_agency[k]);
-                        }
-                    }
-                    Err(err) => {
-                        fault.get_or_insert(format!("section {}: {err}", sec.id));
-                    }
-                }
-            }
-            (p, st, npv, pva, en, un, bp, problems, fault)
-        })
-        .collect();
     let mut out = Candidates {
         rows,
-        problem: Problem::new(limits),
+        problem: Problem::new(limits.clone()),
         objective: settings.objective,
         strategy: Vec::new(),
         npv: Vec::new(),
@@ -389,21 +351,66 @@ pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::e
         unconstrained: Vec::with_capacity(secs.len()),
         base_pv_agency: Vec::with_capacity(secs.len()),
     };
+    let rows = out.rows.clone();
     let mut d = Diagnostics::new();
-    for (p, st, npv, pva, en, un, bp, problems, fault) in chunks {
-        if let Some(f) = fault {
-            return Err(crate::error::Error::Internal(f));
+    // Blocks of sections one after the other, each in parallel chunks, so that only one block's
+    // partial results exist beside the growing whole.
+    for block in secs.chunks(BLOCK) {
+        let chunks: Vec<ChunkOut> = block
+            .par_chunks(CHUNK)
+            .map(|chunk| {
+                let mut p = Problem::new(limits.clone());
+                let (mut st, mut npv, mut pva) = (Vec::new(), Vec::new(), Vec::new());
+                let (mut en, mut un, mut bp) = (Vec::new(), Vec::new(), Vec::new());
+                let mut problems = Vec::new();
+                let mut fault = None;
+                for sec in chunk {
+                    let c = section_candidates(
+                        run,
+                        &e,
+                        &rows,
+                        settings.objective,
+                        sec,
+                        held.get(sec.id.0.as_str()),
+                        &mut problems,
+                    );
+                    en.push(c.enumerated);
+                    un.push(c.unconstrained);
+                    bp.push(c.base_pv_agency);
+                    if c.offers.is_empty() {
+                        continue;
+                    }
+                    match p.push_group(&c.offers) {
+                        Ok(kept) => {
+                            for k in kept {
+                                st.push(c.strategy[k]);
+                                npv.push(c.npv[k]);
+                                pva.push(c.pv_agency[k]);
+                            }
+                        }
+                        Err(err) => {
+                            fault.get_or_insert(format!("section {}: {err}", sec.id));
+                        }
+                    }
+                }
+                (p, st, npv, pva, en, un, bp, problems, fault)
+            })
+            .collect();
+        for (p, st, npv, pva, en, un, bp, problems, fault) in chunks {
+            if let Some(f) = fault {
+                return Err(crate::error::Error::Internal(f));
+            }
+            for (place, found, expected) in problems {
+                d.error(place, found, expected);
+            }
+            out.problem.append(p);
+            out.strategy.extend(st);
+            out.npv.extend(npv);
+            out.pv_agency.extend(pva);
+            out.enumerated.extend(en);
+            out.unconstrained.extend(un);
+            out.base_pv_agency.extend(bp);
         }
-        for (place, found, expected) in problems {
-            d.error(place, found, expected);
-        }
-        out.problem.append(p);
-        out.strategy.extend(st);
-        out.npv.extend(npv);
-        out.pv_agency.extend(pva);
-        out.enumerated.extend(en);
-        out.unconstrained.extend(un);
-        out.base_pv_agency.extend(bp);
     }
     if d.has_errors() {
         return Err(crate::error::Error::Input(d));

@@ -192,6 +192,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
 
     let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
+    if std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some() {
+        eprintln!("prices: {:.2} s", start.elapsed().as_secs_f64());
+    }
     let bound = prices.bound;
     // A plan worth this much is within the requested gap.
     let enough = bound - o.gap * bound.abs();
@@ -225,7 +228,12 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         }
         let next: Vec<usize> = sub_open.iter().map(|&i| open[i]).collect();
         if debug {
-            eprintln!("round: {} contested -> {}", open.len(), next.len());
+            eprintln!(
+                "round: {} contested -> {} at {:.2} s",
+                open.len(),
+                next.len(),
+                start.elapsed().as_secs_f64()
+            );
         }
         if next.len() * 10 > open.len() * 9 {
             break;
@@ -234,13 +242,39 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
     let mut used = p.plan_use(&plan);
     if !fits(&used, &p.limits) {
-        repair(p, &mut plan, &mut used);
+        repair(p, &mut plan, &mut used, None);
     }
     if fits(&used, &p.limits) {
         upgrade(p, &mut plan, &mut used, &prices.prices);
+    }
+    // A second start: every group at its best for the final prices, repaired at the least
+    // priced loss, then upgraded; the better of the two plans goes on.
+    {
+        let mut other = prices.at_best.plan.clone();
+        let mut u = p.plan_use(&other);
+        if !fits(&u, &p.limits) {
+            repair(p, &mut other, &mut u, Some(&prices.prices));
+        }
+        if fits(&u, &p.limits) {
+            upgrade(p, &mut other, &mut u, &prices.prices);
+            if debug {
+                eprintln!(
+                    "second start: {} at {:.2} s",
+                    p.plan_value(&other),
+                    start.elapsed().as_secs_f64()
+                );
+            }
+            if !fits(&used, &p.limits) || p.plan_value(&other) > p.plan_value(&plan) {
+                plan = other;
+                used = u;
+            }
+        }
+    }
+    if fits(&used, &p.limits) {
         if debug {
+            let (loss, slack) = gap_parts(p, &plan, &used, &prices.prices);
             eprintln!(
-                "upgrade: {} at {:.2} s",
+                "upgrade: {} at {:.2} s; gap parts: reduced-value loss {loss:.0}, priced slack {slack:.0}",
                 p.plan_value(&plan),
                 start.elapsed().as_secs_f64()
             );
@@ -342,6 +376,34 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     })
 }
 
+/// The two parts of L(λ) − value(plan): each group's reduced-value loss against its best at
+/// the prices, and the priced slack of the rows.
+fn gap_parts(p: &Problem, plan: &[u16], used: &[f64], lambda: &[f64]) -> (f64, f64) {
+    let reduced = |c: usize| {
+        let (rs, vs) = p.uses(c);
+        p.value(c)
+            - rs.iter()
+                .zip(vs)
+                .map(|(&j, &u)| lambda[j as usize] * u)
+                .sum::<f64>()
+    };
+    let mut loss = 0.0;
+    for (g, &k) in plan.iter().enumerate() {
+        let best = p
+            .candidates(g)
+            .map(reduced)
+            .fold(f64::NEG_INFINITY, f64::max);
+        loss += best - reduced(p.global(g, k));
+    }
+    let slack = lambda
+        .iter()
+        .zip(&p.limits)
+        .zip(used)
+        .map(|((l, b), u)| l * (b - u))
+        .sum();
+    (loss, slack)
+}
+
 /// The plan the price plans' combination points to: each group's heaviest candidate. Returns
 /// it and the groups with no candidate of weight ≥ [`SETTLED`] (contested).
 #[allow(clippy::needless_range_loop)]
@@ -380,7 +442,16 @@ fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
 /// Move groups to other candidates until every row fits, giving up as little value as possible
 /// per unit of excess removed. Returns whether the plan fits.
 #[allow(clippy::needless_range_loop)]
-fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64]) -> bool {
+fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: Option<&[f64]>) -> bool {
+    let reduced = |c: usize| -> f64 {
+        let Some(l) = prices else { return p.value(c) };
+        let (rs, vs) = p.uses(c);
+        p.value(c)
+            - rs.iter()
+                .zip(vs)
+                .map(|(&j, &u)| l[j as usize] * u)
+                .sum::<f64>()
+    };
     let rows = p.rows();
     let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
     let excess = |used: &[f64]| -> f64 {
@@ -417,7 +488,7 @@ fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64]) -> bool {
                     continue;
                 }
                 let loss =
-                    (p.value(cur) - p.value(c)).max(0.0) + 1e-12 * (p.value(cur).abs() + 1.0);
+                    (reduced(cur) - reduced(c)).max(0.0) + 1e-12 * (p.value(cur).abs() + 1.0);
                 moves.push((removed / loss, g, (c - p.candidates(g).start) as u16));
             }
         }
