@@ -74,22 +74,24 @@ fn main() {
         let built = t.elapsed().as_secs_f64();
         let count_c = c.problem.candidate_count();
         let t = Instant::now();
-        let plan = select(&run, c.clone(), &settings.select).expect("a plan");
+        let rows = c.rows.len();
+        let copy = (count_c <= 300_000).then(|| c.problem.clone());
+        let plan = select(&run, c, &settings.select).expect("a plan");
         let took = t.elapsed().as_secs_f64();
         let o = &plan.outcome;
         println!(
             "  {n} sections, {count_c} candidates ({:.1} a section), {} lines: candidates {built:.2} s; \
              decomposed {took:.2} s, gap {:.2e} ({}), {} price updates, {} contested; peak {:.0} MB",
             count_c as f64 / n as f64,
-            c.rows.len(),
+            rows,
             o.gap,
             o.status.name(),
             o.iterations,
             o.contested,
             peak_mb()
         );
-        if count_c <= 300_000 {
-            cold.push((n, c.problem, took, o.bound));
+        if let Some(problem) = copy {
+            cold.push((n, problem, took, o.bound));
         }
     }
     // The whole 0/1 programme from a cold start, given the decomposed path's time (run after
