@@ -160,6 +160,16 @@ fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, f
     }
 }
 
+/// Length (km) of the sections a target counts: its region's, or the whole network's.
+pub fn target_length(run: &Run, t: &crate::input::plan::TargetLine) -> f64 {
+    run.network
+        .sections
+        .iter()
+        .filter(|sec| t.region.is_none() || sec.region == t.region)
+        .map(|sec| sec.length_km)
+        .sum()
+}
+
 /// The rows of a run: its budget lines (scaled) and target lines.
 pub fn rows(run: &Run, budget_scale: f64) -> Vec<Row> {
     let s = &run.scenario;
@@ -176,13 +186,7 @@ pub fn rows(run: &Run, budget_scale: f64) -> Vec<Row> {
         });
     }
     for (k, t) in s.plan.targets.iter().enumerate() {
-        let length: f64 = run
-            .network
-            .sections
-            .iter()
-            .filter(|sec| t.region.is_none() || sec.region == t.region)
-            .map(|sec| sec.length_km)
-            .sum();
+        let length = target_length(run, t);
         rows.push(Row {
             name: t.name.clone(),
             kind: RowKind::Target(k),
@@ -566,20 +570,7 @@ pub fn recheck(
     let mut achieved = Vec::with_capacity(nt);
     for row in &c.rows {
         if let RowKind::Target(k) = row.kind {
-            let length = if row.limit > 0.0 {
-                row.row_limit / row.limit
-            } else {
-                0.0
-            };
-            let length = if length > 0.0 {
-                length
-            } else {
-                let t = &s.plan.targets[k];
-                secs.iter()
-                    .filter(|sec| t.region.is_none() || sec.region == t.region)
-                    .map(|sec| sec.length_km)
-                    .sum()
-            };
+            let length = target_length(run, &s.plan.targets[k]);
             achieved.push(if length > 0.0 {
                 target[k] / length
             } else {

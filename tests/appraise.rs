@@ -1,21 +1,7 @@
 //! `pavestrat appraise` and `pavestrat init`: the main job on the demo and on a user's own
 //! scenario, its output files, and bad input (exit 2, the place named, nothing written).
 
-use crate::util::Workdir;
-
-/// Rows of a CSV text as maps from column name to field (fields hold no commas here).
-fn rows(text: &str) -> Vec<std::collections::HashMap<String, String>> {
-    let mut lines = text.lines();
-    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
-    lines
-        .map(|l| {
-            head.iter()
-                .zip(l.split(','))
-                .map(|(h, v)| ((*h).to_owned(), v.to_owned()))
-                .collect()
-        })
-        .collect()
-}
+use crate::util::{rows, Workdir};
 
 #[test]
 fn appraises_the_built_in_demo() {

@@ -2,22 +2,8 @@
 //! networks, its files, its promises (no line exceeded, exact and decomposed paths agreeing within
 //! their reported gaps, unlimited budgets giving every section its best) and bad input.
 
-use crate::util::Workdir;
+use crate::util::{rows, Workdir};
 use std::collections::HashMap;
-
-/// Rows of a CSV text as maps from column name to field (fields hold no commas here).
-fn rows(text: &str) -> Vec<HashMap<String, String>> {
-    let mut lines = text.lines();
-    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
-    lines
-        .map(|l| {
-            head.iter()
-                .zip(l.split(','))
-                .map(|(h, v)| ((*h).to_owned(), v.to_owned()))
-                .collect()
-        })
-        .collect()
-}
 
 /// An amount written to the cent, as whole cents.
 fn cents(s: &str) -> i64 {

@@ -131,3 +131,17 @@ impl Workdir {
         self.run_with_stdin(args, b"")
     }
 }
+
+/// Rows of a CSV text as maps from column name to field (fields hold no commas here).
+pub fn rows(text: &str) -> Vec<std::collections::HashMap<String, String>> {
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    lines
+        .map(|l| {
+            head.iter()
+                .zip(l.split(','))
+                .map(|(h, v)| ((*h).to_owned(), v.to_owned()))
+                .collect()
+        })
+        .collect()
+}

@@ -339,13 +339,7 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
                     .iter()
                     .filter(|r| matches!(r.kind, RowKind::Target(_)))
                     .count();
-                let length: f64 = run
-                    .network
-                    .sections
-                    .iter()
-                    .filter(|sec| t.region.is_none() || sec.region == t.region)
-                    .map(|sec| sec.length_km)
-                    .sum();
+                let length = crate::plan::target_length(run, t);
                 let _ = writeln!(
                     tu,
                     "{},{},{},{},{:.6},{},{},{}",

@@ -379,14 +379,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
 /// The two parts of L(λ) − value(plan): each group's reduced-value loss against its best at
 /// the prices, and the priced slack of the rows.
 fn gap_parts(p: &Problem, plan: &[u16], used: &[f64], lambda: &[f64]) -> (f64, f64) {
-    let reduced = |c: usize| {
-        let (rs, vs) = p.uses(c);
-        p.value(c)
-            - rs.iter()
-                .zip(vs)
-                .map(|(&j, &u)| lambda[j as usize] * u)
-                .sum::<f64>()
-    };
+    let reduced = |c: usize| p.reduced(c, lambda);
     let mut loss = 0.0;
     for (g, &k) in plan.iter().enumerate() {
         let best = p
@@ -443,15 +436,7 @@ fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
 /// per unit of excess removed. Returns whether the plan fits.
 #[allow(clippy::needless_range_loop)]
 fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: Option<&[f64]>) -> bool {
-    let reduced = |c: usize| -> f64 {
-        let Some(l) = prices else { return p.value(c) };
-        let (rs, vs) = p.uses(c);
-        p.value(c)
-            - rs.iter()
-                .zip(vs)
-                .map(|(&j, &u)| l[j as usize] * u)
-                .sum::<f64>()
-    };
+    let reduced = |c: usize| prices.map_or(p.value(c), |l| p.reduced(c, l));
     let rows = p.rows();
     let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
     let excess = |used: &[f64]| -> f64 {
@@ -579,18 +564,7 @@ fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
                 if gain <= 0.0 || !move_fits(p, used, cur, c, &mut delta) {
                     continue;
                 }
-                let (rs, vs) = p.uses(c);
-                let mut cost: f64 = rs
-                    .iter()
-                    .zip(vs)
-                    .map(|(&j, &u)| prices[j as usize] * u)
-                    .sum();
-                let (rs, vs) = p.uses(cur);
-                cost -= rs
-                    .iter()
-                    .zip(vs)
-                    .map(|(&j, &u)| prices[j as usize] * u)
-                    .sum::<f64>();
+                let cost = p.priced_use(c, prices) - p.priced_use(cur, prices);
                 let score = gain / cost.max(1e-12 * gain);
                 if best.is_none_or(|b| score > b.0) {
                     best = Some((score, (c - p.candidates(g).start) as u16));
@@ -721,17 +695,7 @@ fn improve_contested(
     let mut ranked: Vec<(bool, f64, usize)> = (0..p.groups())
         .filter(|&g| p.candidates(g).len() > 1)
         .map(|g| {
-            let mut r: Vec<f64> = p
-                .candidates(g)
-                .map(|c| {
-                    let (rs, vs) = p.uses(c);
-                    p.value(c)
-                        - rs.iter()
-                            .zip(vs)
-                            .map(|(&j, &u)| lambda[j as usize] * u)
-                            .sum::<f64>()
-                })
-                .collect();
+            let mut r: Vec<f64> = p.candidates(g).map(|c| p.reduced(c, lambda)).collect();
             r.sort_by(|a, b| b.total_cmp(a));
             let margin = (r[0] - r[1]) / (r[0].abs().max(1.0));
             (!weight_split[g], margin, g)

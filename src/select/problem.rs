@@ -87,6 +87,20 @@ impl Problem {
         (&self.crow[r.clone()], &self.cval[r])
     }
 
+    /// Candidate `c`'s use of the rows valued at `prices`: Σ_j price_j · use_j.
+    pub fn priced_use(&self, c: usize, prices: &[f64]) -> f64 {
+        let (rows, vals) = self.uses(c);
+        rows.iter()
+            .zip(vals)
+            .map(|(&j, &u)| prices[j as usize] * u)
+            .sum()
+    }
+
+    /// Candidate `c`'s value less its priced use (its reduced value at `prices`).
+    pub fn reduced(&self, c: usize, prices: &[f64]) -> f64 {
+        self.value(c) - self.priced_use(c, prices)
+    }
+
     /// Candidate `c`'s use of row `j`.
     pub fn use_of(&self, c: usize, j: usize) -> f64 {
         let (rows, vals) = self.uses(c);
