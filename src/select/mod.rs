@@ -12,6 +12,7 @@
 //!
 //! The caller puts a zero option in any group that may be left without works.
 
+pub mod branch;
 pub mod dual;
 pub mod network;
 pub mod problem;

@@ -12,6 +12,7 @@
 //! plan's value, a bound and the gap between them — a certificate that needs no trust in the
 //! path that found the plan.
 
+use super::branch;
 use super::dual::{self, Prices};
 use super::problem::Problem;
 use good_lp::{
@@ -123,6 +124,9 @@ pub enum Infeasible {
 pub const EXACT_AUTO_CANDIDATES: usize = 4000;
 /// Most groups handed to the exact solver as the contested part.
 const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 1000 } else { 60 };
+/// Node budget of the branch and bound at fixed prices (a fraction of a second): it proves
+/// optimality where the prices leave few near ties, and otherwise hands over to the MIP.
+const BRANCH_NODES: u64 = 5_000_000;
 /// Most binaries in one window of the neighbourhood search (microlp stops improving on larger
 /// ones within seconds; HiGHS copes with more).
 const WINDOW_BINARIES: usize = if cfg!(feature = "highs") { 20_000 } else { 150 };
@@ -308,9 +312,27 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
             f64::INFINITY
         }
     };
+    let mut proven_exactly = false;
     if want_exact {
         method = Method::Exact;
-        if gap_now(&plan, &used) > o.gap * 1e-3 {
+        if fits(&used, &p.limits) && gap_now(&plan, &used) > 1e-9 {
+            let s = branch::search(p, &prices.prices, bound, &plan, deadline, BRANCH_NODES);
+            if debug {
+                eprintln!(
+                    "branch and bound: {} nodes, complete {}, {} at {:.2} s",
+                    s.nodes,
+                    s.complete,
+                    s.value,
+                    start.elapsed().as_secs_f64()
+                );
+            }
+            if s.value > p.plan_value(&plan) {
+                used = p.plan_use(&s.plan);
+                plan = s.plan;
+            }
+            proven_exactly = s.complete;
+        }
+        if !proven_exactly && gap_now(&plan, &used) > o.gap * 1e-3 {
             let warm = fits(&used, &p.limits).then(|| plan.clone());
             let left = deadline.saturating_duration_since(Instant::now());
             if let Some((x, optimal)) = exact(p.clone(), warm, left, o.gap) {
@@ -346,7 +368,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
     let value = p.plan_value(&plan);
     // A solver's proof is to within the gap it was asked for.
-    let bound = if proven {
+    let bound = if proven_exactly {
+        value
+    } else if proven {
         bound.min(value + o.gap * value.abs()).max(value)
     } else {
         bound.max(value)
