@@ -195,14 +195,14 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
 
     let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
+    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
-    if std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some() {
+    if debug {
         eprintln!("prices: {:.2} s", start.elapsed().as_secs_f64());
     }
     let bound = prices.bound;
     // A plan worth this much is within the requested gap.
     let enough = bound - o.gap * bound.abs();
-    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
     let (mut plan, mut open) = recover(p, &prices);
     let contested = open.len();
     // Settle the contested part again on the room the settled groups leave: its own prices and
