@@ -91,6 +91,28 @@ pub struct Plan {
     pub spent: Vec<Money>,
     /// Per target line: the plan's measure (mean IRI or poor share).
     pub achieved: Vec<f64>,
+    /// Every treatment of the plan, by year then network order.
+    pub works: Vec<PlannedWork>,
+}
+
+/// One treatment of the plan.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PlannedWork {
+    /// Year index from the base year.
+    pub year: u32,
+    /// Section index in network order.
+    pub section: usize,
+    /// Treatment index in the catalogue.
+    pub treatment: usize,
+    pub cost: f64,
+}
+
+/// What the exact re-check found: spending per budget line, each target's measure, the works.
+#[derive(Debug, Clone)]
+pub struct Checked {
+    pub spent: Vec<Money>,
+    pub achieved: Vec<f64>,
+    pub works: Vec<PlannedWork>,
 }
 
 impl Candidates {
@@ -438,12 +460,13 @@ pub fn select(
         Ok(o) => o,
         Err(inf) => return Err(infeasible(run, &candidates, inf)),
     };
-    let (spent, achieved) = recheck(run, &candidates, &outcome.plan)?;
+    let checked = recheck(run, &candidates, &outcome.plan)?;
     Ok(Plan {
         candidates,
         outcome,
-        spent,
-        achieved,
+        spent: checked.spent,
+        achieved: checked.achieved,
+        works: checked.works,
     })
 }
 
@@ -503,23 +526,21 @@ fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error
 
 /// Re-simulate the chosen strategies and sum every budget line's spending in exact decimal
 /// arithmetic (each section-year amount to the cent); fail if any line is exceeded. Also returns
-/// each target's achieved measure.
-pub fn recheck(
-    run: &Run,
-    c: &Candidates,
-    plan: &[u16],
-) -> Result<(Vec<Money>, Vec<f64>), crate::error::Error> {
+/// each target's achieved measure and the plan's works, from the same simulation.
+pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate::error::Error> {
     let s = &run.scenario;
     let e = Enumerator::for_run(run);
     let secs = &run.network.sections;
     let nb = s.budget_lines.len();
     let nt = s.plan.targets.len();
-    let parts: Vec<(Vec<Decimal>, Vec<f64>)> = secs
+    type Part = (Vec<Decimal>, Vec<f64>, Vec<PlannedWork>);
+    let parts: Vec<Part> = secs
         .par_chunks(CHUNK)
         .enumerate()
         .map(|(ci, chunk)| {
             let mut spent = vec![Decimal::ZERO; nb];
             let mut target = vec![0.0; nt];
+            let mut works = Vec::new();
             let mut t = Trace::default();
             let mut u = Vec::new();
             for (i, sec) in chunk.iter().enumerate() {
@@ -527,6 +548,12 @@ pub fn recheck(
                 let k = c.strategy[c.chosen(plan, g)] as usize;
                 let strategies = e.strategies(sec);
                 SectionSim::new(run, sec).run(&strategies[k], &mut t);
+                works.extend(t.works.iter().map(|&(year, treatment, cost)| PlannedWork {
+                    year,
+                    section: g,
+                    treatment,
+                    cost,
+                }));
                 uses(run, &c.rows, sec, &t, &mut u);
                 for &(j, x) in &u {
                     match c.rows[j as usize].kind {
@@ -537,12 +564,14 @@ pub fn recheck(
                     }
                 }
             }
-            (spent, target)
+            (spent, target, works)
         })
         .collect();
     let mut spent = vec![Decimal::ZERO; nb];
     let mut target = vec![0.0; nt];
-    for (sp, tg) in parts {
+    let mut works = Vec::new();
+    for (sp, tg, wk) in parts {
+        works.extend(wk);
         for (a, b) in spent.iter_mut().zip(sp) {
             *a = a.saturating_add(b);
         }
@@ -578,5 +607,11 @@ pub fn recheck(
             });
         }
     }
-    Ok((spent.into_iter().map(Money).collect(), achieved))
+    // Chunks come in network order, so a stable sort by year keeps network order within a year.
+    works.sort_by_key(|w| w.year);
+    Ok(Checked {
+        spent: spent.into_iter().map(Money).collect(),
+        achieved,
+        works,
+    })
 }

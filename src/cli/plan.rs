@@ -25,9 +25,8 @@ use crate::input::plan::Objective;
 use crate::input::Run;
 use crate::io::{print_stdout, StreamSet};
 use crate::money::grouped;
-use crate::plan::{Candidates, Plan, RowKind, Settings};
+use crate::plan::{Candidates, Plan, PlannedWork, RowKind, Settings};
 use crate::select::network::{Method, Options};
-use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
 use std::fmt::Write as _;
 use std::path::PathBuf;
@@ -192,24 +191,15 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
     let secs = &run.network.sections;
     let e = Enumerator::for_run(run);
     let plan = &p.outcome.plan;
-    // Work programme: re-simulate the chosen strategies for their works, then sort by year.
-    let mut works: Vec<(u32, usize, usize, f64)> = secs
-        .par_iter()
-        .enumerate()
-        .map(|(g, sec)| {
-            let st = &e.strategies(sec)[c.strategy[c.chosen(plan, g)] as usize];
-            let mut t = Trace::default();
-            SectionSim::new(run, sec).run(st, &mut t);
-            t.works
-                .iter()
-                .map(|&(y, k, cost)| (y, g, k, cost))
-                .collect::<Vec<_>>()
-        })
-        .flatten()
-        .collect();
-    works.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.cmp(&b.1)));
+    // Work programme: the works the exact re-check simulated, by year.
     let mut text = String::from("year,section_id,treatment,cost,region,category\n");
-    for (y, g, k, cost) in works {
+    for &PlannedWork {
+        year: y,
+        section: g,
+        treatment: k,
+        cost,
+    } in &p.works
+    {
         let t = &run.catalogue.treatments[k];
         let _ = writeln!(
             text,
