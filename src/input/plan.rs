@@ -259,22 +259,14 @@ fn read_targets(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostics) -
         let y1 = t
             .require("last_year", d, "the last year the target applies to")
             .and_then(|v| v.integer_in(d, first, last, &in_period));
-        let region = match t.get("region") {
-            Some(v) => v.string(d).map(|s| Some(s.to_owned())),
-            None => Some(None),
-        };
+        let region = super::scenario::optional_region(&mut t, d);
         t.finish(d);
         let (Some(name), Some(measure), Some(at_most), Some(y0), Some(y1), Some(region)) =
             (name, measure, at_most, y0, y1, region)
         else {
             continue;
         };
-        if y0 > y1 {
-            d.error(
-                place.clone().with_subfield("last_year"),
-                format!("found first_year {y0} after last_year {y1}"),
-                "first_year no later than last_year",
-            );
+        if !super::scenario::years_in_order(&place, y0, y1, d) {
             continue;
         }
         if out.iter().any(|l| l.group == name) {

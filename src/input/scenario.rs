@@ -484,6 +484,31 @@ fn read_unit_values(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<UnitVal
     })
 }
 
+/// The optional `region` key of a `[[budget]]` or `[[target]]` entry: `Some(None)` when absent,
+/// `None` when present but not a string (reported).
+pub(super) fn optional_region(
+    t: &mut Table<'_, '_>,
+    d: &mut Diagnostics,
+) -> Option<Option<String>> {
+    match t.get("region") {
+        Some(v) => v.string(d).map(|s| Some(s.to_owned())),
+        None => Some(None),
+    }
+}
+
+/// Whether an entry's `first_year` is no later than its `last_year`; reported when not.
+pub(super) fn years_in_order(place: &Place, y0: i64, y1: i64, d: &mut Diagnostics) -> bool {
+    if y0 > y1 {
+        d.error(
+            place.clone().with_subfield("last_year"),
+            format!("found first_year {y0} after last_year {y1}"),
+            "first_year no later than last_year",
+        );
+        return false;
+    }
+    true
+}
+
 fn read_budgets(
     v: &Value<'_, '_>,
     period: Option<(i64, i64)>,
@@ -511,10 +536,7 @@ fn read_budgets(
                 .and_then(Category::parse),
             None => Some(Category::All),
         };
-        let region = match t.get("region") {
-            Some(v) => v.string(d).map(|s| Some(s.to_owned())),
-            None => Some(None),
-        };
+        let region = optional_region(&mut t, d);
         let y0 = t
             .require("first_year", d, "the first year the line applies to")
             .and_then(|v| v.integer_in(d, first, last, &in_period));
@@ -560,12 +582,7 @@ fn read_budgets(
         else {
             continue;
         };
-        if y0 > y1 {
-            d.error(
-                place.clone().with_subfield("last_year"),
-                format!("found first_year {y0} after last_year {y1}"),
-                "first_year no later than last_year",
-            );
+        if !years_in_order(&place, y0, y1, d) {
             continue;
         }
         if let Some((_, p)) = groups.iter().find(|(g, _)| *g == name) {
