@@ -177,7 +177,11 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         .winner
         .clone()
         .unwrap_or_else(|| crate::enumerate::BASE.to_owned());
-    let widening = widening_timing(run, &sim, &strategies, &partial, d);
+    let options: Vec<(Option<i32>, f64)> = partial
+        .iter()
+        .map(|r| (r.widening_year, r.indicators.npv))
+        .collect();
+    let widening = widening_timing(run, &sim, &strategies, &options, d);
     SectionResult {
         section: sec.id.0.clone(),
         strategies: partial,
@@ -188,19 +192,50 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     }
 }
 
+/// The widening timing of one section from the NPV of its widening strategies alone (no IRR
+/// or incremental analysis): what a plan's report needs. `None` when it has no widening strategy.
+pub fn widening_only(run: &Run, e: &Enumerator<'_>, sec: &Section) -> Option<WideningTiming> {
+    let strategies = e.strategies(sec);
+    let cat = &run.catalogue;
+    if !strategies.iter().any(|st| st.widening_year(cat).is_some()) {
+        return None;
+    }
+    let s = &run.scenario;
+    let (d, y0) = (&s.discounting, s.base_year);
+    let sim = SectionSim::new(run, sec);
+    let mut base = Trace::default();
+    sim.run(&strategies[0], &mut base);
+    let base_flows = base.flows();
+    let mut t = Trace::default();
+    let options: Vec<(Option<i32>, f64)> = strategies
+        .iter()
+        .map(|st| match st.widening_year(cat) {
+            Some(w) => {
+                sim.run(st, &mut t);
+                let flows = increment(&t.flows(), &base_flows, y0);
+                let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
+                (Some(y0 + w as i32), npv)
+            }
+            None => (None, 0.0),
+        })
+        .collect();
+    widening_timing(run, &sim, &strategies, &options, d)
+}
+
+/// `options[i]`: strategy i's calendar widening year (if it widens) and NPV against the base.
 fn widening_timing(
     run: &Run,
     sim: &SectionSim,
     strategies: &[Strategy],
-    results: &[StrategyResult],
+    options: &[(Option<i32>, f64)],
     d: &Discounting,
 ) -> Option<WideningTiming> {
     let mut best: Vec<(i32, usize)> = Vec::new();
-    for (i, r) in results.iter().enumerate() {
-        let Some(y) = r.widening_year else { continue };
+    for (i, &(year, npv)) in options.iter().enumerate() {
+        let Some(y) = year else { continue };
         match best.iter_mut().find(|(yy, _)| *yy == y) {
             Some(slot) => {
-                if r.indicators.npv > results[slot.1].indicators.npv {
+                if npv > options[slot.1].1 {
                     slot.1 = i;
                 }
             }
@@ -223,7 +258,7 @@ fn widening_timing(
             WideningYear {
                 year,
                 strategy: st.name.clone(),
-                npv: results[i].indicators.npv,
+                npv: options[i].1,
                 fyrr: fyrr(&flows.net()),
             }
         })

@@ -170,6 +170,39 @@ impl Drop for StreamSet {
     }
 }
 
+/// Write one file all or nothing: into a temporary file beside `path`, renamed over it when
+/// complete (a failure leaves no partial file).
+pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
+    let fail = |source| Error::Write {
+        path: path.to_owned(),
+        source,
+    };
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_owned(),
+        _ => PathBuf::from("."),
+    };
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let mut tmp = tempfile::Builder::new()
+        .prefix(&format!(".{name}."))
+        .suffix(".tmp")
+        .tempfile_in(&dir)
+        .map_err(fail)?;
+    tmp.write_all(bytes).map_err(fail)?;
+    tmp.as_file().sync_all().map_err(fail)?;
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        tmp.as_file()
+            .set_permissions(std::fs::Permissions::from_mode(0o644))
+            .map_err(fail)?;
+    }
+    tmp.persist(path).map_err(|e| fail(e.error))?;
+    Ok(())
+}
+
 /// Write text to standard output; a closed pipe (`| head`) is not an error.
 pub fn print_stdout(text: &str) -> Result<()> {
     let mut out = std::io::stdout().lock();

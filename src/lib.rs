@@ -20,14 +20,19 @@ pub mod economics;
 pub mod enumerate;
 pub mod error;
 pub mod format;
+pub mod frontier;
 pub mod input;
 pub mod io;
 pub mod money;
+pub mod outputs;
 pub mod plan;
+pub mod progress;
+pub mod report;
 pub mod select;
 pub mod simulate;
 pub mod stats;
 pub mod text;
+pub mod xlsx;
 
 /// The caution printed by `--help`, by every report and in the README.
 pub const CAUTION: &str = "Planning-level estimates only. Pavement designs, safety decisions and \

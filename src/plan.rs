@@ -19,6 +19,7 @@ use crate::input::plan::{Held, Measure, Objective};
 use crate::input::scenario::Category;
 use crate::input::Run;
 use crate::money::Money;
+use crate::progress::Progress;
 use crate::select::network::{self, Infeasible, Options, Outcome};
 use crate::select::problem::{Offer, Problem};
 use crate::simulate::condition::{classify, ConditionClass};
@@ -342,6 +343,15 @@ fn section_candidates(
 
 /// Simulate every section and build the selection problem. Bad commitments are input errors.
 pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::error::Error> {
+    candidates_with(run, settings, &Progress::none())
+}
+
+/// [`candidates`], counting sections done on `progress`.
+pub fn candidates_with(
+    run: &Run,
+    settings: &Settings,
+    progress: &Progress,
+) -> Result<Candidates, crate::error::Error> {
     let e = Enumerator::for_run(run);
     let rows = rows(run, settings.budget_scale);
     // Money rows get a margin of a cent and a part in 10⁹ below their limit, so that the
@@ -400,6 +410,7 @@ pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::e
                         held.get(sec.id.0.as_str()),
                         &mut problems,
                     );
+                    progress.inc(1);
                     en.push(c.enumerated);
                     un.push(c.unconstrained);
                     bp.push(c.base_pv_agency);
@@ -456,11 +467,7 @@ pub fn select(
     candidates: Candidates,
     options: &Options,
 ) -> Result<Plan, crate::error::Error> {
-    let outcome = match network::solve(&candidates.problem, options) {
-        Ok(o) => o,
-        Err(inf) => return Err(infeasible(run, &candidates, inf)),
-    };
-    let checked = recheck(run, &candidates, &outcome.plan)?;
+    let (outcome, checked) = solve_checked(run, &candidates, options)?;
     Ok(Plan {
         candidates,
         outcome,
@@ -468,6 +475,171 @@ pub fn select(
         achieved: checked.achieved,
         works: checked.works,
     })
+}
+
+/// Select on built candidates (their current limits) and re-check the plan exactly.
+pub fn solve_checked(
+    run: &Run,
+    candidates: &Candidates,
+    options: &Options,
+) -> Result<(Outcome, Checked), crate::error::Error> {
+    let outcome = match network::solve(&candidates.problem, options) {
+        Ok(o) => o,
+        Err(inf) => return Err(infeasible(run, candidates, inf)),
+    };
+    let checked = recheck(run, candidates, &outcome.plan)?;
+    Ok((outcome, checked))
+}
+
+impl Candidates {
+    /// Set every budget line's limit to the scenario's limit × `level` where `scaled(row)` says
+    /// so, and to the scenario's own limit elsewhere (targets are never scaled). The selection
+    /// keeps the same margin below each money limit as [`candidates`] does.
+    pub fn set_budget_level(&mut self, run: &Run, level: f64, scaled: &dyn Fn(&Row) -> bool) {
+        let full = rows(run, 1.0);
+        let at_level = rows(run, level);
+        for (j, row) in self.rows.iter_mut().enumerate() {
+            if let RowKind::Budget(_) = row.kind {
+                *row = if scaled(&full[j]) {
+                    at_level[j].clone()
+                } else {
+                    full[j].clone()
+                };
+                self.problem.limits[j] = row.row_limit - 0.01 - 2e-9 * row.row_limit.abs();
+            }
+        }
+    }
+
+    /// The most each row could be used: every section at its candidate using the row most.
+    pub fn largest_use(&self) -> Vec<f64> {
+        let mut most = vec![0.0; self.rows.len()];
+        let mut here = vec![0.0_f64; self.rows.len()];
+        for g in 0..self.sections() {
+            here.iter_mut().for_each(|x| *x = 0.0);
+            for cand in self.problem.candidates(g) {
+                let (rs, vs) = self.problem.uses(cand);
+                for (&j, &x) in rs.iter().zip(vs) {
+                    let h = &mut here[j as usize];
+                    *h = h.max(x);
+                }
+            }
+            for (m, h) in most.iter_mut().zip(&here) {
+                *m += h;
+            }
+        }
+        most
+    }
+
+    /// The smallest budget level (factor on the scenario's lines picked by `scaled`) at which no
+    /// picked line can bind: each line's limit covers the most every section could put on it.
+    /// `None` when some picked line has a zero limit but could be used.
+    pub fn unlimited_level(&self, scaled: &dyn Fn(&Row) -> bool) -> Option<f64> {
+        let most = self.largest_use();
+        let mut level: f64 = 0.0;
+        for (row, m) in self.rows.iter().zip(most) {
+            if !matches!(row.kind, RowKind::Budget(_)) || !scaled(row) || m <= 0.0 {
+                continue;
+            }
+            let base = row.money.map(Money::to_f64).unwrap_or(row.row_limit);
+            if base <= 0.0 {
+                return None;
+            }
+            // A cent of headroom per line, beyond the selection's own margin.
+            level = level.max((m + 0.02 + 3e-9 * m) / base);
+        }
+        Some(level)
+    }
+}
+
+/// Condition of the network over the analysis period under three cases.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ConditionSeries {
+    /// Calendar year of index 0.
+    pub first_year: i32,
+    /// Per case ([`CASES`] order): length-weighted mean IRI of each year.
+    pub mean_iri: [Vec<f64>; 3],
+    /// Per case: share of length good, fair and poor in each year.
+    pub shares: [Vec<[f64; 3]>; 3],
+}
+
+/// The cases of [`ConditionSeries`]: the plan, the base (routine maintenance only), and every
+/// section's best strategy with no budget limits.
+pub const CASES: [&str; 3] = ["plan", "base", "unconstrained"];
+
+/// Simulate the plan, the base and the unconstrained choice of every section and sum the
+/// network's condition year by year (weighted by length).
+pub fn condition_series(run: &Run, c: &Candidates, plan: &[u16]) -> ConditionSeries {
+    let s = &run.scenario;
+    let n = s.analysis_years as usize;
+    let e = Enumerator::for_run(run);
+    let secs = &run.network.sections;
+    type Part = ([Vec<f64>; 3], [Vec<[f64; 3]>; 3], f64);
+    let empty = || -> Part {
+        (
+            [vec![0.0; n], vec![0.0; n], vec![0.0; n]],
+            [vec![[0.0; 3]; n], vec![[0.0; 3]; n], vec![[0.0; 3]; n]],
+            0.0,
+        )
+    };
+    let parts: Vec<Part> = secs
+        .par_chunks(CHUNK)
+        .enumerate()
+        .map(|(ci, chunk)| {
+            let mut part = empty();
+            let mut t = Trace::default();
+            for (i, sec) in chunk.iter().enumerate() {
+                let g = ci * CHUNK + i;
+                let strategies = e.strategies(sec);
+                let sim = SectionSim::new(run, sec);
+                let picks = [
+                    c.strategy[c.chosen(plan, g)] as usize,
+                    0,
+                    c.unconstrained[g].0 as usize,
+                ];
+                for (case, &k) in picks.iter().enumerate() {
+                    sim.run(&strategies[k], &mut t);
+                    for y in 0..n {
+                        let iri = t.iri[y];
+                        part.0[case][y] += sec.length_km * iri;
+                        let class = match classify(iri, &s.models.condition) {
+                            ConditionClass::Good => 0,
+                            ConditionClass::Fair => 1,
+                            ConditionClass::Poor => 2,
+                        };
+                        part.1[case][y][class] += sec.length_km;
+                    }
+                }
+                part.2 += sec.length_km;
+            }
+            part
+        })
+        .collect();
+    let mut total = empty();
+    for p in parts {
+        for case in 0..3 {
+            for y in 0..n {
+                total.0[case][y] += p.0[case][y];
+                for k in 0..3 {
+                    total.1[case][y][k] += p.1[case][y][k];
+                }
+            }
+        }
+        total.2 += p.2;
+    }
+    let length = total.2.max(f64::MIN_POSITIVE);
+    for case in 0..3 {
+        for y in 0..n {
+            total.0[case][y] /= length;
+            for k in 0..3 {
+                total.1[case][y][k] /= length;
+            }
+        }
+    }
+    ConditionSeries {
+        first_year: s.base_year,
+        mean_iri: total.0,
+        shares: total.1,
+    }
 }
 
 fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error {

@@ -32,9 +32,11 @@ fn plans_the_built_in_demo_within_every_line() {
         [
             "budget_use.csv",
             "candidates.csv",
+            "condition.csv",
             "section_plan.csv",
             "summary.json",
             "target_use.csv",
+            "widening_plan.csv",
             "work_programme.csv"
         ]
     );

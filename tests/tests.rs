@@ -6,4 +6,5 @@ mod cashflow;
 mod check;
 mod plan;
 mod readme;
+mod report;
 mod util;

@@ -8,10 +8,11 @@
 //! is one of the few the budgets split (the whole-plan search placed it), and the report says so.
 
 use super::Context;
-use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::diag::did_you_mean;
 use crate::error::{Error, Result};
 use crate::io::print_stdout;
 use crate::money::grouped;
+use crate::outputs::Table;
 use std::collections::HashMap;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
@@ -28,77 +29,8 @@ pub struct Args {
     pub from: PathBuf,
 }
 
-/// A CSV file read whole: its header and rows, with the file's name for messages.
-struct Table {
-    label: String,
-    head: Vec<String>,
-    rows: Vec<(usize, csv::StringRecord)>,
-}
-
 fn read_table(dir: &Path, name: &str, keep: impl Fn(&csv::StringRecord) -> bool) -> Result<Table> {
-    let path = dir.join(name);
-    let label = path.display().to_string();
-    let file = std::fs::File::open(&path).map_err(|e| {
-        Error::Usage(format!(
-            "cannot read {label}: {e}; expected the output directory of `pavestrat plan --out DIR` (give it with --from DIR)"
-        ))
-    })?;
-    let mut r = csv::ReaderBuilder::new()
-        .has_headers(true)
-        .from_reader(file);
-    let bad = |line: usize, what: String| {
-        let mut d = Diagnostics::new();
-        d.error(
-            Place::line(label.clone(), line),
-            what,
-            format!("a {name} as `pavestrat plan` writes it"),
-        );
-        Error::Input(d)
-    };
-    let head: Vec<String> = r
-        .headers()
-        .map_err(|e| bad(1, format!("an unreadable header ({e})")))?
-        .iter()
-        .map(str::to_owned)
-        .collect();
-    let mut rows = Vec::new();
-    for (i, rec) in r.records().enumerate() {
-        let rec = rec.map_err(|e| bad(i + 2, format!("an unreadable row ({e})")))?;
-        if keep(&rec) {
-            rows.push((i + 2, rec));
-        }
-    }
-    Ok(Table { label, head, rows })
-}
-
-impl Table {
-    fn column(&self, name: &str) -> Result<usize> {
-        self.head.iter().position(|h| h == name).ok_or_else(|| {
-            let mut d = Diagnostics::new();
-            d.error(
-                Place::line(self.label.clone(), 1),
-                format!("no `{name}` column"),
-                format!("the header `pavestrat plan` writes, with `{name}`"),
-            );
-            Error::Input(d)
-        })
-    }
-
-    fn number(&self, line: usize, rec: &csv::StringRecord, col: usize) -> Result<f64> {
-        let text = rec.get(col).unwrap_or("");
-        text.parse::<f64>()
-            .ok()
-            .filter(|x| x.is_finite())
-            .ok_or_else(|| {
-                let mut d = Diagnostics::new();
-                d.error(
-                    Place::line(self.label.clone(), line).with_field(self.head[col].clone()),
-                    format!("found `{text}`"),
-                    "a number",
-                );
-                Error::Input(d)
-            })
-    }
+    crate::outputs::read(dir, name, "pavestrat plan", keep)
 }
 
 struct Candidate {

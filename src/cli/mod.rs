@@ -9,8 +9,10 @@ pub mod appraise;
 pub mod cashflow;
 pub mod check;
 pub mod explain;
+pub mod frontier;
 pub mod init;
 pub mod plan;
+pub mod report;
 
 use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use clap::{Parser, Subcommand};
@@ -53,6 +55,14 @@ pub enum Command {
     /// budget prices and an optimality certificate.
     #[command(after_help = AFTER_HELP)]
     Plan(plan::Args),
+    /// The best objective at several budget levels from one simulation: what another unit of
+    /// money buys.
+    #[command(after_help = AFTER_HELP)]
+    Frontier(frontier::Args),
+    /// The decision-maker's HTML report (charts, work programme, assumptions), drawn from
+    /// `plan --out DIR`.
+    #[command(after_help = AFTER_HELP)]
+    Report(report::Args),
     /// Why a section got its strategy in a plan (read from `plan --out DIR`).
     #[command(after_help = AFTER_HELP)]
     Explain(explain::Args),
@@ -68,6 +78,8 @@ pub enum Command {
 #[derive(Debug, Clone, Copy)]
 pub struct Context {
     pub quiet: bool,
+    /// Progress bars: drawn only on a terminal, never when quiet.
+    pub progress: crate::progress::Display,
 }
 
 impl Context {
@@ -103,7 +115,10 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
             return code;
         }
     };
-    let ctx = Context { quiet: cli.quiet };
+    let ctx = Context {
+        quiet: cli.quiet,
+        progress: crate::progress::Display::for_terminal(cli.quiet),
+    };
     let result = std::panic::catch_unwind(|| run(cli.command, ctx));
     match result {
         Ok(Ok(())) => EXIT_OK,
@@ -142,6 +157,8 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Init(a) => init::run(a, ctx),
         Command::Plan(a) => plan::run(a, ctx),
         Command::Explain(a) => explain::run(a, ctx),
+        Command::Frontier(a) => frontier::run(a, ctx),
+        Command::Report(a) => report::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

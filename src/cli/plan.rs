@@ -15,7 +15,14 @@
 //! - `candidates.csv`: every candidate left after dominated ones are removed —
 //!   `section_id,strategy,npv,pv_agency_cost`, then `cost:<line>` per budget line and
 //!   `use:<line>` per target line (length-weighted), enough to re-solve the selection elsewhere;
-//! - `summary.json`: the certificate and the run's facts.
+//! - `condition.csv`: `year,case,mean_iri,good_share,fair_share,poor_share` — the network's
+//!   length-weighted condition each year under the plan, the base and the unconstrained choice;
+//! - `widening_plan.csv`: for sections that can be widened, the best strategy widening in each
+//!   year with its NPV and the widening's FYRR, each timing rule's year and the plan's year;
+//! - `summary.json`: the certificate, the run's facts and the scenario's key assumptions.
+//!
+//! `--report` adds `frontier.csv` (see `pavestrat frontier`) and `report.html` (see
+//! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
 
 use super::{load_scenario, parse_rate, Context, OutArg};
 use crate::enumerate::Enumerator;
@@ -60,11 +67,23 @@ pub struct Args {
     #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
     pub time_limit: f64,
 
+    /// Also write report.html (and the budget frontier it shows, frontier.csv) into --out DIR.
+    #[arg(long, requires = "out")]
+    pub report: bool,
+
+    /// Also write the work programme, section plan, budget use and appraisal into one
+    /// spreadsheet workbook (.xlsx) at FILE.
+    #[arg(long, value_name = "FILE")]
+    pub xlsx: Option<PathBuf>,
+
     #[command(flatten)]
     pub out: OutArg,
 }
 
-fn parse_scale(s: &str) -> std::result::Result<f64, String> {
+/// Seconds each frontier level may take when `--report` computes the frontier.
+const REPORT_FRONTIER_SECONDS: f64 = 2.0;
+
+pub(super) fn parse_scale(s: &str) -> std::result::Result<f64, String> {
     match s.trim().parse::<f64>() {
         Ok(x) if (0.0..=1e6).contains(&x) => Ok(x),
         _ => Err(format!(
@@ -73,7 +92,7 @@ fn parse_scale(s: &str) -> std::result::Result<f64, String> {
     }
 }
 
-fn parse_gap(s: &str) -> std::result::Result<f64, String> {
+pub(super) fn parse_gap(s: &str) -> std::result::Result<f64, String> {
     let g = parse_rate(s)?;
     if !(0.0..1.0).contains(&g) {
         return Err(format!(
@@ -83,7 +102,7 @@ fn parse_gap(s: &str) -> std::result::Result<f64, String> {
     Ok(g)
 }
 
-fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
+pub(super) fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
     match s.trim().parse::<f64>() {
         Ok(x) if x.is_finite() && x > 0.0 && x <= 1e6 => Ok(x),
         _ => Err(format!(
@@ -93,13 +112,15 @@ fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
 }
 
 /// The output files, in the order they are created.
-pub const FILES: [&str; 6] = [
+pub const FILES: [&str; 8] = [
     "work_programme.csv",
     "section_plan.csv",
     "budget_use.csv",
     "target_use.csv",
     "candidates.csv",
     "summary.json",
+    "condition.csv",
+    "widening_plan.csv",
 ];
 
 /// Run `plan`.
@@ -128,10 +149,20 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             time_limit: Duration::from_secs_f64(args.time_limit),
         },
     };
-    let candidates = crate::plan::candidates(&run, &settings)?;
+    if args.xlsx.is_some() {
+        crate::xlsx::available()?;
+    }
+    let bar = ctx
+        .progress
+        .bar("simulate", run.network.sections.len() as u64, "sections");
+    let candidates = crate::plan::candidates_with(&run, &settings, &bar)?;
+    bar.finish();
     let built = started.elapsed();
     let selecting = Instant::now();
-    let plan = crate::plan::select(&run, candidates, &settings.select)?;
+    let clock = ctx.progress.clock("select", args.time_limit);
+    let plan = crate::progress::ticking(&clock, || {
+        crate::plan::select(&run, candidates, &settings.select)
+    })?;
     let selection_seconds = selecting.elapsed().as_secs_f64();
     let facts = Facts {
         seconds: started.elapsed().as_secs_f64(),
@@ -141,11 +172,48 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         requested_gap: args.gap,
     };
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, &FILES)?;
-        write_files(&run, &plan, &facts, &mut set)?;
+        let mut names: Vec<&str> = FILES.to_vec();
+        if args.report {
+            names.extend(["frontier.csv", "report.html"]);
+        }
+        let mut set = StreamSet::create(dir, &names)?;
+        let mut small = write_files(&run, &plan, &facts, &mut set, args.report)?;
+        if args.report {
+            let mut c = plan.candidates.clone();
+            let levels = crate::frontier::DEFAULT_LEVELS;
+            let bar = ctx
+                .progress
+                .bar("frontier", levels.len() as u64 + 1, "levels");
+            let options = Options {
+                time_limit: Duration::from_secs_f64(args.time_limit.min(REPORT_FRONTIER_SECONDS)),
+                ..settings.select
+            };
+            let points = crate::frontier::frontier(
+                &run,
+                &mut c,
+                &levels,
+                &crate::frontier::Lines::All,
+                &options,
+                &bar,
+            )?;
+            bar.finish();
+            let text = crate::frontier::csv(&points);
+            set.write(FILES.len(), text.as_bytes())?;
+            small.insert("frontier.csv".into(), text);
+            let html = crate::report::render(&crate::report::Files::Memory(&small))?;
+            set.write(FILES.len() + 1, html.as_bytes())?;
+        }
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
+    }
+    if let Some(file) = &args.xlsx {
+        let appraisal = {
+            let secs: Vec<_> = run.network.sections.iter().collect();
+            crate::appraise::network(&run, &secs, false)
+        };
+        crate::xlsx::write_plan(file, &run, &plan, &appraisal)?;
+        ctx.say(&format!("wrote {}", file.display()));
     }
     if args.out.out.is_none() || !ctx.quiet {
         print_stdout(&render(&run, &plan, &facts))?;
@@ -185,7 +253,18 @@ pub fn totals(c: &Candidates, plan: &[u16]) -> Totals {
     t
 }
 
-fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Result<()> {
+/// The small files a report is drawn from, by name.
+pub type Small = std::collections::BTreeMap<String, String>;
+
+fn write_files(
+    run: &Run,
+    p: &Plan,
+    facts: &Facts,
+    set: &mut StreamSet,
+    keep_programme: bool,
+) -> Result<Small> {
+    let mut small = Small::new();
+    let mut programme = String::new();
     let c = &p.candidates;
     let s = &run.scenario;
     let secs = &run.network.sections;
@@ -213,10 +292,15 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
         );
         if text.len() > 1 << 20 {
             set.write(0, text.as_bytes())?;
+            if keep_programme {
+                programme.push_str(&text);
+            }
             text.clear();
         }
     }
     set.write(0, text.as_bytes())?;
+    programme.push_str(&text);
+    small.insert("work_programme.csv".into(), programme);
 
     // Section plan and candidates, chunk by chunk (names come from re-enumerating).
     set.write(
@@ -302,7 +386,7 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
 
     // Budget and target use.
     let o = &p.outcome;
-    let mut bu = String::from("line,year,limit,used,price,category,region,slack\n");
+    let mut bu = String::from("line,year,limit,used,price,category,region,slack,group\n");
     let mut tu = String::from("line,year,measure,at_most,achieved,price,region,length_km\n");
     for (j, row) in c.rows.iter().enumerate() {
         match row.kind {
@@ -312,7 +396,7 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
                 let used = p.spent[b];
                 let _ = writeln!(
                     bu,
-                    "{},{},{},{},{},{},{},{}",
+                    "{},{},{},{},{},{},{},{},{}",
                     Field(&row.name),
                     line.year,
                     limit.0.round_dp(2),
@@ -320,7 +404,8 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
                     price_text(o.prices[j]),
                     line.category.name(),
                     Field(line.region.as_deref().unwrap_or("")),
-                    (limit.0 - used.0).round_dp(2)
+                    (limit.0 - used.0).round_dp(2),
+                    Field(&line.group)
                 );
             }
             RowKind::Target(k) => {
@@ -347,8 +432,77 @@ fn write_files(run: &Run, p: &Plan, facts: &Facts, set: &mut StreamSet) -> Resul
     }
     set.write(2, bu.as_bytes())?;
     set.write(3, tu.as_bytes())?;
-    set.write(5, summary_json(run, p, facts).as_bytes())?;
-    Ok(())
+    let summary = summary_json(run, p, facts);
+    set.write(5, summary.as_bytes())?;
+    let condition = condition_csv(&crate::plan::condition_series(run, c, plan));
+    set.write(6, condition.as_bytes())?;
+    let widening = widening_csv(run, p);
+    set.write(7, widening.as_bytes())?;
+    small.insert("budget_use.csv".into(), bu);
+    small.insert("target_use.csv".into(), tu);
+    small.insert("summary.json".into(), summary);
+    small.insert("condition.csv".into(), condition);
+    small.insert("widening_plan.csv".into(), widening);
+    Ok(small)
+}
+
+/// `condition.csv` from the three cases' series.
+pub fn condition_csv(cs: &crate::plan::ConditionSeries) -> String {
+    let mut s = String::from("year,case,mean_iri,good_share,fair_share,poor_share\n");
+    for (case, name) in crate::plan::CASES.iter().enumerate() {
+        for (y, iri) in cs.mean_iri[case].iter().enumerate() {
+            let [g, f, p] = cs.shares[case][y];
+            let _ = writeln!(
+                s,
+                "{},{name},{iri:.6},{g:.6},{f:.6},{p:.6}",
+                cs.first_year + y as i32
+            );
+        }
+    }
+    s
+}
+
+/// `widening_plan.csv`: one row per section that can be widened and widening year.
+pub fn widening_csv(run: &Run, p: &Plan) -> String {
+    let c = &p.candidates;
+    let e = Enumerator::for_run(run);
+    let cat = &run.catalogue;
+    let y0 = run.scenario.base_year;
+    let rows: Vec<String> = run
+        .network
+        .sections
+        .par_iter()
+        .enumerate()
+        .map(|(g, sec)| {
+            let Some(w) = crate::appraise::widening_only(run, &e, sec) else {
+                return String::new();
+            };
+            let strategies = e.strategies(sec);
+            let chosen = &strategies[c.strategy[c.chosen(&p.outcome.plan, g)] as usize];
+            let planned = chosen.widening_year(cat).map(|x| y0 + x as i32);
+            let mut s = String::new();
+            for wy in &w.years {
+                let _ = writeln!(
+                    s,
+                    "{},{},{},{},{},{},{},{}",
+                    Field(&sec.id.0),
+                    wy.year,
+                    Field(&wy.strategy),
+                    Amount(wy.npv),
+                    crate::format::Fixed(wy.fyrr, 6),
+                    w.by_fyrr == Some(wy.year),
+                    w.by_npv == Some(wy.year),
+                    planned == Some(wy.year)
+                );
+            }
+            s
+        })
+        .collect();
+    let mut s = String::from("section_id,year,strategy,npv,fyrr,by_fyrr,by_npv,planned\n");
+    for r in rows {
+        s.push_str(&r);
+    }
+    s
 }
 
 /// A budget price for CSV: full precision, `0` when zero.
@@ -394,11 +548,48 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
         "pv_agency_cost": { "plan": t.pv_agency[0], "unconstrained": t.pv_agency[1], "base": t.pv_agency[2] },
         "binding": binding,
         "money": run.scenario.money_label,
+        "assumptions": assumptions(run),
         "caution": crate::CAUTION,
     });
     let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
     s.push('\n');
     s
+}
+
+/// The scenario's key assumptions, for summary.json and the report.
+pub fn assumptions(run: &Run) -> serde_json::Value {
+    use crate::input::scenario::VehicleClass;
+    let s = &run.scenario;
+    let per_class = |v: &crate::input::scenario::PerClass<crate::money::Money>| {
+        let mut m = serde_json::Map::new();
+        for c in VehicleClass::ALL {
+            m.insert(c.key().to_owned(), serde_json::json!(v.get(c).to_f64()));
+        }
+        serde_json::Value::Object(m)
+    };
+    let cond = &s.models.condition;
+    serde_json::json!({
+        "title": s.title,
+        "base_year": s.base_year,
+        "analysis_years": s.analysis_years,
+        "discount_rate": s.discounting.rate(),
+        "discounting": s.discounting.timing().name(),
+        "money": s.money_label,
+        "unit_values": {
+            "time_per_vehicle_hour": per_class(&s.unit_values.time),
+            "operating_per_vehicle_km": per_class(&s.unit_values.operating),
+            "crash": s.unit_values.crash.to_f64(),
+        },
+        "condition_classes_iri": { "good_below": cond.good_below, "poor_above": cond.poor_above },
+        "families": cond.families.iter().map(|f| serde_json::json!({
+            "name": f.name, "model": f.model.name()
+        })).collect::<Vec<_>>(),
+        "default_family": cond.default_family,
+        "sections": run.network.sections.len(),
+        "length_km": run.network.sections.iter().map(|x| x.length_km).sum::<f64>(),
+        "treatments": run.catalogue.treatments.len(),
+        "templates": run.templates.len(),
+    })
 }
 
 /// The terminal summary.

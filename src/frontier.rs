@@ -1,0 +1,189 @@
+//! The budget frontier: the best objective at several budget levels, from one simulation.
+//!
+//! The candidates are built once; each level only changes the limits of the budget lines it
+//! scales (all of them, or the lines of one budget group) and selects again. Two promises hold by
+//! construction, whatever the selection's heuristics do at each level:
+//! - **non-decreasing**: levels are solved from the lowest up, and a plan that fits one level fits
+//!   every higher one (limits only grow), so a level whose own search ends below the level before
+//!   it keeps the earlier plan;
+//! - **bounds**: the optimum can only grow with the level, so every level's bound is also capped
+//!   by the bounds of the levels above it.
+//!
+//! A level at which no scaled line can bind (each limit covers the most every section could put
+//! on it) is added at the top, marked `unlimited`: there every section gets its own best strategy
+//! (when targets and unscaled lines allow it).
+
+use crate::error::{Error, Result};
+use crate::input::Run;
+use crate::plan::{solve_checked, Candidates, Row, RowKind};
+use crate::progress::Progress;
+use crate::select::network::{relative_gap, Options, Status};
+
+/// Budget levels written when none are asked for.
+pub const DEFAULT_LEVELS: [f64; 8] = [0.25, 0.5, 0.75, 1.0, 1.25, 1.5, 2.0, 3.0];
+
+/// One level of the frontier.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Point {
+    /// Factor on the scaled lines' limits.
+    pub level: f64,
+    /// Whether this is the level at which no scaled line can bind.
+    pub unlimited: bool,
+    /// Sum of every budget line's limit at this level (scaled or not).
+    pub total_budget: f64,
+    /// The plan's objective and the bound as reported (NPV, or PV agency cost for least-cost),
+    /// with the relative gap; `None` when no plan meets the lines at this level.
+    pub solved: Option<Solved>,
+}
+
+/// A solved level.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Solved {
+    pub objective: f64,
+    pub bound: f64,
+    pub gap: f64,
+    pub status: &'static str,
+    /// Whether the level kept the plan of a lower level (its own search ended lower).
+    pub carried: bool,
+}
+
+/// Which budget lines a frontier scales.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Lines {
+    All,
+    /// The lines of this group (or this one line), by name.
+    Only(String),
+}
+
+impl Lines {
+    /// Whether `row` is scaled. The scenario's lines are named `group-YEAR`.
+    pub fn scales(&self, run: &Run, row: &Row) -> bool {
+        match (self, &row.kind) {
+            (_, RowKind::Target(_)) => false,
+            (Lines::All, RowKind::Budget(_)) => true,
+            (Lines::Only(name), RowKind::Budget(b)) => {
+                let line = &run.scenario.budget_lines[*b];
+                line.group == *name || line.name == *name
+            }
+        }
+    }
+}
+
+/// Solve every level (and the unlimited one) on `c`, whose budget limits it changes.
+pub fn frontier(
+    run: &Run,
+    c: &mut Candidates,
+    levels: &[f64],
+    lines: &Lines,
+    options: &Options,
+    progress: &Progress,
+) -> Result<Vec<Point>> {
+    let scaled = |r: &Row| lines.scales(run, r);
+    let mut wanted: Vec<(f64, bool)> = levels.iter().map(|&l| (l, false)).collect();
+    if let Some(top) = c.unlimited_level(&scaled) {
+        wanted.push((top, true));
+    }
+    wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    wanted.dedup_by(|later, earlier| {
+        if later.0.total_cmp(&earlier.0).is_eq() {
+            earlier.1 |= later.1;
+            true
+        } else {
+            false
+        }
+    });
+    let mut points = Vec::with_capacity(wanted.len());
+    let mut raw_bounds = Vec::with_capacity(wanted.len());
+    // The best plan so far and its value (internal sign: larger is better).
+    let mut carried: Option<(Vec<u16>, f64)> = None;
+    for &(level, unlimited) in &wanted {
+        c.set_budget_level(run, level, &scaled);
+        let total_budget: f64 = c
+            .rows
+            .iter()
+            .filter_map(|r| r.money)
+            .map(|m| m.to_f64())
+            .sum();
+        let solved = match solve_checked(run, c, options) {
+            Ok((o, _)) => {
+                let (plan, value, kept) = match &carried {
+                    Some((p, v)) if *v > o.value => (p.clone(), *v, true),
+                    _ => (o.plan.clone(), o.value, false),
+                };
+                carried = Some((plan, value));
+                raw_bounds.push(Some(o.bound));
+                Some((value, o.bound, o.status, kept))
+            }
+            Err(Error::Infeasible(_)) => {
+                raw_bounds.push(None);
+                None
+            }
+            Err(e) => return Err(e),
+        };
+        progress.inc(1);
+        points.push((level, unlimited, total_budget, solved));
+    }
+    // Cap each bound by the bounds above it (the optimum only grows with the level).
+    let mut cap = f64::INFINITY;
+    let mut capped = vec![f64::INFINITY; raw_bounds.len()];
+    for i in (0..raw_bounds.len()).rev() {
+        if let Some(b) = raw_bounds[i] {
+            cap = cap.min(b);
+        }
+        capped[i] = cap;
+    }
+    Ok(points
+        .into_iter()
+        .zip(capped)
+        .map(|((level, unlimited, total_budget, solved), cap)| Point {
+            level,
+            unlimited,
+            total_budget,
+            solved: solved.map(|(value, bound, status, kept)| {
+                let bound = bound.min(cap).max(value);
+                let gap = relative_gap(value, bound);
+                let status = if gap <= options.gap {
+                    if gap <= 1e-12 {
+                        Status::Optimal
+                    } else {
+                        Status::WithinGap
+                    }
+                } else {
+                    status
+                };
+                Solved {
+                    objective: c.objective_of(value),
+                    bound: c.objective_of(bound),
+                    gap,
+                    status: status.name(),
+                    carried: kept,
+                }
+            }),
+        })
+        .collect())
+}
+
+/// `frontier.csv`: `level,total_budget,objective,bound,gap,status,unlimited` — objective, bound
+/// and gap empty and status `infeasible` where no plan meets the lines; `unlimited` is `true` on
+/// the level at which no scaled line can bind.
+pub fn csv(points: &[Point]) -> String {
+    use crate::format::Amount;
+    use std::fmt::Write as _;
+    let mut s = String::from("level,total_budget,objective,bound,gap,status,unlimited\n");
+    for p in points {
+        let _ = write!(s, "{},{},", p.level, Amount(p.total_budget));
+        let _ = match &p.solved {
+            Some(v) => write!(
+                s,
+                "{},{},{:.6e},{}",
+                Amount(v.objective),
+                Amount(v.bound),
+                v.gap,
+                v.status
+            ),
+            None => write!(s, ",,,infeasible"),
+        };
+        let _ = writeln!(s, ",{}", p.unlimited);
+    }
+    s
+}

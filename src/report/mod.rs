@@ -1,0 +1,955 @@
+//! The decision-maker's report: one self-contained HTML file (inline CSS and SVG; no scripts,
+//! fonts or images from elsewhere), drawn from the files `plan --out DIR` writes (and
+//! `frontier`, `sensitivity` and `risk` where present in the same directory).
+//!
+//! Everything the report plots comes from those files, so the report can be rebuilt (`pavestrat
+//! report --from DIR`) and checked against them. Sections: the plan in numbers; network condition
+//! over the period (plan, base, unconstrained); spending against every budget line with its
+//! price; widening timing for sections that can be widened; the budget frontier; sensitivity and
+//! risk when computed; the work programme by year; the assumptions; the planning-level caution.
+
+pub mod chart;
+
+use crate::error::{Error, Result};
+use crate::money::grouped;
+use crate::outputs::Table;
+use chart::{esc, Chart, Spec, Units, BLUE, GREEN, GREY, ORANGE, VERMILLION};
+use std::collections::BTreeMap;
+use std::fmt::Write as _;
+use std::path::Path;
+
+/// Where the report's input files are.
+pub enum Files<'a> {
+    /// Texts by file name (a run that has just made them).
+    Memory(&'a BTreeMap<String, String>),
+    /// A directory written by `plan --out DIR`.
+    Dir(&'a Path),
+}
+
+impl Files<'_> {
+    /// A file's label and text, `None` when it is not there.
+    fn get(&self, name: &str) -> Result<Option<(String, String)>> {
+        match self {
+            Files::Memory(m) => Ok(m.get(name).map(|t| (name.to_owned(), t.clone()))),
+            Files::Dir(d) => {
+                let p = d.join(name);
+                match std::fs::read_to_string(&p) {
+                    Ok(t) => Ok(Some((p.display().to_string(), t))),
+                    Err(e) if e.kind() == std::io::ErrorKind::NotFound => Ok(None),
+                    Err(e) => Err(Error::Usage(format!("cannot read {}: {e}", p.display()))),
+                }
+            }
+        }
+    }
+
+    fn required(&self, name: &str) -> Result<(String, String)> {
+        self.get(name)?.ok_or_else(|| {
+            let place = match self {
+                Files::Dir(d) => d.join(name).display().to_string(),
+                Files::Memory(_) => name.to_owned(),
+            };
+            Error::Usage(format!(
+                "cannot read {place}; expected the output directory of `pavestrat plan --out DIR` \
+                 (give it with --from DIR)"
+            ))
+        })
+    }
+
+    fn table(&self, name: &str, required: bool) -> Result<Option<Table>> {
+        let got = if required {
+            Some(self.required(name)?)
+        } else {
+            self.get(name)?
+        };
+        got.map(|(label, text)| {
+            crate::outputs::parse(&label, text.as_bytes(), "pavestrat plan", |_| true)
+        })
+        .transpose()
+    }
+}
+
+/// Rows of the work programme shown in the report (all are in work_programme.csv).
+pub const PROGRAMME_ROWS: usize = 3000;
+/// Sections with widening charts (the ones with the most to gain first).
+pub const WIDENING_CHARTS: usize = 12;
+
+/// Money with thousands separators and the scenario's label.
+fn money(x: f64, label: &str) -> String {
+    format!("{} {}", grouped(x, 0), esc(label))
+}
+
+/// The summary's facts the report uses.
+struct Summary {
+    v: serde_json::Value,
+    money: String,
+}
+
+impl Summary {
+    fn num(&self, path: &[&str]) -> f64 {
+        let mut v = &self.v;
+        for k in path {
+            v = &v[*k];
+        }
+        v.as_f64().unwrap_or(f64::NAN)
+    }
+
+    fn text(&self, path: &[&str]) -> String {
+        let mut v = &self.v;
+        for k in path {
+            v = &v[*k];
+        }
+        match v {
+            serde_json::Value::String(s) => s.clone(),
+            serde_json::Value::Null => String::new(),
+            other => other.to_string(),
+        }
+    }
+}
+
+/// Render the report from the files.
+pub fn render(files: &Files<'_>) -> Result<String> {
+    let (label, text) = files.required("summary.json")?;
+    let v: serde_json::Value = serde_json::from_str(&text).map_err(|e| {
+        let mut d = crate::diag::Diagnostics::new();
+        d.error(
+            crate::diag::Place::line(label.clone(), e.line()),
+            format!("unreadable JSON ({e})"),
+            "summary.json as `pavestrat plan` writes it",
+        );
+        Error::Input(d)
+    })?;
+    let sm = Summary {
+        money: v["money"].as_str().unwrap_or("").to_owned(),
+        v,
+    };
+    let condition = files.table("condition.csv", true)?.unwrap_or_else(empty);
+    let budget = files.table("budget_use.csv", true)?.unwrap_or_else(empty);
+    let programme = files
+        .table("work_programme.csv", true)?
+        .unwrap_or_else(empty);
+    let targets = files.table("target_use.csv", false)?;
+    let widening = files.table("widening_plan.csv", false)?;
+    let frontier = files.table("frontier.csv", false)?;
+
+    let title = {
+        let t = sm.text(&["assumptions", "title"]);
+        if t.is_empty() {
+            "Road work programme".to_owned()
+        } else {
+            t
+        }
+    };
+    let mut body = String::new();
+    let mut nav: Vec<(&str, &str)> = Vec::new();
+    let caution = esc(crate::CAUTION);
+    let _ = write!(
+        body,
+        r#"<header><h1>{}</h1><p class="sub">Work programme and appraisal report · {} sections · money in {}</p><p class="caution"><strong>Caution.</strong> {caution}</p></header>"#,
+        esc(&title),
+        grouped(sm.num(&["sections"]), 0),
+        esc(&sm.money)
+    );
+    nav.push(("numbers", "The plan in numbers"));
+    let numbers_at = body.len();
+    body.push_str(&numbers(&sm, targets.as_ref())?);
+    nav.push(("condition", "Network condition"));
+    body.push_str(&condition_section(&condition)?);
+    nav.push(("spending", "Spending and budget lines"));
+    body.push_str(&spending_section(&budget, &sm)?);
+    if let Some(w) = &widening {
+        if !w.rows.is_empty() {
+            nav.push(("widening", "Widening timing"));
+            body.push_str(&widening_section(w, &sm)?);
+        }
+    }
+    nav.push(("frontier", "Budget frontier"));
+    body.push_str(&frontier_section(frontier.as_ref(), &sm)?);
+    nav.push(("programme", "Work programme"));
+    body.push_str(&programme_section(&programme, &sm)?);
+    nav.push(("assumptions", "Assumptions"));
+    body.push_str(&assumptions_section(&sm));
+    let _ = write!(
+        body,
+        r#"<footer><p class="caution">{caution}</p><p class="small">Made by pavestrat {}. Every chart is drawn from the CSV files beside this report.</p></footer>"#,
+        env!("CARGO_PKG_VERSION")
+    );
+    let mut n = String::from(r#"<nav><strong>Contents</strong><ol>"#);
+    for (id, name) in &nav {
+        let _ = write!(n, r##"<li><a href="#{id}">{name}</a></li>"##);
+    }
+    n.push_str("</ol></nav>");
+    body.insert_str(numbers_at, &n);
+    Ok(format!(
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"><title>{}</title><style>{CSS}</style></head><body><main>{body}</main></body></html>\n",
+        esc(&title)
+    ))
+}
+
+fn empty() -> Table {
+    Table {
+        label: String::new(),
+        head: Vec::new(),
+        rows: Vec::new(),
+    }
+}
+
+const CSS: &str = "\
+body{font-family:system-ui,-apple-system,'Segoe UI',Roboto,'Liberation Sans',Arial,sans-serif;color:#1a1a1a;background:#fff;max-width:1080px;margin:1.5em auto;padding:0 1em;line-height:1.45}\
+h1{font-size:1.7em;margin:.2em 0}h2{font-size:1.3em;border-bottom:2px solid #1a1a1a;padding-bottom:.15em;margin-top:2em}h3{font-size:1.05em;margin:1.2em 0 .3em}\
+.sub{color:#444;margin:0 0 .8em}.small{font-size:.85em;color:#555}\
+.caution{border-left:5px solid #D55E00;background:#fff4ec;padding:.5em .9em}\
+nav{border:1px solid #ccc;padding:.4em 1em;margin-bottom:1em;font-size:.92em}nav ol{margin:.2em 0;padding-left:1.4em;columns:2}\
+table{border-collapse:collapse;margin:.4em 0 1em;font-size:.92em}th,td{padding:.22em .6em;border-bottom:1px solid #ddd;text-align:left;vertical-align:top}\
+th{border-bottom:2px solid #888}td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}\
+svg.chart{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
+svg .grid{stroke:#e4e4e4}svg .axis{stroke:#444}svg .tick{fill:#333;font-size:11px}svg .axis-title{fill:#1a1a1a;font-size:12px;font-weight:600}\
+svg .chart-title{font-weight:700;font-size:13px;fill:#1a1a1a}svg .legend{font-size:11px;fill:#1a1a1a}svg .note,svg .price{font-size:10px;fill:#333}\
+svg rect.planned{stroke:#1a1a1a;stroke-width:2}\
+.charts{display:flex;flex-wrap:wrap;gap:.5em 1.2em}.charts figure{margin:0}.charts svg.chart{margin:.2em 0}\
+@media print{body{max-width:none;margin:0}nav{display:none}section{break-inside:avoid-page}svg.chart{break-inside:avoid}}";
+
+fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
+    let m = &sm.money;
+    let mut s = String::from(r#"<section id="numbers"><h2>The plan in numbers</h2>"#);
+    let least = sm.text(&["objective_kind"]) == "least-cost";
+    let _ = write!(
+        s,
+        "<p>Objective: {}. Status <strong>{}</strong>: the plan is within {:.4} % of the best any plan could reach (bound {}).</p>",
+        if least {
+            "least present value of agency cost within the condition targets"
+        } else {
+            "largest total NPV against the base (routine maintenance only)"
+        },
+        esc(&sm.text(&["status"])),
+        sm.num(&["gap"]) * 100.0,
+        money(sm.num(&["bound"]), m)
+    );
+    s.push_str(r#"<table class="numbers"><thead><tr><th></th><th class="num">NPV</th><th class="num">PV agency cost</th></tr></thead><tbody>"#);
+    for (label, key) in [
+        ("This plan", "plan"),
+        ("No budget limits", "unconstrained"),
+        ("Base (routine only)", "base"),
+    ] {
+        let _ = write!(
+            s,
+            r#"<tr><td>{label}</td><td class="num">{}</td><td class="num">{}</td></tr>"#,
+            money(sm.num(&["npv", key]), m),
+            money(sm.num(&["pv_agency_cost", key]), m)
+        );
+    }
+    s.push_str("</tbody></table>");
+    let (p, u) = (sm.num(&["npv", "plan"]), sm.num(&["npv", "unconstrained"]));
+    if u.abs() > 0.0 && !least {
+        let _ = write!(
+            s,
+            "<p>The plan keeps {:.1} % of the NPV the network could earn with no budget limits.</p>",
+            100.0 * p / u
+        );
+    }
+    if let Some(t) = targets {
+        if !t.rows.is_empty() {
+            let (cl, cm, ca, cv) = (
+                t.column("line")?,
+                t.column("measure")?,
+                t.column("at_most")?,
+                t.column("achieved")?,
+            );
+            s.push_str(r#"<h3>Condition targets</h3><table><thead><tr><th>target</th><th>measure</th><th class="num">at most</th><th class="num">plan</th></tr></thead><tbody>"#);
+            for (line, r) in &t.rows {
+                let _ = write!(
+                    s,
+                    r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td class="num">{:.4}</td></tr>"#,
+                    esc(t.text(r, cl)),
+                    esc(t.text(r, cm)),
+                    esc(t.text(r, ca)),
+                    t.number(*line, r, cv)?
+                );
+            }
+            s.push_str("</tbody></table>");
+        }
+    }
+    s.push_str("</section>");
+    Ok(s)
+}
+
+/// The three cases with their colour and dash.
+const CASE_STYLE: [(&str, &str, &str, &str); 3] = [
+    ("plan", "this plan", BLUE, ""),
+    ("base", "base (routine only)", VERMILLION, "7 4"),
+    ("unconstrained", "no budget limits", GREEN, "2 3"),
+];
+
+fn condition_section(t: &Table) -> Result<String> {
+    let (cy, cc, ci) = (t.column("year")?, t.column("case")?, t.column("mean_iri")?);
+    let shares = [
+        t.column("good_share")?,
+        t.column("fair_share")?,
+        t.column("poor_share")?,
+    ];
+    // case → [(year, mean iri, [good, fair, poor])]
+    let mut by_case: BTreeMap<String, Vec<(f64, f64, [f64; 3])>> = BTreeMap::new();
+    for (line, r) in &t.rows {
+        let y = t.number(*line, r, cy)?;
+        let iri = t.number(*line, r, ci)?;
+        let mut sh = [0.0; 3];
+        for (k, &c) in shares.iter().enumerate() {
+            sh[k] = t.number(*line, r, c)?;
+        }
+        by_case
+            .entry(t.text(r, cc).to_owned())
+            .or_default()
+            .push((y, iri, sh));
+    }
+    let all: Vec<&(f64, f64, [f64; 3])> = by_case.values().flatten().collect();
+    let (ymin, ymax) = all
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+            (a.min(p.0), b.max(p.0))
+        });
+    let imax = all.iter().map(|p| p.1).fold(0.0, f64::max);
+    let mut s = String::from(
+        r#"<section id="condition"><h2>Network condition over the analysis period</h2><p>Length-weighted mean roughness (IRI) of the network each year, and the share of length in each condition class, under this plan, the base (routine maintenance only) and every section's best strategy with no budget limits.</p>"#,
+    );
+    let mut c = Chart::new(Spec {
+        id: "condition-iri",
+        title: "Mean roughness of the network",
+        width: 1000.0,
+        height: 340.0,
+        x: (ymin, ymax),
+        x_pad: 0.5,
+        x_title: "Year",
+        x_units: Units::plain(0),
+        x_integer: true,
+        y: (0.0, imax * 1.05),
+        y_title: "Mean IRI (m/km)",
+        y_units: Units::plain(2),
+        y2: None,
+    });
+    let mut legend = Vec::new();
+    for (key, name, colour, dash) in CASE_STYLE {
+        if let Some(pts) = by_case.get(key) {
+            let p: Vec<(f64, f64)> = pts.iter().map(|q| (q.0, q.1)).collect();
+            c.line(key, colour, dash, &p, false);
+            legend.push((name, colour, dash));
+        }
+    }
+    s.push_str(&c.finish(&legend));
+    s.push_str(r#"<div class="charts">"#);
+    let classes = [("good", GREEN), ("fair", ORANGE), ("poor", VERMILLION)];
+    for (key, name, _, _) in CASE_STYLE {
+        let Some(pts) = by_case.get(key) else {
+            continue;
+        };
+        let id = format!("condition-classes-{key}");
+        let title = format!("Condition: {name}");
+        let mut c = Chart::new(Spec {
+            id: &id,
+            title: &title,
+            width: 345.0,
+            height: 270.0,
+            x: (ymin, ymax),
+            x_pad: 0.5,
+            x_title: "Year",
+            x_units: Units::plain(0),
+            x_integer: true,
+            y: (0.0, 1.0),
+            y_title: "Share of length (%)",
+            y_units: Units::percent(0),
+            y2: None,
+        });
+        for &(y, _, sh) in pts {
+            let mut from = 0.0;
+            for (k, (cls, colour)) in classes.iter().enumerate() {
+                c.bar(cls, colour, y, 0.8, from, sh[k], "");
+                from += sh[k];
+            }
+        }
+        let legend: Vec<(&str, &str, &str)> = classes.iter().map(|(n, c)| (*n, *c, "")).collect();
+        s.push_str(&c.finish(&legend));
+    }
+    s.push_str("</div></section>");
+    Ok(s)
+}
+
+fn spending_section(t: &Table, sm: &Summary) -> Result<String> {
+    let (cl, cy, cli, cu, cp, cg, ccat, creg) = (
+        t.column("line")?,
+        t.column("year")?,
+        t.column("limit")?,
+        t.column("used")?,
+        t.column("price")?,
+        t.column("group")?,
+        t.column("category")?,
+        t.column("region")?,
+    );
+    // group → (category, region, [(year, limit, used, price, line)])
+    type Line = (f64, f64, f64, f64, String);
+    let mut groups: Vec<(String, String, String, Vec<Line>)> = Vec::new();
+    for (line, r) in &t.rows {
+        let g = t.text(r, cg).to_owned();
+        let entry = (
+            t.number(*line, r, cy)?,
+            t.number(*line, r, cli)?,
+            t.number(*line, r, cu)?,
+            t.number(*line, r, cp)?,
+            t.text(r, cl).to_owned(),
+        );
+        match groups.iter_mut().find(|x| x.0 == g) {
+            Some(x) => x.3.push(entry),
+            None => groups.push((
+                g,
+                t.text(r, ccat).to_owned(),
+                t.text(r, creg).to_owned(),
+                vec![entry],
+            )),
+        }
+    }
+    let m = &sm.money;
+    let mut s =
+        String::from(r#"<section id="spending"><h2>Spending against each budget line</h2>"#);
+    let _ = write!(
+        s,
+        "<p>Bars: what the plan spends in each line and year; black marks: the line's limit. The figure above each bar is the line's budget price: how much the objective would gain per unit of money added to that line (“slack” when the line does not bind). Money in {}.</p><div class=\"charts\">",
+        esc(m)
+    );
+    for (g, cat, region, lines) in &groups {
+        let top = lines.iter().map(|l| l.1.max(l.2)).fold(0.0, f64::max);
+        let (units, word) = Units::money(top);
+        let y_title = if word.is_empty() {
+            format!("Money ({m})")
+        } else {
+            format!("Money ({m}, {word})")
+        };
+        let ys: Vec<f64> = lines.iter().map(|l| l.0).collect();
+        let (y0, y1) = (
+            ys.iter().copied().fold(f64::INFINITY, f64::min),
+            ys.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        );
+        let id = format!("spending-{g}");
+        let title = format!(
+            "{g} ({cat}{})",
+            if region.is_empty() {
+                String::new()
+            } else {
+                format!(", {region}")
+            }
+        );
+        let mut c = Chart::new(Spec {
+            id: &id,
+            title: &title,
+            width: 500.0,
+            height: 280.0,
+            x: (y0, y1),
+            x_pad: 0.6,
+            x_title: "Year",
+            x_units: Units::plain(0),
+            x_integer: true,
+            y: (0.0, top * 1.18),
+            y_title: &y_title,
+            y_units: units,
+            y2: None,
+        });
+        for (year, limit, used, price, _) in lines {
+            c.bar("used", BLUE, *year, 0.6, 0.0, *used, "");
+            c.level("limit", "#1a1a1a", *year, 0.8, *limit);
+            let text = if *price > 0.0 {
+                format!("{price:.3}")
+            } else {
+                "slack".to_owned()
+            };
+            c.label("price", *year, limit.max(*used), 6.0, &text, Some(*price));
+        }
+        s.push_str(&c.finish(&[("spent", BLUE, ""), ("limit", "#1a1a1a", "")]));
+    }
+    s.push_str("</div>");
+    // The same as a table.
+    s.push_str(r#"<table><thead><tr><th>line</th><th class="num">limit</th><th class="num">spent</th><th class="num">use</th><th class="num">price</th></tr></thead><tbody>"#);
+    for (_, _, _, lines) in &groups {
+        for (_, limit, used, price, name) in lines {
+            let _ = write!(
+                s,
+                r#"<tr><td>{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{:.1} %</td><td class="num">{}</td></tr>"#,
+                esc(name),
+                money(*limit, m),
+                money(*used, m),
+                if *limit > 0.0 {
+                    100.0 * used / limit
+                } else {
+                    0.0
+                },
+                if *price > 0.0 {
+                    format!("{price:.4}")
+                } else {
+                    "slack".to_owned()
+                }
+            );
+        }
+    }
+    s.push_str("</tbody></table></section>");
+    Ok(s)
+}
+
+fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
+    let (cs, cy, cst, cn, cf, cbf, cbn, cpl) = (
+        t.column("section_id")?,
+        t.column("year")?,
+        t.column("strategy")?,
+        t.column("npv")?,
+        t.column("fyrr")?,
+        t.column("by_fyrr")?,
+        t.column("by_npv")?,
+        t.column("planned")?,
+    );
+    struct W {
+        year: f64,
+        npv: f64,
+        fyrr: Option<f64>,
+        by_fyrr: bool,
+        by_npv: bool,
+        planned: bool,
+    }
+    let mut secs: Vec<(String, Vec<W>)> = Vec::new();
+    for (line, r) in &t.rows {
+        let id = t.text(r, cs).to_owned();
+        let _ = t.text(r, cst);
+        let w = W {
+            year: t.number(*line, r, cy)?,
+            npv: t.number(*line, r, cn)?,
+            fyrr: t.optional(*line, r, cf)?,
+            by_fyrr: t.flag(*line, r, cbf)?,
+            by_npv: t.flag(*line, r, cbn)?,
+            planned: t.flag(*line, r, cpl)?,
+        };
+        match secs.iter_mut().find(|x| x.0 == id) {
+            Some(x) => x.1.push(w),
+            None => secs.push((id, vec![w])),
+        }
+    }
+    let best = |ws: &[W]| ws.iter().map(|w| w.npv).fold(f64::NEG_INFINITY, f64::max);
+    secs.sort_by(|a, b| best(&b.1).total_cmp(&best(&a.1)).then(a.0.cmp(&b.0)));
+    let rate = sm.num(&["assumptions", "discount_rate"]);
+    let m = &sm.money;
+    let mut s = String::from(r#"<section id="widening"><h2>Widening timing</h2>"#);
+    let _ = write!(
+        s,
+        "<p>For each section that can be widened: bars, the NPV of the best strategy that widens in each year (left axis, {}); points, the widening's own first-year rate of return (right axis), against the discount rate ({:.1} %, dashed). Outlined bar: the year the plan widens, if it does. Common practice widens in the first year the FYRR reaches the discount rate.</p>",
+        esc(m),
+        rate * 100.0
+    );
+    if secs.len() > WIDENING_CHARTS {
+        let _ = write!(
+            s,
+            "<p class=\"small\">The {WIDENING_CHARTS} sections with the most to gain are drawn; all {} are in widening_plan.csv.</p>",
+            secs.len()
+        );
+    }
+    s.push_str(r#"<div class="charts">"#);
+    for (id, ws) in secs.iter().take(WIDENING_CHARTS) {
+        let lo = ws.iter().map(|w| w.npv).fold(0.0, f64::min);
+        let hi = ws.iter().map(|w| w.npv).fold(0.0, f64::max);
+        let (units, word) = Units::money(lo.abs().max(hi.abs()));
+        let y_title = if word.is_empty() {
+            format!("NPV ({m})")
+        } else {
+            format!("NPV ({m}, {word})")
+        };
+        let fy: Vec<f64> = ws.iter().filter_map(|w| w.fyrr).collect();
+        let f_lo = fy.iter().copied().fold(rate.min(0.0), f64::min);
+        let f_hi = fy.iter().copied().fold(rate, f64::max);
+        let (y0, y1) = (
+            ws.iter().map(|w| w.year).fold(f64::INFINITY, f64::min),
+            ws.iter().map(|w| w.year).fold(f64::NEG_INFINITY, f64::max),
+        );
+        let chart_id = format!("widening-{id}");
+        let title = format!("Section {id}");
+        let mut c = Chart::new(Spec {
+            id: &chart_id,
+            title: &title,
+            width: 500.0,
+            height: 280.0,
+            x: (y0, y1),
+            x_pad: 0.6,
+            x_title: "Widening year",
+            x_units: Units::plain(0),
+            x_integer: true,
+            y: (lo * 1.1, hi * 1.1),
+            y_title: &y_title,
+            y_units: units,
+            y2: Some((
+                (f_lo * 1.1, f_hi * 1.15),
+                "First-year return (%)",
+                Units::percent(1),
+            )),
+        });
+        for w in ws {
+            let extra = if w.planned { " planned" } else { "" };
+            c.bar("npv", chart::SKY, w.year, 0.7, 0.0, w.npv, extra);
+            if w.planned {
+                c.label("note", w.year, w.npv.max(0.0), 4.0, "planned", None);
+            }
+        }
+        let pts: Vec<(f64, f64)> = ws
+            .iter()
+            .filter_map(|w| w.fyrr.map(|f| (w.year, f)))
+            .collect();
+        c.line("fyrr", VERMILLION, "", &pts, true);
+        c.reference("discount rate", GREY, rate, true);
+        let rules: Vec<String> = ws
+            .iter()
+            .filter(|w| w.by_fyrr || w.by_npv)
+            .map(|w| {
+                format!(
+                    "{:.0}{}",
+                    w.year,
+                    match (w.by_fyrr, w.by_npv) {
+                        (true, true) => " (FYRR rule and highest NPV)",
+                        (true, false) => " (FYRR rule)",
+                        _ => " (highest NPV)",
+                    }
+                )
+            })
+            .collect();
+        s.push_str("<figure>");
+        s.push_str(&c.finish(&[("NPV", chart::SKY, ""), ("FYRR", VERMILLION, "")]));
+        let _ = write!(
+            s,
+            r#"<figcaption class="small">{}: {}</figcaption></figure>"#,
+            esc(id),
+            esc(&rules.join("; "))
+        );
+    }
+    s.push_str("</div></section>");
+    Ok(s)
+}
+
+fn frontier_section(t: Option<&Table>, sm: &Summary) -> Result<String> {
+    let m = &sm.money;
+    let mut s = String::from(r#"<section id="frontier"><h2>Budget frontier</h2>"#);
+    let Some(t) = t else {
+        s.push_str("<p>No frontier was computed for this plan: run <code>pavestrat frontier --out DIR</code> into the plan's directory, then <code>pavestrat report --from DIR</code>.</p></section>");
+        return Ok(s);
+    };
+    let (cl, ct, co, cb, cg, cs, cu) = (
+        t.column("level")?,
+        t.column("total_budget")?,
+        t.column("objective")?,
+        t.column("bound")?,
+        t.column("gap")?,
+        t.column("status")?,
+        t.column("unlimited")?,
+    );
+    struct P {
+        level: f64,
+        total: f64,
+        objective: Option<f64>,
+        bound: Option<f64>,
+        gap: Option<f64>,
+        status: String,
+        unlimited: bool,
+    }
+    let mut pts = Vec::new();
+    for (line, r) in &t.rows {
+        pts.push(P {
+            level: t.number(*line, r, cl)?,
+            total: t.number(*line, r, ct)?,
+            objective: t.optional(*line, r, co)?,
+            bound: t.optional(*line, r, cb)?,
+            gap: t.optional(*line, r, cg)?,
+            status: t.text(r, cs).to_owned(),
+            unlimited: t.flag(*line, r, cu)?,
+        });
+    }
+    // Levels drawn as points; the level at which no line binds is drawn as the ceiling line
+    // (its total budget is usually far to the right of the others).
+    let solved: Vec<&P> = pts
+        .iter()
+        .filter(|p| p.objective.is_some() && !p.unlimited)
+        .collect();
+    let ceiling = pts
+        .iter()
+        .find(|p| p.unlimited)
+        .and_then(|p| p.objective.map(|o| (p.level, o)));
+    let _ = write!(
+        s,
+        "<p>The best objective the selection finds when the budget lines are scaled to each level (1 = the scenario's budgets), against the total budget; whiskers reach the bound no plan can pass. The slope between two points is what another unit of money buys.{} Money in {}.</p>",
+        if ceiling.is_some() {
+            " The dashed line is the objective when no line binds (every section gets its best strategy)."
+        } else {
+            ""
+        },
+        esc(m)
+    );
+    if !solved.is_empty() {
+        let xs: Vec<f64> = solved.iter().map(|p| p.total).collect();
+        let mut ys: Vec<f64> = solved
+            .iter()
+            .flat_map(|p| [p.objective.unwrap_or(0.0), p.bound.unwrap_or(0.0)])
+            .collect();
+        if let Some((_, o)) = ceiling {
+            ys.push(o);
+        }
+        let (xu, xw) = Units::money(xs.iter().copied().fold(0.0, f64::max));
+        let (y_lo, y_hi) = (
+            ys.iter().copied().fold(f64::INFINITY, f64::min),
+            ys.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        );
+        let (yu, yw) = Units::money(y_lo.abs().max(y_hi.abs()));
+        let x_title = if xw.is_empty() {
+            format!("Total budget over all lines ({m})")
+        } else {
+            format!("Total budget over all lines ({m}, {xw})")
+        };
+        let kind = if sm.text(&["objective_kind"]) == "least-cost" {
+            "PV agency cost"
+        } else {
+            "Total NPV"
+        };
+        let y_title = if yw.is_empty() {
+            format!("{kind} ({m})")
+        } else {
+            format!("{kind} ({m}, {yw})")
+        };
+        // The objective's own range, padded: the differences between levels are the message.
+        let pad = ((y_hi - y_lo) * 0.12).max(y_hi.abs() * 1e-4);
+        let mut c = Chart::new(Spec {
+            id: "frontier",
+            title: "What each budget level buys",
+            width: 1000.0,
+            height: 360.0,
+            x: (
+                xs.iter().copied().fold(f64::INFINITY, f64::min) * 0.9,
+                xs.iter().copied().fold(0.0, f64::max) * 1.04,
+            ),
+            x_pad: 0.0,
+            x_title: &x_title,
+            x_units: xu,
+            x_integer: false,
+            y: (y_lo - pad, y_hi + pad),
+            y_title: &y_title,
+            y_units: yu,
+            y2: None,
+        });
+        if let Some((level, o)) = ceiling {
+            c.reference(
+                &format!("no line binds (level ×{})", trim(level)),
+                GREEN,
+                o,
+                false,
+            );
+        }
+        for p in &solved {
+            if let (Some(o), Some(b)) = (p.objective, p.bound) {
+                c.whisker("bound", GREY, p.total, o, b);
+            }
+        }
+        let line: Vec<(f64, f64)> = solved
+            .iter()
+            .map(|p| (p.total, p.objective.unwrap_or(0.0)))
+            .collect();
+        c.line("objective", BLUE, "", &line, false);
+        for p in &solved {
+            c.label(
+                "note",
+                p.total,
+                p.objective.unwrap_or(0.0),
+                9.0,
+                &format!("×{}", trim(p.level)),
+                None,
+            );
+        }
+        let mut legend = vec![("best plan found", BLUE, ""), ("bound", GREY, "")];
+        if ceiling.is_some() {
+            legend.push(("no line binds", GREEN, "5 4"));
+        }
+        s.push_str(&c.finish(&legend));
+    }
+    s.push_str(r#"<table><thead><tr><th class="num">level</th><th class="num">total budget</th><th class="num">objective</th><th class="num">bound</th><th class="num">gap</th><th>status</th></tr></thead><tbody>"#);
+    for p in &pts {
+        let _ = write!(
+            s,
+            r#"<tr><td class="num">{}{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{}</td><td>{}</td></tr>"#,
+            trim(p.level),
+            if p.unlimited { " (no line binds)" } else { "" },
+            money(p.total, m),
+            p.objective
+                .map(|o| money(o, m))
+                .unwrap_or_else(|| "—".into()),
+            p.bound.map(|o| money(o, m)).unwrap_or_else(|| "—".into()),
+            p.gap
+                .map(|g| format!("{:.4} %", g * 100.0))
+                .unwrap_or_else(|| "—".into()),
+            esc(&p.status)
+        );
+    }
+    s.push_str("</tbody></table></section>");
+    Ok(s)
+}
+
+/// A level without trailing zeros.
+fn trim(x: f64) -> String {
+    let s = format!("{x:.4}");
+    s.trim_end_matches('0').trim_end_matches('.').to_owned()
+}
+
+fn programme_section(t: &Table, sm: &Summary) -> Result<String> {
+    let (cy, cs, ct, cc, cr, ccat) = (
+        t.column("year")?,
+        t.column("section_id")?,
+        t.column("treatment")?,
+        t.column("cost")?,
+        t.column("region")?,
+        t.column("category")?,
+    );
+    let m = &sm.money;
+    let mut years: BTreeMap<i64, (f64, usize)> = BTreeMap::new();
+    for (line, r) in &t.rows {
+        let y = t.number(*line, r, cy)? as i64;
+        let e = years.entry(y).or_default();
+        e.0 += t.number(*line, r, cc)?;
+        e.1 += 1;
+    }
+    let mut s = String::from(r#"<section id="programme"><h2>Work programme by year</h2>"#);
+    s.push_str(r#"<table class="years"><thead><tr><th>year</th><th class="num">treatments</th><th class="num">cost</th></tr></thead><tbody>"#);
+    for (y, (cost, n)) in &years {
+        let _ = write!(
+            s,
+            r#"<tr><td>{y}</td><td class="num">{n}</td><td class="num">{}</td></tr>"#,
+            money(*cost, m)
+        );
+    }
+    s.push_str("</tbody></table>");
+    if t.rows.len() > PROGRAMME_ROWS {
+        let _ = write!(
+            s,
+            "<p class=\"small\">The first {PROGRAMME_ROWS} of {} treatments are listed; all are in work_programme.csv.</p>",
+            t.rows.len()
+        );
+    }
+    let mut current = None;
+    for (line, r) in t.rows.iter().take(PROGRAMME_ROWS) {
+        let y = t.number(*line, r, cy)? as i64;
+        if current != Some(y) {
+            if current.is_some() {
+                s.push_str("</tbody></table>");
+            }
+            let _ = write!(
+                s,
+                r#"<h3>{y}</h3><table class="programme" data-year="{y}"><thead><tr><th>section</th><th>treatment</th><th>region</th><th>category</th><th class="num">cost</th></tr></thead><tbody>"#
+            );
+            current = Some(y);
+        }
+        let _ = write!(
+            s,
+            r#"<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class="num">{}</td></tr>"#,
+            esc(t.text(r, cs)),
+            esc(t.text(r, ct)),
+            esc(t.text(r, cr)),
+            esc(t.text(r, ccat)),
+            money(t.number(*line, r, cc)?, m)
+        );
+    }
+    if current.is_some() {
+        s.push_str("</tbody></table>");
+    }
+    s.push_str("</section>");
+    Ok(s)
+}
+
+fn assumptions_section(sm: &Summary) -> String {
+    let a = &sm.v["assumptions"];
+    let m = &sm.money;
+    let n = |v: &serde_json::Value| v.as_f64().unwrap_or(f64::NAN);
+    let mut s = String::from(
+        r#"<section id="assumptions"><h2>Key assumptions</h2><table class="assumptions"><tbody>"#,
+    );
+    let mut row = |k: &str, v: String| {
+        let _ = write!(s, "<tr><th>{}</th><td>{v}</td></tr>", esc(k));
+    };
+    row(
+        "Discount rate",
+        format!(
+            "{:.2} % a year ({} discounting)",
+            n(&a["discount_rate"]) * 100.0,
+            esc(a["discounting"].as_str().unwrap_or(""))
+        ),
+    );
+    let (y0, years) = (n(&a["base_year"]), n(&a["analysis_years"]));
+    row(
+        "Analysis period",
+        format!(
+            "{years:.0} years, {y0:.0} to {:.0} (base year {y0:.0})",
+            y0 + years - 1.0
+        ),
+    );
+    row("Money", esc(m));
+    row(
+        "Network",
+        format!(
+            "{} sections, {} km",
+            grouped(n(&a["sections"]), 0),
+            grouped(n(&a["length_km"]), 1)
+        ),
+    );
+    for (key, label, decimals) in [
+        (
+            "time_per_vehicle_hour",
+            "Value of travel time (per vehicle-hour)",
+            2,
+        ),
+        (
+            "operating_per_vehicle_km",
+            "Vehicle operating cost on a smooth road (per vehicle-km)",
+            3,
+        ),
+    ] {
+        let v = &a["unit_values"][key];
+        let parts: Vec<String> = ["car", "bus", "light_truck", "heavy_truck"]
+            .iter()
+            .map(|c| format!("{} {}", c.replace('_', " "), grouped(n(&v[*c]), decimals)))
+            .collect();
+        row(label, format!("{} ({})", parts.join(", "), esc(m)));
+    }
+    row(
+        "Cost of an injury crash",
+        money(n(&a["unit_values"]["crash"]), m),
+    );
+    let fams: Vec<String> = a["families"]
+        .as_array()
+        .map(|v| {
+            v.iter()
+                .map(|f| {
+                    format!(
+                        "{} ({})",
+                        esc(f["name"].as_str().unwrap_or("")),
+                        esc(match f["model"].as_str().unwrap_or("") {
+                            "aashto93" => "AASHTO 1993 serviceability loss, converted to IRI",
+                            "calibrated" => "calibrated roughness progression",
+                            other => other,
+                        })
+                    )
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    row("Pavement model families", fams.join("; "));
+    row(
+        "Condition classes",
+        format!(
+            "good below IRI {:.2} m/km, poor above {:.2} m/km",
+            n(&a["condition_classes_iri"]["good_below"]),
+            n(&a["condition_classes_iri"]["poor_above"])
+        ),
+    );
+    row(
+        "Selection",
+        format!(
+            "{} path, {} price updates; {} treatments in the catalogue, {} strategy templates",
+            esc(&sm.text(&["method"])),
+            grouped(sm.num(&["price_updates"]), 0),
+            grouped(n(&a["treatments"]), 0),
+            grouped(n(&a["templates"]), 0)
+        ),
+    );
+    s.push_str("</tbody></table></section>");
+    s
+}
