@@ -16,11 +16,13 @@ pub mod appraise;
 pub mod cli;
 pub mod demo;
 pub mod diag;
+pub mod distribution;
 pub mod economics;
 pub mod enumerate;
 pub mod error;
 pub mod format;
 pub mod frontier;
+pub mod held;
 pub mod input;
 pub mod io;
 pub mod money;
@@ -28,10 +30,13 @@ pub mod outputs;
 pub mod plan;
 pub mod progress;
 pub mod report;
+pub mod risk;
 pub mod select;
+pub mod sensitivity;
 pub mod simulate;
 pub mod stats;
 pub mod text;
+pub mod vary;
 pub mod xlsx;
 
 /// The caution printed by `--help`, by every report and in the README.

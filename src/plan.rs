@@ -140,7 +140,7 @@ fn cents(x: f64) -> f64 {
 }
 
 /// A section's use of each row by one strategy's trace, as sparse (row, use).
-fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, f64)>) {
+pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, f64)>) {
     out.clear();
     let s = &run.scenario;
     let y0 = s.base_year;

@@ -7,4 +7,5 @@ mod check;
 mod plan;
 mod readme;
 mod report;
+mod risk;
 mod util;

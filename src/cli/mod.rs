@@ -13,6 +13,8 @@ pub mod frontier;
 pub mod init;
 pub mod plan;
 pub mod report;
+pub mod risk;
+pub mod sensitivity;
 
 use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use clap::{Parser, Subcommand};
@@ -63,6 +65,13 @@ pub enum Command {
     /// `plan --out DIR`.
     #[command(after_help = AFTER_HELP)]
     Report(report::Args),
+    /// Sensitivity tests and switching values of the plan and each section's strategy.
+    #[command(after_help = AFTER_HELP)]
+    Sensitivity(sensitivity::Args),
+    /// Monte Carlo over the scenario's uncertain inputs: NPV distributions, chance of being
+    /// best, spending against budgets; reproducible, and splittable into slices.
+    #[command(after_help = AFTER_HELP)]
+    Risk(risk::Args),
     /// Why a section got its strategy in a plan (read from `plan --out DIR`).
     #[command(after_help = AFTER_HELP)]
     Explain(explain::Args),
@@ -159,6 +168,8 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Explain(a) => explain::run(a, ctx),
         Command::Frontier(a) => frontier::run(a, ctx),
         Command::Report(a) => report::run(a, ctx),
+        Command::Sensitivity(a) => sensitivity::run(a, ctx),
+        Command::Risk(a) => risk::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
     }
 }

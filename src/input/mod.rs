@@ -15,6 +15,7 @@ pub mod scenario;
 pub mod templates;
 pub mod tomldoc;
 pub mod treatments;
+pub mod uncertain;
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
 use crate::text::decode;

@@ -877,6 +877,7 @@ mod tests {
             "plan",
             "commit",
             "target",
+            "uncertain",
         ] {
             top.get(k);
         }

@@ -165,6 +165,8 @@ pub struct Scenario {
     pub plan: super::plan::PlanRules,
     /// Model coefficients ([`super::models`]); defaults where the file is silent.
     pub models: super::models::Models,
+    /// Inputs declared uncertain (`[[uncertain]]`), for `risk`.
+    pub uncertain: Vec<super::uncertain::Uncertain>,
 }
 
 impl Scenario {
@@ -229,6 +231,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         .and_then(|v| v.table(d))
         .and_then(|t| read_unit_values(t, d));
     let budgets = top.get("budget");
+    let uncertain = top.get("uncertain");
     let plan = super::plan::read(&mut top, period, d);
     let (models, families_ok) = super::models::read(&mut top, d);
     let families = families_ok.then(|| {
@@ -272,8 +275,17 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
             budget_lines,
             plan,
             models,
+            uncertain: Vec::new(),
         })
     })();
+    // Uncertain inputs are checked against the scenario they vary (its values and families).
+    let scenario = match (scenario, uncertain) {
+        (Some(mut s), Some(v)) => {
+            s.uncertain = super::uncertain::read(&v, &s, d);
+            Some(s)
+        }
+        (s, _) => s,
+    };
     Partial {
         scenario: scenario.filter(|_| d.error_count() == before),
         files,

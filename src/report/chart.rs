@@ -85,6 +85,8 @@ pub struct Units {
     pub divisor: f64,
     pub decimals: usize,
     pub percent: bool,
+    /// No tick labels (the chart labels its rows itself).
+    pub hidden: bool,
 }
 
 impl Units {
@@ -93,6 +95,15 @@ impl Units {
             divisor: 1.0,
             decimals,
             percent: false,
+            hidden: false,
+        }
+    }
+
+    /// Ticks without labels.
+    pub fn hidden() -> Units {
+        Units {
+            hidden: true,
+            ..Units::plain(0)
         }
     }
 
@@ -101,6 +112,7 @@ impl Units {
             divisor: 0.01,
             decimals,
             percent: true,
+            hidden: false,
         }
     }
 
@@ -122,12 +134,16 @@ impl Units {
                 divisor,
                 decimals: 1,
                 percent: false,
+                hidden: false,
             },
             word,
         )
     }
 
     pub fn label(&self, v: f64, step: f64) -> String {
+        if self.hidden {
+            return String::new();
+        }
         let x = v / self.divisor;
         let s = step / self.divisor;
         // As many decimals as the step needs (2.5 → 1, 0.25 → 2, 5 → 0).

@@ -9,6 +9,7 @@
 //! risk when computed; the work programme by year; the assumptions; the planning-level caution.
 
 pub mod chart;
+mod extra;
 
 use crate::error::{Error, Result};
 use crate::money::grouped;
@@ -130,6 +131,9 @@ pub fn render(files: &Files<'_>) -> Result<String> {
     let targets = files.table("target_use.csv", false)?;
     let widening = files.table("widening_plan.csv", false)?;
     let frontier = files.table("frontier.csv", false)?;
+    let sensitivity = files.table("sensitivity.csv", false)?;
+    let risk = files.table("risk.csv", false)?;
+    let risk_draws = files.table("risk_draws.csv", false)?;
 
     let title = {
         let t = sm.text(&["assumptions", "title"]);
@@ -164,6 +168,14 @@ pub fn render(files: &Files<'_>) -> Result<String> {
     }
     nav.push(("frontier", "Budget frontier"));
     body.push_str(&frontier_section(frontier.as_ref(), &sm)?);
+    if let Some(t) = &sensitivity {
+        nav.push(("sensitivity", "Sensitivity"));
+        body.push_str(&extra::sensitivity_section(t, &sm.money)?);
+    }
+    if let Some(t) = &risk {
+        nav.push(("risk", "Risk"));
+        body.push_str(&extra::risk_section(t, risk_draws.as_ref(), &sm.money)?);
+    }
     nav.push(("programme", "Work programme"));
     body.push_str(&programme_section(&programme, &sm)?);
     nav.push(("assumptions", "Assumptions"));

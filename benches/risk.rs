@@ -1,0 +1,96 @@
+//! Monte Carlo throughput: draws per second of `pavestrat risk` on the built-in demo (40
+//! sections) and on synthetic networks drawn like `pavestrat init --sections N` (the demo's
+//! scenario, its uncertain inputs and its 30 budget lines scaled to the network). A draw samples
+//! every uncertain input and simulates every strategy of every section (about 64 a section over
+//! 30 years) plus the plan's spending; draws run in parallel. The plan held fixed is each
+//! section's best strategy with no budget limits (selection is not what is measured here).
+//!
+//! Run with `cargo bench --bench risk [-- SIZES]`, SIZES a comma-separated list of synthetic
+//! network sizes (default `10000`); the demo is always measured. Best of three rounds.
+
+use pavestrat::demo::synth::{network_csv, scaled_scenario};
+use pavestrat::diag::Diagnostics;
+use pavestrat::held::HeldPlan;
+use pavestrat::input::{self, network, scenario, Run};
+use pavestrat::plan::{candidates, Settings};
+use pavestrat::progress::Progress;
+use pavestrat::risk::simulate;
+use std::path::Path;
+use std::time::Instant;
+
+fn unconstrained(run: &Run) -> HeldPlan {
+    let c = candidates(
+        run,
+        &Settings {
+            objective: run.scenario.plan.objective,
+            budget_scale: 1.0,
+            select: Default::default(),
+        },
+    )
+    .expect("candidates");
+    let e = pavestrat::enumerate::Enumerator::for_run(run);
+    HeldPlan {
+        strategies: run
+            .network
+            .sections
+            .iter()
+            .map(|s| e.strategies(s))
+            .collect(),
+        chosen: c.unconstrained.iter().map(|u| u.0 as usize).collect(),
+    }
+}
+
+fn measure(label: &str, run: &Run, draws: u64) {
+    let held = unconstrained(run);
+    let strategies: usize = held.strategies.iter().map(Vec::len).sum();
+    let mut best = f64::INFINITY;
+    for _ in 0..3 {
+        let t = Instant::now();
+        let s = simulate(run, &held, 2027, 0, draws, &Progress::none());
+        best = best.min(t.elapsed().as_secs_f64());
+        assert_eq!(s.draws, draws);
+    }
+    println!(
+        "  {label}: {} sections, {strategies} strategies, {} uncertain inputs, {draws} draws in {best:.2} s — {:.1} draws/s ({} threads)",
+        run.network.sections.len(),
+        run.scenario.uncertain.len(),
+        draws as f64 / best,
+        rayon::current_num_threads()
+    );
+}
+
+fn main() {
+    let sizes: Vec<usize> = std::env::args()
+        .skip(1)
+        .find(|a| a.chars().next().is_some_and(|c| c.is_ascii_digit()))
+        .map(|a| a.split(',').filter_map(|x| x.parse().ok()).collect())
+        .unwrap_or_else(|| vec![10_000]);
+    let (run, d) = input::load(
+        &pavestrat::demo::SOURCE,
+        Path::new(pavestrat::demo::SCENARIO),
+    );
+    let demo = run.unwrap_or_else(|| panic!("the demo loads: {d}"));
+    println!("risk: Monte Carlo draws per second");
+    measure("demo", &demo, 1000);
+    let demo_text = String::from_utf8_lossy(pavestrat::demo::FILES[0].1).into_owned();
+    let demo_net = String::from_utf8_lossy(pavestrat::demo::FILES[1].1).into_owned();
+    for n in sizes {
+        let mut run = demo.clone();
+        let mut d = Diagnostics::new();
+        let net = network_csv(n, 7);
+        run.network = network::parse("synthetic", &net, &mut d)
+            .unwrap_or_else(|| panic!("the synthetic network parses: {d}"));
+        let count = |text: &str, r: &str| {
+            text.lines()
+                .filter(|l| l.split(',').nth(9) == Some(r))
+                .count() as f64
+        };
+        let text = scaled_scenario(&demo_text, n as f64 / 40.0, &|r| {
+            count(&net, r) / count(&demo_net, r)
+        });
+        run.scenario = scenario::parse("scenario.toml", &text, Path::new("."), &mut d)
+            .unwrap_or_else(|| panic!("the scaled scenario parses: {d}"));
+        let draws = (200_000 / n as u64).clamp(4, 1000);
+        measure(&format!("synthetic {n}"), &run, draws);
+    }
+}

@@ -1,0 +1,155 @@
+//! `pavestrat risk`: Monte Carlo over the scenario's uncertain inputs (see [`crate::risk`]).
+//! Prints the network plan's NPV distribution and the budget lines most likely to be overspent;
+//! `--out DIR` writes `risk.csv`, `risk_draws.csv` and the raw `risk_slice.bin`. Slices of one
+//! run (`--first-draw K --draws N`) merge with `risk --merge DIR…` into exactly the files one
+//! whole run would give.
+
+use super::plan::parse_seconds;
+use super::sensitivity::held;
+use super::{load_scenario, Context, OutArg};
+use crate::error::{Error, Result};
+use crate::io::{print_stdout, StreamSet};
+use crate::money::grouped;
+use crate::risk::{merge, simulate, stats, Slice};
+use std::fmt::Write as _;
+use std::path::PathBuf;
+
+/// Arguments of `risk`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Scenario file (TOML). Without it, the built-in demo is used (and said so).
+    #[arg(long, value_name = "FILE", conflicts_with = "merge")]
+    pub scenario: Option<PathBuf>,
+
+    /// Hold the plan written by `pavestrat plan --out DIR` (its section_plan.csv); without it the
+    /// plan is selected afresh, as `plan` would. Give every slice of a split run the same one.
+    #[arg(long, value_name = "DIR", conflicts_with = "merge")]
+    pub from: Option<PathBuf>,
+
+    /// Number of draws.
+    #[arg(long, value_name = "N", default_value_t = 1000, value_parser = clap::value_parser!(u64).range(1..=100_000_000))]
+    pub draws: u64,
+
+    /// Seed of the run: the same seed gives the same draws, whatever the machine or threads.
+    #[arg(long, value_name = "S", default_value_t = 2027)]
+    pub seed: u64,
+
+    /// Number of the first draw (to run one slice of a larger run).
+    #[arg(long, value_name = "K", default_value_t = 0)]
+    pub first_draw: u64,
+
+    /// Most seconds the plan's selection may take (when there is no --from).
+    #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
+    pub time_limit: f64,
+
+    /// Merge the raw results (risk_slice.bin) of these slices' --out directories instead of
+    /// drawing.
+    #[arg(long, value_name = "DIR", num_args = 1..)]
+    pub merge: Vec<PathBuf>,
+
+    #[command(flatten)]
+    pub out: OutArg,
+}
+
+/// The files `risk --out DIR` writes.
+pub const FILES: [&str; 3] = ["risk.csv", "risk_draws.csv", "risk_slice.bin"];
+
+/// Run `risk`.
+pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let slice = if args.merge.is_empty() {
+        let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
+        let Some(run) = run else {
+            return Err(Error::Input(diags));
+        };
+        ctx.notes(&diags);
+        if run.scenario.uncertain.is_empty() {
+            return Err(Error::Usage(format!(
+                "{}: the scenario declares no uncertain inputs; expected [[uncertain]] entries \
+                 (input, distribution and its parameters; see the README)",
+                run.scenario.file
+            )));
+        }
+        if args.first_draw.checked_add(args.draws).is_none() {
+            return Err(Error::Usage(
+                "--first-draw + --draws: past the largest draw number".into(),
+            ));
+        }
+        let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
+        let bar = ctx.progress.bar("risk", args.draws, "draws");
+        let s = simulate(&run, &held, args.seed, args.first_draw, args.draws, &bar);
+        bar.finish();
+        s
+    } else {
+        let mut parts = Vec::new();
+        for dir in &args.merge {
+            let p = dir.join("risk_slice.bin");
+            parts.push((p.display().to_string(), Slice::read(&p)?));
+        }
+        merge(parts)?
+    };
+    if let Some(dir) = &args.out.out {
+        let mut set = StreamSet::create(dir, &FILES)?;
+        set.write(0, slice.csv().as_bytes())?;
+        set.write(1, slice.draws_csv().as_bytes())?;
+        set.write(2, &slice.to_bytes())?;
+        for p in set.commit()? {
+            ctx.say(&format!("wrote {}", p.display()));
+        }
+    }
+    if args.out.out.is_none() || !ctx.quiet {
+        print_stdout(&render(&slice))?;
+    }
+    Ok(())
+}
+
+fn render(s: &Slice) -> String {
+    let l = &s.layout;
+    let m = &l.money;
+    let net = s.network();
+    let st = stats(&net);
+    let mut out = format!(
+        "Risk of the network plan — draws {} to {} (seed {}), uncertain inputs: {}\n\n",
+        s.first,
+        s.first + s.draws - 1,
+        s.seed,
+        l.inputs.join(", ")
+    );
+    let _ = writeln!(
+        out,
+        "plan NPV ({m}): mean {}, P10 {}, P50 {}, P90 {}; NPV above zero in {:.1} % of draws",
+        grouped(st.mean, 0),
+        grouped(st.p10, 0),
+        grouped(st.p50, 0),
+        grouped(st.p90, 0),
+        100.0 * net.iter().filter(|x| **x > 0.0).count() as f64 / net.len().max(1) as f64
+    );
+    let n: usize = l.strategies.iter().map(Vec::len).sum();
+    let w = l.width();
+    let mut over: Vec<(f64, &str)> = l
+        .lines
+        .iter()
+        .enumerate()
+        .map(|(j, name)| {
+            let c = (0..s.draws as usize)
+                .filter(|k| s.values[k * w + n + 1 + j] > l.limits[j] + 0.005)
+                .count();
+            (c as f64 / s.draws.max(1) as f64, name.as_str())
+        })
+        .filter(|x| x.0 > 0.0)
+        .collect();
+    over.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(b.1)));
+    if over.is_empty() {
+        let _ = writeln!(out, "the plan stays within every budget line in every draw");
+    } else {
+        let _ = writeln!(out, "budget lines the plan overspends in some draws:");
+        for (p, name) in over.iter().take(10) {
+            let _ = writeln!(out, "  {name:<24} {:.1} % of draws", p * 100.0);
+        }
+    }
+    let _ = writeln!(
+        out,
+        "\nPer section and strategy (mean, P10/P50/P90 of NPV, chance NPV > 0, chance of being best) in risk.csv (--out DIR).\n\n{}",
+        crate::CAUTION
+    );
+    out
+}

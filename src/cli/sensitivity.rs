@@ -1,0 +1,182 @@
+//! `pavestrat sensitivity`: how wrong the inputs can be before the decision changes — the usual
+//! tests and switching values for the network plan and each section's chosen strategy (see
+//! [`crate::sensitivity`]). Prints the network plan's results; `--out DIR` writes
+//! `sensitivity.csv` (into a plan's directory, `pavestrat report` then draws the tornado chart).
+
+use super::plan::parse_seconds;
+use super::{load_scenario, parse_rate, Context, OutArg};
+use crate::error::{Error, Result};
+use crate::held::HeldPlan;
+use crate::io::{print_stdout, StreamSet};
+use crate::money::grouped;
+use crate::plan::Settings;
+use crate::select::network::{Method, Options};
+use crate::sensitivity::{analyse, csv, Tests, INPUTS};
+use std::fmt::Write as _;
+use std::path::PathBuf;
+use std::time::Duration;
+
+/// Arguments of `sensitivity`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Scenario file (TOML). Without it, the built-in demo is used (and said so).
+    #[arg(long, value_name = "FILE")]
+    pub scenario: Option<PathBuf>,
+
+    /// Hold the plan written by `pavestrat plan --out DIR` (its section_plan.csv); without it the
+    /// plan is selected afresh, as `plan` would.
+    #[arg(long, value_name = "DIR")]
+    pub from: Option<PathBuf>,
+
+    /// Capital costs tested this much lower and higher (fraction or %).
+    #[arg(long, value_name = "X", default_value = "0.2", value_parser = parse_change)]
+    pub cost_change: f64,
+
+    /// Road-user unit values tested this much lower and higher (fraction or %).
+    #[arg(long, value_name = "X", default_value = "0.2", value_parser = parse_change)]
+    pub value_change: f64,
+
+    /// Traffic growth tested this many points lower and higher (0.01 = one point).
+    #[arg(long, value_name = "X", default_value = "0.01", value_parser = parse_change)]
+    pub growth_change: f64,
+
+    /// The two other discount rates (default: two points either side of the scenario's).
+    #[arg(long, value_name = "R1,R2", value_delimiter = ',', num_args = 2, value_parser = parse_rate)]
+    pub rates: Vec<f64>,
+
+    /// Most seconds the plan's selection may take (when there is no --from).
+    #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
+    pub time_limit: f64,
+
+    #[command(flatten)]
+    pub out: OutArg,
+}
+
+fn parse_change(s: &str) -> std::result::Result<f64, String> {
+    let x = parse_rate(s)?;
+    if !(0.0..1.0).contains(&x) {
+        return Err(format!(
+            "`{s}` is not a usable change; expected a fraction from 0 to below 1, e.g. 0.2"
+        ));
+    }
+    Ok(x)
+}
+
+/// The plan held fixed: read from `--from`, or selected afresh.
+pub(super) fn held(
+    run: &crate::input::Run,
+    from: Option<&std::path::Path>,
+    time_limit: f64,
+    ctx: Context,
+) -> Result<HeldPlan> {
+    match from {
+        Some(dir) => HeldPlan::read(run, dir),
+        None => {
+            ctx.say("note: no --from given; selecting the plan as `pavestrat plan` would");
+            let settings = Settings {
+                objective: run.scenario.plan.objective,
+                budget_scale: 1.0,
+                select: Options {
+                    method: Method::Auto,
+                    gap: 1e-4,
+                    time_limit: Duration::from_secs_f64(time_limit),
+                },
+            };
+            HeldPlan::select(run, &settings)
+        }
+    }
+}
+
+/// Run `sensitivity`.
+pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
+    let Some(run) = run else {
+        return Err(Error::Input(diags));
+    };
+    ctx.notes(&diags);
+    let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
+    let mut tests = Tests::usual(run.scenario.discounting.rate());
+    tests.cost = args.cost_change;
+    tests.values = args.value_change;
+    tests.growth = args.growth_change;
+    if let [a, b] = args.rates[..] {
+        tests.rates = [a.min(b), a.max(b)];
+    }
+    let bar = ctx
+        .progress
+        .bar("sensitivity", run.network.sections.len() as u64, "sections");
+    let rows = analyse(&run, &held, &tests, &bar);
+    bar.finish();
+    if let Some(dir) = &args.out.out {
+        let mut set = StreamSet::create(dir, &["sensitivity.csv"])?;
+        set.write(0, csv(&run, &rows).as_bytes())?;
+        for p in set.commit()? {
+            ctx.say(&format!("wrote {}", p.display()));
+        }
+    }
+    if args.out.out.is_none() || !ctx.quiet {
+        let m = &run.scenario.money_label;
+        let net: Vec<_> = rows.iter().filter(|r| r.section.is_none()).collect();
+        let n0 = net[0].npv.unwrap_or(0.0);
+        let mut s = format!(
+            "Sensitivity of the network plan's NPV ({} {m} at the scenario's values)\n\n{:<16} {:>12} {:>20} {:>12} {:>20}\n",
+            grouped(n0, 0),
+            "input",
+            "low",
+            "NPV",
+            "high",
+            "NPV"
+        );
+        for (i, (_, label)) in INPUTS.iter().enumerate() {
+            let get = |t: &str| net.iter().find(|r| r.input == Some(i) && r.test == t);
+            if let (Some(lo), Some(hi)) = (get("low"), get("high")) {
+                let _ = writeln!(
+                    s,
+                    "{label:<16} {:>12} {:>20} {:>12} {:>20}",
+                    show(i, lo.value),
+                    grouped(lo.npv.unwrap_or(f64::NAN), 0),
+                    show(i, hi.value),
+                    grouped(hi.npv.unwrap_or(f64::NAN), 0)
+                );
+            }
+        }
+        let _ = writeln!(s, "\nSwitching values (the plan's NPV reaches zero):");
+        for (i, (_, label)) in INPUTS.iter().enumerate() {
+            for r in net
+                .iter()
+                .filter(|r| r.input == Some(i) && r.test == "npv-zero")
+            {
+                let _ = writeln!(
+                    s,
+                    "  {label:<16} {:<5} {}",
+                    r.direction,
+                    match r.value {
+                        Some(v) => show(i, Some(v)),
+                        None => "none within the search range".to_owned(),
+                    }
+                );
+            }
+        }
+        let sections = rows
+            .iter()
+            .filter(|r| r.section.is_some() && r.test == "best-changes" && r.value.is_some())
+            .count();
+        let _ = writeln!(
+            s,
+            "\n{sections} section switching values where another strategy becomes best; every section's tests and switching values are in sensitivity.csv (--out DIR).\n\n{}",
+            crate::CAUTION
+        );
+        print_stdout(&s)?;
+    }
+    Ok(())
+}
+
+/// An input's value as people say it: factors as %, growth in points, rates as %.
+fn show(i: usize, v: Option<f64>) -> String {
+    let Some(v) = v else { return "—".into() };
+    match i {
+        0 | 1 => format!("{:+.1} %", (v - 1.0) * 100.0),
+        2 => format!("{:+.2} pt", v * 100.0),
+        _ => format!("{:.2} %", v * 100.0),
+    }
+}

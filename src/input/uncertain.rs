@@ -1,0 +1,250 @@
+//! `[[uncertain]]` entries of a scenario: an input (see [`crate::vary`]) and the distribution of
+//! its value, for `pavestrat risk`.
+//!
+//! ```toml
+//! [[uncertain]]
+//! input = "factor.capital_cost"   # or a key path such as "unit_values.time.car"
+//! distribution = "pert"           # uniform | triangular | normal | lognormal | pert
+//! min = 0.9
+//! mode = 1.0
+//! max = 1.4
+//! ```
+//!
+//! Parameters: uniform `min, max`; triangular and pert `min, mode, max`; normal `mean, sd` and
+//! optional `min, max` (truncation; default the input's accepted range); lognormal `median,
+//! sigma` (the standard deviation of the logarithm) and optional `min, max` likewise. Every value
+//! a draw can take must lie in the range the input accepts.
+
+use super::scenario::Scenario;
+use super::tomldoc::{Table, Value};
+use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::distribution::Distribution;
+
+/// One uncertain input.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Uncertain {
+    /// The input's name (a key path or a whole-run input).
+    pub input: String,
+    pub distribution: Distribution,
+    pub place: Place,
+}
+
+/// The distributions' names.
+pub const DISTRIBUTIONS: [&str; 5] = ["uniform", "triangular", "normal", "lognormal", "pert"];
+
+fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, expected: &str) -> Option<f64> {
+    t.require(key, d, expected).and_then(|v| v.number(d))
+}
+
+fn opt(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics) -> Option<Option<f64>> {
+    match t.get(key) {
+        None => Some(None),
+        Some(v) => v.number(d).map(Some),
+    }
+}
+
+/// Read the `[[uncertain]]` array (`v`) against the scenario it belongs to.
+pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncertain> {
+    let Some(items) = v.array(d) else {
+        return Vec::new();
+    };
+    let names = crate::vary::input_names(s);
+    let mut out: Vec<Uncertain> = Vec::new();
+    for item in items {
+        let Some(mut t) = item.table(d) else { continue };
+        let place = t.place();
+        let input = t
+            .require(
+                "input",
+                d,
+                "the name of the uncertain input, e.g. \"factor.capital_cost\"",
+            )
+            .and_then(|v| {
+                let name = v.string(d)?;
+                match crate::vary::input(s, name) {
+                    Some(i) => Some(i),
+                    None => {
+                        let refs: Vec<&str> = names.iter().map(String::as_str).collect();
+                        let e = d.error(
+                            v.place(),
+                            format!("found `{name}`, which is not an input that can be uncertain"),
+                            "a whole-run input (factor.capital_cost, factor.routine_cost, \
+                             factor.unit_values, shift.growth, discount_rate) or the key path of a \
+                             unit value or model coefficient, e.g. unit_values.time.car",
+                        );
+                        e.hint = Some(match did_you_mean(name, &refs) {
+                            Some(m) => format!("did you mean `{m}`?"),
+                            None => "coefficients that a rule ties to another (fuel_share, \
+                                     repair_share, repair_at_4/5, classes_iri, iri_max, p0, \
+                                     psr_min) stay as written"
+                                .to_owned(),
+                        });
+                        None
+                    }
+                }
+            });
+        let kind = t
+            .require(
+                "distribution",
+                d,
+                "one of uniform, triangular, normal, lognormal, pert",
+            )
+            .and_then(|v| v.word(d, &DISTRIBUTIONS));
+        let range = input
+            .as_ref()
+            .map(|i| i.range)
+            .unwrap_or((f64::MIN, f64::MAX));
+        let dist = match kind {
+            Some("uniform") => {
+                let min = num(&mut t, "min", d, "the smallest value");
+                let max = num(&mut t, "max", d, "the largest value");
+                match (min, max) {
+                    (Some(min), Some(max)) => Some(Distribution::Uniform { min, max }),
+                    _ => None,
+                }
+            }
+            Some(k @ ("triangular" | "pert")) => {
+                let min = num(&mut t, "min", d, "the smallest value");
+                let mode = num(&mut t, "mode", d, "the most likely value");
+                let max = num(&mut t, "max", d, "the largest value");
+                match (min, mode, max) {
+                    (Some(min), Some(mode), Some(max)) => {
+                        if !(min <= mode && mode <= max) {
+                            d.error(
+                                place.clone().with_subfield("mode"),
+                                format!("min {min}, mode {mode}, max {max}"),
+                                "min ≤ mode ≤ max",
+                            );
+                            None
+                        } else if k == "pert" {
+                            Some(Distribution::Pert { min, mode, max })
+                        } else {
+                            Some(Distribution::Triangular { min, mode, max })
+                        }
+                    }
+                    _ => None,
+                }
+            }
+            Some("normal") => {
+                let mean = num(&mut t, "mean", d, "the mean");
+                let sd = t
+                    .require("sd", d, "the standard deviation, 0 or more")
+                    .and_then(|v| v.number_in(d, 0.0, f64::MAX, "a standard deviation, 0 or more"));
+                let (min, max) = (opt(&mut t, "min", d), opt(&mut t, "max", d));
+                match (mean, sd, min, max) {
+                    (Some(mean), Some(sd), Some(min), Some(max)) => Some(Distribution::Normal {
+                        mean,
+                        sd,
+                        min: min.unwrap_or(range.0),
+                        max: max.unwrap_or(range.1),
+                    }),
+                    _ => None,
+                }
+            }
+            Some("lognormal") => {
+                let median = t
+                    .require("median", d, "the median, above 0")
+                    .and_then(|v| v.number_in(d, f64::MIN_POSITIVE, f64::MAX, "a median above 0"));
+                let sigma = t
+                    .require(
+                        "sigma",
+                        d,
+                        "the standard deviation of the logarithm, 0 or more",
+                    )
+                    .and_then(|v| v.number_in(d, 0.0, 10.0, "a sigma from 0 to 10"));
+                let (min, max) = (opt(&mut t, "min", d), opt(&mut t, "max", d));
+                match (median, sigma, min, max) {
+                    (Some(median), Some(sigma), Some(min), Some(max)) => {
+                        Some(Distribution::Lognormal {
+                            median,
+                            sigma,
+                            min: min.unwrap_or(range.0.max(0.0)),
+                            max: max.unwrap_or(range.1),
+                        })
+                    }
+                    _ => None,
+                }
+            }
+            _ => None,
+        };
+        t.finish(d);
+        let (Some(input), Some(dist)) = (input, dist) else {
+            continue;
+        };
+        // The truncation bounds and centre must make sense, and every draw must be a value the
+        // input accepts.
+        let ok = match dist {
+            Distribution::Normal { mean, min, max, .. } => {
+                check_centre(&place, "mean", mean, min, max, d)
+            }
+            Distribution::Lognormal {
+                median, min, max, ..
+            } => check_centre(&place, "median", median, min, max, d),
+            Distribution::Uniform { min, max } if min > max => {
+                d.error(
+                    place.clone().with_subfield("min"),
+                    format!("min {min} above max {max}"),
+                    "min ≤ max",
+                );
+                false
+            }
+            _ => true,
+        };
+        if !ok {
+            continue;
+        }
+        let (lo, hi) = dist.support();
+        if lo < input.range.0 || hi > input.range.1 {
+            d.error(
+                place.clone().with_subfield("input"),
+                format!(
+                    "a {} distribution of `{}` reaching from {lo} to {hi}",
+                    dist.name(),
+                    input.name
+                ),
+                format!(
+                    "values the input accepts, {} to {}",
+                    input.range.0, input.range.1
+                ),
+            );
+            continue;
+        }
+        if let Some(prev) = out.iter().find(|u| u.input == input.name) {
+            d.error(
+                place.clone().with_subfield("input"),
+                format!(
+                    "`{}` declared uncertain twice (first at line {})",
+                    input.name,
+                    prev.place.line.unwrap_or(0)
+                ),
+                "one [[uncertain]] entry per input",
+            );
+            continue;
+        }
+        out.push(Uncertain {
+            input: input.name,
+            distribution: dist,
+            place,
+        });
+    }
+    out
+}
+
+fn check_centre(
+    place: &Place,
+    key: &str,
+    centre: f64,
+    min: f64,
+    max: f64,
+    d: &mut Diagnostics,
+) -> bool {
+    if min > max || centre < min || centre > max {
+        d.error(
+            place.clone().with_subfield(key),
+            format!("{key} {centre} with min {min} and max {max}"),
+            format!("min ≤ {key} ≤ max"),
+        );
+        return false;
+    }
+    true
+}

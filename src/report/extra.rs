@@ -1,0 +1,291 @@
+//! The report's sensitivity and risk sections, drawn from `sensitivity.csv`, `risk.csv` and
+//! `risk_draws.csv` when they are in the plan's directory.
+
+use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
+use crate::error::Result;
+use crate::money::grouped;
+use crate::outputs::Table;
+use std::fmt::Write as _;
+
+fn axis_title(what: &str, m: &str, word: &str) -> String {
+    if word.is_empty() {
+        format!("{what} ({m})")
+    } else {
+        format!("{what} ({m}, {word})")
+    }
+}
+
+/// How a test's value reads: factors as a % change, growth in points, rates as %.
+fn show(input: &str, value: f64) -> String {
+    match input {
+        "capital_cost" | "user_values" => format!("{:+.0} %", (value - 1.0) * 100.0),
+        "growth" => format!("{:+.1} pt", value * 100.0),
+        _ => format!("{:.1} %", value * 100.0),
+    }
+}
+
+/// The tornado chart of the network plan's NPV, and its switching values.
+pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
+    let (cs, ci, ct, cd, cv, cn) = (
+        t.column("scope")?,
+        t.column("input")?,
+        t.column("test")?,
+        t.column("direction")?,
+        t.column("value")?,
+        t.column("npv")?,
+    );
+    let mut base = None;
+    // input → (low value, low NPV, high value, high NPV)
+    let mut bars: Vec<(String, f64, f64, f64, f64)> = Vec::new();
+    let mut switching: Vec<(String, String, Option<f64>)> = Vec::new();
+    let mut sections_switch = 0usize;
+    for (line, r) in &t.rows {
+        let scope = t.text(r, cs);
+        let input = t.text(r, ci).to_owned();
+        let test = t.text(r, ct);
+        if scope != "network" {
+            if test == "best-changes" && t.optional(*line, r, cv)?.is_some() {
+                sections_switch += 1;
+            }
+            continue;
+        }
+        match test {
+            "scenario" => base = t.optional(*line, r, cn)?,
+            "low" | "high" => {
+                let v = t.number(*line, r, cv)?;
+                let n = t.number(*line, r, cn)?;
+                let slot = match bars.iter_mut().position(|b| b.0 == input) {
+                    Some(i) => i,
+                    None => {
+                        bars.push((input.clone(), f64::NAN, f64::NAN, f64::NAN, f64::NAN));
+                        bars.len() - 1
+                    }
+                };
+                if test == "low" {
+                    bars[slot].1 = v;
+                    bars[slot].2 = n;
+                } else {
+                    bars[slot].3 = v;
+                    bars[slot].4 = n;
+                }
+            }
+            "npv-zero" => {
+                switching.push((input, t.text(r, cd).to_owned(), t.optional(*line, r, cv)?))
+            }
+            _ => {}
+        }
+    }
+    let base = base.unwrap_or(0.0);
+    // Widest swing first.
+    bars.sort_by(|a, b| {
+        let w = |x: &(String, f64, f64, f64, f64)| (x.4 - x.2).abs();
+        w(b).total_cmp(&w(a)).then(a.0.cmp(&b.0))
+    });
+    let mut s =
+        String::from(r#"<section id="sensitivity"><h2>Sensitivity and switching values</h2>"#);
+    let _ = write!(
+        s,
+        "<p>The network plan's NPV ({} {}) when one input at a time is set lower (orange) or higher (blue) than in the scenario; the plan is held fixed. Widest swing at the top.</p>",
+        grouped(base, 0),
+        esc(m)
+    );
+    if !bars.is_empty() {
+        let lo = bars.iter().flat_map(|b| [b.2, b.4]).fold(base, f64::min);
+        let hi = bars.iter().flat_map(|b| [b.2, b.4]).fold(base, f64::max);
+        let (u, word) = Units::money(lo.abs().max(hi.abs()));
+        let title = axis_title("Network plan NPV", m, word);
+        let n = bars.len() as f64;
+        // Rows on the y axis: 1 (top) .. n; the chart's y runs 0..n+1.
+        let mut c = Chart::new(Spec {
+            id: "tornado",
+            title: "What moves the plan's NPV",
+            width: 1000.0,
+            height: 90.0 + 60.0 * n,
+            x: (lo - 0.05 * (hi - lo), hi + 0.05 * (hi - lo)),
+            x_pad: 0.0,
+            x_title: &title,
+            x_units: u,
+            x_integer: false,
+            y: (0.0, n + 1.0),
+            y_title: "Input tested",
+            y_units: Units::hidden(),
+            y2: None,
+        });
+        for (k, (input, lv, ln, hv, hn)) in bars.iter().enumerate() {
+            let y = n - k as f64;
+            for (series, colour, v, npv) in [("low", ORANGE, lv, ln), ("high", BLUE, hv, hn)] {
+                let (xa, xb) = (c.x.at(base.min(*npv)), c.x.at(base.max(*npv)));
+                let (ya, yb) = (c.y.at(y + 0.3), c.y.at(y - 0.3));
+                c.raw(&format!(
+                    r#"<rect class="mark" data-series="{series}" data-input="{}" data-x="{npv}" data-from="{base}" data-y="{y}" x="{:.3}" y="{:.3}" width="{:.3}" height="{:.3}" fill="{colour}"/>"#,
+                    esc(input),
+                    xa,
+                    ya.min(yb),
+                    (xb - xa).abs(),
+                    (yb - ya).abs()
+                ));
+                let anchor = if *npv < base { "end" } else { "start" };
+                let dx = if *npv < base { -4.0 } else { 4.0 };
+                c.raw(&format!(
+                    r#"<text class="note" x="{:.2}" y="{:.2}" text-anchor="{anchor}">{}</text>"#,
+                    c.x.at(*npv) + dx,
+                    c.y.at(y) + 4.0,
+                    esc(&show(input, *v))
+                ));
+            }
+            c.raw(&format!(
+                r#"<text class="legend" x="{:.2}" y="{:.2}" text-anchor="start">{}</text>"#,
+                c.x.at(base) + 6.0,
+                c.y.at(y + 0.42),
+                esc(&input.replace('_', " "))
+            ));
+        }
+        let bx = c.x.at(base);
+        c.raw(&format!(
+            r#"<line class="reference" data-x="{base}" x1="{bx:.2}" x2="{bx:.2}" y1="{:.2}" y2="{:.2}" stroke="{GREY}" stroke-dasharray="5 4"/>"#,
+            c.y.p0, c.y.p1
+        ));
+        s.push_str(&c.finish(&[("input lower", ORANGE, ""), ("input higher", BLUE, "")]));
+    }
+    s.push_str(r#"<table><thead><tr><th>input</th><th>direction</th><th class="num">the plan's NPV reaches zero at</th></tr></thead><tbody>"#);
+    for (input, dir, v) in &switching {
+        let _ = write!(
+            s,
+            r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td></tr>"#,
+            esc(&input.replace('_', " ")),
+            esc(dir),
+            v.map(|v| show(input, v))
+                .unwrap_or_else(|| "not within the search range".into())
+        );
+    }
+    let _ = write!(
+        s,
+        "</tbody></table><p>{sections_switch} switching values at which a section's best strategy gives way to another, and every section's tests, are in sensitivity.csv.</p></section>"
+    );
+    Ok(s)
+}
+
+/// The histogram of the plan's NPV over the draws, and spending against each line.
+pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String> {
+    let (ck, cl, cli, cm, c10, c50, c90, cp, co, cn) = (
+        t.column("kind")?,
+        t.column("line")?,
+        t.column("limit")?,
+        t.column("mean")?,
+        t.column("p10")?,
+        t.column("p50")?,
+        t.column("p90")?,
+        t.column("prob_positive")?,
+        t.column("prob_over")?,
+        t.column("draws")?,
+    );
+    let mut s = String::from(r#"<section id="risk"><h2>Risk</h2>"#);
+    let mut budget = Vec::new();
+    for (line, r) in &t.rows {
+        match t.text(r, ck) {
+            "plan" => {
+                let _ = write!(
+                    s,
+                    "<p>Over {} draws of the scenario's uncertain inputs, the network plan's NPV has mean {}, P10 {}, P50 {} and P90 {} ({}); it is above zero in {:.1} % of draws.</p>",
+                    grouped(t.number(*line, r, cn)?, 0),
+                    grouped(t.number(*line, r, cm)?, 0),
+                    grouped(t.number(*line, r, c10)?, 0),
+                    grouped(t.number(*line, r, c50)?, 0),
+                    grouped(t.number(*line, r, c90)?, 0),
+                    esc(m),
+                    100.0 * t.number(*line, r, cp)?
+                );
+            }
+            "budget" => budget.push((
+                t.text(r, cl).to_owned(),
+                t.number(*line, r, cli)?,
+                t.number(*line, r, c10)?,
+                t.number(*line, r, c50)?,
+                t.number(*line, r, c90)?,
+                t.number(*line, r, co)?,
+            )),
+            _ => {}
+        }
+    }
+    if let Some(d) = draws {
+        let cv = d.column("plan_npv")?;
+        let mut xs = Vec::with_capacity(d.rows.len());
+        for (line, r) in &d.rows {
+            xs.push(d.number(*line, r, cv)?);
+        }
+        if !xs.is_empty() {
+            let (lo, hi) = (
+                xs.iter().copied().fold(f64::INFINITY, f64::min),
+                xs.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            );
+            let bins = ((xs.len() as f64).sqrt().ceil() as usize).clamp(5, 40);
+            let width = if hi > lo {
+                (hi - lo) / bins as f64
+            } else {
+                1.0
+            };
+            let mut counts = vec![0usize; bins];
+            for x in &xs {
+                let b = (((x - lo) / width) as usize).min(bins - 1);
+                counts[b] += 1;
+            }
+            let (u, word) = Units::money(lo.abs().max(hi.abs()));
+            let title = axis_title("Network plan NPV", m, word);
+            let top = counts.iter().copied().max().unwrap_or(1) as f64;
+            let mut c = Chart::new(Spec {
+                id: "risk-npv",
+                title: "Distribution of the plan's NPV over the draws",
+                width: 1000.0,
+                height: 320.0,
+                x: (lo, lo + bins as f64 * width),
+                x_pad: 0.0,
+                x_title: &title,
+                x_units: u,
+                x_integer: false,
+                y: (0.0, top * 1.1),
+                y_title: "Draws",
+                y_units: Units::plain(0),
+                y2: None,
+            });
+            for (b, n) in counts.iter().enumerate() {
+                let from = lo + b as f64 * width;
+                let (xa, xb) = (c.x.at(from), c.x.at(from + width));
+                let (ya, yb) = (c.y.at(0.0), c.y.at(*n as f64));
+                c.raw(&format!(
+                    r#"<rect class="mark" data-series="draws" data-x="{from}" data-width="{width}" data-y="{n}" x="{:.3}" y="{:.3}" width="{:.3}" height="{:.3}" fill="{SKY}" stroke="white" stroke-width="0.5"/>"#,
+                    xa,
+                    ya.min(yb),
+                    (xb - xa).abs(),
+                    (yb - ya).abs()
+                ));
+            }
+            if lo < 0.0 {
+                c.raw(&format!(
+                    r#"<line class="reference" data-x="0" x1="{0:.2}" x2="{0:.2}" y1="{1:.2}" y2="{2:.2}" stroke="{VERMILLION}" stroke-dasharray="5 4"/>"#,
+                    c.x.at(0.0),
+                    c.y.p0,
+                    c.y.p1
+                ));
+            }
+            s.push_str(&c.finish(&[("draws in each band of NPV", SKY, "")]));
+        }
+    }
+    if !budget.is_empty() {
+        s.push_str(r#"<h3>Spending by the plan against each budget line</h3><table><thead><tr><th>line</th><th class="num">limit</th><th class="num">P10</th><th class="num">P50</th><th class="num">P90</th><th class="num">draws over the limit</th></tr></thead><tbody>"#);
+        for (name, limit, p10, p50, p90, over) in &budget {
+            let _ = write!(
+                s,
+                r#"<tr><td>{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{:.1} %</td></tr>"#,
+                esc(name),
+                grouped(*limit, 0),
+                grouped(*p10, 0),
+                grouped(*p50, 0),
+                grouped(*p90, 0),
+                over * 100.0
+            );
+        }
+        s.push_str("</tbody></table>");
+    }
+    s.push_str("<p class=\"small\">Every section's strategies (mean, P10, P50, P90 of NPV, chance of NPV above zero and of being the section's best) are in risk.csv; every draw's plan NPV and spending in risk_draws.csv.</p></section>");
+    Ok(s)
+}

@@ -1,0 +1,479 @@
+//! Monte Carlo risk analysis over the scenario's uncertain inputs.
+//!
+//! Each draw takes its own random stream ([`crate::distribution::stream`]: the seed and the
+//! draw's number, nothing else), samples every `[[uncertain]]` input in the scenario's order, and
+//! simulates every strategy of every section under those values: each strategy's NPV against the
+//! section's base, the network plan's NPV (the plan held fixed), and each budget line's spending
+//! by the plan. Draws run in parallel and each draw's sums run in network order, so a draw gives
+//! the same numbers bit for bit whatever the thread count, and whether it runs in a whole run or
+//! in a slice (`--first-draw K --draws N`).
+//!
+//! A run's raw results (every draw's numbers) are kept in `risk_slice.bin`, so slices computed
+//! apart can be merged into exactly the results of one whole run: the statistics are computed
+//! from the draws in draw order, which merging restores.
+//!
+//! Statistics: mean, standard deviation, and the 10th, 50th and 90th percentiles by linear
+//! interpolation between order statistics (the definition numpy and most spreadsheets use by
+//! default); the probability that NPV is above zero, that a strategy is its section's best (the
+//! highest NPV, the base counting as zero; ties to the earlier strategy), and that a budget line's
+//! spending is above its limit.
+
+use crate::appraise::increment;
+use crate::distribution::stream;
+use crate::error::{Error, Result};
+use crate::held::HeldPlan;
+use crate::input::Run;
+use crate::plan::{Row, RowKind};
+use crate::progress::Progress;
+use crate::simulate::{SectionSim, Trace};
+use rayon::prelude::*;
+use std::io::{Read, Write};
+use std::path::Path;
+
+/// What each draw records, in order: every strategy's NPV (sections in network order, each
+/// section's strategies in enumeration order), the plan's NPV, then each budget line's spending.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Layout {
+    pub sections: Vec<String>,
+    pub strategies: Vec<Vec<String>>,
+    /// The plan's strategy (index) per section.
+    pub plan: Vec<usize>,
+    pub lines: Vec<String>,
+    pub limits: Vec<f64>,
+    /// The uncertain inputs, in sampling order, with their distributions' names.
+    pub inputs: Vec<String>,
+    pub money: String,
+}
+
+impl Layout {
+    pub fn width(&self) -> usize {
+        self.strategies.iter().map(Vec::len).sum::<usize>() + 1 + self.lines.len()
+    }
+}
+
+/// The raw results of draws `first .. first + draws` of a run seeded `seed`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Slice {
+    pub seed: u64,
+    pub first: u64,
+    pub draws: u64,
+    pub layout: Layout,
+    /// `draws × width` values, draw by draw.
+    pub values: Vec<f64>,
+}
+
+/// The budget rows a run's plan spends against.
+fn budget_rows(run: &Run) -> Vec<Row> {
+    crate::plan::rows(run, 1.0)
+        .into_iter()
+        .filter(|r| matches!(r.kind, RowKind::Budget(_)))
+        .collect()
+}
+
+/// The layout of a run under a held plan.
+pub fn layout(run: &Run, held: &HeldPlan) -> Layout {
+    let rows = budget_rows(run);
+    Layout {
+        sections: run
+            .network
+            .sections
+            .iter()
+            .map(|s| s.id.0.clone())
+            .collect(),
+        strategies: held
+            .strategies
+            .iter()
+            .map(|v| v.iter().map(|s| s.name.clone()).collect())
+            .collect(),
+        plan: held.chosen.clone(),
+        lines: rows.iter().map(|r| r.name.clone()).collect(),
+        limits: rows.iter().map(|r| r.limit).collect(),
+        inputs: run
+            .scenario
+            .uncertain
+            .iter()
+            .map(|u| format!("{} ({})", u.input, u.distribution.name()))
+            .collect(),
+        money: run.scenario.money_label.clone(),
+    }
+}
+
+/// Compute one draw into `out` (length [`Layout::width`]).
+fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [f64]) {
+    let mut rng = stream(seed, k);
+    let values: Vec<(&str, f64)> = run
+        .scenario
+        .uncertain
+        .iter()
+        .map(|u| (u.input.as_str(), u.distribution.sample(&mut rng)))
+        .collect();
+    let v = crate::vary::apply(run, &values);
+    let d = v.discounting();
+    let y0 = run.scenario.base_year;
+    let nstrat: usize = held.strategies.iter().map(Vec::len).sum();
+    let (npvs, rest) = out.split_at_mut(nstrat);
+    let (network, spend) = rest.split_at_mut(1);
+    network[0] = 0.0;
+    spend.iter_mut().for_each(|x| *x = 0.0);
+    let (mut base, mut t) = (Trace::default(), Trace::default());
+    let mut u = Vec::new();
+    let mut at = 0;
+    for (g, sec) in run.network.sections.iter().enumerate() {
+        let s2 = v.section(sec);
+        let sim = SectionSim::new(&v.run, &s2);
+        let strategies = &held.strategies[g];
+        sim.run(&strategies[0], &mut base);
+        let base_flows = base.flows();
+        for (i, st) in strategies.iter().enumerate() {
+            let npv = if i == 0 {
+                0.0
+            } else {
+                sim.run(st, &mut t);
+                let f = increment(&t.flows(), &base_flows, y0);
+                d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
+            };
+            npvs[at + i] = npv;
+            if i == held.chosen[g] {
+                network[0] += npv;
+                let tr = if i == 0 { &base } else { &t };
+                crate::plan::uses(run, rows, &s2, tr, &mut u);
+                for &(j, x) in &u {
+                    spend[j as usize] += x;
+                }
+            }
+        }
+        at += strategies.len();
+    }
+}
+
+/// Run draws `first .. first + draws`.
+pub fn simulate(
+    run: &Run,
+    held: &HeldPlan,
+    seed: u64,
+    first: u64,
+    draws: u64,
+    progress: &Progress,
+) -> Slice {
+    let layout = layout(run, held);
+    let width = layout.width();
+    let rows = budget_rows(run);
+    let mut values = vec![0.0; width * draws as usize];
+    values
+        .par_chunks_mut(width.max(1))
+        .enumerate()
+        .for_each(|(i, out)| {
+            draw(run, held, &rows, seed, first + i as u64, out);
+            progress.inc(1);
+        });
+    Slice {
+        seed,
+        first,
+        draws,
+        layout,
+        values,
+    }
+}
+
+const MAGIC: &[u8] = b"PAVESTRAT-RISK-SLICE 1\n";
+
+#[derive(serde::Serialize, serde::Deserialize)]
+struct Header {
+    seed: u64,
+    first: u64,
+    draws: u64,
+    layout: Layout,
+}
+
+impl Slice {
+    /// The raw file: a magic line, a JSON header line, then the values as little-endian f64.
+    pub fn to_bytes(&self) -> Vec<u8> {
+        let header = Header {
+            seed: self.seed,
+            first: self.first,
+            draws: self.draws,
+            layout: self.layout.clone(),
+        };
+        let mut out = MAGIC.to_vec();
+        out.extend(serde_json::to_vec(&header).unwrap_or_default());
+        out.push(b'\n');
+        out.reserve(self.values.len() * 8);
+        for x in &self.values {
+            out.extend_from_slice(&x.to_le_bytes());
+        }
+        out
+    }
+
+    /// Read a raw file written by [`Slice::to_bytes`].
+    pub fn read(path: &Path) -> Result<Slice> {
+        let label = path.display().to_string();
+        let bad = |what: String| {
+            Error::Usage(format!(
+                "{label}: {what}; expected a risk_slice.bin written by `pavestrat risk --out DIR`"
+            ))
+        };
+        let mut bytes = Vec::new();
+        std::fs::File::open(path)
+            .and_then(|mut f| f.read_to_end(&mut bytes))
+            .map_err(|e| bad(format!("cannot read it ({e})")))?;
+        let rest = bytes
+            .strip_prefix(MAGIC)
+            .ok_or_else(|| bad("not a risk slice (its first line differs)".into()))?;
+        let nl = rest
+            .iter()
+            .position(|b| *b == b'\n')
+            .ok_or_else(|| bad("no header line".into()))?;
+        let h: Header = serde_json::from_slice(&rest[..nl])
+            .map_err(|e| bad(format!("an unreadable header ({e})")))?;
+        let body = &rest[nl + 1..];
+        let width = h.layout.width();
+        let want = width
+            .checked_mul(h.draws as usize)
+            .and_then(|n| n.checked_mul(8))
+            .ok_or_else(|| bad("a header whose size overflows".into()))?;
+        if body.len() != want {
+            return Err(bad(format!(
+                "{} bytes of values where its header promises {want} ({} draws × {width} values)",
+                body.len(),
+                h.draws
+            )));
+        }
+        let values = body
+            .chunks_exact(8)
+            .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
+            .collect();
+        Ok(Slice {
+            seed: h.seed,
+            first: h.first,
+            draws: h.draws,
+            layout: h.layout,
+            values,
+        })
+    }
+
+    /// Write to `path` (all or nothing).
+    pub fn write(&self, w: &mut impl Write) -> std::io::Result<()> {
+        w.write_all(&self.to_bytes())
+    }
+}
+
+/// Merge slices of one run into the slice of the whole: same seed, scenario layout and plan;
+/// draw ranges that follow each other with no gap or overlap (in any order given).
+pub fn merge(mut parts: Vec<(String, Slice)>) -> Result<Slice> {
+    if parts.is_empty() {
+        return Err(Error::Usage("--merge: no slices given".into()));
+    }
+    parts.sort_by_key(|p| p.1.first);
+    let (name0, first) = (&parts[0].0, &parts[0].1);
+    for (name, s) in &parts[1..] {
+        if s.seed != first.seed {
+            return Err(Error::Usage(format!(
+                "--merge: {name} was drawn with seed {} and {name0} with seed {}; expected slices of one run (one seed)",
+                s.seed, first.seed
+            )));
+        }
+        if s.layout != first.layout {
+            return Err(Error::Usage(format!(
+                "--merge: {name} and {name0} differ in their scenario, network, plan or uncertain inputs; expected slices of one run (give every slice the same --scenario and --from)"
+            )));
+        }
+    }
+    let mut next = first.first;
+    let mut values = Vec::new();
+    for (name, s) in &parts {
+        if s.first != next {
+            return Err(Error::Usage(format!(
+                "--merge: {name} starts at draw {} where draw {next} was expected (a gap or an overlap between slices)",
+                s.first
+            )));
+        }
+        next += s.draws;
+        values.extend_from_slice(&s.values);
+    }
+    Ok(Slice {
+        seed: first.seed,
+        first: first.first,
+        draws: next - first.first,
+        layout: first.layout.clone(),
+        values,
+    })
+}
+
+/// Summary statistics of one quantity over the draws.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Stats {
+    pub mean: f64,
+    pub sd: f64,
+    pub p10: f64,
+    pub p50: f64,
+    pub p90: f64,
+}
+
+/// The q-quantile of sorted values, linear between order statistics (numpy's default).
+pub fn quantile(sorted: &[f64], q: f64) -> f64 {
+    if sorted.is_empty() {
+        return f64::NAN;
+    }
+    let h = (sorted.len() - 1) as f64 * q;
+    let (i, f) = (h.floor() as usize, h - h.floor());
+    if i + 1 < sorted.len() {
+        sorted[i] + f * (sorted[i + 1] - sorted[i])
+    } else {
+        sorted[i]
+    }
+}
+
+/// Statistics of values (in draw order; the mean is summed in that order).
+pub fn stats(values: &[f64]) -> Stats {
+    let n = values.len() as f64;
+    let mean = values.iter().sum::<f64>() / n;
+    let sd = if values.len() > 1 {
+        (values.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt()
+    } else {
+        0.0
+    };
+    let mut s = values.to_vec();
+    s.sort_by(f64::total_cmp);
+    Stats {
+        mean,
+        sd,
+        p10: quantile(&s, 0.1),
+        p50: quantile(&s, 0.5),
+        p90: quantile(&s, 0.9),
+    }
+}
+
+impl Slice {
+    fn column(&self, j: usize) -> Vec<f64> {
+        let w = self.layout.width();
+        (0..self.draws as usize)
+            .map(|k| self.values[k * w + j])
+            .collect()
+    }
+
+    /// The plan's NPV in each draw.
+    pub fn network(&self) -> Vec<f64> {
+        let n: usize = self.layout.strategies.iter().map(Vec::len).sum();
+        self.column(n)
+    }
+
+    /// `risk.csv`: `kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,
+    /// prob_best,prob_over,draws` — `strategy` rows (every strategy of every section: its NPV),
+    /// one `plan` row (the network plan's NPV) and `budget` rows (each line's spending by the plan).
+    pub fn csv(&self) -> String {
+        use crate::format::{Amount, Field};
+        use std::fmt::Write as _;
+        let l = &self.layout;
+        let w = l.width();
+        let n = self.draws as usize;
+        let mut s = String::from(
+            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws\n",
+        );
+        let frac = |c: usize| format!("{:.6}", c as f64 / n.max(1) as f64);
+        // Each section's best strategy in each draw.
+        let mut at = 0;
+        for (g, names) in l.strategies.iter().enumerate() {
+            let mut best = vec![0usize; names.len()];
+            for k in 0..n {
+                let row = &self.values[k * w + at..k * w + at + names.len()];
+                let mut b = 0;
+                for (i, x) in row.iter().enumerate() {
+                    if *x > row[b] {
+                        b = i;
+                    }
+                }
+                best[b] += 1;
+            }
+            for (i, name) in names.iter().enumerate() {
+                let col = self.column(at + i);
+                let st = stats(&col);
+                let _ = writeln!(
+                    s,
+                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n}",
+                    Field(&l.sections[g]),
+                    Field(name),
+                    Amount(st.mean),
+                    Amount(st.sd),
+                    Amount(st.p10),
+                    Amount(st.p50),
+                    Amount(st.p90),
+                    frac(col.iter().filter(|x| **x > 0.0).count()),
+                    frac(best[i])
+                );
+            }
+            at += names.len();
+        }
+        let net = self.network();
+        let st = stats(&net);
+        let _ = writeln!(
+            s,
+            "plan,,,,,{},{},{},{},{},{},,,{n}",
+            Amount(st.mean),
+            Amount(st.sd),
+            Amount(st.p10),
+            Amount(st.p50),
+            Amount(st.p90),
+            frac(net.iter().filter(|x| **x > 0.0).count())
+        );
+        for (j, line) in l.lines.iter().enumerate() {
+            let col = self.column(at + 1 + j);
+            let st = stats(&col);
+            let limit = l.limits[j];
+            let _ = writeln!(
+                s,
+                "budget,,,{},{},{},{},{},{},{},,,{},{n}",
+                Field(line),
+                Amount(limit),
+                Amount(st.mean),
+                Amount(st.sd),
+                Amount(st.p10),
+                Amount(st.p50),
+                Amount(st.p90),
+                frac(col.iter().filter(|x| **x > limit + 0.005).count())
+            );
+        }
+        s
+    }
+
+    /// `risk_draws.csv`: `draw,plan_npv` and one `spend:<line>` column per budget line.
+    pub fn draws_csv(&self) -> String {
+        use crate::format::{Amount, Field};
+        use std::fmt::Write as _;
+        let l = &self.layout;
+        let w = l.width();
+        let n: usize = l.strategies.iter().map(Vec::len).sum();
+        let mut s = String::from("draw,plan_npv");
+        for line in &l.lines {
+            let _ = write!(s, ",{}", Field(&format!("spend:{line}")));
+        }
+        s.push('\n');
+        for k in 0..self.draws as usize {
+            let row = &self.values[k * w..(k + 1) * w];
+            let _ = write!(s, "{},{}", self.first + k as u64, Amount(row[n]));
+            for x in &row[n + 1..] {
+                let _ = write!(s, ",{}", Amount(*x));
+            }
+            s.push('\n');
+        }
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn quantiles_interpolate_like_numpy() {
+        // numpy.percentile([1, 2, 3, 4], [10, 50, 90]) = [1.3, 2.5, 3.7] (linear, the default).
+        let s = [1.0, 2.0, 3.0, 4.0];
+        assert!((quantile(&s, 0.1) - 1.3).abs() < 1e-12);
+        assert!((quantile(&s, 0.5) - 2.5).abs() < 1e-12);
+        assert!((quantile(&s, 0.9) - 3.7).abs() < 1e-12);
+        assert!((quantile(&[5.0], 0.9) - 5.0).abs() < 1e-12);
+        let st = stats(&[2.0, 4.0, 4.0, 4.0, 5.0, 5.0, 7.0, 9.0]);
+        assert!((st.mean - 5.0).abs() < 1e-12);
+        // Sample standard deviation (n − 1): √(32/7).
+        assert!((st.sd - (32.0f64 / 7.0).sqrt()).abs() < 1e-12);
+    }
+}

@@ -1,0 +1,565 @@
+//! Sensitivity tests and switching values for each section's chosen strategy and for the network
+//! plan (held fixed).
+//!
+//! The usual tests (common practice in project appraisal): capital costs and road-user unit
+//! values each 20 % lower and higher, traffic growth one point lower and higher, and the discount
+//! rate at two other rates (by default two points either side). Switching values: for each input
+//! and each direction, the value at which the NPV reaches zero, and the value at which the
+//! section's best strategy (the highest NPV at the scenario's values, the base counting as zero)
+//! gives way to another. They are found by stepping outward from the scenario's value on a grid
+//! and refining the first change by bisection (to 10⁻⁹ of the input's scale); a change between two
+//! grid points that undoes itself before the next is not seen. None is reported when no change
+//! happens within the input's search range: factors 0.01 to 11, growth ±10 points, rates 0 to
+//! 100 %.
+
+use crate::appraise::increment;
+use crate::enumerate::Strategy;
+use crate::held::HeldPlan;
+use crate::input::network::Section;
+use crate::input::Run;
+use crate::progress::Progress;
+use crate::simulate::{SectionSim, Trace};
+use crate::vary::{apply, Varied};
+use rayon::prelude::*;
+
+/// The inputs tested, as [`crate::vary`] names them, with how they are shown.
+pub const INPUTS: [(&str, &str); 4] = [
+    ("factor.capital_cost", "capital_cost"),
+    ("factor.unit_values", "user_values"),
+    ("shift.growth", "growth"),
+    ("discount_rate", "discount_rate"),
+];
+
+/// The sizes of the usual tests.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Tests {
+    /// Relative change of capital costs (0.2 = ±20 %).
+    pub cost: f64,
+    /// Relative change of the road-user unit values.
+    pub values: f64,
+    /// Points of traffic growth (0.01 = ±1 point).
+    pub growth: f64,
+    /// The two other discount rates.
+    pub rates: [f64; 2],
+}
+
+impl Tests {
+    /// ±20 %, ±20 %, ±1 point, and the rate two points either side (not below zero).
+    pub fn usual(rate: f64) -> Tests {
+        Tests {
+            cost: 0.2,
+            values: 0.2,
+            growth: 0.01,
+            rates: [(rate - 0.02).max(0.0), rate + 0.02],
+        }
+    }
+
+    /// The tested values of input `i` ([`INPUTS`] order): (low, high).
+    fn values(&self, i: usize) -> (f64, f64) {
+        match i {
+            0 => (1.0 - self.cost, 1.0 + self.cost),
+            1 => (1.0 - self.values, 1.0 + self.values),
+            2 => (-self.growth, self.growth),
+            _ => (self.rates[0], self.rates[1]),
+        }
+    }
+}
+
+/// Where input `i` is searched: its range, and the grid's offsets from the scenario's value.
+fn search(i: usize) -> (f64, f64, Vec<f64>) {
+    match i {
+        0 | 1 => (
+            0.01,
+            11.0,
+            vec![
+                0.02, 0.05, 0.1, 0.15, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99, 1.5,
+                2.0, 3.0, 5.0, 7.0, 10.0,
+            ],
+        ),
+        2 => (
+            -0.1,
+            0.1,
+            vec![
+                0.0025, 0.005, 0.01, 0.015, 0.02, 0.03, 0.04, 0.05, 0.07, 0.1,
+            ],
+        ),
+        _ => (
+            0.0,
+            1.0,
+            vec![
+                0.005, 0.01, 0.02, 0.03, 0.05, 0.07, 0.1, 0.15, 0.2, 0.3, 0.5, 0.7, 1.0,
+            ],
+        ),
+    }
+}
+
+/// One row of the results.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Row {
+    /// `None` for the network plan.
+    pub section: Option<usize>,
+    /// The strategy the row is about (the chosen one; for `best-changes`, the best one).
+    pub strategy: String,
+    /// Index into [`INPUTS`]; `None` for the scenario row.
+    pub input: Option<usize>,
+    /// `scenario`, `low`, `high`, `npv-zero` or `best-changes`.
+    pub test: &'static str,
+    /// `down` or `up` for switching values, empty otherwise.
+    pub direction: &'static str,
+    /// The input's value (`None`: no switching value within the search range).
+    pub value: Option<f64>,
+    /// The value less the scenario's.
+    pub change: Option<f64>,
+    pub npv: Option<f64>,
+    /// For `best-changes`: the strategy that becomes best.
+    pub other: String,
+}
+
+/// Every strategy's NPV against the base for one section under one variation.
+fn npvs(
+    v: &Varied,
+    run: &Run,
+    sec: &Section,
+    strategies: &[Strategy],
+    only: Option<usize>,
+) -> Vec<f64> {
+    let s2 = v.section(sec);
+    let sim = SectionSim::new(&v.run, &s2);
+    let (mut base, mut t) = (Trace::default(), Trace::default());
+    sim.run(&strategies[0], &mut base);
+    let bf = base.flows();
+    let d = v.discounting();
+    let y0 = run.scenario.base_year;
+    strategies
+        .iter()
+        .enumerate()
+        .map(|(i, st)| {
+            if i == 0 || only.is_some_and(|o| o != i) {
+                return 0.0;
+            }
+            sim.run(st, &mut t);
+            let f = increment(&t.flows(), &bf, y0);
+            d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
+        })
+        .collect()
+}
+
+fn argmax(x: &[f64]) -> usize {
+    let mut b = 0;
+    for (i, v) in x.iter().enumerate() {
+        if *v > x[b] {
+            b = i;
+        }
+    }
+    b
+}
+
+/// Bisection between `a` (where `pred` is false) and `b` (true): the boundary, to `tol`.
+fn bisect(mut a: f64, mut b: f64, tol: f64, mut pred: impl FnMut(f64) -> bool) -> f64 {
+    for _ in 0..200 {
+        if (b - a).abs() <= tol {
+            break;
+        }
+        let m = 0.5 * (a + b);
+        if pred(m) {
+            b = m;
+        } else {
+            a = m;
+        }
+    }
+    b
+}
+
+fn value_of(run: &Run, i: usize, x: f64) -> Varied {
+    apply(run, &[(INPUTS[i].0, x)])
+}
+
+/// Everything for one section.
+fn section_rows(
+    run: &Run,
+    held: &HeldPlan,
+    g: usize,
+    tests: &Tests,
+    central: &[f64; 4],
+) -> Vec<Row> {
+    let sec = &run.network.sections[g];
+    let strategies = &held.strategies[g];
+    let chosen = held.chosen[g];
+    let plain = apply(run, &[]);
+    let at0 = npvs(&plain, run, sec, strategies, None);
+    let best0 = argmax(&at0);
+    let mut rows = vec![Row {
+        section: Some(g),
+        strategy: strategies[chosen].name.clone(),
+        input: None,
+        test: "scenario",
+        direction: "",
+        value: None,
+        change: None,
+        npv: Some(at0[chosen]),
+        other: String::new(),
+    }];
+    for (i, &c) in central.iter().enumerate() {
+        let (lo, hi) = tests.values(i);
+        for (test, x) in [("low", lo), ("high", hi)] {
+            let n = npvs(&value_of(run, i, x), run, sec, strategies, Some(chosen))[chosen];
+            rows.push(Row {
+                section: Some(g),
+                strategy: strategies[chosen].name.clone(),
+                input: Some(i),
+                test,
+                direction: "",
+                value: Some(x),
+                change: Some(x - c),
+                npv: Some(n),
+                other: String::new(),
+            });
+        }
+        let (min, max, steps) = search(i);
+        let tol = 1e-9 * (max - min);
+        for (direction, sign) in [("down", -1.0), ("up", 1.0)] {
+            let grid: Vec<f64> = steps
+                .iter()
+                .map(|s| c + sign * s)
+                .filter(|x| *x >= min && *x <= max)
+                .collect();
+            // NPV zero of the chosen strategy (the base has no NPV to lose).
+            let mut zero: Option<(f64, f64)> = None; // (last x on the same side, first x past)
+            let mut change: Option<(f64, f64, usize)> = None;
+            let mut prev = c;
+            let sign0 = at0[chosen] > 0.0;
+            for &x in &grid {
+                let n = npvs(&value_of(run, i, x), run, sec, strategies, None);
+                if zero.is_none() && chosen != 0 && (n[chosen] > 0.0) != sign0 {
+                    zero = Some((prev, x));
+                }
+                if change.is_none() && argmax(&n) != best0 {
+                    change = Some((prev, x, argmax(&n)));
+                }
+                if (zero.is_some() || chosen == 0) && change.is_some() {
+                    break;
+                }
+                prev = x;
+            }
+            if chosen != 0 {
+                let row = match zero {
+                    Some((a, b)) => {
+                        let x = bisect(a, b, tol, |m| {
+                            let n = npvs(&value_of(run, i, m), run, sec, strategies, Some(chosen));
+                            (n[chosen] > 0.0) != sign0
+                        });
+                        let n = npvs(&value_of(run, i, x), run, sec, strategies, Some(chosen));
+                        (Some(x), Some(n[chosen]))
+                    }
+                    None => (None, None),
+                };
+                rows.push(Row {
+                    section: Some(g),
+                    strategy: strategies[chosen].name.clone(),
+                    input: Some(i),
+                    test: "npv-zero",
+                    direction,
+                    value: row.0,
+                    change: row.0.map(|x| x - c),
+                    npv: row.1,
+                    other: String::new(),
+                });
+            }
+            let (value, npv, other) = match change {
+                Some((a, b, _)) => {
+                    let x = bisect(a, b, tol, |m| {
+                        let n = npvs(&value_of(run, i, m), run, sec, strategies, None);
+                        argmax(&n) != best0
+                    });
+                    let n = npvs(&value_of(run, i, x), run, sec, strategies, None);
+                    (Some(x), Some(n[best0]), strategies[argmax(&n)].name.clone())
+                }
+                None => (None, None, String::new()),
+            };
+            rows.push(Row {
+                section: Some(g),
+                strategy: strategies[best0].name.clone(),
+                input: Some(i),
+                test: "best-changes",
+                direction,
+                value,
+                change: value.map(|x| x - c),
+                npv,
+                other,
+            });
+        }
+    }
+    rows
+}
+
+/// The plan's NPV (chosen strategies, network order) under one variation.
+fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
+    let per: Vec<f64> = run
+        .network
+        .sections
+        .par_iter()
+        .enumerate()
+        .map(|(g, sec)| {
+            let c = held.chosen[g];
+            if c == 0 {
+                0.0
+            } else {
+                npvs(v, run, sec, &held.strategies[g], Some(c))[c]
+            }
+        })
+        .collect();
+    per.iter().sum()
+}
+
+/// Every row: the network plan's first, then each section's.
+pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -> Vec<Row> {
+    let s = &run.scenario;
+    let central = [1.0, 1.0, 0.0, s.discounting.rate()];
+    let plain = apply(run, &[]);
+    let n0 = plan_npv(run, held, &plain);
+    let mut rows = vec![Row {
+        section: None,
+        strategy: String::new(),
+        input: None,
+        test: "scenario",
+        direction: "",
+        value: None,
+        change: None,
+        npv: Some(n0),
+        other: String::new(),
+    }];
+    for (i, &c) in central.iter().enumerate() {
+        let (lo, hi) = tests.values(i);
+        for (test, x) in [("low", lo), ("high", hi)] {
+            rows.push(Row {
+                section: None,
+                strategy: String::new(),
+                input: Some(i),
+                test,
+                direction: "",
+                value: Some(x),
+                change: Some(x - c),
+                npv: Some(plan_npv(run, held, &value_of(run, i, x))),
+                other: String::new(),
+            });
+        }
+        let (min, max, steps) = search(i);
+        let tol = 1e-9 * (max - min);
+        for (direction, sign) in [("down", -1.0), ("up", 1.0)] {
+            let mut found = None;
+            let mut prev = c;
+            for x in steps
+                .iter()
+                .map(|s| c + sign * s)
+                .filter(|x| *x >= min && *x <= max)
+            {
+                if (plan_npv(run, held, &value_of(run, i, x)) > 0.0) != (n0 > 0.0) {
+                    found = Some((prev, x));
+                    break;
+                }
+                prev = x;
+            }
+            let value = found.map(|(a, b)| {
+                bisect(a, b, tol, |m| {
+                    (plan_npv(run, held, &value_of(run, i, m)) > 0.0) != (n0 > 0.0)
+                })
+            });
+            rows.push(Row {
+                section: None,
+                strategy: String::new(),
+                input: Some(i),
+                test: "npv-zero",
+                direction,
+                value,
+                change: value.map(|x| x - c),
+                npv: value.map(|x| plan_npv(run, held, &value_of(run, i, x))),
+                other: String::new(),
+            });
+        }
+    }
+    let per: Vec<Vec<Row>> = (0..run.network.sections.len())
+        .into_par_iter()
+        .map(|g| {
+            let r = section_rows(run, held, g, tests, &central);
+            progress.inc(1);
+            r
+        })
+        .collect();
+    rows.extend(per.into_iter().flatten());
+    rows
+}
+
+/// `sensitivity.csv`: `scope,section_id,strategy,input,test,direction,value,change,npv,
+/// other_strategy`.
+pub fn csv(run: &Run, rows: &[Row]) -> String {
+    use crate::format::{Amount, Field};
+    use std::fmt::Write as _;
+    let mut s = String::from(
+        "scope,section_id,strategy,input,test,direction,value,change,npv,other_strategy\n",
+    );
+    let num = |x: Option<f64>| x.map(|v| format!("{v}")).unwrap_or_default();
+    for r in rows {
+        let _ = writeln!(
+            s,
+            "{},{},{},{},{},{},{},{},{},{}",
+            if r.section.is_some() {
+                "section"
+            } else {
+                "network"
+            },
+            Field(
+                r.section
+                    .map(|g| run.network.sections[g].id.0.as_str())
+                    .unwrap_or("")
+            ),
+            Field(&r.strategy),
+            r.input.map(|i| INPUTS[i].1).unwrap_or(""),
+            r.test,
+            r.direction,
+            num(r.value),
+            num(r.change),
+            r.npv.map(|x| Amount(x).to_string()).unwrap_or_default(),
+            Field(&r.other)
+        );
+    }
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::enumerate::Enumerator;
+
+    /// The demo with its first `n` sections, and each section's best strategy with no limits as
+    /// the plan held fixed.
+    fn small_demo(n: usize) -> (Run, HeldPlan) {
+        let (run, d) = crate::input::load(
+            &crate::demo::SOURCE,
+            std::path::Path::new(crate::demo::SCENARIO),
+        );
+        let mut run = run.unwrap_or_else(|| panic!("{d}"));
+        run.network.sections.truncate(n);
+        run.scenario.plan.commitments.clear();
+        let e = Enumerator::for_run(&run);
+        let strategies: Vec<Vec<Strategy>> = run
+            .network
+            .sections
+            .iter()
+            .map(|s| e.strategies(s))
+            .collect();
+        let plain = apply(&run, &[]);
+        let chosen = run
+            .network
+            .sections
+            .iter()
+            .zip(&strategies)
+            .map(|(sec, st)| argmax(&npvs(&plain, &run, sec, st, None)))
+            .collect();
+        (run, HeldPlan { strategies, chosen })
+    }
+
+    /// Each strategy's NPV as `appraise` computes it (its own code path: the incremental
+    /// analysis), under the input set to `x`.
+    fn appraised(run: &Run, g: usize, i: usize, x: f64) -> Vec<(String, f64)> {
+        let v = value_of(run, i, x);
+        let e = Enumerator::for_run(&v.run);
+        let sec = v.section(&run.network.sections[g]);
+        crate::appraise::section(&v.run, &e, &sec, false)
+            .strategies
+            .into_iter()
+            .map(|s| (s.strategy, s.indicators.npv))
+            .collect()
+    }
+
+    /// Switching values re-checked by appraising again at the reported value: the NPV is about
+    /// zero there and of the other sign just past it; the best strategy is still the scenario's
+    /// just before a reported change, and another just past it.
+    #[test]
+    fn switching_values_hold_when_appraised_again() {
+        let (run, held) = small_demo(8);
+        let rows = analyse(&run, &held, &Tests::usual(0.06), &Progress::none());
+        let central = [1.0, 1.0, 0.0, 0.06];
+        let (mut zeros, mut changes) = (0, 0);
+        for r in rows
+            .iter()
+            .filter(|r| r.section.is_some() && r.value.is_some())
+        {
+            let (g, i, x) = (r.section.unwrap(), r.input.unwrap(), r.value.unwrap());
+            let (min, max, _) = search(i);
+            let step = 1e-6 * (max - min);
+            let past = if r.direction == "up" {
+                x + step
+            } else {
+                x - step
+            };
+            let before = if r.direction == "up" {
+                x - step
+            } else {
+                x + step
+            };
+            let npv_of = |vals: &[(String, f64)], name: &str| {
+                vals.iter().find(|(n, _)| n == name).map(|p| p.1).unwrap()
+            };
+            let best_of = |vals: &[(String, f64)]| {
+                let mut b = 0;
+                for (k, v) in vals.iter().enumerate() {
+                    if v.1 > vals[b].1 {
+                        b = k;
+                    }
+                }
+                vals[b].0.clone()
+            };
+            match r.test {
+                "npv-zero" => {
+                    let at0 = npv_of(&appraised(&run, g, i, central[i]), &r.strategy);
+                    let here = npv_of(&appraised(&run, g, i, x), &r.strategy);
+                    let beyond = npv_of(&appraised(&run, g, i, past), &r.strategy);
+                    assert!(
+                        here.abs() <= 1e-5 * at0.abs().max(1.0),
+                        "{} {}: NPV {here} at the switching value {x} (scenario {at0})",
+                        r.strategy,
+                        INPUTS[i].1
+                    );
+                    assert!(
+                        (beyond > 0.0) != (at0 > 0.0),
+                        "{} {}: NPV {beyond} just past {x} keeps the scenario's sign ({at0})",
+                        r.strategy,
+                        INPUTS[i].1
+                    );
+                    zeros += 1;
+                }
+                "best-changes" => {
+                    let b_before = best_of(&appraised(&run, g, i, before));
+                    let b_past = best_of(&appraised(&run, g, i, past));
+                    assert_eq!(b_before, r.strategy, "{} just before {x}", INPUTS[i].1);
+                    assert_ne!(b_past, r.strategy, "{} just past {x}", INPUTS[i].1);
+                    changes += 1;
+                }
+                _ => {}
+            }
+        }
+        assert!(zeros >= 4, "some NPV switching values were found ({zeros})");
+        assert!(
+            changes >= 8,
+            "some best-strategy switching values were found ({changes})"
+        );
+    }
+
+    #[test]
+    fn usual_tests_move_npv_the_expected_way() {
+        let (run, held) = small_demo(6);
+        let rows = analyse(&run, &held, &Tests::usual(0.06), &Progress::none());
+        let net = |i: usize, t: &str| {
+            rows.iter()
+                .find(|r| r.section.is_none() && r.input == Some(i) && r.test == t)
+                .and_then(|r| r.npv)
+                .unwrap()
+        };
+        // Common practice: dearer works and a higher rate lower a positive NPV; dearer road-user
+        // time and faster growth raise it.
+        assert!(net(0, "low") > net(0, "high"));
+        assert!(net(1, "low") < net(1, "high"));
+        assert!(net(2, "low") < net(2, "high"));
+        assert!(net(3, "low") > net(3, "high"));
+    }
+}

@@ -1,0 +1,415 @@
+//! `pavestrat risk` and `pavestrat sensitivity` through the real executable: zero spreads give
+//! back the deterministic NPVs exactly; the same seed gives the same files with one or two
+//! threads and as one run or merged slices; bad `[[uncertain]]` entries and bad merges are
+//! refused with their place; a discount-rate switching value holds when `appraise` is run at it;
+//! the report draws the tornado and the risk histogram from the files.
+
+use crate::util::{rows, Workdir};
+use scraper::{Html, Selector};
+use std::collections::HashMap;
+
+/// The demo's `[[uncertain]]` block as shipped, and with every spread set to zero (each
+/// distribution collapsed onto the scenario's own value).
+fn zero_spread(scenario: &str) -> String {
+    let a = scenario
+        .find("[[uncertain]]")
+        .expect("the demo declares uncertain inputs");
+    let b = scenario[a..].find("# ------").map(|i| a + i).unwrap();
+    let zero = r#"[[uncertain]]
+input = "factor.capital_cost"
+distribution = "pert"
+min = 1.0
+mode = 1.0
+max = 1.0
+
+[[uncertain]]
+input = "unit_values.time.car"
+distribution = "triangular"
+min = 7.8
+mode = 7.8
+max = 7.8
+
+[[uncertain]]
+input = "unit_values.time.heavy_truck"
+distribution = "triangular"
+min = 16.2
+mode = 16.2
+max = 16.2
+
+[[uncertain]]
+input = "unit_values.crash"
+distribution = "lognormal"
+median = 96000
+sigma = 0
+
+[[uncertain]]
+input = "shift.growth"
+distribution = "normal"
+mean = 0.0
+sd = 0
+
+[[uncertain]]
+input = "condition.family.asphalt.ageing"
+distribution = "uniform"
+min = 0.023
+max = 0.023
+
+"#;
+    format!("{}{zero}{}", &scenario[..a], &scenario[b..])
+}
+
+#[test]
+fn zero_spreads_reproduce_the_deterministic_npv_exactly() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let text = zero_spread(&wd.read("scenario.toml"));
+    wd.write("scenario.toml", text);
+    wd.run(&[
+        "-q",
+        "plan",
+        "--scenario",
+        "scenario.toml",
+        "--out",
+        "p",
+        "--time-limit",
+        "1",
+    ])
+    .expect_code(0);
+    wd.run(&[
+        "-q",
+        "appraise",
+        "--scenario",
+        "scenario.toml",
+        "--out",
+        "a",
+    ])
+    .expect_code(0);
+    wd.run(&[
+        "-q",
+        "risk",
+        "--scenario",
+        "scenario.toml",
+        "--from",
+        "p",
+        "--draws",
+        "7",
+        "--out",
+        "r",
+    ])
+    .expect_code(0);
+    let risk = rows(&wd.read("r/risk.csv"));
+    let appraisal: HashMap<(String, String), String> = rows(&wd.read("a/appraisal.csv"))
+        .into_iter()
+        .map(|r| {
+            (
+                (r["section_id"].clone(), r["strategy"].clone()),
+                r["npv"].clone(),
+            )
+        })
+        .collect();
+    let mut n = 0;
+    for r in risk.iter().filter(|r| r["kind"] == "strategy") {
+        let want = &appraisal[&(r["section_id"].clone(), r["strategy"].clone())];
+        for col in ["mean", "p10", "p50", "p90"] {
+            assert_eq!(&r[col], want, "{} {} {col}", r["section_id"], r["strategy"]);
+        }
+        assert_eq!(r["sd"], "0.00");
+        n += 1;
+    }
+    assert_eq!(n, appraisal.len(), "every strategy of every section");
+    // The plan held fixed: its NPV and spending are the plan's own.
+    let summary: serde_json::Value = serde_json::from_str(&wd.read("p/summary.json")).unwrap();
+    let plan = risk.iter().find(|r| r["kind"] == "plan").unwrap();
+    let npv: f64 = plan["mean"].parse().unwrap();
+    assert!((npv - summary["npv"]["plan"].as_f64().unwrap()).abs() <= 0.005);
+    let used: HashMap<String, f64> = rows(&wd.read("p/budget_use.csv"))
+        .into_iter()
+        .map(|r| (r["line"].clone(), r["used"].parse().unwrap()))
+        .collect();
+    for r in risk.iter().filter(|r| r["kind"] == "budget") {
+        let p50: f64 = r["p50"].parse().unwrap();
+        assert!((p50 - used[&r["line"]]).abs() <= 0.01, "{}", r["line"]);
+        assert_eq!(r["prob_over"], "0.000000");
+    }
+}
+
+#[test]
+fn same_seed_same_files_with_any_threads_and_as_merged_slices() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "1"])
+        .expect_code(0);
+    let risk = |dir: &str, extra: &[&str], threads: &str| {
+        let mut args = vec!["-q", "risk", "--from", "p", "--out", dir];
+        args.extend_from_slice(extra);
+        if !extra.contains(&"--seed") {
+            args.extend(["--seed", "99"]);
+        }
+        wd.run_env(&args, &[("RAYON_NUM_THREADS", threads)])
+            .expect_code(0);
+    };
+    risk("one", &["--draws", "24"], "1");
+    risk("two", &["--draws", "24"], "2");
+    for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
+        assert_eq!(
+            std::fs::read(wd.join(&format!("one/{f}"))).unwrap(),
+            std::fs::read(wd.join(&format!("two/{f}"))).unwrap(),
+            "{f} differs between 1 and 2 threads"
+        );
+    }
+    risk("s1", &["--first-draw", "0", "--draws", "10"], "2");
+    risk("s2", &["--first-draw", "10", "--draws", "5"], "1");
+    risk("s3", &["--first-draw", "15", "--draws", "9"], "2");
+    wd.run(&["-q", "risk", "--merge", "s3", "s1", "s2", "--out", "merged"])
+        .expect_code(0);
+    for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
+        assert_eq!(
+            std::fs::read(wd.join(&format!("one/{f}"))).unwrap(),
+            std::fs::read(wd.join(&format!("merged/{f}"))).unwrap(),
+            "{f} differs between one run and three merged slices"
+        );
+    }
+    // Another seed gives other draws.
+    risk("other", &["--draws", "24", "--seed", "100"], "2");
+    assert_ne!(
+        wd.read("one/risk_draws.csv"),
+        wd.read("other/risk_draws.csv")
+    );
+    // Merging refuses gaps, overlaps and mixed seeds, naming the slice.
+    wd.run(&["risk", "--merge", "s1", "s3", "--out", "bad"])
+        .expect_code(2)
+        .stderr_has("starts at draw 15 where draw 10 was expected");
+    wd.run(&["risk", "--merge", "s1", "s1"])
+        .expect_code(2)
+        .stderr_has("where draw 10 was expected");
+    wd.run(&["risk", "--merge", "s1", "other"])
+        .expect_code(2)
+        .stderr_has("seed");
+    wd.write("junk/risk_slice.bin", "not a slice");
+    wd.run(&["risk", "--merge", "junk"])
+        .expect_code(2)
+        .stderr_has("junk/risk_slice.bin")
+        .stderr_has("not a risk slice");
+    assert!(!wd.join("bad").exists(), "nothing written on error");
+}
+
+#[test]
+fn risk_summaries_are_consistent_with_the_draws() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "1"])
+        .expect_code(0);
+    wd.run(&["-q", "risk", "--from", "p", "--draws", "60", "--out", "p"])
+        .expect_code(0);
+    let risk = rows(&wd.read("p/risk.csv"));
+    let draws = rows(&wd.read("p/risk_draws.csv"));
+    assert_eq!(draws.len(), 60);
+    let mut npv: Vec<f64> = draws
+        .iter()
+        .map(|r| r["plan_npv"].parse().unwrap())
+        .collect();
+    let plan = risk.iter().find(|r| r["kind"] == "plan").unwrap();
+    let mean = npv.iter().sum::<f64>() / 60.0;
+    assert!((plan["mean"].parse::<f64>().unwrap() - mean).abs() < 0.01 * 60.0);
+    npv.sort_by(f64::total_cmp);
+    // P50 of 60 values: halfway between the 30th and 31st (numpy's linear rule).
+    let p50 = 0.5 * (npv[29] + npv[30]);
+    assert!((plan["p50"].parse::<f64>().unwrap() - p50).abs() < 0.02);
+    // Each section's chances of being best add up to one.
+    let mut best: HashMap<String, f64> = HashMap::new();
+    for r in risk.iter().filter(|r| r["kind"] == "strategy") {
+        *best.entry(r["section_id"].clone()).or_default() += r["prob_best"].parse::<f64>().unwrap();
+        let (p10, p50, p90): (f64, f64, f64) = (
+            r["p10"].parse().unwrap(),
+            r["p50"].parse().unwrap(),
+            r["p90"].parse().unwrap(),
+        );
+        assert!(p10 <= p50 && p50 <= p90);
+    }
+    assert_eq!(best.len(), 40);
+    for (s, p) in best {
+        assert!((p - 1.0).abs() < 1e-5, "{s}: {p}");
+    }
+}
+
+#[test]
+fn bad_uncertain_entries_are_located() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let good = wd.read("scenario.toml");
+    let cases: [(&str, &str, &str); 6] = [
+        (
+            "input = \"factor.capital_cost\"",
+            "input = \"factor.capitl_cost\"",
+            "did you mean `factor.capital_cost`",
+        ),
+        ("mode = 7.8", "mode = 9.9", "min ≤ mode ≤ max"),
+        ("sd = 0.01", "sd = -1", "a standard deviation, 0 or more"),
+        ("min = 0.015", "min = -0.5", "values the input accepts"),
+        (
+            "distribution = \"lognormal\"",
+            "distribution = \"lognormall\"",
+            "did you mean `lognormal`",
+        ),
+        ("median = 96000", "median = 96000\nmode = 3", "unknown key"),
+    ];
+    for (from, to, says) in cases {
+        assert!(good.contains(from), "{from}");
+        wd.write("bad.toml", good.replacen(from, to, 1));
+        wd.run(&["check", "--scenario", "bad.toml"])
+            .expect_code(2)
+            .stderr_has("bad.toml:")
+            .stderr_has(says);
+    }
+    // Declared twice.
+    let a = good.find("[[uncertain]]").unwrap();
+    let b = good[a + 5..].find("[[uncertain]]").unwrap() + a + 5;
+    wd.write(
+        "twice.toml",
+        format!("{}{}{}", &good[..b], &good[a..b], &good[b..]),
+    );
+    wd.run(&["check", "--scenario", "twice.toml"])
+        .expect_code(2)
+        .stderr_has("declared uncertain twice");
+    // A scenario with nothing uncertain: risk says what is missing.
+    let c = good.find("# ------").unwrap();
+    wd.write("none.toml", format!("{}{}", &good[..a], &good[c..]));
+    wd.run(&["risk", "--scenario", "none.toml", "--draws", "2"])
+        .expect_code(2)
+        .stderr_has("declares no uncertain inputs");
+}
+
+#[test]
+fn a_rate_switching_value_holds_when_appraised_at_it() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    wd.run(&[
+        "-q",
+        "plan",
+        "--scenario",
+        "scenario.toml",
+        "--out",
+        "p",
+        "--time-limit",
+        "1",
+    ])
+    .expect_code(0);
+    wd.run(&[
+        "-q",
+        "sensitivity",
+        "--scenario",
+        "scenario.toml",
+        "--from",
+        "p",
+        "--out",
+        "p",
+    ])
+    .expect_code(0);
+    let sens = rows(&wd.read("p/sensitivity.csv"));
+    let row = sens
+        .iter()
+        .find(|r| {
+            r["scope"] == "section"
+                && r["input"] == "discount_rate"
+                && r["test"] == "npv-zero"
+                && !r["value"].is_empty()
+        })
+        .expect("a section whose NPV reaches zero at some rate");
+    let (id, strategy) = (row["section_id"].clone(), row["strategy"].clone());
+    let rate: f64 = row["value"].parse().unwrap();
+    let scenario = wd.read("scenario.toml");
+    let npv_at = |r: f64| -> f64 {
+        let text = scenario.replacen("discount_rate = 0.06", &format!("discount_rate = {r}"), 1);
+        wd.write("at.toml", text);
+        wd.run(&[
+            "-q",
+            "appraise",
+            "--scenario",
+            "at.toml",
+            "--section",
+            &id,
+            "--out",
+            "at",
+        ])
+        .expect_code(0);
+        let a = rows(&wd.read("at/appraisal.csv"));
+        a.iter()
+            .find(|x| x["strategy"] == strategy)
+            .map(|x| x["npv"].parse().unwrap())
+            .unwrap()
+    };
+    let scenario_npv = npv_at(0.06);
+    assert!(scenario_npv > 0.0);
+    assert!(
+        npv_at(rate).abs() <= 1.0,
+        "NPV at the switching rate {rate}"
+    );
+    let dir = if row["direction"] == "up" { 1.0 } else { -1.0 };
+    assert!(
+        npv_at(rate + dir * 1e-4) < 0.0,
+        "NPV just past the switching rate"
+    );
+}
+
+#[test]
+fn report_draws_tornado_and_risk_histogram_from_the_files() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "1"])
+        .expect_code(0);
+    wd.run(&["-q", "sensitivity", "--from", "p", "--out", "p"])
+        .expect_code(0);
+    wd.run(&["-q", "risk", "--from", "p", "--draws", "50", "--out", "p"])
+        .expect_code(0);
+    wd.run(&["-q", "report", "--from", "p"]).expect_code(0);
+    let doc = Html::parse_document(&wd.read("p/report.html"));
+    let sel = |s: &str| Selector::parse(s).unwrap();
+    let sens = rows(&wd.read("p/sensitivity.csv"));
+    let tornado = doc
+        .select(&sel(r#"svg[data-chart="tornado"]"#))
+        .next()
+        .expect("tornado");
+    let bars: Vec<_> = tornado.select(&sel(".mark")).collect();
+    assert_eq!(bars.len(), 8, "low and high for four inputs");
+    for b in &bars {
+        let input = b.value().attr("data-input").unwrap();
+        let test = b.value().attr("data-series").unwrap();
+        let want = sens
+            .iter()
+            .find(|r| r["scope"] == "network" && r["input"] == input && r["test"] == test)
+            .unwrap();
+        let x: f64 = b.value().attr("data-x").unwrap().parse().unwrap();
+        assert!(
+            (x - want["npv"].parse::<f64>().unwrap()).abs() < 1e-6,
+            "{input} {test}"
+        );
+    }
+    for axis in ["x", "y"] {
+        assert_eq!(
+            tornado
+                .select(&sel(&format!(r#".axis-title[data-axis="{axis}"]"#)))
+                .count(),
+            1
+        );
+    }
+    let hist = doc
+        .select(&sel(r#"svg[data-chart="risk-npv"]"#))
+        .next()
+        .expect("histogram");
+    let draws: Vec<f64> = rows(&wd.read("p/risk_draws.csv"))
+        .iter()
+        .map(|r| r["plan_npv"].parse().unwrap())
+        .collect();
+    let mut total = 0usize;
+    for bin in hist.select(&sel(".mark")) {
+        let from: f64 = bin.value().attr("data-x").unwrap().parse().unwrap();
+        let width: f64 = bin.value().attr("data-width").unwrap().parse().unwrap();
+        let n: usize = bin.value().attr("data-y").unwrap().parse().unwrap();
+        let last =
+            (from + width - draws.iter().copied().fold(f64::MIN, f64::max)).abs() < 1e-6 * width;
+        let inside = draws
+            .iter()
+            .filter(|x| **x >= from && (**x < from + width || last))
+            .count();
+        assert_eq!(n, inside, "bin from {from}");
+        total += n;
+    }
+    assert_eq!(total, draws.len());
+}
