@@ -68,8 +68,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         None => None,
     };
     let mut summary = Summary::default();
+    let bar = ctx
+        .progress
+        .bar("appraise", picked.len() as u64, "sections");
     for chunk in picked.chunks(CHUNK) {
         let results = appraise::network(&run, chunk, keep);
+        bar.inc(chunk.len() as u64);
         if let Some(set) = &mut files {
             set.write(0, appraisal_rows(&results).as_bytes())?;
             set.write(1, incremental_rows(&results).as_bytes())?;
@@ -80,6 +84,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         summary.add(chunk, &results, &run.scenario.models.condition);
     }
+    bar.finish();
     if let Some(set) = files {
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
