@@ -181,6 +181,7 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
         Some(d) if !d.as_os_str().is_empty() => d.to_owned(),
         _ => PathBuf::from("."),
     };
+    std::fs::create_dir_all(&dir).map_err(fail)?;
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())

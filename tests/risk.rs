@@ -278,6 +278,29 @@ fn bad_uncertain_entries_are_located() {
 }
 
 #[test]
+fn a_plan_from_elsewhere_is_refused_with_its_place() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "0.5"])
+        .expect_code(0);
+    let plan = wd.read("p/section_plan.csv");
+    let second = plan.lines().nth(2).unwrap().to_owned();
+    let strategy = second.split(',').nth(2).unwrap();
+    wd.write(
+        "p/section_plan.csv",
+        plan.replacen(&second, &second.replacen(strategy, "resurface@2099", 1), 1),
+    );
+    wd.run(&["sensitivity", "--from", "p", "--out", "s"])
+        .expect_code(2)
+        .stderr_has("section_plan.csv:3")
+        .stderr_has("strategy")
+        .stderr_has("resurface@2099");
+    assert!(!wd.join("s").exists(), "nothing written on error");
+    wd.run(&["risk", "--from", "nowhere", "--draws", "2"])
+        .expect_code(2)
+        .stderr_has("nowhere/section_plan.csv");
+}
+
+#[test]
 fn a_rate_switching_value_holds_when_appraised_at_it() {
     let wd = Workdir::new();
     wd.demo_files();
