@@ -27,7 +27,7 @@ use crate::plan::{Row, RowKind};
 use crate::progress::Progress;
 use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
-use std::io::{Read, Write};
+use std::io::Read;
 use std::path::Path;
 
 /// What each draw records, in order: every strategy's NPV (sections in network order, each
@@ -249,11 +249,6 @@ impl Slice {
             layout: h.layout,
             values,
         })
-    }
-
-    /// Write to `path` (all or nothing).
-    pub fn write(&self, w: &mut impl Write) -> std::io::Result<()> {
-        w.write_all(&self.to_bytes())
     }
 }
 
