@@ -8,7 +8,7 @@
 //! Run with `cargo bench --bench risk [-- SIZES]`, SIZES a comma-separated list of synthetic
 //! network sizes (default `10000`); the demo is always measured. Best of three rounds.
 
-use pavestrat::demo::synth::{network_csv, scaled_scenario};
+use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
 use pavestrat::held::HeldPlan;
 use pavestrat::input::{self, network, scenario, Run};
@@ -72,22 +72,12 @@ fn main() {
     let demo = run.unwrap_or_else(|| panic!("the demo loads: {d}"));
     println!("risk: Monte Carlo draws per second");
     measure("demo", &demo, 1000);
-    let demo_text = String::from_utf8_lossy(pavestrat::demo::FILES[0].1).into_owned();
-    let demo_net = String::from_utf8_lossy(pavestrat::demo::FILES[1].1).into_owned();
     for n in sizes {
         let mut run = demo.clone();
         let mut d = Diagnostics::new();
-        let net = network_csv(n, 7);
+        let (text, net) = synthetic_files(n, 7);
         run.network = network::parse("synthetic", &net, &mut d)
             .unwrap_or_else(|| panic!("the synthetic network parses: {d}"));
-        let count = |text: &str, r: &str| {
-            text.lines()
-                .filter(|l| l.split(',').nth(9) == Some(r))
-                .count() as f64
-        };
-        let text = scaled_scenario(&demo_text, n as f64 / 40.0, &|r| {
-            count(&net, r) / count(&demo_net, r)
-        });
         run.scenario = scenario::parse("scenario.toml", &text, Path::new("."), &mut d)
             .unwrap_or_else(|| panic!("the scaled scenario parses: {d}"));
         let draws = (200_000 / n as u64).clamp(4, 1000);

@@ -9,7 +9,7 @@
 //! separately; the certified gap is the plan's own (bound − value)/bound; memory is the process's
 //! peak resident set after the run (Linux `VmHWM`).
 
-use pavestrat::demo::synth::{network_csv, scaled_scenario};
+use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
 use pavestrat::input::{self, network, scenario};
 use pavestrat::plan::{candidates, select, Settings};
@@ -39,24 +39,14 @@ fn main() {
         Path::new(pavestrat::demo::SCENARIO),
     );
     let demo = run.unwrap_or_else(|| panic!("the demo loads: {d}"));
-    let demo_text = String::from_utf8_lossy(pavestrat::demo::FILES[0].1).into_owned();
     println!("select: decomposed path, then the exact path with the same time limit");
     let mut cold: Vec<(usize, pavestrat::select::problem::Problem, f64, f64)> = Vec::new();
     for &n in &sizes {
         let mut run = demo.clone();
         let mut d = Diagnostics::new();
-        let net = network_csv(n, 7);
+        let (text, net) = synthetic_files(n, 7);
         run.network = network::parse("synthetic", &net, &mut d)
             .unwrap_or_else(|| panic!("the synthetic network parses: {d}"));
-        let count = |text: &str, r: &str| {
-            text.lines()
-                .filter(|l| l.split(',').nth(9) == Some(r))
-                .count() as f64
-        };
-        let demo_net = String::from_utf8_lossy(pavestrat::demo::FILES[1].1).into_owned();
-        let text = scaled_scenario(&demo_text, n as f64 / 40.0, &|r| {
-            count(&net, r) / count(&demo_net, r)
-        });
         run.scenario = scenario::parse("scenario.toml", &text, Path::new("."), &mut d)
             .unwrap_or_else(|| panic!("the scaled scenario parses: {d}"));
         let limit = 60.0;

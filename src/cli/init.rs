@@ -11,9 +11,6 @@ use crate::error::{Error, Result};
 use crate::io::OutputSet;
 use std::path::PathBuf;
 
-/// Number of sections in the demo network (the scale its budgets are set for).
-const DEMO_SECTIONS: f64 = 40.0;
-
 /// Arguments of `init`.
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -51,25 +48,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             }
         }
         Some(n) => {
-            let scenario = String::from_utf8_lossy(&file("scenario.toml")).into_owned();
-            // Regional lines follow the sections each region got, against the demo's.
-            let demo_net = String::from_utf8_lossy(&file("network.csv")).into_owned();
-            let net_text = synth::network_csv(n as usize, args.seed);
-            let count = |text: &str, region: &str| {
-                text.lines()
-                    .filter(|l| l.split(',').nth(9) == Some(region))
-                    .count() as f64
-            };
-            let regional = |r: &str| {
-                let demo = count(&demo_net, r);
-                if demo > 0.0 {
-                    count(&net_text, r) / demo
-                } else {
-                    n as f64 / DEMO_SECTIONS
-                }
-            };
-            let scenario = synth::scaled_scenario(&scenario, n as f64 / DEMO_SECTIONS, &regional).replace(
-                "# Demo scenario: the Vellmark district",
+            let (scenario, net_text) = synth::synthetic_files(n as usize, args.seed);
+            let scenario = scenario.replace("# Demo scenario: the Vellmark district",
                 &format!(
                     "# Synthetic network of {n} sections (seed {}), budgets scaled from the demo.\n# Demo scenario: the Vellmark district",
                     args.seed

@@ -105,6 +105,40 @@ pub fn network_csv(n: usize, seed: u64) -> String {
     s
 }
 
+/// Sections in the demo network.
+pub const DEMO_SECTIONS: f64 = 40.0;
+
+/// The scenario and network texts of a synthetic network of `n` sections drawn from `seed`: the
+/// network from [`network_csv`], and the demo scenario with its budgets scaled to it by
+/// [`scaled_scenario`] (regional lines by the sections each region got, against the demo's).
+/// What `init --sections N --seed S` writes, and what the benchmarks run.
+pub fn synthetic_files(n: usize, seed: u64) -> (String, String) {
+    let text = |name: &str| {
+        super::FILES
+            .iter()
+            .find(|f| f.0 == name)
+            .map(|f| String::from_utf8_lossy(f.1).into_owned())
+            .unwrap_or_default()
+    };
+    let demo_net = text("network.csv");
+    let net = network_csv(n, seed);
+    let count = |text: &str, region: &str| {
+        text.lines()
+            .filter(|l| l.split(',').nth(9) == Some(region))
+            .count() as f64
+    };
+    let regional = |r: &str| {
+        let demo = count(&demo_net, r);
+        if demo > 0.0 {
+            count(&net, r) / demo
+        } else {
+            n as f64 / DEMO_SECTIONS
+        }
+    };
+    let scenario = scaled_scenario(&text("scenario.toml"), n as f64 / DEMO_SECTIONS, &regional);
+    (scenario, net)
+}
+
 /// The demo scenario with every budget amount (`per_year` and single-year `years` limits)
 /// multiplied by `factor`, rounded to whole units: budgets for a synthetic network of another
 /// size. A `[[budget]]` entry with a `region` is multiplied by `regional(region)` instead, so
