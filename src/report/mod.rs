@@ -513,6 +513,7 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
         t.column("planned")?,
     );
     struct W {
+        strategy: String,
         year: f64,
         npv: f64,
         fyrr: Option<f64>,
@@ -523,8 +524,8 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
     let mut secs: Vec<(String, Vec<W>)> = Vec::new();
     for (line, r) in &t.rows {
         let id = t.text(r, cs).to_owned();
-        let _ = t.text(r, cst);
         let w = W {
+            strategy: t.text(r, cst).to_owned(),
             year: t.number(*line, r, cy)?,
             npv: t.number(*line, r, cn)?,
             fyrr: t.optional(*line, r, cf)?,
@@ -606,7 +607,7 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
             .collect();
         c.line("fyrr", VERMILLION, "", &pts, true);
         c.reference("discount rate", GREY, rate, true);
-        let rules: Vec<String> = ws
+        let mut rules: Vec<String> = ws
             .iter()
             .filter(|w| w.by_fyrr || w.by_npv)
             .map(|w| {
@@ -621,6 +622,10 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
                 )
             })
             .collect();
+        match ws.iter().find(|w| w.planned) {
+            Some(w) => rules.push(format!("the plan: {}", w.strategy)),
+            None => rules.push("the plan does not widen".to_owned()),
+        }
         s.push_str("<figure>");
         s.push_str(&c.finish(&[("NPV", chart::SKY, ""), ("FYRR", VERMILLION, "")]));
         let _ = write!(
