@@ -353,7 +353,8 @@ impl Slice {
     }
 
     /// `risk.csv`: `kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,
-    /// prob_best,prob_over,draws` — `strategy` rows (every strategy of every section: its NPV),
+    /// prob_best,prob_over,draws,in_plan` — `strategy` rows (every strategy of every section: its
+    /// NPV; `in_plan` true for the plan's),
     /// one `plan` row (the network plan's NPV) and `budget` rows (each line's spending by the plan).
     pub fn csv(&self) -> String {
         use crate::format::{Amount, Field};
@@ -362,7 +363,7 @@ impl Slice {
         let w = l.width();
         let n = self.draws as usize;
         let mut s = String::from(
-            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws\n",
+            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws,in_plan\n",
         );
         let frac = |c: usize| format!("{:.6}", c as f64 / n.max(1) as f64);
         // Each section's best strategy in each draw.
@@ -384,7 +385,7 @@ impl Slice {
                 let st = stats(&col);
                 let _ = writeln!(
                     s,
-                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n}",
+                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n},{}",
                     Field(&l.sections[g]),
                     Field(name),
                     Amount(st.mean),
@@ -393,7 +394,8 @@ impl Slice {
                     Amount(st.p50),
                     Amount(st.p90),
                     frac(col.iter().filter(|x| **x > 0.0).count()),
-                    frac(best[i])
+                    frac(best[i]),
+                    l.plan[g] == i
                 );
             }
             at += names.len();
@@ -402,7 +404,7 @@ impl Slice {
         let st = stats(&net);
         let _ = writeln!(
             s,
-            "plan,,,,,{},{},{},{},{},{},,,{n}",
+            "plan,,,,,{},{},{},{},{},{},,,{n},",
             Amount(st.mean),
             Amount(st.sd),
             Amount(st.p10),
@@ -416,7 +418,7 @@ impl Slice {
             let limit = l.limits[j];
             let _ = writeln!(
                 s,
-                "budget,,,{},{},{},{},{},{},{},,,{},{n}",
+                "budget,,,{},{},{},{},{},{},{},,,{},{n},",
                 Field(line),
                 Amount(limit),
                 Amount(st.mean),

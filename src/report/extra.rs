@@ -24,6 +24,9 @@ fn show(input: &str, value: f64) -> String {
     }
 }
 
+/// A section's best-strategy switching value: (section, input, value, best, new best).
+type Change = (String, String, f64, String, String);
+
 /// The tornado chart of the network plan's NPV, and its switching values.
 pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
     let (cs, ci, ct, cd, cv, cn) = (
@@ -39,13 +42,28 @@ pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
     let mut bars: Vec<(String, f64, f64, f64, f64)> = Vec::new();
     let mut switching: Vec<(String, String, Option<f64>)> = Vec::new();
     let mut sections_switch = 0usize;
+    let (csec, cstr, co) = (
+        t.column("section_id")?,
+        t.column("strategy")?,
+        t.column("other_strategy")?,
+    );
+    let mut changes: Vec<Change> = Vec::new();
     for (line, r) in &t.rows {
         let scope = t.text(r, cs);
         let input = t.text(r, ci).to_owned();
         let test = t.text(r, ct);
         if scope != "network" {
-            if test == "best-changes" && t.optional(*line, r, cv)?.is_some() {
-                sections_switch += 1;
+            if test == "best-changes" {
+                if let Some(v) = t.optional(*line, r, cv)? {
+                    sections_switch += 1;
+                    changes.push((
+                        t.text(r, csec).to_owned(),
+                        input,
+                        v,
+                        t.text(r, cstr).to_owned(),
+                        t.text(r, co).to_owned(),
+                    ));
+                }
             }
             continue;
         }
@@ -158,10 +176,49 @@ pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
                 .unwrap_or_else(|| "not within the search range".into())
         );
     }
+    s.push_str("</tbody></table>");
+    // Choices that change within the tested ranges: the tests' own values bound each input.
+    // Each kept with its distance from the scenario's value as a share of the test's half-range,
+    // nearest (the most fragile choice) first.
+    let mut within: Vec<(f64, &Change)> = changes
+        .iter()
+        .filter_map(|c| {
+            let b = bars.iter().find(|b| b.0 == c.1)?;
+            let (lo, hi) = (b.1.min(b.3), b.1.max(b.3));
+            let half = 0.5 * (hi - lo);
+            (c.2 >= lo && c.2 <= hi && half > 0.0)
+                .then(|| ((c.2 - 0.5 * (lo + hi)).abs() / half, c))
+        })
+        .collect();
+    within.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1 .0.cmp(&b.1 .0)));
     let _ = write!(
         s,
-        "</tbody></table><p>{sections_switch} switching values at which a section's best strategy gives way to another, and every section's tests, are in sensitivity.csv.</p></section>"
+        "<h3>Choices that change within the tested ranges</h3><p>{} switching values at which a section's best strategy gives way to another lie within the ranges tested above (of {sections_switch} found in all; every one is in sensitivity.csv).</p>",
+        within.len()
     );
+    if !within.is_empty() {
+        s.push_str(r#"<table class="fragile"><thead><tr><th>section</th><th>input</th><th class="num">at</th><th>best at the scenario's values</th><th>then best</th></tr></thead><tbody>"#);
+        for (_, (sec, input, v, best, other)) in within.iter().take(15) {
+            let _ = write!(
+                s,
+                r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td>{}</td><td>{}</td></tr>"#,
+                esc(sec),
+                esc(&input.replace('_', " ")),
+                esc(&show(input, *v)),
+                esc(best),
+                esc(other)
+            );
+        }
+        s.push_str("</tbody></table>");
+        if within.len() > 15 {
+            let _ = write!(
+                s,
+                "<p class=\"small\">The first 15 of {} are listed.</p>",
+                within.len()
+            );
+        }
+    }
+    s.push_str("</section>");
     Ok(s)
 }
 
@@ -180,9 +237,24 @@ pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String>
         t.column("draws")?,
     );
     let mut s = String::from(r#"<section id="risk"><h2>Risk</h2>"#);
+    let (cs, cst, cb, cin) = (
+        t.column("section_id")?,
+        t.column("strategy")?,
+        t.column("prob_best")?,
+        t.column("in_plan")?,
+    );
     let mut budget = Vec::new();
+    // The plan's strategy of each section: (section, strategy, P(NPV > 0), P(best), P50).
+    let mut planned: Vec<(String, String, f64, f64, f64)> = Vec::new();
     for (line, r) in &t.rows {
         match t.text(r, ck) {
+            "strategy" if t.flag(*line, r, cin)? => planned.push((
+                t.text(r, cs).to_owned(),
+                t.text(r, cst).to_owned(),
+                t.number(*line, r, cp)?,
+                t.number(*line, r, cb)?,
+                t.number(*line, r, c50)?,
+            )),
             "plan" => {
                 let _ = write!(
                     s,
@@ -282,6 +354,28 @@ pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String>
                 grouped(*p50, 0),
                 grouped(*p90, 0),
                 over * 100.0
+            );
+        }
+        s.push_str("</tbody></table>");
+    }
+    if !planned.is_empty() {
+        planned.sort_by(|a, b| a.3.total_cmp(&b.3).then(a.0.cmp(&b.0)));
+        let firm = planned.iter().filter(|p| p.3 >= 0.5).count();
+        let _ = write!(
+            s,
+            "<h3>How often each section's planned strategy is its best</h3><p>In {firm} of {} sections the plan's strategy has the highest NPV of the section's strategies in at least half of the draws. The ten least often best:</p>",
+            planned.len()
+        );
+        s.push_str(r#"<table class="robustness"><thead><tr><th>section</th><th>planned strategy</th><th class="num">P50 of NPV</th><th class="num">NPV above zero</th><th class="num">best in</th></tr></thead><tbody>"#);
+        for (sec, st, pos, best, p50) in planned.iter().take(10) {
+            let _ = write!(
+                s,
+                r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td class="num">{:.1} %</td><td class="num">{:.1} %</td></tr>"#,
+                esc(sec),
+                esc(st),
+                grouped(*p50, 0),
+                pos * 100.0,
+                best * 100.0
             );
         }
         s.push_str("</tbody></table>");
