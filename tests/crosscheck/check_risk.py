@@ -102,6 +102,11 @@ def main():
             stats(row, col, what)
             share(row["prob_positive"], float(np.mean(col > 0.0)), what + " P(NPV>0)")
             share(row["prob_best"], float(np.mean(best == i)), what + " P(best)")
+            if row["in_plan"] == ("true" if layout["plan"][g] == i else "false"):
+                passed += 1
+            else:
+                failed += 1
+                print(f"FAIL {what}: in_plan {row['in_plan']}, the plan's index {layout['plan'][g]}")
         at += len(names)
     plan = next(r for r in rows if r["kind"] == "plan")
     stats(plan, values[:, at], "plan")
