@@ -62,6 +62,27 @@ pub struct Slice {
     pub values: Vec<f64>,
 }
 
+/// The most raw results a run or merge holds in memory (12 GiB: half the machine this is built
+/// for). Every draw's numbers are kept so that statistics and merges are exact.
+pub const MAX_RAW_BYTES: u64 = 12 << 30;
+
+/// Refuse a run or merge whose raw results would not fit [`MAX_RAW_BYTES`].
+pub fn check_size(layout: &Layout, draws: u64) -> Result<()> {
+    let bytes = (layout.width() as u64)
+        .saturating_mul(draws)
+        .saturating_mul(8);
+    if bytes > MAX_RAW_BYTES {
+        let per_draw = layout.width() as u64 * 8;
+        return Err(Error::Usage(format!(
+            "--draws {draws}: {draws} draws of {} numbers each would hold {:.1} GiB of raw results; expected at most {} draws for this network (12 GiB); use fewer draws",
+            layout.width(),
+            bytes as f64 / (1u64 << 30) as f64,
+            MAX_RAW_BYTES / per_draw.max(1)
+        )));
+    }
+    Ok(())
+}
+
 /// The budget rows a run's plan spends against.
 fn budget_rows(run: &Run) -> Vec<Row> {
     crate::plan::rows(run, 1.0)
@@ -283,6 +304,7 @@ pub fn merge(mut parts: Vec<(String, Slice)>) -> Result<Slice> {
             )));
         }
         next += s.draws;
+        check_size(&first.layout, next - first.first)?;
         values.extend_from_slice(&s.values);
     }
     Ok(Slice {
