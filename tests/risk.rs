@@ -440,7 +440,8 @@ fn report_draws_tornado_and_risk_histogram_from_the_files() {
 #[test]
 fn a_run_too_large_to_hold_is_refused_before_it_starts() {
     let wd = Workdir::new();
-    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "0.5"]).expect_code(0);
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "0.5"])
+        .expect_code(0);
     wd.run(&["risk", "--from", "p", "--draws", "100000000", "--out", "r"])
         .expect_code(2)
         .stderr_has("GiB of raw results")
