@@ -253,7 +253,7 @@ pub fn totals(c: &Candidates, plan: &[u16]) -> Totals {
     t
 }
 
-/// The small files a report is drawn from, by name.
+/// The files a report is drawn from, by name (the work programme only when `keep_programme`).
 pub type Small = std::collections::BTreeMap<String, String>;
 
 fn write_files(
@@ -299,8 +299,11 @@ fn write_files(
         }
     }
     set.write(0, text.as_bytes())?;
-    programme.push_str(&text);
-    small.insert("work_programme.csv".into(), programme);
+    // The whole programme is kept only for the report (it can be large).
+    if keep_programme {
+        programme.push_str(&text);
+        small.insert("work_programme.csv".into(), programme);
+    }
 
     // Section plan and candidates, chunk by chunk (names come from re-enumerating).
     set.write(
