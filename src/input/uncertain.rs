@@ -248,3 +248,103 @@ fn check_centre(
     }
     true
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::diag::Diagnostics;
+    use proptest::prelude::*;
+    use std::path::Path;
+
+    /// The demo scenario with its `[[uncertain]]` entries replaced by `block`.
+    fn with_block(block: &str) -> String {
+        let text = String::from_utf8_lossy(crate::demo::FILES[0].1).into_owned();
+        let a = text.find("[[uncertain]]").unwrap();
+        let b = a + text[a..].find("# ------").unwrap();
+        format!("{}{block}\n{}", &text[..a], &text[b..])
+    }
+
+    fn read(block: &str) -> (Option<Scenario>, Diagnostics) {
+        let mut d = Diagnostics::new();
+        let s = super::super::scenario::parse("s.toml", &with_block(block), Path::new("."), &mut d);
+        (s, d)
+    }
+
+    #[test]
+    fn every_distribution_is_read_with_its_parameters() {
+        let (s, d) = read(
+            r#"
+[[uncertain]]
+input = "speed.drop_per_iri"
+distribution = "normal"
+mean = 0.03
+sd = 0.01
+
+[[uncertain]]
+input = "unit_values.crash"
+distribution = "lognormal"
+median = 90000
+sigma = 0.2
+max = 200000
+"#,
+        );
+        let s = s.unwrap_or_else(|| panic!("{d}"));
+        assert_eq!(s.uncertain.len(), 2);
+        // An omitted bound is the input's own accepted range.
+        assert_eq!(
+            s.uncertain[0].distribution,
+            Distribution::Normal {
+                mean: 0.03,
+                sd: 0.01,
+                min: 0.0,
+                max: 1.0
+            }
+        );
+        assert_eq!(s.uncertain[1].distribution.support(), (0.0, 200_000.0));
+        assert!(
+            s.uncertain[1].place.line.is_some(),
+            "each entry keeps its line"
+        );
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(120))]
+
+        /// Whatever parameters the reader accepts, every draw is a value the input accepts.
+        #[test]
+        fn accepted_distributions_only_draw_accepted_values(
+            kind in 0usize..5,
+            a in -2.0f64..3.0,
+            b in -2.0f64..3.0,
+            c in -2.0f64..3.0,
+            which in 0usize..3,
+        ) {
+            let (input, lo, hi) = [
+                ("speed.drop_per_iri", 0.0, 1.0),
+                ("factor.capital_cost", 0.0, 100.0),
+                ("shift.growth", -0.2, 0.2),
+            ][which];
+            let mut v = [a, b, c];
+            v.sort_by(f64::total_cmp);
+            let params = match kind {
+                0 => format!("distribution = \"uniform\"\nmin = {}\nmax = {}", v[0], v[2]),
+                1 => format!("distribution = \"triangular\"\nmin = {}\nmode = {}\nmax = {}", v[0], v[1], v[2]),
+                2 => format!("distribution = \"pert\"\nmin = {}\nmode = {}\nmax = {}", v[0], v[1], v[2]),
+                3 => format!("distribution = \"normal\"\nmean = {a}\nsd = {}", b.abs()),
+                _ => format!("distribution = \"lognormal\"\nmedian = {}\nsigma = {}", a.abs() + 1e-3, c.abs()),
+            };
+            let (s, d) = read(&format!("[[uncertain]]\ninput = \"{input}\"\n{params}\n"));
+            if let Some(s) = s {
+                let u = &s.uncertain[0];
+                for k in 0..40 {
+                    let x = u.distribution.sample(&mut crate::distribution::stream(5, k));
+                    prop_assert!(x.is_finite() && x >= lo && x <= hi, "{x} from {:?}", u.distribution);
+                }
+            } else {
+                // A refusal names the scenario file and a line.
+                prop_assert!(d.has_errors());
+                prop_assert!(d.iter().all(|x| x.place.file == "s.toml"));
+            }
+        }
+    }
+}
