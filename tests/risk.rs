@@ -412,6 +412,82 @@ fn report_draws_tornado_and_risk_histogram_from_the_files() {
             1
         );
     }
+    // The ten planned strategies least often best, with risk.csv's chances.
+    let risk = rows(&wd.read("p/risk.csv"));
+    let planned: Vec<_> = risk
+        .iter()
+        .filter(|r| r["kind"] == "strategy" && r["in_plan"] == "true")
+        .collect();
+    assert_eq!(planned.len(), 40, "one planned strategy per section");
+    let table: Vec<Vec<String>> = doc
+        .select(&sel("table.robustness tbody tr"))
+        .map(|tr| {
+            tr.select(&sel("td"))
+                .map(|td| td.text().collect())
+                .collect()
+        })
+        .collect();
+    assert_eq!(table.len(), 10);
+    let mut last = 0.0;
+    for row in &table {
+        let r = planned.iter().find(|r| r["section_id"] == row[0]).unwrap();
+        assert_eq!(r["strategy"], row[1]);
+        let best: f64 = r["prob_best"].parse().unwrap();
+        assert_eq!(row[4], format!("{:.1} %", best * 100.0));
+        assert!(best >= last, "least often best first");
+        last = best;
+    }
+    // Choices that change within the tested ranges are switching values of sensitivity.csv.
+    let fragile: Vec<Vec<String>> = doc
+        .select(&sel("table.fragile tbody tr"))
+        .map(|tr| {
+            tr.select(&sel("td"))
+                .map(|td| td.text().collect())
+                .collect()
+        })
+        .collect();
+    assert!(
+        !fragile.is_empty(),
+        "the demo has choices that change within ±20 %"
+    );
+    for td in &fragile {
+        let input = td[1].replace(' ', "_");
+        assert!(
+            sens.iter().any(|r| r["scope"] == "section"
+                && r["section_id"] == td[0]
+                && r["input"] == input
+                && r["test"] == "best-changes"
+                && r["strategy"] == td[3]
+                && r["other_strategy"] == td[4]),
+            "{td:?} is a switching value of sensitivity.csv"
+        );
+    }
+    // Spending over the draws against each line: median bars, P10–P90 whiskers, limits.
+    let mut lines = 0;
+    for r in risk.iter().filter(|r| r["kind"] == "budget") {
+        let (group, year) = r["line"].rsplit_once('-').unwrap();
+        let svg = doc
+            .select(&sel(&format!(r#"svg[data-chart="risk-spending-{group}"]"#)))
+            .next()
+            .unwrap_or_else(|| panic!("a spending chart for {group}"));
+        let at = |series: &str| {
+            svg.select(&sel(&format!(
+                r#".mark[data-series="{series}"][data-x="{year}"]"#
+            )))
+            .next()
+            .unwrap_or_else(|| panic!("{series} of {}", r["line"]))
+        };
+        let val = |e: scraper::ElementRef<'_>, a: &str| -> f64 {
+            e.value().attr(a).unwrap().parse().unwrap()
+        };
+        let close = |x: f64, col: &str| (x - r[col].parse::<f64>().unwrap()).abs() <= 0.005;
+        assert!(close(val(at("p50"), "data-y"), "p50"), "{}", r["line"]);
+        assert!(close(val(at("p10-p90"), "data-from"), "p10"));
+        assert!(close(val(at("p10-p90"), "data-y"), "p90"));
+        assert!(close(val(at("limit"), "data-y"), "limit"));
+        lines += 1;
+    }
+    assert_eq!(lines, 30);
     let hist = doc
         .select(&sel(r#"svg[data-chart="risk-npv"]"#))
         .next()

@@ -343,7 +343,68 @@ pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String>
         }
     }
     if !budget.is_empty() {
-        s.push_str(r#"<h3>Spending by the plan against each budget line</h3><table><thead><tr><th>line</th><th class="num">limit</th><th class="num">P10</th><th class="num">P50</th><th class="num">P90</th><th class="num">draws over the limit</th></tr></thead><tbody>"#);
+        s.push_str(r#"<h3>Spending by the plan against each budget line</h3><p>Bars: the median spending over the draws; whiskers: P10 to P90; black marks: the line's limit.</p><div class="charts">"#);
+        // Lines are named GROUP-YEAR: one chart per group, years along x.
+        let mut groups: Vec<(String, Vec<usize>)> = Vec::new();
+        for (i, b) in budget.iter().enumerate() {
+            let group = match b.0.rsplit_once('-') {
+                Some((g, y)) if y.len() == 4 && y.bytes().all(|c| c.is_ascii_digit()) => g,
+                _ => b.0.as_str(),
+            };
+            match groups.iter_mut().find(|g| g.0 == group) {
+                Some(g) => g.1.push(i),
+                None => groups.push((group.to_owned(), vec![i])),
+            }
+        }
+        for (group, lines) in &groups {
+            let year = |i: usize| -> f64 {
+                budget[i]
+                    .0
+                    .rsplit_once('-')
+                    .and_then(|(_, y)| y.parse().ok())
+                    .unwrap_or(i as f64)
+            };
+            let top = lines
+                .iter()
+                .map(|&i| budget[i].1.max(budget[i].4))
+                .fold(0.0, f64::max);
+            let (u, word) = Units::money(top);
+            let title = axis_title("Spending", m, word);
+            let ys: Vec<f64> = lines.iter().map(|&i| year(i)).collect();
+            let id = format!("risk-spending-{group}");
+            let mut c = Chart::new(Spec {
+                id: &id,
+                title: group,
+                width: 500.0,
+                height: 260.0,
+                x: (
+                    ys.iter().copied().fold(f64::INFINITY, f64::min),
+                    ys.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+                ),
+                x_pad: 0.6,
+                x_title: "Year",
+                x_units: Units::plain(0),
+                x_integer: true,
+                y: (0.0, top * 1.1),
+                y_title: &title,
+                y_units: u,
+                y2: None,
+            });
+            for &i in lines {
+                let (_, limit, p10, p50, p90, _) = &budget[i];
+                let x = year(i);
+                c.bar("p50", SKY, x, 0.6, 0.0, *p50, "");
+                c.whisker("p10-p90", GREY, x, *p10, *p90);
+                c.level("limit", "#1a1a1a", x, 0.8, *limit);
+            }
+            s.push_str(&c.finish(&[
+                ("median", SKY, ""),
+                ("P10–P90", GREY, ""),
+                ("limit", "#1a1a1a", ""),
+            ]));
+        }
+        s.push_str("</div>");
+        s.push_str(r#"<table><thead><tr><th>line</th><th class="num">limit</th><th class="num">P10</th><th class="num">P50</th><th class="num">P90</th><th class="num">draws over the limit</th></tr></thead><tbody>"#);
         for (name, limit, p10, p50, p90, over) in &budget {
             let _ = write!(
                 s,
