@@ -18,9 +18,9 @@ fn axis_title(what: &str, m: &str, word: &str) -> String {
 /// How a test's value reads: factors as a % change, growth in points, rates as %.
 fn show(input: &str, value: f64) -> String {
     match input {
-        "capital_cost" | "user_values" => format!("{:+.0} %", (value - 1.0) * 100.0),
-        "growth" => format!("{:+.1} pt", value * 100.0),
-        _ => format!("{:.1} %", value * 100.0),
+        "capital_cost" | "user_values" => format!("{:+.1} %", (value - 1.0) * 100.0),
+        "growth" => format!("{:+.2} pt", value * 100.0),
+        _ => format!("{:.2} %", value * 100.0),
     }
 }
 
