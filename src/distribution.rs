@@ -188,13 +188,7 @@ impl Distribution {
                 if sigma == 0.0 {
                     return median;
                 }
-                let mu = median.ln();
-                let a = if min > 0.0 {
-                    (min.ln() - mu) / sigma
-                } else {
-                    f64::NEG_INFINITY
-                };
-                let b = (max.ln() - mu) / sigma;
+                let (mu, a, b) = log_bounds(median, sigma, min, max);
                 let z = truncated_std_normal(a, b, r);
                 (mu + sigma * z).exp().clamp(min.max(0.0), max)
             }
@@ -286,20 +280,26 @@ fn pdf(x: f64) -> f64 {
     }
 }
 
-/// E[Xᵏ] of a lognormal truncated to [min, max]: e^{kμ + k²σ²/2} (Φ(b − kσ) − Φ(a − kσ)) /
-/// (Φ(b) − Φ(a)), with a, b the standardised log bounds (untruncated: the usual
-/// e^{kμ + k²σ²/2}).
-fn lognormal_moment(median: f64, sigma: f64, min: f64, max: f64, k: f64) -> f64 {
+/// The log-space mean μ of a lognormal and its bounds standardised, (ln bound − μ)/σ (a lower
+/// bound of 0 or less is −∞).
+fn log_bounds(median: f64, sigma: f64, min: f64, max: f64) -> (f64, f64, f64) {
     let mu = median.ln();
-    if sigma == 0.0 {
-        return median.powf(k);
-    }
     let a = if min > 0.0 {
         (min.ln() - mu) / sigma
     } else {
         f64::NEG_INFINITY
     };
-    let b = (max.ln() - mu) / sigma;
+    (mu, a, (max.ln() - mu) / sigma)
+}
+
+/// E[Xᵏ] of a lognormal truncated to [min, max]: e^{kμ + k²σ²/2} (Φ(b − kσ) − Φ(a − kσ)) /
+/// (Φ(b) − Φ(a)), with a, b the standardised log bounds (untruncated: the usual
+/// e^{kμ + k²σ²/2}).
+fn lognormal_moment(median: f64, sigma: f64, min: f64, max: f64, k: f64) -> f64 {
+    if sigma == 0.0 {
+        return median.powf(k);
+    }
+    let (mu, a, b) = log_bounds(median, sigma, min, max);
     let z = normal_cdf(b) - normal_cdf(a);
     (k * mu + 0.5 * k * k * sigma * sigma).exp()
         * (normal_cdf(b - k * sigma) - normal_cdf(a - k * sigma))

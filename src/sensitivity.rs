@@ -174,19 +174,39 @@ fn value_of(run: &Run, i: usize, x: f64) -> Varied {
     apply(run, &[(INPUTS[i].0, x)])
 }
 
+/// The variations every section shares, built once: the scenario as written, and each input
+/// at its two tested values.
+struct Shared {
+    central: [f64; 4],
+    plain: Varied,
+    /// Per input ([`INPUTS`] order): (test, value, the run with it).
+    tested: Vec<[(&'static str, f64, Varied); 2]>,
+}
+
+impl Shared {
+    fn new(run: &Run, tests: &Tests) -> Shared {
+        Shared {
+            central: [1.0, 1.0, 0.0, run.scenario.discounting.rate()],
+            plain: apply(run, &[]),
+            tested: (0..INPUTS.len())
+                .map(|i| {
+                    let (lo, hi) = tests.values(i);
+                    [
+                        ("low", lo, value_of(run, i, lo)),
+                        ("high", hi, value_of(run, i, hi)),
+                    ]
+                })
+                .collect(),
+        }
+    }
+}
+
 /// Everything for one section.
-fn section_rows(
-    run: &Run,
-    held: &HeldPlan,
-    g: usize,
-    tests: &Tests,
-    central: &[f64; 4],
-) -> Vec<Row> {
+fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Row> {
     let sec = &run.network.sections[g];
     let strategies = &held.strategies[g];
     let chosen = held.chosen[g];
-    let plain = apply(run, &[]);
-    let at0 = npvs(&plain, run, sec, strategies, None);
+    let at0 = npvs(&shared.plain, run, sec, strategies, None);
     let best0 = argmax(&at0);
     let mut rows = vec![Row {
         section: Some(g),
@@ -199,10 +219,10 @@ fn section_rows(
         npv: Some(at0[chosen]),
         other: String::new(),
     }];
-    for (i, &c) in central.iter().enumerate() {
-        let (lo, hi) = tests.values(i);
-        for (test, x) in [("low", lo), ("high", hi)] {
-            let n = npvs(&value_of(run, i, x), run, sec, strategies, Some(chosen))[chosen];
+    for (i, &c) in shared.central.iter().enumerate() {
+        for (test, x, v) in &shared.tested[i] {
+            let (test, x) = (*test, *x);
+            let n = npvs(v, run, sec, strategies, Some(chosen))[chosen];
             rows.push(Row {
                 section: Some(g),
                 strategy: strategies[chosen].name.clone(),
@@ -313,10 +333,8 @@ fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
 
 /// Every row: the network plan's first, then each section's.
 pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -> Vec<Row> {
-    let s = &run.scenario;
-    let central = [1.0, 1.0, 0.0, s.discounting.rate()];
-    let plain = apply(run, &[]);
-    let n0 = plan_npv(run, held, &plain);
+    let shared = Shared::new(run, tests);
+    let n0 = plan_npv(run, held, &shared.plain);
     let mut rows = vec![Row {
         section: None,
         strategy: String::new(),
@@ -328,9 +346,9 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
         npv: Some(n0),
         other: String::new(),
     }];
-    for (i, &c) in central.iter().enumerate() {
-        let (lo, hi) = tests.values(i);
-        for (test, x) in [("low", lo), ("high", hi)] {
+    for (i, &c) in shared.central.iter().enumerate() {
+        for (test, x, v) in &shared.tested[i] {
+            let (test, x) = (*test, *x);
             rows.push(Row {
                 section: None,
                 strategy: String::new(),
@@ -339,7 +357,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
-                npv: Some(plan_npv(run, held, &value_of(run, i, x))),
+                npv: Some(plan_npv(run, held, v)),
                 other: String::new(),
             });
         }
@@ -380,7 +398,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
     let per: Vec<Vec<Row>> = (0..run.network.sections.len())
         .into_par_iter()
         .map(|g| {
-            let r = section_rows(run, held, g, tests, &central);
+            let r = section_rows(run, held, g, &shared);
             progress.inc(1);
             r
         })
