@@ -37,6 +37,11 @@ pub struct StrategyResult {
     pub pv_user: f64,
     /// Against the base strategy.
     pub indicators: Indicators,
+    /// The ratios that rank strategies when money binds, against the base's capital cost:
+    /// NPV per unit of PV capital added, and (PV of every benefit and saving but capital) per
+    /// unit of PV capital added, = 1 + NPV/PV capital. `None` when the strategy adds no capital.
+    pub npv_per_capital: Option<f64>,
+    pub bcr_capital: Option<f64>,
     /// Length-independent condition: mean IRI over the period and IRI in its last year.
     pub mean_iri: f64,
     pub final_iri: f64,
@@ -103,6 +108,18 @@ pub fn increment(with: &Flows, against: &Flows, first_year: i32) -> Stream {
     }
 }
 
+/// NPV per unit of PV capital added, and the capital-only benefit-cost ratio
+/// (NPV + capital)/capital, for a strategy adding `capital` (PV) against the base. Common
+/// practice in road appraisal: NPV per unit of (present) capital cost ranks projects when money
+/// is the binding constraint. `None` for both when no capital is added.
+pub fn capital_ratios(npv: f64, capital: f64) -> (Option<f64>, Option<f64>) {
+    if capital > 1e-9 {
+        (Some(npv / capital), Some((npv + capital) / capital))
+    } else {
+        (None, None)
+    }
+}
+
 /// Appraise every strategy of one section.
 pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) -> SectionResult {
     let s = &run.scenario;
@@ -113,7 +130,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     let strategies = e.strategies(sec);
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
-    let base_flows = base.flows();
+    let base_flows = base.flows(d);
     let mut trace = Trace::default();
     let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
@@ -127,8 +144,8 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         };
         let pv_capital = d.pv(y0, &t.capital);
         let pv_routine = d.pv(y0, &t.routine);
-        let pv_residual = t.residual * d.factor(y0 + n as i32);
-        let own = t.flows();
+        let pv_residual = t.residual * d.end_factor(n);
+        let own = t.flows(d);
         let flows = increment(&own, &base_flows, y0);
         partial.push(StrategyResult {
             strategy: st.name.clone(),
@@ -145,6 +162,8 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             } else {
                 appraise(&Stream::default(), d)
             },
+            npv_per_capital: None,
+            bcr_capital: None,
             mean_iri: t.iri.iter().sum::<f64>() / t.iri.len().max(1) as f64,
             final_iri: t.iri.last().copied().unwrap_or(sec.iri),
             widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w as i32),
@@ -168,10 +187,14 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             own[i] = Some(alt.indicators.clone());
         }
     }
+    let base_capital = partial.first().map_or(0.0, |b| b.pv_capital);
     for (r, ind) in partial.iter_mut().zip(own) {
         if let Some(ind) = ind {
             r.indicators = ind;
         }
+        let (npc, bc) = capital_ratios(r.indicators.npv, r.pv_capital - base_capital);
+        r.npv_per_capital = npc;
+        r.bcr_capital = bc;
     }
     let best = incremental
         .winner
@@ -205,14 +228,14 @@ pub fn widening_only(run: &Run, e: &Enumerator<'_>, sec: &Section) -> Option<Wid
     let sim = SectionSim::new(run, sec);
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
-    let base_flows = base.flows();
+    let base_flows = base.flows(d);
     let mut t = Trace::default();
     let options: Vec<(Option<i32>, f64)> = strategies
         .iter()
         .map(|st| match st.widening_year(cat) {
             Some(w) => {
                 sim.run(st, &mut t);
-                let flows = increment(&t.flows(), &base_flows, y0);
+                let flows = increment(&t.flows(d), &base_flows, y0);
                 let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
                 (Some(y0 + w as i32), npv)
             }
@@ -254,7 +277,7 @@ fn widening_timing(
             let st = &strategies[i];
             sim.run(st, &mut with);
             sim.run(&st.without_widening(&run.catalogue), &mut without);
-            let flows = increment(&with.flows(), &without.flows(), y0);
+            let flows = increment(&with.flows(d), &without.flows(d), y0);
             WideningYear {
                 year,
                 strategy: st.name.clone(),

@@ -257,7 +257,7 @@ fn section_candidates(
     let strategies: Vec<Strategy> = e.strategies(sec);
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
-    let base_flows = base.flows();
+    let base_flows = base.flows(d);
     let mut trace = Trace::default();
     let mut out = SectionCands {
         offers: Vec::with_capacity(strategies.len()),
@@ -288,7 +288,7 @@ fn section_candidates(
                 continue;
             }
         }
-        let own = t.flows();
+        let own = t.flows(d);
         let flows = crate::appraise::increment(&own, &base_flows, y0);
         let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
         let pv_agency = d.pv(y0, &own.agency);

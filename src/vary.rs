@@ -13,7 +13,7 @@
 //! `condition.family.NAME.KEY`) and `[user_costs]` that no rule ties to another coefficient
 //! (`user_costs.fuel_share` and `repair_share` must add up to at most 1, `repair_at_5` may not
 //! fall below `repair_at_4`, the condition classes and `iri_max` bound each other, and a family's
-//! `p0` must exceed its `psr_min`: those stay as written). Each input has the range the scenario
+//! `p0` and `terminal_psr` bound each other: those stay as written). Each input has the range the scenario
 //! reader accepts, and a distribution must keep to it.
 //!
 //! Simulation reads only the scenario and the catalogue of a run, so a varied run carries copies
@@ -43,14 +43,19 @@ enum Slot<'a> {
 }
 
 /// Families' parameter keys, by model.
-const AASHTO_KEYS: [(&str, f64, f64); 3] =
-    [("zr", -5.0, 5.0), ("s0", 0.0, 1.0), ("ageing", 0.0, 0.5)];
+const AASHTO_KEYS: [(&str, f64, f64); 5] = [
+    ("zr", -5.0, 5.0),
+    ("s0", 0.0, 1.0),
+    ("ageing", 0.0, 0.1),
+    ("structural_rise", 0.0, 2000.0),
+    ("load_factor", 0.0, 10.0),
+];
 const CALIBRATED_KEYS: [(&str, f64, f64); 5] = [
-    ("rise_per_year", 0.0, 5.0),
-    ("ageing", 0.0, 0.5),
+    ("rise_per_year", 0.0, 1.0),
+    ("ageing", 0.0, 0.1),
     ("rise_per_mesa", 0.0, 50.0),
     ("sn_ref", 0.5, 15.0),
-    ("sn_exponent", 0.0, 10.0),
+    ("sn_exponent", 0.0, 6.0),
 ];
 
 fn class(name: &str) -> Option<VehicleClass> {
@@ -94,6 +99,8 @@ fn slot<'a>(s: &'a mut Scenario, path: &str) -> Option<(Slot<'a>, (f64, f64))> {
         ["speed", "min_factor"] => (N(&mut m.speed.min_factor), (0.05, 1.0)),
         ["speed", "work_zone_kmh"] => (N(&mut m.speed.work_zone_kmh), (1.0, 200.0)),
         ["condition", "iri_floor"] => (N(&mut m.condition.iri_floor), (0.1, 2.0)),
+        ["condition", "max_rise"] => (N(&mut m.condition.max_rise), (0.05, 1.0)),
+        ["condition", "carry_depth_mm"] => (N(&mut m.condition.carry_depth_mm), (5.0, 500.0)),
         ["condition", "subgrade_mr_mpa"] => (N(&mut m.condition.subgrade_mr_mpa), (5.0, 1000.0)),
         ["condition", "family", name, key] => {
             let f = m.condition.families.iter_mut().find(|f| f.name == *name)?;
@@ -103,6 +110,8 @@ fn slot<'a>(s: &'a mut Scenario, path: &str) -> Option<(Slot<'a>, (f64, f64))> {
                     let x = match *key {
                         "zr" => &mut a.zr,
                         "s0" => &mut a.s0,
+                        "structural_rise" => &mut a.structural_rise,
+                        "load_factor" => &mut a.load_factor,
                         _ => &mut a.ageing,
                     };
                     (N(x), (range.1, range.2))

@@ -47,6 +47,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         return Err(Error::Input(diags));
     };
     ctx.notes(&diags);
+    ctx.defaults_note(&run.scenario.models);
     let picked = pick_sections(&run, &args.section)?;
     let keep = !args.section.is_empty() && args.out.out.is_some();
     let mut files = match &args.out.out {
@@ -133,7 +134,8 @@ fn pick_sections<'r>(
 
 /// Header of `appraisal.csv` (one row per section × strategy).
 pub const APPRAISAL_HEAD: &str = "section_id,strategy,template,pv_agency_cost,pv_capital,\
-pv_routine,pv_residual,pv_user_cost,npv,bcr,irr,irr_status,fyrr,mean_iri,final_iri,preferred\n";
+pv_routine,pv_residual,pv_user_cost,npv,bcr,bcr_capital,npv_per_capital,irr,irr_status,fyrr,\
+mean_iri,final_iri,preferred\n";
 /// Header of `incremental.csv` (one row per comparison).
 pub const INCREMENTAL_HEAD: &str = "section_id,step,challenger,defender,d_pv_benefits,d_pv_costs,\
 d_npv,d_bcr,d_irr,d_irr_status,accepted\n";
@@ -152,7 +154,7 @@ pub fn appraisal_rows(results: &[SectionResult]) -> String {
             let i = &st.indicators;
             let _ = writeln!(
                 s,
-                "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+                "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
                 Field(&r.section),
                 Field(&st.strategy),
                 Field(st.template.as_deref().unwrap_or("")),
@@ -163,6 +165,8 @@ pub fn appraisal_rows(results: &[SectionResult]) -> String {
                 Amount(st.pv_user),
                 Amount(i.npv),
                 Fixed(i.bcr, 6),
+                Fixed(st.bcr_capital, 6),
+                Fixed(st.npv_per_capital, 6),
                 Rates(&i.irr),
                 i.irr.status(),
                 Fixed(i.fyrr, 6),

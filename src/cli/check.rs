@@ -24,6 +24,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         return Err(Error::Input(diags));
     };
     ctx.notes(&diags);
+    ctx.defaults_note(&run.scenario.models);
     let s = &run.scenario;
     let net = &run.network;
     let regions = net.regions();

@@ -40,6 +40,10 @@ pub struct Cli {
     #[arg(long, short, global = true)]
     pub quiet: bool,
 
+    /// Print more: the model coefficients still at a calibration default or a value from memory.
+    #[arg(long, short, global = true)]
+    pub verbose: bool,
+
     #[command(subcommand)]
     pub command: Command,
 }
@@ -87,6 +91,7 @@ pub enum Command {
 #[derive(Debug, Clone, Copy)]
 pub struct Context {
     pub quiet: bool,
+    pub verbose: bool,
     /// Progress bars: drawn only on a terminal, never when quiet.
     pub progress: crate::progress::Display,
 }
@@ -97,6 +102,20 @@ impl Context {
         if !self.quiet {
             for item in d.sorted() {
                 eprintln!("{item}");
+            }
+        }
+    }
+
+    /// The note on model coefficients still at a default (and with `--verbose`, the list),
+    /// on stderr unless quiet.
+    pub fn defaults_note(&self, m: &crate::input::models::Models) {
+        if self.quiet {
+            return;
+        }
+        if let Some(n) = crate::input::provenance::note(m) {
+            eprintln!("{n}");
+            if self.verbose {
+                eprint!("{}", crate::input::provenance::listing(m));
             }
         }
     }
@@ -126,6 +145,7 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
     };
     let ctx = Context {
         quiet: cli.quiet,
+        verbose: cli.verbose,
         progress: crate::progress::Display::for_terminal(cli.quiet),
     };
     let result = std::panic::catch_unwind(|| run(cli.command, ctx));

@@ -25,6 +25,7 @@
 //! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
 
 use super::{load_scenario, parse_rate, Context, OutArg};
+use crate::input::scenario::Category;
 use crate::enumerate::Enumerator;
 use crate::error::{Error, Result};
 use crate::format::{Amount, Field};
@@ -131,6 +132,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         return Err(Error::Input(diags));
     };
     ctx.notes(&diags);
+    ctx.defaults_note(&run.scenario.models);
     let objective = match args.objective.as_deref() {
         Some(o) => Objective::parse(o).unwrap_or_default(),
         None => run.scenario.plan.objective,
@@ -529,6 +531,14 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
         .filter(|(_, x)| **x > 0.0)
         .map(|(r, x)| serde_json::json!({ "line": r.name, "price": x }))
         .collect();
+    let d = &run.scenario.discounting;
+    let pv_capital: f64 = p
+        .works
+        .iter()
+        .filter(|w| run.catalogue.treatments[w.treatment].category != Category::Routine)
+        .map(|w| w.cost * d.factor(run.scenario.base_year + w.year as i32))
+        .sum();
+    let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.npv[0], pv_capital);
     let v = serde_json::json!({
         "objective": c.objective_of(o.value),
         "bound": c.objective_of(o.bound),
@@ -549,9 +559,17 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
         "budget_scale": f.budget_scale,
         "npv": { "plan": t.npv[0], "unconstrained": t.npv[1], "base": 0.0 },
         "pv_agency_cost": { "plan": t.pv_agency[0], "unconstrained": t.pv_agency[1], "base": t.pv_agency[2] },
+        "pv_capital": { "plan": pv_capital },
+        "npv_per_capital": npv_per_capital,
+        "bcr_capital": bcr_capital,
+        "headline_ratio": "npv_per_capital",
         "binding": binding,
         "money": run.scenario.money_label,
         "assumptions": assumptions(run),
+        "unverified_coefficients": crate::input::provenance::unverified(&run.scenario.models)
+            .iter()
+            .map(|u| serde_json::json!({ "key": u.key, "value": u.value, "standing": u.standing.name() }))
+            .collect::<Vec<_>>(),
         "caution": crate::CAUTION,
     });
     let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();

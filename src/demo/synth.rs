@@ -57,11 +57,11 @@ pub fn network_csv(n: usize, seed: u64) -> String {
             (
                 2,
                 "single",
-                r.range(2.3, 4.6),
+                r.range(1.8, 3.8),
                 r.range(3.8, 5.4),
                 r.range(9_000.0, 16_000.0),
                 r.range(0.10, 0.22),
-                r.range(0.030, 0.050),
+                r.range(0.015, 0.031),
                 "asphalt",
                 [80, 90, 100][(r.next_u64() % 3) as usize],
             )
@@ -69,7 +69,7 @@ pub fn network_csv(n: usize, seed: u64) -> String {
             (
                 2,
                 "single",
-                r.range(5.0, 9.6),
+                r.range(3.4, 6.5),
                 r.range(1.7, 2.8),
                 r.range(250.0, 1_400.0),
                 r.range(0.06, 0.14),
@@ -85,11 +85,11 @@ pub fn network_csv(n: usize, seed: u64) -> String {
             (
                 4,
                 "divided",
-                r.range(2.1, 3.3),
+                r.range(1.6, 2.6),
                 r.range(5.0, 6.0),
                 r.range(24_000.0, 30_000.0),
                 r.range(0.12, 0.16),
-                r.range(0.020, 0.035),
+                r.range(0.014, 0.025),
                 "asphalt",
                 100,
             )

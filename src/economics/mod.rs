@@ -121,6 +121,22 @@ impl Discounting {
         (1.0 + self.rate).powf(-t)
     }
 
+    /// The factor that moves an amount at the end of the period (time n) into the year-after
+    /// slot of a yearly stream: 1 at end-of-year timing (that slot is time n), (1+r)^−½ at
+    /// mid-year timing (that slot is discounted as time n − ½).
+    pub fn end_shift(&self) -> f64 {
+        match self.timing {
+            Timing::EndOfYear => 1.0,
+            Timing::MidYear => (1.0 + self.rate).powf(-0.5),
+        }
+    }
+
+    /// The discount factor of an amount at the end of the period `years` after the base year
+    /// (a point in time, not a year's flows: the same under either timing).
+    pub fn end_factor(&self, years: u32) -> f64 {
+        (1.0 + self.rate).powf(-f64::from(years))
+    }
+
     /// Present value of `values`, one a year starting in `first_year`, summed in year order.
     pub fn pv(&self, first_year: i32, values: &[f64]) -> f64 {
         // Factors by repeated division keep the sum cheap; one powf for the first year.

@@ -11,6 +11,7 @@ pub mod csvfile;
 pub mod models;
 pub mod network;
 pub mod plan;
+pub mod provenance;
 pub mod scenario;
 pub mod templates;
 pub mod tomldoc;

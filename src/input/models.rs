@@ -37,9 +37,12 @@
 //! classes_iri = [1.4994, 2.6831]    # good below the first, poor above the second (m/km)
 //! iri_floor = 0.8                   # no treatment makes a road smoother than this
 //! iri_max = 16.0
+//! max_rise = 0.8                    # the most IRI rises in a year (a smooth bound)
+//! carry_depth_mm = 40               # works of this thickness leave e⁻¹ of the roughness above as-built
 //! subgrade_mr_mpa = 50              # when the network has no subgrade_mr_mpa
 //! [condition.family.asphalt]
-//! model = "aashto93"                # p0, psr_min, zr (or reliability), s0, ageing
+//! model = "aashto93"                # p0, terminal_psr, zr (or reliability), s0, ageing,
+//!                                   # structural_rise, load_factor
 //! [condition.family.surface_treatment]
 //! model = "calibrated"              # rise_per_year, ageing, rise_per_mesa, sn_ref, sn_exponent
 //!
@@ -113,14 +116,19 @@ pub struct SpeedParams {
 pub struct Aashto93Params {
     /// Initial serviceability of a new surface.
     pub p0: f64,
-    /// Lowest serviceability the model goes to.
-    pub psr_min: f64,
+    /// Terminal serviceability: the AASHTO relation is used for losses down to this (p0 − pt,
+    /// 2.7 on the Road Test), never beyond.
+    pub terminal_psr: f64,
     /// Standard normal deviate (0 = mean performance, for prediction).
     pub zr: f64,
     /// Overall standard deviation.
     pub s0: f64,
-    /// Yearly environmental rise in IRI, as a share of IRI.
+    /// Yearly environmental rise in IRI, as a share of IRI (Paterson's m).
     pub ageing: f64,
+    /// Paterson's structural coefficient: m/km per million ESALs at SNC 0 (263).
+    pub structural_rise: f64,
+    /// A factor on the load-related rise, fitted by `calibrate` (1 = the published relations).
+    pub load_factor: f64,
 }
 
 /// A user-calibrated progression: a yearly rise in IRI of
@@ -166,6 +174,11 @@ pub struct ConditionParams {
     pub poor_above: f64,
     pub iri_floor: f64,
     pub iri_max: f64,
+    /// The most roughness can rise in one year (m/km): the smooth bound on every family's rise.
+    pub max_rise: f64,
+    /// Depth (mm) of new layer that leaves e⁻¹ of the roughness above a treatment's as-built
+    /// value: the share carried through is e^(−thickness/carry_depth_mm).
+    pub carry_depth_mm: f64,
     pub subgrade_mr_mpa: f64,
     pub families: Vec<Family>,
 }
@@ -290,8 +303,9 @@ impl Default for Aashto93Params {
             // AASHTO 1993 Guide: initial serviceability 4.2 for flexible pavements (AASHO Road
             // Test average).
             p0: 4.2,
-            // Common practice: serviceability is never taken to zero.
-            psr_min: 0.5,
+            // AASHTO 1993 Guide: terminal serviceability 1.5 (the Road Test's failure, a loss of
+            // 2.7 from 4.2): the range the design equation was fitted on.
+            terminal_psr: 1.5,
             // Prediction at mean performance: reliability 50 % (ZR = 0); S0 0.45 is within the
             // Guide's 0.40–0.50 for flexible pavements.
             zr: 0.0,
@@ -300,19 +314,28 @@ impl Default for Aashto93Params {
             // (1987), coefficient 0.023 for a temperate non-freezing climate (from memory):
             // calibration default, replace with local values.
             ageing: 0.023,
+            // Paterson (1987), integrated roughness progression: 263·(1+SNC)^−5 m/km per
+            // million ESALs (from memory).
+            structural_rise: 263.0,
+            // The published relations as they are: `calibrate` fits a local factor.
+            load_factor: 1.0,
         }
     }
 }
 
 impl Default for CalibratedParams {
     fn default() -> Self {
-        // Calibration defaults: replace with the agency's own fitted curves.
+        // Calibration defaults of the magnitude Paterson (1987) gives, replace with the agency's
+        // own fitted curves (`pavestrat calibrate`): no constant rise; the environmental
+        // coefficient 0.023; 0.25 m/km per million ESALs at SN 3, about Paterson's
+        // 263·(1+SNC)^−5 at SNC 3.3; and the exponent 4, the slope of (1+SNC)^−5 against SN
+        // near SN 3–4.
         CalibratedParams {
-            rise_per_year: 0.05,
-            ageing: 0.03,
-            rise_per_mesa: 0.8,
+            rise_per_year: 0.0,
+            ageing: 0.023,
+            rise_per_mesa: 0.25,
             sn_ref: 3.0,
-            sn_exponent: 2.0,
+            sn_exponent: 4.0,
         }
     }
 }
@@ -327,6 +350,12 @@ impl Default for ConditionParams {
             // Calibration defaults.
             iri_floor: 0.8,
             iri_max: 16.0,
+            // Calibration default below the common-practice mark of a structural failure (a rise
+            // above 1 m/km in one year).
+            max_rise: 0.8,
+            // Calibration default: 50 mm of asphalt leaves about 29 % of the roughness above the
+            // as-built value, 100 mm about 8 % (common practice: thicker works remove more).
+            carry_depth_mm: 40.0,
             subgrade_mr_mpa: 50.0,
             families: vec![
                 Family {
@@ -688,6 +717,8 @@ fn read_condition(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut ConditionPa
     }
     num(&mut t, "iri_floor", d, 0.1, 10.0, &mut p.iri_floor);
     num(&mut t, "iri_max", d, 2.0, 30.0, &mut p.iri_max);
+    num(&mut t, "max_rise", d, 0.05, 1.0, &mut p.max_rise);
+    num(&mut t, "carry_depth_mm", d, 5.0, 500.0, &mut p.carry_depth_mm);
     num(
         &mut t,
         "subgrade_mr_mpa",
@@ -764,7 +795,7 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
             let mut a = Aashto93Params::default();
             let t_has_zr = t.get("zr").is_some();
             num(&mut t, "p0", d, 1.0, 5.0, &mut a.p0);
-            num(&mut t, "psr_min", d, 0.05, 3.0, &mut a.psr_min);
+            num(&mut t, "terminal_psr", d, 0.5, 3.5, &mut a.terminal_psr);
             num(&mut t, "zr", d, -5.0, 5.0, &mut a.zr);
             // Reliability as designers state it, instead of its deviate: ZR = −Φ⁻¹(R).
             if let Some((place, r)) = t.number_at(
@@ -785,12 +816,25 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
                 }
             }
             num(&mut t, "s0", d, 0.0, 1.0, &mut a.s0);
-            num(&mut t, "ageing", d, 0.0, 0.5, &mut a.ageing);
-            if a.psr_min >= a.p0 {
+            num(&mut t, "ageing", d, 0.0, 0.1, &mut a.ageing);
+            num(
+                &mut t,
+                "structural_rise",
+                d,
+                0.0,
+                2000.0,
+                &mut a.structural_rise,
+            );
+            num(&mut t, "load_factor", d, 0.0, 10.0, &mut a.load_factor);
+            let loss = a.p0 - a.terminal_psr;
+            if !(0.5..=2.7 + 1e-9).contains(&loss) {
                 d.error(
                     t.place(),
-                    format!("psr_min {} at or above p0 {}", a.psr_min, a.p0),
-                    "psr_min below p0",
+                    format!(
+                        "p0 {} and terminal_psr {}: a loss of {loss:.2}",
+                        a.p0, a.terminal_psr
+                    ),
+                    "a loss p0 − terminal_psr from 0.5 to 2.7, the range of the AASHTO Road Test",
                 );
                 None
             } else {
@@ -799,11 +843,11 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
         }
         Some(_) => {
             let mut c = CalibratedParams::default();
-            num(&mut t, "rise_per_year", d, 0.0, 5.0, &mut c.rise_per_year);
-            num(&mut t, "ageing", d, 0.0, 0.5, &mut c.ageing);
+            num(&mut t, "rise_per_year", d, 0.0, 1.0, &mut c.rise_per_year);
+            num(&mut t, "ageing", d, 0.0, 0.1, &mut c.ageing);
             num(&mut t, "rise_per_mesa", d, 0.0, 50.0, &mut c.rise_per_mesa);
             num(&mut t, "sn_ref", d, 0.5, 15.0, &mut c.sn_ref);
-            num(&mut t, "sn_exponent", d, 0.0, 10.0, &mut c.sn_exponent);
+            num(&mut t, "sn_exponent", d, 0.0, 6.0, &mut c.sn_exponent);
             Some(FamilyModel::Calibrated(c))
         }
         None => None,
@@ -856,7 +900,8 @@ mod tests {
     #[test]
     fn the_demo_writes_out_the_defaults() {
         // The demo scenario spells every model key out; its values must be the defaults the
-        // README documents (classes to the precision written there).
+        // README documents, but for its condition classes: the demo district's own (2.5 and 4.5
+        // m/km), not the national-highway defaults.
         let text = String::from_utf8(
             crate::demo::FILES
                 .iter()
@@ -885,8 +930,8 @@ mod tests {
         top.finish(&mut d);
         assert!(!d.has_errors(), "{d}");
         let def = Models::default();
-        assert!((m.condition.good_below - def.condition.good_below).abs() < 1e-4);
-        assert!((m.condition.poor_above - def.condition.poor_above).abs() < 1e-4);
+        assert!((m.condition.good_below - 2.5).abs() < 1e-12);
+        assert!((m.condition.poor_above - 4.5).abs() < 1e-12);
         m.condition.good_below = def.condition.good_below;
         m.condition.poor_above = def.condition.poor_above;
         assert_eq!(m, def);

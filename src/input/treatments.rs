@@ -5,6 +5,9 @@
 //! [routine]                       # every year, on every section, in every strategy
 //! per_lane_km = "1400"            # money per lane-km a year on a smooth road
 //! per_lane_km_per_iri = "260"     # extra money per lane-km a year for each m/km of IRI
+//! holding_from_iri = 5.0          # holding repairs (patching that keeps the road passable)
+//! holding_per_lane_km = "2400"    # start above this IRI, reach this yearly cost per lane-km
+//! holding_slows = 0.6             # 1 m/km above it, and then take this share off the yearly rise
 //!
 //! [treatment.overlay]
 //! label = "50 mm asphalt overlay"
@@ -12,7 +15,8 @@
 //! category = "capital"            # budget category: capital (default) | routine
 //! cost = "68000"                  # decimal text
 //! cost_per = "lane-km"            # km | lane-km | m2
-//! iri_after = 2.2                 # IRI reset to this (m/km) — or iri_reduction = 1.0
+//! iri_after = 1.4                 # IRI on a smooth road after the works (m/km) — or iri_reduction = 1.0
+//! carry_over = 0.3                # optional: share of the roughness above iri_after the works leave
 //! thickness_mm = 50               # with layer_coefficient: added SN = thickness (in) × a
 //! layer_coefficient = 0.44        # AASHTO 1993 layer coefficient, per inch
 //! life_years = 12
@@ -135,7 +139,54 @@ pub struct Treatment {
     pub crash_factor: f64,
     pub life_years: u32,
     pub work_zone_days: u32,
+    /// Share of the roughness above `iri_after` that the works leave, when the catalogue says;
+    /// otherwise [`Treatment::carry`] works it out.
+    pub carry_over: Option<f64>,
+    /// Parts with their own lives and shares of the cost (a widening's earthworks and its
+    /// pavement); empty: one part, the whole cost, `life_years`.
+    pub components: Vec<Component>,
     pub place: Place,
+}
+
+/// A part of a treatment valued on its own at the end of the period.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Component {
+    pub name: String,
+    /// Share of the treatment's cost (the shares add up to 1).
+    pub share: f64,
+    pub life_years: u32,
+}
+
+impl Treatment {
+    /// Share of the roughness above the as-built value that the works leave: the catalogue's
+    /// `carry_over`; none for a reconstruction; e^(−thickness/`carry_depth_mm`) for a new layer;
+    /// otherwise 0.3 (a mill-and-inlay or a widening costed without a layer: calibration
+    /// default). Common practice: roughness after works depends on roughness before, and
+    /// thicker works remove more of it.
+    pub fn carry(&self, carry_depth_mm: f64) -> f64 {
+        if let Some(c) = self.carry_over {
+            return c;
+        }
+        match (self.action, self.structure) {
+            (Action::Reconstruct, _) => 0.0,
+            (_, StructuralEffect::Layer { thickness_mm, .. }) => {
+                (-thickness_mm / carry_depth_mm.max(1e-9)).exp()
+            }
+            _ => 0.3,
+        }
+    }
+
+    /// The parts valued at the end of the period: (share of cost, life in years).
+    pub fn parts(&self) -> Vec<(f64, u32)> {
+        if self.components.is_empty() {
+            vec![(1.0, self.life_years)]
+        } else {
+            self.components
+                .iter()
+                .map(|c| (c.share, c.life_years))
+                .collect()
+        }
+    }
 }
 
 /// Routine maintenance, applied every year to every section.
@@ -143,6 +194,21 @@ pub struct Treatment {
 pub struct Routine {
     pub per_lane_km: Money,
     pub per_lane_km_per_iri: Money,
+    /// Holding repairs: roughness (m/km) above which they start.
+    pub holding_from_iri: f64,
+    /// Their yearly cost per lane-km once in full (1 m/km above `holding_from_iri`).
+    pub holding_per_lane_km: Money,
+    /// The share of the yearly rise in roughness they take off once in full.
+    pub holding_slows: f64,
+}
+
+impl Routine {
+    /// How far holding repairs are in force at roughness `iri`: 0 below `holding_from_iri`,
+    /// 1 from one m/km above it, a smooth step between (no jump in cost or effect).
+    pub fn holding(&self, iri: f64) -> f64 {
+        let x = (iri - self.holding_from_iri).clamp(0.0, 1.0);
+        x * x * (3.0 - 2.0 * x)
+    }
 }
 
 /// The resolved catalogue.
@@ -187,7 +253,7 @@ fn parse_into(
         .require(
             "routine",
             d,
-            "a [routine] table with per_lane_km and per_lane_km_per_iri",
+            "a [routine] table with per_lane_km, per_lane_km_per_iri and the holding repairs",
         )
         .and_then(|v| v.table(d))
         .and_then(|t| read_routine(t, d));
@@ -250,10 +316,34 @@ fn read_routine(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<Routine> {
             "the extra yearly cost per lane-km for each m/km of IRI",
         )
         .and_then(|v| v.money_non_negative(d));
+    let from = t
+        .require(
+            "holding_from_iri",
+            d,
+            "the IRI (m/km) above which holding repairs keep a road passable",
+        )
+        .and_then(|v| v.number_in(d, 1.0, 25.0, "an IRI in m/km from 1 to 25"));
+    let cost = t
+        .require(
+            "holding_per_lane_km",
+            d,
+            "the yearly cost per lane-km of holding repairs",
+        )
+        .and_then(|v| v.money_non_negative(d));
+    let slows = t
+        .require(
+            "holding_slows",
+            d,
+            "the share of the yearly rise in roughness holding repairs take off",
+        )
+        .and_then(|v| v.number_in(d, 0.0, 0.95, "a share from 0 to 0.95"));
     t.finish(d);
     Some(Routine {
         per_lane_km: a?,
         per_lane_km_per_iri: b?,
+        holding_from_iri: from?,
+        holding_per_lane_km: cost?,
+        holding_slows: slows?,
     })
 }
 
@@ -354,6 +444,16 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
             .map(|x| x as u32),
         None => Some(0),
     };
+    let carry_over = match t.get("carry_over") {
+        Some(v) => v
+            .number_in(d, 0.0, 1.0, "a share from 0 to 1 of the roughness left")
+            .map(Some),
+        None => Some(None),
+    };
+    let components = match t.get("components") {
+        Some(v) => read_components(&v, d),
+        None => Some(Vec::new()),
+    };
     t.finish(d);
 
     let iri = match (&iri_after, &iri_reduction) {
@@ -447,8 +547,55 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
         crash_factor: crash_factor?,
         life_years: life_years?,
         work_zone_days: work_zone_days?,
+        carry_over: carry_over?,
+        components: components?,
         place,
     })
+}
+
+/// `components = [{ name = "earthworks", share = 0.6, life_years = 40 }, …]`: shares add up to 1.
+fn read_components(v: &super::tomldoc::Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<Component>> {
+    let items = v.array(d)?;
+    let mut out = Vec::new();
+    let mut ok = true;
+    for item in &items {
+        let Some(mut t) = item.table(d) else {
+            ok = false;
+            continue;
+        };
+        let name = t
+            .require("name", d, "a name for the part, e.g. \"earthworks\"")
+            .and_then(|v| v.identifier(d).map(str::to_owned));
+        let share = t
+            .require("share", d, "the part's share of the cost")
+            .and_then(|v| v.number_in(d, 0.0, 1.0, "a share from 0 to 1"));
+        let life = t
+            .require("life_years", d, "the part's expected life in years")
+            .and_then(|v| v.integer_in(d, 1, 120, "a whole number of years from 1 to 120"))
+            .map(|x| x as u32);
+        t.finish(d);
+        match (name, share, life) {
+            (Some(name), Some(share), Some(life_years)) => out.push(Component {
+                name,
+                share,
+                life_years,
+            }),
+            _ => ok = false,
+        }
+    }
+    if !ok {
+        return None;
+    }
+    let total: f64 = out.iter().map(|c| c.share).sum();
+    if out.is_empty() || (total - 1.0).abs() > 1e-6 {
+        d.error(
+            v.place(),
+            format!("parts whose shares add up to {total}"),
+            "parts whose shares of the cost add up to 1",
+        );
+        return None;
+    }
+    Some(out)
 }
 
 #[cfg(test)]
@@ -459,6 +606,9 @@ mod tests {
 [routine]
 per_lane_km = "1400"
 per_lane_km_per_iri = "260"
+holding_from_iri = 5.0
+holding_per_lane_km = "2400"
+holding_slows = 0.6
 
 [treatment.overlay]
 action = "overlay"

@@ -250,6 +250,17 @@ fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
         );
     }
     s.push_str("</tbody></table>");
+    let cap = sm.num(&["pv_capital", "plan"]);
+    if cap > 0.0 && !least {
+        let npv = sm.num(&["npv", "plan"]);
+        let _ = write!(
+            s,
+            "<p>Headline ratio: <strong>NPV per unit of present capital cost, {:.2}</strong> (PV capital {}), the ratio that ranks works when money binds. The same as a benefit-cost ratio on capital alone, {:.2}: every benefit and saving other than capital over the PV of capital. Appraisal files also give the benefit-cost ratio of road-user savings over the net agency cost (capital less routine savings and residual value), which runs high where that difference is small; NPV decides.</p>",
+            npv / cap,
+            money(cap, m),
+            1.0 + npv / cap
+        );
+    }
     let (p, u) = (sm.num(&["npv", "plan"]), sm.num(&["npv", "unconstrained"]));
     if u.abs() > 0.0 && !least {
         let _ = write!(
@@ -939,7 +950,7 @@ fn assumptions_section(sm: &Summary) -> String {
                         "{} ({})",
                         esc(f["name"].as_str().unwrap_or("")),
                         esc(match f["model"].as_str().unwrap_or("") {
-                            "aashto93" => "AASHTO 1993 serviceability loss, converted to IRI",
+                            "aashto93" => "AASHTO 1993 serviceability loss beside Paterson's structural term, converted to IRI",
                             "calibrated" => "calibrated roughness progression",
                             other => other,
                         })
@@ -967,6 +978,26 @@ fn assumptions_section(sm: &Summary) -> String {
             grouped(n(&a["templates"]), 0)
         ),
     );
-    s.push_str("</tbody></table></section>");
+    s.push_str("</tbody></table>");
+    if let Some(list) = sm.v["unverified_coefficients"].as_array() {
+        if !list.is_empty() {
+            let _ = write!(
+                s,
+                "<h3>Coefficients not yet backed by local evidence</h3><p>{} model coefficients still stand at a calibration default (no published value fits every place) or at a published value quoted from memory. Replace them with local values; the roughness families can be fitted to the agency's surveys with <code>pavestrat calibrate</code>.</p><table class=\"assumptions\"><thead><tr><th>coefficient</th><th>value</th><th>standing</th></tr></thead><tbody>",
+                list.len()
+            );
+            for u in list {
+                let _ = write!(
+                    s,
+                    "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>",
+                    esc(u["key"].as_str().unwrap_or("")),
+                    esc(u["value"].as_str().unwrap_or("")),
+                    esc(u["standing"].as_str().unwrap_or(""))
+                );
+            }
+            s.push_str("</tbody></table>");
+        }
+    }
+    s.push_str("</section>");
     s
 }

@@ -96,14 +96,15 @@ impl OperatingCurve {
 ///
 /// Source: FHWA-SA-98-079, *Life-Cycle Cost Analysis in Pavement Design* (Walls & Smith, 1998):
 /// the last activity's cost prorated by its remaining service life, credited at the end of the
-/// period. The works year counts as the first year of service, as in that report's example
-/// (a 12-year rehabilitation placed in year 32 of a 35-year period has 9 years left).
-/// `works_year` and `period_years` count from the base year (year 0).
+/// period. Service counts from the year the works take effect, the year after the works year
+/// (`works_year` is a year index from the base year, 0; the period's years are 0 to
+/// `period_years` − 1): works in index 31 of a 35-year period serve indexes 32–34, 3 of a
+/// 12-year life, and leave 9 — the report's example of a rehabilitation placed at year 32.
 pub fn residual_value(cost: f64, works_year: u32, life_years: u32, period_years: u32) -> f64 {
     if life_years == 0 {
         return 0.0;
     }
-    let end_of_service = works_year + life_years;
+    let end_of_service = works_year + 1 + life_years;
     let remaining = end_of_service.saturating_sub(period_years);
     cost * f64::from(remaining.min(life_years)) / f64::from(life_years)
 }
@@ -147,15 +148,24 @@ mod tests {
     #[test]
     fn remaining_service_life_example() {
         // FHWA-SA-98-079 (Walls & Smith 1998), method from memory, arithmetic in the shared
-        // reference list: 1000 placed in year 32 of a 35-year period, 12-year life → 750,
-        // PV at 4 % = 190.06.
-        let rv = residual_value(1000.0, 32, 12, 35);
+        // reference list: 1000 placed at year 32 of a 35-year period (works in year index 31,
+        // in service from index 32), 12-year life → 750, PV at 4 % = 190.06.
+        let rv = residual_value(1000.0, 31, 12, 35);
         assert_abs_diff_eq!(rv, 750.0, epsilon = 1e-9);
         let d = Discounting::new(0.04, 2000, Timing::EndOfYear).unwrap();
         // Credited at the end of the period: year 0 + 35.
         assert_abs_diff_eq!(rv * d.factor(2035), 190.06, epsilon = 0.005);
-        // Works that end within the period leave nothing.
+        // Works that end within the period leave nothing; works in the last year leave all.
         assert_abs_diff_eq!(residual_value(1000.0, 10, 12, 35), 0.0, epsilon = 1e-12);
+        assert_abs_diff_eq!(residual_value(1000.0, 34, 12, 35), 1000.0, epsilon = 1e-12);
+        // A mid-year rule credits it at the same point, the period's end.
+        let m = Discounting::new(0.04, 2000, Timing::MidYear).unwrap();
+        assert_abs_diff_eq!(rv * m.end_factor(35), 190.06, epsilon = 0.005);
+        assert_abs_diff_eq!(
+            rv * m.end_shift() * m.factor(2035),
+            rv * m.end_factor(35),
+            epsilon = 1e-9
+        );
     }
 
     #[test]

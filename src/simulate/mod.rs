@@ -26,13 +26,14 @@ pub mod traffic;
 #[cfg(test)]
 mod behaviour;
 
+use crate::economics::Discounting;
 use crate::enumerate::Strategy;
 use crate::input::models::{CapacityParams, SpeedParams};
 use crate::input::network::{Carriageway, Section};
 use crate::input::scenario::VehicleClass;
 use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::input::Run;
-use condition::{Condition, Progression, SectionModel};
+use condition::{Condition, SectionModel};
 
 /// Lane width (m) taken where the network gives none: a common rural lane (common practice,
 /// 3.5 m). Used only for treatments costed per m².
@@ -85,14 +86,19 @@ impl Trace {
     /// The trace's money as two flows: agency cost of each year and, last, the year after the
     /// period with the residual value as a negative cost; road-user cost of each year, and zero
     /// the year after the period.
-    pub fn flows(&self) -> Flows {
+    ///
+    /// The residual is credited at the period's end, year `n` on the discounting axis, under
+    /// either timing: with mid-year discounting the year-after slot is discounted half a year
+    /// less, so the residual is entered there already discounted by that half year at `d`'s
+    /// rate ([`Discounting::end_shift`]).
+    pub fn flows(&self, d: &Discounting) -> Flows {
         let mut agency: Vec<f64> = self
             .capital
             .iter()
             .zip(&self.routine)
             .map(|(a, b)| a + b)
             .collect();
-        agency.push(-self.residual);
+        agency.push(-self.residual * d.end_shift());
         let mut users: Vec<f64> = (0..self.capital.len())
             .map(|i| self.operating[i] + self.time[i] + self.crashes[i] + self.delay[i])
             .collect();
@@ -121,7 +127,10 @@ struct Effect {
     lanes_added: u8,
     carriageway_after: Option<Carriageway>,
     crash_factor: f64,
-    life_years: u32,
+    /// Share of the roughness above the as-built value the works leave.
+    carry: f64,
+    /// Parts valued at the end of the period: (share of cost, life in years).
+    parts: Vec<(f64, u32)>,
     work_zone_days: u32,
 }
 
@@ -151,6 +160,8 @@ pub struct SectionSim {
     delay_per_vkm: f64,
     routine_per_lane_km: f64,
     routine_per_lane_km_per_iri: f64,
+    routine: crate::input::treatments::Routine,
+    holding_per_lane_km: f64,
     iri_floor: f64,
     treatments: Vec<Effect>,
     capacity: CapacityParams,
@@ -182,10 +193,26 @@ impl SectionSim {
         let mr = section
             .subgrade_mr_mpa
             .unwrap_or(m.condition.subgrade_mr_mpa);
-        let model = SectionModel::new(&family, mr, m.condition.iri_max);
+        let model = SectionModel::new(&family, mr, &m.condition);
+        let lane0 = traffic::lane_share(
+            section.lanes,
+            m.traffic.direction_factor,
+            &m.traffic.lane_factor,
+        );
+        let age = section
+            .last_works_year
+            .map(|y| f64::from(s.base_year - y).max(0.0));
+        let placement = model.place(
+            section.iri.min(m.condition.iri_max),
+            section.structural_number,
+            age,
+            t.esal_two_way.first().copied().unwrap_or(0.0) * lane0,
+            section.growth_rate,
+        );
         let start = model.start(
             section.iri.min(m.condition.iri_max),
             section.structural_number,
+            &placement,
         );
         let pce_mix: f64 = VehicleClass::ALL
             .iter()
@@ -227,7 +254,8 @@ impl SectionSim {
                 lanes_added: tr.lanes_added,
                 carriageway_after: tr.carriageway_after,
                 crash_factor: tr.crash_factor,
-                life_years: tr.life_years,
+                carry: tr.carry(m.condition.carry_depth_mm),
+                parts: tr.parts(),
                 work_zone_days: tr.work_zone_days,
             })
             .collect();
@@ -252,6 +280,8 @@ impl SectionSim {
             delay_per_vkm: extra_h_per_km * vot,
             routine_per_lane_km: run.catalogue.routine.per_lane_km.to_f64(),
             routine_per_lane_km_per_iri: run.catalogue.routine.per_lane_km_per_iri.to_f64(),
+            routine: run.catalogue.routine.clone(),
+            holding_per_lane_km: run.catalogue.routine.holding_per_lane_km.to_f64(),
             iri_floor: m.condition.iri_floor,
             treatments,
             capacity: m.capacity,
@@ -325,12 +355,13 @@ impl SectionSim {
             }
             let iri = cond.iri;
             let lane_km = self.length_km * f64::from(lanes);
+            let holding = self.routine.holding(iri);
             out.routine[y] += costs::routine_cost(
                 self.routine_per_lane_km,
                 self.routine_per_lane_km_per_iri,
                 iri,
                 lane_km,
-            );
+            ) + holding * self.holding_per_lane_km * lane_km;
             let growth = self.aadt[y] / aadt0 * per_cap;
             let mut congestion = 0.0;
             for &(share, pc_h) in &self.bands {
@@ -345,9 +376,12 @@ impl SectionSim {
                 f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
             out.iri[y] = iri;
             out.sn[y] = cond.sn;
-            // 3. Ageing under the year's traffic.
-            self.model
-                .age(&mut cond, self.esal_two_way[y] * lane_factor);
+            // 3. Ageing under the year's traffic, slowed by any holding repairs.
+            self.model.age(
+                &mut cond,
+                self.esal_two_way[y] * lane_factor,
+                holding * self.routine.holding_slows,
+            );
             // 4. The works take effect.
             if count > 0 {
                 last_works = Some(y as i64);
@@ -355,20 +389,17 @@ impl SectionSim {
                     let w = &self.treatments[ti];
                     match w.structure {
                         StructuralEffect::None => {}
-                        StructuralEffect::SetTo(sn) => self.model.restructure(&mut cond, sn),
+                        StructuralEffect::SetTo(sn) => self.model.rebuild(&mut cond, sn),
                         layer @ StructuralEffect::Layer { .. } => {
-                            let sn = cond.sn + layer.added_sn().unwrap_or(0.0);
-                            self.model.restructure(&mut cond, sn);
+                            self.model
+                                .strengthen(&mut cond, layer.added_sn().unwrap_or(0.0));
                         }
                     }
                     match w.iri {
-                        IriEffect::ResetTo(x) => {
-                            let to = cond.iri.min(x);
-                            self.model.resurface(&mut cond, to);
-                        }
+                        IriEffect::ResetTo(x) => self.model.resurface(&mut cond, x, w.carry),
                         IriEffect::Reduce(r) => {
-                            let to = (cond.iri - r).max(self.iri_floor).min(cond.iri);
-                            cond.lower(to);
+                            let to = (cond.iri - r).max(self.iri_floor);
+                            self.model.lower(&mut cond, to);
                         }
                     }
                     if w.action == Action::Widen {
@@ -388,7 +419,8 @@ impl SectionSim {
     }
 
     /// Residual value of the last pavement works and of the last widening (each group's last
-    /// year of works), FHWA-SA-98-079's remaining-service-life method.
+    /// year of works), FHWA-SA-98-079's remaining-service-life method, each part of a
+    /// treatment (its share of the cost, its own life) valued on its own.
     fn residual(&self, works: &[(u32, usize, f64)]) -> f64 {
         let mut total = 0.0;
         for widen in [false, true] {
@@ -398,8 +430,9 @@ impl SectionSim {
                 continue;
             };
             for w in works.iter().filter(group).filter(|w| w.0 == last) {
-                let life = self.treatments[w.1].life_years;
-                total += costs::residual_value(w.2, w.0, life, self.years as u32);
+                for &(share, life) in &self.treatments[w.1].parts {
+                    total += costs::residual_value(w.2 * share, w.0, life, self.years as u32);
+                }
             }
         }
         total
