@@ -13,6 +13,7 @@
 #![deny(clippy::float_cmp)]
 
 pub mod appraise;
+pub mod calibrate;
 pub mod cli;
 pub mod demo;
 pub mod diag;

@@ -6,6 +6,7 @@
 //! command was asked to print on stdout still prints); `-` reads standard input.
 
 pub mod appraise;
+pub mod calibrate;
 pub mod cashflow;
 pub mod check;
 pub mod explain;
@@ -79,6 +80,9 @@ pub enum Command {
     /// Why a section got its strategy in a plan (read from `plan --out DIR`).
     #[command(after_help = AFTER_HELP)]
     Explain(explain::Args),
+    /// Fit the roughness families to the agency's own condition surveys.
+    #[command(after_help = AFTER_HELP)]
+    Calibrate(calibrate::Args),
     /// Write the demo scenario's files (or a synthetic network) into a directory to edit.
     #[command(after_help = AFTER_HELP)]
     Init(init::Args),
@@ -184,6 +188,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Check(a) => check::run(a, ctx),
         Command::Appraise(a) => appraise::run(a, ctx),
         Command::Init(a) => init::run(a, ctx),
+        Command::Calibrate(a) => calibrate::run(a, ctx),
         Command::Plan(a) => plan::run(a, ctx),
         Command::Explain(a) => explain::run(a, ctx),
         Command::Frontier(a) => frontier::run(a, ctx),

@@ -223,8 +223,14 @@ pub struct Condition {
 pub trait Progression {
     /// The terms of a structural number: (PSI per ESAL, m/km per ESAL at age 0).
     fn terms(&self, sn: f64) -> (f64, f64);
-    /// The rise in roughness over one year under `esals` design-lane ESALs (m/km, ≥ 0).
-    fn raw_rise(&self, c: &Condition, esals: f64) -> f64;
+    /// The rise in roughness over one year under `esals` design-lane ESALs (m/km, ≥ 0), in two
+    /// parts: what does not depend on traffic, and the load-related rise.
+    fn parts(&self, c: &Condition, esals: f64) -> (f64, f64);
+    /// The whole rise, [`Progression::parts`] added.
+    fn raw_rise(&self, c: &Condition, esals: f64) -> f64 {
+        let (a, b) = self.parts(c, esals);
+        a + b
+    }
     /// The environmental coefficient m (share of IRI a year), for placing a section.
     fn environment(&self) -> f64;
 }
@@ -246,13 +252,13 @@ impl Progression for Aashto93 {
         (loss / wt * self.p.load_factor, pat * self.p.load_factor)
     }
 
-    fn raw_rise(&self, c: &Condition, esals: f64) -> f64 {
+    fn parts(&self, c: &Condition, esals: f64) -> (f64, f64) {
         let m = self.p.ageing;
         let esals = esals.max(0.0);
         let psr = psr_floor(psr_from_iri(c.iri), self.p.terminal_psr);
         let aashto = c.psi_per_esal * esals / (0.26 * psr);
         let paterson = c.per_esal * (m * c.age).exp() * esals;
-        m * c.iri + soft_min(aashto, paterson)
+        (m * c.iri, soft_min(aashto, paterson))
     }
 
     fn environment(&self) -> f64 {
@@ -282,8 +288,11 @@ impl Progression for Calibrated {
         (0.0, Calibrated::load_weight(&self.p, sn))
     }
 
-    fn raw_rise(&self, c: &Condition, esals: f64) -> f64 {
-        self.p.rise_per_year + self.p.ageing * c.iri + c.per_esal * esals.max(0.0)
+    fn parts(&self, c: &Condition, esals: f64) -> (f64, f64) {
+        (
+            self.p.rise_per_year + self.p.ageing * c.iri,
+            c.per_esal * esals.max(0.0),
+        )
     }
 
     fn environment(&self) -> f64 {
@@ -425,6 +434,12 @@ impl SectionModel {
         let raw = self.progression().raw_rise(c, esals);
         let headroom = (1.0 - (c.iri / self.iri_max).powi(4)).max(0.0);
         bounded_rise(raw, self.max_rise) * (1.0 - slow.clamp(0.0, 1.0)) * headroom
+    }
+
+    /// The family's own yearly rise in two parts (no bound, no holding repairs): what
+    /// calibration fits against survey history.
+    pub fn raw_parts(&self, c: &Condition, esals: f64) -> (f64, f64) {
+        self.progression().parts(c, esals)
     }
 
     /// One year under `esals` design-lane ESALs. Roughness never falls, nor passes `iri_max`.
