@@ -46,7 +46,12 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
         return out;
     };
     let col = |name: &str| csv.headers.iter().position(|h| h == name);
-    let (cid, cyear, ciri, cworks) = (col("section_id"), col("year"), col("iri"), col("works_year"));
+    let (cid, cyear, ciri, cworks) = (
+        col("section_id"),
+        col("year"),
+        col("iri"),
+        col("works_year"),
+    );
     for (i, h) in csv.headers.iter().enumerate() {
         if !matches!(h, "section_id" | "year" | "iri" | "works_year") && !h.starts_with("x_") {
             d.error(
@@ -74,7 +79,8 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
     let mut seen = std::collections::HashMap::new();
     while let Some(line) = csv.next_row(d) {
         let r = csv.record().clone();
-        let place = |c: usize, name: &str| Place::line(file, line).with_column(c + 1).with_field(name);
+        let place =
+            |c: usize, name: &str| Place::line(file, line).with_column(c + 1).with_field(name);
         let id = &r[cid];
         let section = index.get(id).copied();
         if section.is_none() {
@@ -87,7 +93,11 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
         let year = match r[cyear].parse::<i32>() {
             Ok(y) if (1900..=2200).contains(&y) => Some(y),
             _ => {
-                d.error(place(cyear, "year"), format!("found `{}`", &r[cyear]), "a year from 1900 to 2200");
+                d.error(
+                    place(cyear, "year"),
+                    format!("found `{}`", &r[cyear]),
+                    "a year from 1900 to 2200",
+                );
                 None
             }
         };
@@ -107,12 +117,18 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
             Some((c, t)) => match t.parse::<i32>() {
                 Ok(y) if (1900..=2200).contains(&y) => Some(Some(y)),
                 _ => {
-                    d.error(place(c, "works_year"), format!("found `{t}`"), "a year from 1900 to 2200, or empty");
+                    d.error(
+                        place(c, "works_year"),
+                        format!("found `{t}`"),
+                        "a year from 1900 to 2200, or empty",
+                    );
                     None
                 }
             },
         };
-        if let (Some(section), Some(year), Some(iri), Some(works_year)) = (section, year, iri, works_year) {
+        if let (Some(section), Some(year), Some(iri), Some(works_year)) =
+            (section, year, iri, works_year)
+        {
             if let Some(first) = seen.insert((section, year), line) {
                 d.error(
                     place(cyear, "year"),
@@ -161,7 +177,7 @@ impl Interval {
     }
 }
 
-fn family_of<'r>(run: &'r Run, section: usize) -> Option<&'r crate::input::models::Family> {
+fn family_of(run: &Run, section: usize) -> Option<&crate::input::models::Family> {
     let m = &run.scenario.models.condition;
     let s = &run.network.sections[section];
     m.family(s.surface.as_deref().unwrap_or(&m.default_family))
@@ -195,18 +211,34 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
         };
         let mr = sec.subgrade_mr_mpa.unwrap_or(m.condition.subgrade_mr_mpa);
         let unit = match family.model {
-            FamilyModel::Aashto93(p) => FamilyModel::Aashto93(crate::input::models::Aashto93Params {
-                load_factor: 1.0,
-                ..p
-            }),
+            FamilyModel::Aashto93(p) => {
+                FamilyModel::Aashto93(crate::input::models::Aashto93Params {
+                    load_factor: 1.0,
+                    ..p
+                })
+            }
             other => other,
         };
         let model = SectionModel::new(&unit, mr, &m.condition);
-        let lane = traffic::lane_share(sec.lanes, m.traffic.direction_factor, &m.traffic.lane_factor);
+        let lane = traffic::lane_share(
+            sec.lanes,
+            m.traffic.direction_factor,
+            &m.traffic.lane_factor,
+        );
         let e0 = traffic::series(sec, 1, &m.traffic).esal_two_way[0] * lane;
         let esals_in = |y: i32| e0 * (1.0 + sec.growth_rate).max(0.01).powi(y - y0);
-        let age = works.iter().filter(|&&w| w < a.year).max().map(|&w| f64::from(a.year - w));
-        let at = model.place(a.iri, sec.structural_number, age, esals_in(a.year), sec.growth_rate);
+        let age = works
+            .iter()
+            .filter(|&&w| w < a.year)
+            .max()
+            .map(|&w| f64::from(a.year - w));
+        let at = model.place(
+            a.iri,
+            sec.structural_number,
+            age,
+            esals_in(a.year),
+            sec.growth_rate,
+        );
         let mut c = model.start(a.iri, sec.structural_number, &at);
         let years = f64::from(b.year - a.year);
         let (mut sum_iri, mut sum_load, mut sum_env) = (0.0, 0.0, 0.0);
@@ -221,7 +253,8 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
                         rise_per_mesa: 1.0,
                         ..p
                     };
-                    sum_load += Calibrated::load_weight(&unit, sec.structural_number) * 1e6 * e * 1e-6;
+                    sum_load +=
+                        Calibrated::load_weight(&unit, sec.structural_number) * 1e6 * e * 1e-6;
                 }
                 FamilyModel::Aashto93(_) => {
                     let (env, load) = model.raw_parts(&c, e);
@@ -306,15 +339,23 @@ fn least_squares(x: &[Vec<f64>], y: &[f64]) -> Option<(Vec<f64>, Vec<Vec<f64>>)>
         }
     }
     let inv = invert(a)?;
-    let beta = (0..k).map(|i| (0..k).map(|j| inv[i][j] * b[j]).sum()).collect();
+    let beta = (0..k)
+        .map(|i| (0..k).map(|j| inv[i][j] * b[j]).sum())
+        .collect();
     Some((beta, inv))
 }
 
 /// Gauss–Jordan inverse with partial pivoting; `None` when singular.
 fn invert(mut a: Vec<Vec<f64>>) -> Option<Vec<Vec<f64>>> {
     let n = a.len();
-    let mut inv: Vec<Vec<f64>> = (0..n).map(|i| (0..n).map(|j| f64::from(u8::from(i == j))).collect()).collect();
-    let scale = a.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs())).max(f64::MIN_POSITIVE);
+    let mut inv: Vec<Vec<f64>> = (0..n)
+        .map(|i| (0..n).map(|j| f64::from(u8::from(i == j))).collect())
+        .collect();
+    let scale = a
+        .iter()
+        .flatten()
+        .fold(0.0f64, |m, x| m.max(x.abs()))
+        .max(f64::MIN_POSITIVE);
     for c in 0..n {
         let p = (c..n).max_by(|&i, &j| a[i][c].abs().total_cmp(&a[j][c].abs()))?;
         if a[p][c].abs() <= 1e-12 * scale {
@@ -341,7 +382,10 @@ fn invert(mut a: Vec<Vec<f64>>) -> Option<Vec<Vec<f64>>> {
 }
 
 fn rmse(rows: &[&Interval], model: &FamilyModel) -> f64 {
-    let ss: f64 = rows.iter().map(|i| (i.observed() - predicted(i, model)).powi(2)).sum();
+    let ss: f64 = rows
+        .iter()
+        .map(|i| (i.observed() - predicted(i, model)).powi(2))
+        .sum();
     (ss / rows.len().max(1) as f64).sqrt()
 }
 
@@ -394,17 +438,28 @@ pub fn fit(run: &Run, intervals: &[Interval]) -> (Vec<Fit>, Vec<Refused>) {
             sections: sections.len(),
             rmse: fit_rmse,
             rmse_before: rmse(&rows, &fam.model),
-            r2: if ss_tot > 0.0 { 1.0 - ss_res / ss_tot } else { f64::NAN },
+            r2: if ss_tot > 0.0 {
+                1.0 - ss_res / ss_tot
+            } else {
+                f64::NAN
+            },
             coefficients,
         });
     }
     (fits, refused)
 }
 
-fn fit_calibrated(rows: &[&Interval], y: &[f64], p: CalibratedParams) -> Option<(FamilyModel, Vec<Coefficient>)> {
+fn fit_calibrated(
+    rows: &[&Interval],
+    y: &[f64],
+    p: CalibratedParams,
+) -> Option<(FamilyModel, Vec<Coefficient>)> {
     const KEYS: [&str; 3] = ["rise_per_year", "ageing", "rise_per_mesa"];
     const UPPER: [f64; 3] = [1.0, 0.1, 50.0];
-    let full: Vec<[f64; 3]> = rows.iter().map(|i| [i.years, i.sum_iri, i.sum_load]).collect();
+    let full: Vec<[f64; 3]> = rows
+        .iter()
+        .map(|i| [i.years, i.sum_iri, i.sum_load])
+        .collect();
     // Least squares over the free coefficients; one that leaves its accepted range is held at
     // the bound it passed and the rest fitted again.
     let mut held: [Option<f64>; 3] = [None; 3];
@@ -413,14 +468,24 @@ fn fit_calibrated(rows: &[&Interval], y: &[f64], p: CalibratedParams) -> Option<
         if free.is_empty() {
             break;
         }
-        let x: Vec<Vec<f64>> = full.iter().map(|r| free.iter().map(|&j| r[j]).collect()).collect();
+        let x: Vec<Vec<f64>> = full
+            .iter()
+            .map(|r| free.iter().map(|&j| r[j]).collect())
+            .collect();
         let yy: Vec<f64> = full
             .iter()
             .zip(y)
-            .map(|(r, v)| v - (0..3).filter_map(|j| held[j].map(|h| h * r[j])).sum::<f64>())
+            .map(|(r, v)| {
+                v - (0..3)
+                    .filter_map(|j| held[j].map(|h| h * r[j]))
+                    .sum::<f64>()
+            })
             .collect();
         let (beta, cov) = least_squares(&x, &yy)?;
-        let out = free.iter().zip(&beta).find(|(&j, &b)| b < 0.0 || b > UPPER[j]);
+        let out = free
+            .iter()
+            .zip(&beta)
+            .find(|(&j, &b)| b < 0.0 || b > UPPER[j]);
         if let Some((&j, &b)) = out {
             held[j] = Some(b.clamp(0.0, UPPER[j]));
             continue;
@@ -443,7 +508,10 @@ fn fit_calibrated(rows: &[&Interval], y: &[f64], p: CalibratedParams) -> Option<
             .map(|j| Coefficient {
                 key: KEYS[j],
                 value: value[j],
-                se: free.iter().position(|&f| f == j).map(|f| (sigma2 * cov[f][f]).max(0.0).sqrt()),
+                se: free
+                    .iter()
+                    .position(|&f| f == j)
+                    .map(|f| (sigma2 * cov[f][f]).max(0.0).sqrt()),
             })
             .collect();
         let model = FamilyModel::Calibrated(CalibratedParams {
@@ -466,7 +534,11 @@ fn fit_aashto(
     if sll <= 0.0 {
         return None;
     }
-    let sly: f64 = rows.iter().zip(y).map(|(i, v)| i.sum_load * (v - i.sum_env)).sum();
+    let sly: f64 = rows
+        .iter()
+        .zip(y)
+        .map(|(i, v)| i.sum_load * (v - i.sum_env))
+        .sum();
     let f = (sly / sll).clamp(0.0, 10.0);
     let ss: f64 = rows
         .iter()
@@ -474,7 +546,10 @@ fn fit_aashto(
         .map(|(i, v)| (v - i.sum_env - f * i.sum_load).powi(2))
         .sum();
     let sigma2 = ss / (rows.len().saturating_sub(1)).max(1) as f64;
-    let model = FamilyModel::Aashto93(crate::input::models::Aashto93Params { load_factor: f, ..p });
+    let model = FamilyModel::Aashto93(crate::input::models::Aashto93Params {
+        load_factor: f,
+        ..p
+    });
     Some((
         model,
         vec![Coefficient {
@@ -493,10 +568,13 @@ pub fn family_table(fit: &Fit, source: &str) -> String {
         fit.n, fit.sections, fit.rmse, fit.rmse_before, fit.r2, fit.family
     );
     let se = |key: &str| {
-        fit.coefficients.iter().find(|c| c.key == key).map(|c| match c.se {
-            Some(e) => format!("   # fitted, standard error {e:.3e}"),
-            None => "   # fitted, held at the bound of its range".to_owned(),
-        })
+        fit.coefficients
+            .iter()
+            .find(|c| c.key == key)
+            .map(|c| match c.se {
+                Some(e) => format!("   # fitted, standard error {e:.3e}"),
+                None => "   # fitted, held at the bound of its range".to_owned(),
+            })
     };
     let keys: Vec<(&str, f64)> = match fit.model {
         FamilyModel::Aashto93(p) => {
@@ -539,9 +617,17 @@ pub fn scenario_with(text: &str, fits: &[Fit], source: &str, files: Option<&str>
     };
     let mut replace = |name: &str, with: &str| {
         let head = format!("[{name}]");
-        if let Some(start) = lines.iter().position(|l| l.trim() == head || l.trim().starts_with(&format!("{head} "))) {
-            let end = (start + 1..lines.len()).find(|&i| header(&lines[i])).unwrap_or(lines.len());
-            lines.splice(start..end, with.lines().map(str::to_owned).chain([String::new()]));
+        if let Some(start) = lines
+            .iter()
+            .position(|l| l.trim() == head || l.trim().starts_with(&format!("{head} ")))
+        {
+            let end = (start + 1..lines.len())
+                .find(|&i| header(&lines[i]))
+                .unwrap_or(lines.len());
+            lines.splice(
+                start..end,
+                with.lines().map(str::to_owned).chain([String::new()]),
+            );
             true
         } else {
             false
@@ -553,9 +639,19 @@ pub fn scenario_with(text: &str, fits: &[Fit], source: &str, files: Option<&str>
     let mut appended = String::new();
     for fit in fits {
         let table = family_table(fit, source);
-        let body: String = table.lines().filter(|l| !l.starts_with('#')).collect::<Vec<_>>().join("\n");
-        let comment = table.lines().find(|l| l.starts_with('#')).unwrap_or_default();
-        if !replace(&format!("condition.family.{}", fit.family), &format!("{comment}\n{body}")) {
+        let body: String = table
+            .lines()
+            .filter(|l| !l.starts_with('#'))
+            .collect::<Vec<_>>()
+            .join("\n");
+        let comment = table
+            .lines()
+            .find(|l| l.starts_with('#'))
+            .unwrap_or_default();
+        if !replace(
+            &format!("condition.family.{}", fit.family),
+            &format!("{comment}\n{body}"),
+        ) {
             appended.push('\n');
             appended.push_str(&table);
         }
@@ -580,18 +676,40 @@ mod tests {
 
     /// Surveys of every section of `run` in `years`, their yearly rise drawn from `truth` (each
     /// section's family set to it) with normal noise of `sd`.
-    fn synthetic(run: &Run, truth: CalibratedParams, years: std::ops::Range<i32>, sd: f64, seed: u64) -> Vec<Survey> {
+    fn synthetic(
+        run: &Run,
+        truth: CalibratedParams,
+        years: std::ops::Range<i32>,
+        sd: f64,
+        seed: u64,
+    ) -> Vec<Survey> {
         let mut r = SplitMix64::new(seed);
         let mut out = Vec::new();
         let m = &run.scenario.models;
         for (g, sec) in run.network.sections.iter().enumerate() {
-            let lane = traffic::lane_share(sec.lanes, m.traffic.direction_factor, &m.traffic.lane_factor);
+            let lane = traffic::lane_share(
+                sec.lanes,
+                m.traffic.direction_factor,
+                &m.traffic.lane_factor,
+            );
             let e0 = traffic::series(sec, 1, &m.traffic).esal_two_way[0] * lane;
             let mut iri = 1.5 + 2.0 * r.unit();
             for y in years.clone() {
-                out.push(Survey { section: g, year: y, iri, works_year: None, line: 0 });
+                out.push(Survey {
+                    section: g,
+                    year: y,
+                    iri,
+                    works_year: None,
+                    line: 0,
+                });
                 let e = e0 * (1.0 + sec.growth_rate).powi(y - run.scenario.base_year);
-                let x = Calibrated::load_weight(&CalibratedParams { rise_per_mesa: 1.0, ..truth }, sec.structural_number) * e;
+                let x = Calibrated::load_weight(
+                    &CalibratedParams {
+                        rise_per_mesa: 1.0,
+                        ..truth
+                    },
+                    sec.structural_number,
+                ) * e;
                 let rise = truth.rise_per_year + truth.ageing * iri + truth.rise_per_mesa * x;
                 // Box–Muller noise.
                 let (u1, u2) = (r.unit().max(1e-12), r.unit());
@@ -613,17 +731,34 @@ mod tests {
     #[test]
     fn recovers_known_coefficients_within_their_standard_errors() {
         let run = all_calibrated(demo());
-        let truth = CalibratedParams { rise_per_year: 0.04, ageing: 0.015, rise_per_mesa: 0.6, ..CalibratedParams::default() };
+        let truth = CalibratedParams {
+            rise_per_year: 0.04,
+            ageing: 0.015,
+            rise_per_mesa: 0.6,
+            ..CalibratedParams::default()
+        };
         let surveys = synthetic(&run, truth, 2005..2027, 0.03, 7);
         let iv = intervals(&run, &surveys);
         let (fits, refused) = fit(&run, &iv);
         assert!(refused.is_empty(), "{refused:?}");
-        let f = fits.iter().find(|f| f.family == "surface_treatment").unwrap();
+        let f = fits
+            .iter()
+            .find(|f| f.family == "surface_treatment")
+            .unwrap();
         let want = [truth.rise_per_year, truth.ageing, truth.rise_per_mesa];
         for (c, w) in f.coefficients.iter().zip(want) {
             let se = c.se.unwrap();
-            assert!((c.value - w).abs() <= 3.0 * se, "{}: {} ± {se}, truth {w}", c.key, c.value);
-            assert!(se < 0.5 * w, "{}: standard error {se} too wide to tell", c.key);
+            assert!(
+                (c.value - w).abs() <= 3.0 * se,
+                "{}: {} ± {se}, truth {w}",
+                c.key,
+                c.value
+            );
+            assert!(
+                se < 0.5 * w,
+                "{}: standard error {se} too wide to tell",
+                c.key
+            );
         }
         assert!(f.rmse < f.rmse_before && f.r2 > 0.0, "{f:?}");
     }
@@ -631,23 +766,46 @@ mod tests {
     #[test]
     fn fitted_coefficients_predict_held_out_years_better_than_the_defaults() {
         let run = all_calibrated(demo());
-        let truth = CalibratedParams { rise_per_year: 0.06, ageing: 0.01, rise_per_mesa: 1.2, ..CalibratedParams::default() };
+        let truth = CalibratedParams {
+            rise_per_year: 0.06,
+            ageing: 0.01,
+            rise_per_mesa: 1.2,
+            ..CalibratedParams::default()
+        };
         let surveys = synthetic(&run, truth, 2008..2027, 0.03, 11);
-        let (early, late): (Vec<Survey>, Vec<Survey>) = surveys.into_iter().partition(|s| s.year <= 2020);
+        let (early, late): (Vec<Survey>, Vec<Survey>) =
+            surveys.into_iter().partition(|s| s.year <= 2020);
         let (fits, _) = fit(&run, &intervals(&run, &early));
         let fitted = fits[0].model;
         let held_out = intervals(&run, &late);
         let rows: Vec<&Interval> = held_out.iter().collect();
         let default = FamilyModel::Calibrated(CalibratedParams::default());
-        assert!(rmse(&rows, &fitted) < 0.7 * rmse(&rows, &default), "{} vs {}", rmse(&rows, &fitted), rmse(&rows, &default));
+        assert!(
+            rmse(&rows, &fitted) < 0.7 * rmse(&rows, &default),
+            "{} vs {}",
+            rmse(&rows, &fitted),
+            rmse(&rows, &default)
+        );
     }
 
     #[test]
     fn intervals_across_works_are_left_out_and_thin_data_is_refused() {
         let mut run = all_calibrated(demo());
         run.network.sections[0].last_works_year = Some(2012);
-        let s = |year, iri, works_year| Survey { section: 0, year, iri, works_year, line: 0 };
-        let surveys = vec![s(2010, 4.0, None), s(2011, 4.2, None), s(2013, 1.3, None), s(2015, 1.5, Some(2015)), s(2016, 1.2, None)];
+        let s = |year, iri, works_year| Survey {
+            section: 0,
+            year,
+            iri,
+            works_year,
+            line: 0,
+        };
+        let surveys = vec![
+            s(2010, 4.0, None),
+            s(2011, 4.2, None),
+            s(2013, 1.3, None),
+            s(2015, 1.5, Some(2015)),
+            s(2016, 1.2, None),
+        ];
         let iv = intervals(&run, &surveys);
         let spans: Vec<(i32, i32)> = iv.iter().map(|i| (i.from, i.to)).collect();
         // 2011–2013 spans the 2012 works and 2015–2016 the 2015 works.
@@ -663,7 +821,13 @@ mod tests {
         let run = demo();
         // Surveys drawn from the model itself with a load factor of 1.6 (no noise): the fit
         // finds it, since the intervals are single years.
-        let mut fam = run.scenario.models.condition.family("asphalt").unwrap().model;
+        let mut fam = run
+            .scenario
+            .models
+            .condition
+            .family("asphalt")
+            .unwrap()
+            .model;
         if let FamilyModel::Aashto93(p) = &mut fam {
             p.load_factor = 1.6;
         }
@@ -672,14 +836,41 @@ mod tests {
             if sec.surface.as_deref() != Some("asphalt") {
                 continue;
             }
-            let one = intervals(&run, &[
-                Survey { section: g, year: 2018, iri: sec.iri, works_year: None, line: 0 },
-                Survey { section: g, year: 2019, iri: sec.iri + 0.1, works_year: None, line: 0 },
-            ]);
+            let one = intervals(
+                &run,
+                &[
+                    Survey {
+                        section: g,
+                        year: 2018,
+                        iri: sec.iri,
+                        works_year: None,
+                        line: 0,
+                    },
+                    Survey {
+                        section: g,
+                        year: 2019,
+                        iri: sec.iri + 0.1,
+                        works_year: None,
+                        line: 0,
+                    },
+                ],
+            );
             let Some(i) = one.first() else { continue };
             let rise = predicted(i, &fam);
-            surveys.push(Survey { section: g, year: 2018, iri: sec.iri, works_year: None, line: 0 });
-            surveys.push(Survey { section: g, year: 2019, iri: sec.iri + rise, works_year: None, line: 0 });
+            surveys.push(Survey {
+                section: g,
+                year: 2018,
+                iri: sec.iri,
+                works_year: None,
+                line: 0,
+            });
+            surveys.push(Survey {
+                section: g,
+                year: 2019,
+                iri: sec.iri + rise,
+                works_year: None,
+                line: 0,
+            });
         }
         let (fits, _) = fit(&run, &intervals(&run, &surveys));
         let f = fits.iter().find(|f| f.family == "asphalt").unwrap();

@@ -144,13 +144,13 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [
         let sim = SectionSim::new(&v.run, &s2);
         let strategies = &held.strategies[g];
         sim.run(&strategies[0], &mut base);
-        let base_flows = base.flows(&d);
+        let base_flows = base.flows(d);
         for (i, st) in strategies.iter().enumerate() {
             let npv = if i == 0 {
                 0.0
             } else {
                 sim.run(st, &mut t);
-                let f = increment(&t.flows(&d), &base_flows, y0);
+                let f = increment(&t.flows(d), &base_flows, y0);
                 d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
             };
             npvs[at + i] = npv;

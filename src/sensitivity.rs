@@ -128,7 +128,7 @@ fn npvs(
     let (mut base, mut t) = (Trace::default(), Trace::default());
     sim.run(&strategies[0], &mut base);
     let d = v.discounting();
-    let bf = base.flows(&d);
+    let bf = base.flows(d);
     let y0 = run.scenario.base_year;
     strategies
         .iter()
@@ -138,7 +138,7 @@ fn npvs(
                 return 0.0;
             }
             sim.run(st, &mut t);
-            let f = increment(&t.flows(&d), &bf, y0);
+            let f = increment(&t.flows(d), &bf, y0);
             d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
         })
         .collect()

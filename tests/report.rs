@@ -580,7 +580,7 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
     let best = ws
         .rows()
         .skip(1)
-        .filter(|r| matches!(r[11], Data::Bool(true)))
+        .filter(|r| matches!(r[13], Data::Bool(true)))
         .count();
     assert_eq!(best, 40, "one best strategy per demo section");
 }

@@ -2,6 +2,7 @@
 //! a temporary directory; on failure it prints the command, its stdout and stderr.
 
 mod appraise;
+mod calibrate;
 mod cashflow;
 mod check;
 mod plan;

@@ -44,7 +44,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     };
     ctx.notes(&diags);
     let mut d = Diagnostics::new();
-    let Some((label, text)) = crate::input::read_text(&crate::input::Disk, &args.surveys, None, &mut d) else {
+    let Some((label, text)) =
+        crate::input::read_text(&crate::input::Disk, &args.surveys, None, &mut d)
+    else {
         return Err(Error::Input(d));
     };
     let surveys = calibrate::read_surveys(&label, &text, &run, &mut d);
@@ -72,7 +74,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
                 "    {:<16} {:>12.6} {}",
                 c.key,
                 c.value,
-                c.se.map_or("(held at the bound of its range)".to_owned(), |e| format!("± {e:.6} (standard error)"))
+                c.se.map_or("(held at the bound of its range)".to_owned(), |e| format!(
+                    "± {e:.6} (standard error)"
+                ))
             );
         }
     }
@@ -108,7 +112,10 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut set = OutputSet::new();
         set.add("calibration.toml", toml.clone().into_bytes());
         set.add("calibration.csv", csv(&run, &intervals, &fits).into_bytes());
-        set.add("calibration.html", page(&run, &intervals, &fits, &label).into_bytes());
+        set.add(
+            "calibration.html",
+            page(&run, &intervals, &fits, &label).into_bytes(),
+        );
         for p in set.commit(dir)? {
             ctx.say(&format!("wrote {}", p.display()));
         }
@@ -117,7 +124,10 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     }
     if let Some(path) = &args.write_scenario {
         let original = std::fs::read_to_string(&args.scenario).map_err(|e| {
-            Error::Usage(format!("cannot read {} again: {e}", args.scenario.display()))
+            Error::Usage(format!(
+                "cannot read {} again: {e}",
+                args.scenario.display()
+            ))
         })?;
         let f = &run.scenario.files;
         let abs = |p: &Path| -> String {
@@ -156,8 +166,15 @@ fn model_of<'f>(fits: &'f [Fit], family: &str) -> Option<&'f Fit> {
     fits.iter().find(|f| f.family == family)
 }
 
-fn scenario_model(run: &crate::input::Run, family: &str) -> Option<crate::input::models::FamilyModel> {
-    run.scenario.models.condition.family(family).map(|f| f.model)
+fn scenario_model(
+    run: &crate::input::Run,
+    family: &str,
+) -> Option<crate::input::models::FamilyModel> {
+    run.scenario
+        .models
+        .condition
+        .family(family)
+        .map(|f| f.model)
 }
 
 /// `calibration.csv`: one row per interval of a fitted family.
@@ -166,7 +183,8 @@ fn csv(run: &crate::input::Run, intervals: &[Interval], fits: &[Fit]) -> String 
         "section_id,family,year_from,year_to,iri_from,iri_to,observed_rise,predicted_scenario,predicted_fitted\n",
     );
     for i in intervals {
-        let (Some(fit), Some(before)) = (model_of(fits, &i.family), scenario_model(run, &i.family)) else {
+        let (Some(fit), Some(before)) = (model_of(fits, &i.family), scenario_model(run, &i.family))
+        else {
             continue;
         };
         let _ = writeln!(
@@ -187,7 +205,9 @@ fn csv(run: &crate::input::Run, intervals: &[Interval], fits: &[Fit]) -> String 
 }
 
 fn esc(s: &str) -> String {
-    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;")
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
 }
 
 /// `calibration.html`: per family, observed against predicted rise (one point per interval,
@@ -203,14 +223,29 @@ Points on the dashed line are predicted exactly.</p>",
         esc(source)
     );
     for f in fits {
-        let Some(before) = scenario_model(run, &f.family) else { continue };
+        let Some(before) = scenario_model(run, &f.family) else {
+            continue;
+        };
         let rows: Vec<&Interval> = intervals.iter().filter(|i| i.family == f.family).collect();
         let pts: Vec<(f64, f64, f64)> = rows
             .iter()
-            .map(|i| (i.observed(), calibrate::predicted(i, &before), calibrate::predicted(i, &f.model)))
+            .map(|i| {
+                (
+                    i.observed(),
+                    calibrate::predicted(i, &before),
+                    calibrate::predicted(i, &f.model),
+                )
+            })
             .collect();
-        let hi = pts.iter().flat_map(|p| [p.0, p.1, p.2]).fold(0.1f64, f64::max) * 1.05;
-        let lo = pts.iter().flat_map(|p| [p.0, p.1, p.2]).fold(0.0f64, f64::min);
+        let hi = pts
+            .iter()
+            .flat_map(|p| [p.0, p.1, p.2])
+            .fold(0.1f64, f64::max)
+            * 1.05;
+        let lo = pts
+            .iter()
+            .flat_map(|p| [p.0, p.1, p.2])
+            .fold(0.0f64, f64::min);
         let (w, h, m) = (420.0, 420.0, 50.0);
         let x = |v: f64| m + (v - lo) / (hi - lo) * (w - 2.0 * m);
         let y = |v: f64| h - m - (v - lo) / (hi - lo) * (h - 2.0 * m);
@@ -225,7 +260,12 @@ Points on the dashed line are predicted exactly.</p>",
             x(lo), y(lo), x(hi), y(hi), w / 2.0, h - 12.0, h / 2.0, h / 2.0
         );
         for (v, label) in [(lo, lo), (hi, hi)] {
-            let _ = write!(s, "<text x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"middle\">{label:.2}</text>", x(v), h - m + 14.0);
+            let _ = write!(
+                s,
+                "<text x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"middle\">{label:.2}</text>",
+                x(v),
+                h - m + 14.0
+            );
         }
         for p in &pts {
             let _ = write!(s, "<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"2.5\" fill=\"#999999\" data-x=\"{}\" data-y=\"{}\"/>", x(p.0), y(p.1), p.0, p.1);
@@ -243,6 +283,10 @@ Points on the dashed line are predicted exactly.</p>",
         }
         s.push_str("</tbody></table>");
     }
-    let _ = write!(s, "<p><small>{}</small></p></body></html>\n", esc(crate::CAUTION));
+    let _ = writeln!(
+        s,
+        "<p><small>{}</small></p></body></html>",
+        esc(crate::CAUTION)
+    );
     s
 }

@@ -25,11 +25,11 @@
 //! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
 
 use super::{load_scenario, parse_rate, Context, OutArg};
-use crate::input::scenario::Category;
 use crate::enumerate::Enumerator;
 use crate::error::{Error, Result};
 use crate::format::{Amount, Field};
 use crate::input::plan::Objective;
+use crate::input::scenario::Category;
 use crate::input::Run;
 use crate::io::{print_stdout, StreamSet};
 use crate::money::grouped;

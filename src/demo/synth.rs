@@ -57,7 +57,7 @@ pub fn network_csv(n: usize, seed: u64) -> String {
             (
                 2,
                 "single",
-                r.range(1.8, 3.8),
+                r.range(1.6, 3.3),
                 r.range(3.8, 5.4),
                 r.range(9_000.0, 16_000.0),
                 r.range(0.10, 0.22),

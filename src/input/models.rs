@@ -718,7 +718,14 @@ fn read_condition(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut ConditionPa
     num(&mut t, "iri_floor", d, 0.1, 10.0, &mut p.iri_floor);
     num(&mut t, "iri_max", d, 2.0, 30.0, &mut p.iri_max);
     num(&mut t, "max_rise", d, 0.05, 1.0, &mut p.max_rise);
-    num(&mut t, "carry_depth_mm", d, 5.0, 500.0, &mut p.carry_depth_mm);
+    num(
+        &mut t,
+        "carry_depth_mm",
+        d,
+        5.0,
+        500.0,
+        &mut p.carry_depth_mm,
+    );
     num(
         &mut t,
         "subgrade_mr_mpa",

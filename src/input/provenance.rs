@@ -41,8 +41,7 @@ pub struct Unverified {
 
 fn same(a: &[f64], b: &[f64]) -> bool {
     a.len() == b.len()
-        && a
-            .iter()
+        && a.iter()
             .zip(b)
             .all(|(x, y)| (x - y).abs() <= 1e-12 * y.abs().max(1.0))
 }
@@ -65,11 +64,16 @@ const TRAFFIC: [(&str, Standing, Get<TrafficParams>); 6] = [
     ("light_truck_share_of_light", Cal, |p| {
         vec![p.light_truck_share_of_light]
     }),
-    ("axles_kn", Cal, |p| p.axles.iter().flatten().copied().collect()),
+    ("axles_kn", Cal, |p| {
+        p.axles.iter().flatten().copied().collect()
+    }),
     ("lane_factor", Mem, |p| p.lane_factor.to_vec()),
     ("pce", Mem, |p| p.pce.0.to_vec()),
     ("flow_bands", Cal, |p| {
-        p.flow_bands.iter().flat_map(|b| [b.hours, b.share]).collect()
+        p.flow_bands
+            .iter()
+            .flat_map(|b| [b.hours, b.share])
+            .collect()
     }),
 ];
 const CAPACITY: [(&str, Standing, Get<CapacityParams>); 3] = [
@@ -80,7 +84,9 @@ const CAPACITY: [(&str, Standing, Get<CapacityParams>); 3] = [
     ("max_vc", Cal, |p| vec![p.max_vc]),
 ];
 const SPEED: [(&str, Standing, Get<SpeedParams>); 5] = [
-    ("free_kmh", Cal, |p| vec![p.free_single_kmh, p.free_divided_kmh]),
+    ("free_kmh", Cal, |p| {
+        vec![p.free_single_kmh, p.free_divided_kmh]
+    }),
     ("roughness_onset_iri", Cal, |p| vec![p.roughness_onset_iri]),
     ("drop_per_iri", Cal, |p| vec![p.drop_per_iri]),
     ("min_factor", Cal, |p| vec![p.min_factor]),
@@ -108,10 +114,18 @@ const USERS: [(&str, Standing, Get<UserCostParams>); 4] = [
     ("smooth_iri", Cal, |p| vec![p.smooth_iri]),
     ("fuel_share", Cal, |p| p.fuel_share.0.to_vec()),
     ("repair_share", Cal, |p| p.repair_share.0.to_vec()),
-    ("crash_rate", Cal, |p| vec![p.crash_rate_single, p.crash_rate_divided]),
+    ("crash_rate", Cal, |p| {
+        vec![p.crash_rate_single, p.crash_rate_divided]
+    }),
 ];
 
-fn table<T>(out: &mut Vec<Unverified>, prefix: &str, now: &T, def: &T, keys: &[(&str, Standing, Get<T>)]) {
+fn table<T>(
+    out: &mut Vec<Unverified>,
+    prefix: &str,
+    now: &T,
+    def: &T,
+    keys: &[(&str, Standing, Get<T>)],
+) {
     for (key, standing, get) in keys {
         let v = get(now);
         if same(&v, &get(def)) {
@@ -132,16 +146,26 @@ pub fn unverified(m: &Models) -> Vec<Unverified> {
     table(&mut out, "traffic", &m.traffic, &d.traffic, &TRAFFIC);
     table(&mut out, "capacity", &m.capacity, &d.capacity, &CAPACITY);
     table(&mut out, "speed", &m.speed, &d.speed, &SPEED);
-    table(&mut out, "condition", &m.condition, &d.condition, &CONDITION);
+    table(
+        &mut out,
+        "condition",
+        &m.condition,
+        &d.condition,
+        &CONDITION,
+    );
     for f in &m.condition.families {
         let prefix = format!("condition.family.{}", f.name);
         match &f.model {
             FamilyModel::Aashto93(p) => {
                 table(&mut out, &prefix, p, &Aashto93Params::default(), &AASHTO)
             }
-            FamilyModel::Calibrated(p) => {
-                table(&mut out, &prefix, p, &CalibratedParams::default(), &CALIBRATED)
-            }
+            FamilyModel::Calibrated(p) => table(
+                &mut out,
+                &prefix,
+                p,
+                &CalibratedParams::default(),
+                &CALIBRATED,
+            ),
         }
     }
     table(&mut out, "user_costs", &m.user_costs, &d.user_costs, &USERS);
@@ -165,7 +189,12 @@ pub fn note(m: &Models) -> Option<String> {
 pub fn listing(m: &Models) -> String {
     let mut s = String::new();
     for u in unverified(m) {
-        s.push_str(&format!("  {} = {} ({})\n", u.key, u.value, u.standing.name()));
+        s.push_str(&format!(
+            "  {} = {} ({})\n",
+            u.key,
+            u.value,
+            u.standing.name()
+        ));
     }
     s
 }
@@ -178,15 +207,21 @@ mod tests {
     fn defaults_are_listed_and_a_replaced_value_is_not() {
         let mut m = Models::default();
         let all = unverified(&m);
-        assert!(all.iter().any(|u| u.key == "condition.family.asphalt.ageing"
-            && u.standing == Standing::FromMemory));
+        assert!(all
+            .iter()
+            .any(|u| u.key == "condition.family.asphalt.ageing"
+                && u.standing == Standing::FromMemory));
         assert!(all.iter().any(|u| u.key == "speed.drop_per_iri"));
         // Published values (the fourth-power rule, BPR, NCHRP 720) are not listed.
-        assert!(!all.iter().any(|u| u.key.contains("load_exponent") || u.key.contains("bpr")));
+        assert!(!all
+            .iter()
+            .any(|u| u.key.contains("load_exponent") || u.key.contains("bpr")));
         m.speed.drop_per_iri = 0.04;
         let fewer = unverified(&m);
         assert_eq!(fewer.len(), all.len() - 1);
         assert!(!fewer.iter().any(|u| u.key == "speed.drop_per_iri"));
-        assert!(note(&m).unwrap().contains(&format!("{} model coefficients", fewer.len())));
+        assert!(note(&m)
+            .unwrap()
+            .contains(&format!("{} model coefficients", fewer.len())));
     }
 }

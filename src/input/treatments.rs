@@ -554,7 +554,10 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
 }
 
 /// `components = [{ name = "earthworks", share = 0.6, life_years = 40 }, …]`: shares add up to 1.
-fn read_components(v: &super::tomldoc::Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<Component>> {
+fn read_components(
+    v: &super::tomldoc::Value<'_, '_>,
+    d: &mut Diagnostics,
+) -> Option<Vec<Component>> {
     let items = v.array(d)?;
     let mut out = Vec::new();
     let mut ok = true;

@@ -92,7 +92,11 @@ fn an_overlay_lowers_roughness_and_adds_to_the_effective_structural_number() {
         // AASHTO 1993 overlay design: the layer adds to CF × SN, CF from 0.5 to 1 by the
         // traffic carried (50 mm at 0.44 per inch adds 0.866).
         let added = 50.0 / 25.4 * 0.44;
-        assert!(ov.sn[4] >= 0.5 * ov.sn[3] + added - 1e-9, "{id}: {:?}", &ov.sn[..6]);
+        assert!(
+            ov.sn[4] >= 0.5 * ov.sn[3] + added - 1e-9,
+            "{id}: {:?}",
+            &ov.sn[..6]
+        );
         assert!(ov.sn[4] <= ov.sn[3] + added + 1e-9);
         assert!(ov.capital[3] > 0.0);
         // Identical to the base before the works, bit for bit.
@@ -288,29 +292,38 @@ fn any_family() -> impl proptest::strategy::Strategy<Value = crate::input::model
             0.0f64..10.0
         )
             .prop_filter("a loss the reader accepts", |t| t.0 - 0.5 >= 0.5)
-            .prop_map(|(p0, share, zr, s0, ageing, structural_rise, load_factor)| {
-                let hi = (p0 - 0.5).min(2.7);
-                FamilyModel::Aashto93(Aashto93Params {
-                    p0,
-                    terminal_psr: p0 - (0.5 + (hi - 0.5) * share),
-                    zr,
-                    s0,
-                    ageing,
-                    structural_rise,
-                    load_factor,
-                })
-            }),
-        (0.0f64..1.0, 0.0f64..0.1, 0.0f64..50.0, 0.5f64..15.0, 0.0f64..6.0).prop_map(
-            |(rise_per_year, ageing, rise_per_mesa, sn_ref, sn_exponent)| {
-                FamilyModel::Calibrated(CalibratedParams {
-                    rise_per_year,
-                    ageing,
-                    rise_per_mesa,
-                    sn_ref,
-                    sn_exponent,
-                })
-            }
-        ),
+            .prop_map(
+                |(p0, share, zr, s0, ageing, structural_rise, load_factor)| {
+                    let hi = (p0 - 0.5).min(2.7);
+                    FamilyModel::Aashto93(Aashto93Params {
+                        p0,
+                        terminal_psr: p0 - (0.5 + (hi - 0.5) * share),
+                        zr,
+                        s0,
+                        ageing,
+                        structural_rise,
+                        load_factor,
+                    })
+                }
+            ),
+        (
+            0.0f64..1.0,
+            0.0f64..0.1,
+            0.0f64..50.0,
+            0.5f64..15.0,
+            0.0f64..6.0
+        )
+            .prop_map(
+                |(rise_per_year, ageing, rise_per_mesa, sn_ref, sn_exponent)| {
+                    FamilyModel::Calibrated(CalibratedParams {
+                        rise_per_year,
+                        ageing,
+                        rise_per_mesa,
+                        sn_ref,
+                        sn_exponent,
+                    })
+                }
+            ),
     ]
 }
 

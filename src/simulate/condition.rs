@@ -368,7 +368,14 @@ impl SectionModel {
     /// `growth` their yearly growth, which give the traffic carried since. Without an age, the
     /// age is the one at which Paterson's integrated form reaches today's roughness (within 0–80
     /// years).
-    pub fn place(&self, iri: f64, sn: f64, age: Option<f64>, esals_now: f64, growth: f64) -> Placement {
+    pub fn place(
+        &self,
+        iri: f64,
+        sn: f64,
+        age: Option<f64>,
+        esals_now: f64,
+        growth: f64,
+    ) -> Placement {
         let m = self.progression().environment();
         let snc = sn + self.snsg;
         let carried = |a: f64| -> f64 {
@@ -389,7 +396,9 @@ impl SectionModel {
             None if iri <= self.iri_new => 0.0,
             None => {
                 // predicted() is non-decreasing in whole years: the first year that reaches it.
-                (0..=80).find(|&a| predicted(f64::from(a)) >= iri).unwrap_or(80) as f64
+                (0..=80)
+                    .find(|&a| predicted(f64::from(a)) >= iri)
+                    .unwrap_or(80) as f64
             }
         };
         let esals = carried(age);
@@ -687,8 +696,11 @@ mod tests {
         let mut smooth = placed(&m, 3.0, 2.5, 20.0, 10_000.0);
         m.resurface(&mut rough, 1.4, (-50.0f64 / 40.0).exp());
         m.resurface(&mut smooth, 1.4, (-50.0f64 / 40.0).exp());
-        assert!(rough.iri > smooth.iri && smooth.iri > 1.4, "{rough:?} {smooth:?}");
-        assert_eq!(rough.age, 0.0);
+        assert!(
+            rough.iri > smooth.iri && smooth.iri > 1.4,
+            "{rough:?} {smooth:?}"
+        );
+        assert_abs_diff_eq!(rough.age, 0.0, epsilon = 0.0);
         let mut rebuilt = placed(&m, 8.0, 2.5, 20.0, 10_000.0);
         m.resurface(&mut rebuilt, 1.1, 0.0);
         m.rebuild(&mut rebuilt, 5.2);

@@ -81,12 +81,14 @@ def main():
                 rate = float(line.split("=")[1].split("#")[0])
     agency = defaultdict(list)
     users = defaultdict(list)
+    capital = defaultdict(list)
     with open(os.path.join(out, "yearly.csv")) as f:
         for r in csv.DictReader(f):
             key = (r["section_id"], r["strategy"])
             money = {k: float(r[k]) for k in
                      ["capital", "routine", "operating", "time", "crashes", "work_zone_delay", "residual"]}
             agency[key].append(money["capital"] + money["routine"] - money["residual"])
+            capital[key].append(money["capital"])
             users[key].append(money["operating"] + money["time"] + money["crashes"] + money["work_zone_delay"])
     passed = failed = 0
 
@@ -119,6 +121,15 @@ def main():
             # The IRR is written with six decimals: NPV changes sign across it within 1e-6.
             lo, hi = npf.npv(irr - 1e-6, net), npf.npv(irr + 1e-6, net)
             check(lo * hi <= 0.0, f"{key} npv does not change sign across irr {irr}: {lo}, {hi}")
+        # Capital ratios: NPV per unit of PV capital added against the base, and 1 + that.
+        d_cap = npf.npv(rate, capital[key]) - npf.npv(rate, capital[base])
+        if d_cap > 1e-9:
+            for col, want_r in (("npv_per_capital", npv / d_cap), ("bcr_capital", 1.0 + npv / d_cap)):
+                got_r = r[col]
+                check(got_r != "" and abs(float(got_r) - want_r) <= 1e-6 * max(1.0, abs(want_r)) + tol / d_cap,
+                      f"{key} {col} {got_r} vs {want_r}")
+        else:
+            check(r["npv_per_capital"] == "" and r["bcr_capital"] == "", f"{key} capital ratios without capital")
         want = fyrr(net)
         got = r["fyrr"]
         if want is None or not math.isfinite(want):
