@@ -76,7 +76,7 @@ pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncerta
                             Some(m) => format!("did you mean `{m}`?"),
                             None => "coefficients that a rule ties to another (fuel_share, \
                                      repair_share, repair_at_4/5, classes_iri, iri_max, p0, \
-                                     psr_min) stay as written"
+                                     terminal_psr) stay as written"
                                 .to_owned(),
                         });
                         None
