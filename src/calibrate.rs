@@ -177,18 +177,22 @@ impl Interval {
     }
 }
 
-fn family_of(run: &Run, section: usize) -> Option<&crate::input::models::Family> {
-    let m = &run.scenario.models.condition;
-    let s = &run.network.sections[section];
-    m.family(s.surface.as_deref().unwrap_or(&m.default_family))
-}
-
 /// The intervals of the surveys, in section and year order.
 pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
     let mut by: Vec<&Survey> = surveys.iter().collect();
     by.sort_by_key(|s| (s.section, s.year));
     let m = &run.scenario.models;
     let y0 = run.scenario.base_year;
+    // Each section's works years: its surveys' `works_year`s and the network's last works.
+    let mut works: Vec<Vec<i32>> = run
+        .network
+        .sections
+        .iter()
+        .map(|s| s.last_works_year.into_iter().collect())
+        .collect();
+    for s in surveys {
+        works[s.section].extend(s.works_year);
+    }
     let mut out = Vec::new();
     for pair in by.windows(2) {
         let (a, b) = (pair[0], pair[1]);
@@ -196,17 +200,12 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
             continue;
         }
         let sec = &run.network.sections[a.section];
-        let works: Vec<i32> = surveys
-            .iter()
-            .filter(|s| s.section == a.section)
-            .filter_map(|s| s.works_year)
-            .chain(sec.last_works_year)
-            .collect();
+        let works = &works[a.section];
         // Works in year w take effect from w + 1: a survey in year y sees them when w < y.
         if works.iter().any(|&w| w >= a.year && w < b.year) {
             continue;
         }
-        let Some(family) = family_of(run, a.section) else {
+        let Some(family) = m.condition.family_of(sec.surface.as_deref()) else {
             continue;
         };
         let mr = sec.subgrade_mr_mpa.unwrap_or(m.condition.subgrade_mr_mpa);
@@ -220,12 +219,7 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
             other => other,
         };
         let model = SectionModel::new(&unit, mr, &m.condition);
-        let lane = traffic::lane_share(
-            sec.lanes,
-            m.traffic.direction_factor,
-            &m.traffic.lane_factor,
-        );
-        let e0 = traffic::series(sec, 1, &m.traffic).esal_two_way[0] * lane;
+        let e0 = traffic::design_lane_esals(sec, &m.traffic);
         let esals_in = |y: i32| e0 * (1.0 + sec.growth_rate).max(0.01).powi(y - y0);
         let age = works
             .iter()
@@ -253,8 +247,7 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
                         rise_per_mesa: 1.0,
                         ..p
                     };
-                    sum_load +=
-                        Calibrated::load_weight(&unit, sec.structural_number) * 1e6 * e * 1e-6;
+                    sum_load += Calibrated::load_weight(&unit, sec.structural_number) * e;
                 }
                 FamilyModel::Aashto93(_) => {
                     let (env, load) = model.raw_parts(&c, e);
@@ -687,12 +680,7 @@ mod tests {
         let mut out = Vec::new();
         let m = &run.scenario.models;
         for (g, sec) in run.network.sections.iter().enumerate() {
-            let lane = traffic::lane_share(
-                sec.lanes,
-                m.traffic.direction_factor,
-                &m.traffic.lane_factor,
-            );
-            let e0 = traffic::series(sec, 1, &m.traffic).esal_two_way[0] * lane;
+            let e0 = traffic::design_lane_esals(sec, &m.traffic);
             let mut iri = 1.5 + 2.0 * r.unit();
             for y in years.clone() {
                 out.push(Survey {

@@ -187,6 +187,11 @@ impl ConditionParams {
     pub fn family(&self, name: &str) -> Option<&Family> {
         self.families.iter().find(|f| f.name == name)
     }
+
+    /// The family of a section with this `surface` (the default family when it has none).
+    pub fn family_of(&self, surface: Option<&str>) -> Option<&Family> {
+        self.family(surface.unwrap_or(&self.default_family))
+    }
 }
 
 /// How road-user costs respond to roughness, and crash rates.
@@ -637,14 +642,7 @@ fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams
 }
 
 fn read_bands(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<FlowBand>> {
-    let items = v.array(d)?;
-    let mut out = Vec::new();
-    let mut ok = true;
-    for item in &items {
-        let Some(mut t) = item.table(d) else {
-            ok = false;
-            continue;
-        };
+    let out = v.tables(d, |t, d| {
         let name = t
             .require("name", d, "a name for the band, e.g. \"peak\"")
             .and_then(|v| v.identifier(d).map(str::to_owned));
@@ -654,15 +652,12 @@ fn read_bands(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<FlowBand>> {
         let share = t
             .require("share", d, "the share of the year's traffic in the band")
             .and_then(|v| v.number_in(d, 0.0, 1.0, "a share from 0 to 1"));
-        t.finish(d);
-        match (name, hours, share) {
-            (Some(name), Some(hours), Some(share)) => out.push(FlowBand { name, hours, share }),
-            _ => ok = false,
-        }
-    }
-    if !ok {
-        return None;
-    }
+        Some(FlowBand {
+            name: name?,
+            hours: hours?,
+            share: share?,
+        })
+    })?;
     if out.is_empty() {
         d.error(v.place(), "an empty list", "at least one flow band");
         return None;

@@ -237,6 +237,30 @@ impl<'a, 'i> Value<'a, 'i> {
         }
     }
 
+    /// An array of tables, each read by `read` and then finished here. Every item is read, so
+    /// every problem is reported; `None` when the value is no array or any item failed.
+    pub fn tables<T>(
+        &self,
+        d: &mut Diagnostics,
+        mut read: impl FnMut(&mut Table<'a, 'i>, &mut Diagnostics) -> Option<T>,
+    ) -> Option<Vec<T>> {
+        let mut out = Vec::new();
+        let mut ok = true;
+        for item in &self.array(d)? {
+            let Some(mut t) = item.table(d) else {
+                ok = false;
+                continue;
+            };
+            let x = read(&mut t, d);
+            t.finish(d);
+            match x {
+                Some(x) => out.push(x),
+                None => ok = false,
+            }
+        }
+        ok.then_some(out)
+    }
+
     /// An array's items.
     pub fn array(&self, d: &mut Diagnostics) -> Option<Vec<Value<'a, 'i>>> {
         match self.value {

@@ -202,15 +202,6 @@ pub struct Routine {
     pub holding_slows: f64,
 }
 
-impl Routine {
-    /// How far holding repairs are in force at roughness `iri`: 0 below `holding_from_iri`,
-    /// 1 from one m/km above it, a smooth step between (no jump in cost or effect).
-    pub fn holding(&self, iri: f64) -> f64 {
-        let x = (iri - self.holding_from_iri).clamp(0.0, 1.0);
-        x * x * (3.0 - 2.0 * x)
-    }
-}
-
 /// The resolved catalogue.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Catalogue {
@@ -558,14 +549,7 @@ fn read_components(
     v: &super::tomldoc::Value<'_, '_>,
     d: &mut Diagnostics,
 ) -> Option<Vec<Component>> {
-    let items = v.array(d)?;
-    let mut out = Vec::new();
-    let mut ok = true;
-    for item in &items {
-        let Some(mut t) = item.table(d) else {
-            ok = false;
-            continue;
-        };
+    let out = v.tables(d, |t, d| {
         let name = t
             .require("name", d, "a name for the part, e.g. \"earthworks\"")
             .and_then(|v| v.identifier(d).map(str::to_owned));
@@ -576,19 +560,12 @@ fn read_components(
             .require("life_years", d, "the part's expected life in years")
             .and_then(|v| v.integer_in(d, 1, 120, "a whole number of years from 1 to 120"))
             .map(|x| x as u32);
-        t.finish(d);
-        match (name, share, life) {
-            (Some(name), Some(share), Some(life_years)) => out.push(Component {
-                name,
-                share,
-                life_years,
-            }),
-            _ => ok = false,
-        }
-    }
-    if !ok {
-        return None;
-    }
+        Some(Component {
+            name: name?,
+            share: share?,
+            life_years: life?,
+        })
+    })?;
     let total: f64 = out.iter().map(|c| c.share).sum();
     if out.is_empty() || (total - 1.0).abs() > 1e-6 {
         d.error(

@@ -378,30 +378,38 @@ impl SectionModel {
     ) -> Placement {
         let m = self.progression().environment();
         let snc = sn + self.snsg;
-        let carried = |a: f64| -> f64 {
-            let years = a.floor() as i64;
-            let g = (1.0 + growth).max(0.01);
-            let mut w = 0.0;
+        // ESALs carried over the last a years, for whole a (today's traffic discounted back by
+        // its growth), as one running sum.
+        let g = (1.0 + growth).max(0.01);
+        let carried_by_age = |years: usize| -> Vec<f64> {
+            let mut w = vec![0.0; years + 1];
             let mut e = esals_now.max(0.0);
-            for _ in 0..years.clamp(0, 200) {
+            for a in 1..=years {
                 e /= g;
-                w += e;
+                w[a] = w[a - 1] + e;
             }
             w
         };
         let a_coef = 263.0;
-        let predicted = |a: f64| paterson_iri(self.iri_new, snc, m, a, carried(a) * 1e-6, a_coef);
-        let age = match age {
-            Some(a) => a.max(0.0),
-            None if iri <= self.iri_new => 0.0,
+        let (age, esals) = match age {
+            Some(a) => {
+                let a = a.max(0.0);
+                let w = carried_by_age((a.floor() as usize).min(200));
+                (a, w[w.len() - 1])
+            }
+            None if iri <= self.iri_new => (0.0, 0.0),
             None => {
-                // predicted() is non-decreasing in whole years: the first year that reaches it.
-                (0..=80)
-                    .find(|&a| predicted(f64::from(a)) >= iri)
-                    .unwrap_or(80) as f64
+                // Paterson's integrated form is non-decreasing in whole years: the first year
+                // that reaches today's roughness, 80 at most.
+                let w = carried_by_age(80);
+                let a = (0..=80)
+                    .find(|&a| {
+                        paterson_iri(self.iri_new, snc, m, a as f64, w[a] * 1e-6, a_coef) >= iri
+                    })
+                    .unwrap_or(80);
+                (a as f64, w[a])
             }
         };
-        let esals = carried(age);
         let as_built = self.iri_new.min(iri);
         let ageing = ((m * age).exp() - 1.0) * as_built;
         let load = (m * age).exp() * a_coef * (1.0 + snc.max(0.0)).powi(-5) * esals * 1e-6;

@@ -24,6 +24,47 @@ pub fn routine_cost(per_lane_km: f64, per_lane_km_per_iri: f64, iri: f64, lane_k
     (per_lane_km + per_lane_km_per_iri * iri) * lane_km
 }
 
+/// Routine maintenance and the holding repairs that keep a rough road passable, as the yearly
+/// loop needs them (the catalogue's `[routine]`, money as f64): every strategy gets them,
+/// the base included.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Upkeep {
+    per_lane_km: f64,
+    per_lane_km_per_iri: f64,
+    holding_from_iri: f64,
+    holding_per_lane_km: f64,
+    holding_slows: f64,
+}
+
+impl Upkeep {
+    pub fn new(r: &crate::input::treatments::Routine) -> Upkeep {
+        Upkeep {
+            per_lane_km: r.per_lane_km.to_f64(),
+            per_lane_km_per_iri: r.per_lane_km_per_iri.to_f64(),
+            holding_from_iri: r.holding_from_iri,
+            holding_per_lane_km: r.holding_per_lane_km.to_f64(),
+            holding_slows: r.holding_slows,
+        }
+    }
+
+    /// How far holding repairs are in force at roughness `iri`: 0 below `holding_from_iri`,
+    /// 1 from one m/km above it, a smooth step between (no jump in cost or effect).
+    pub fn holding(&self, iri: f64) -> f64 {
+        let x = (iri - self.holding_from_iri).clamp(0.0, 1.0);
+        x * x * (3.0 - 2.0 * x)
+    }
+
+    /// A year at roughness `iri` on `lane_km`: the cost of routine maintenance and holding
+    /// repairs, and the share the holding repairs take off the year's rise in roughness.
+    #[inline]
+    pub fn year(&self, iri: f64, lane_km: f64) -> (f64, f64) {
+        let h = self.holding(iri);
+        let cost = routine_cost(self.per_lane_km, self.per_lane_km_per_iri, iri, lane_km)
+            + h * self.holding_per_lane_km * lane_km;
+        (cost, h * self.holding_slows)
+    }
+}
+
 /// Rise in repair and maintenance cost at roughness `iri`, as a share: none up to IRI 3, then
 /// linear to `at_4` at IRI 4 and to `at_5` at IRI 5, and held at `at_5` past 5.
 ///

@@ -158,10 +158,7 @@ pub struct SectionSim {
     crash_per_vkm: f64,
     /// Work-zone delay cost per vehicle-km of one day of works.
     delay_per_vkm: f64,
-    routine_per_lane_km: f64,
-    routine_per_lane_km_per_iri: f64,
-    routine: crate::input::treatments::Routine,
-    holding_per_lane_km: f64,
+    upkeep: costs::Upkeep,
     iri_floor: f64,
     treatments: Vec<Effect>,
     capacity: CapacityParams,
@@ -177,14 +174,10 @@ impl SectionSim {
         let m = &s.models;
         let years = s.analysis_years as usize;
         let t = traffic::series(section, years, &m.traffic);
-        let family_name = section
-            .surface
-            .as_deref()
-            .unwrap_or(&m.condition.default_family);
         // `load` checked every surface against the families; the default family exists.
         let family = m
             .condition
-            .family(family_name)
+            .family_of(section.surface.as_deref())
             .or_else(|| m.condition.families.first())
             .map(|f| f.model)
             .unwrap_or(crate::input::models::FamilyModel::Aashto93(
@@ -194,26 +187,19 @@ impl SectionSim {
             .subgrade_mr_mpa
             .unwrap_or(m.condition.subgrade_mr_mpa);
         let model = SectionModel::new(&family, mr, &m.condition);
-        let lane0 = traffic::lane_share(
-            section.lanes,
-            m.traffic.direction_factor,
-            &m.traffic.lane_factor,
-        );
+        let iri0 = section.iri.min(m.condition.iri_max);
         let age = section
             .last_works_year
             .map(|y| f64::from(s.base_year - y).max(0.0));
         let placement = model.place(
-            section.iri.min(m.condition.iri_max),
+            iri0,
             section.structural_number,
             age,
-            t.esal_two_way.first().copied().unwrap_or(0.0) * lane0,
+            t.esal_two_way.first().copied().unwrap_or(0.0)
+                * traffic::design_lane_factor(section.lanes, &m.traffic),
             section.growth_rate,
         );
-        let start = model.start(
-            section.iri.min(m.condition.iri_max),
-            section.structural_number,
-            &placement,
-        );
+        let start = model.start(iri0, section.structural_number, &placement);
         let pce_mix: f64 = VehicleClass::ALL
             .iter()
             .map(|c| t.shares[*c as usize] * m.traffic.pce.get(*c))
@@ -278,10 +264,7 @@ impl SectionSim {
             operating: costs::OperatingCurve::new(voc_weight, &m.user_costs),
             crash_per_vkm: base_rate * 1e-6 * uv.crash.to_f64(),
             delay_per_vkm: extra_h_per_km * vot,
-            routine_per_lane_km: run.catalogue.routine.per_lane_km.to_f64(),
-            routine_per_lane_km_per_iri: run.catalogue.routine.per_lane_km_per_iri.to_f64(),
-            routine: run.catalogue.routine.clone(),
-            holding_per_lane_km: run.catalogue.routine.holding_per_lane_km.to_f64(),
+            upkeep: costs::Upkeep::new(&run.catalogue.routine),
             iri_floor: m.condition.iri_floor,
             treatments,
             capacity: m.capacity,
@@ -355,13 +338,8 @@ impl SectionSim {
             }
             let iri = cond.iri;
             let lane_km = self.length_km * f64::from(lanes);
-            let holding = self.routine.holding(iri);
-            out.routine[y] += costs::routine_cost(
-                self.routine_per_lane_km,
-                self.routine_per_lane_km_per_iri,
-                iri,
-                lane_km,
-            ) + holding * self.holding_per_lane_km * lane_km;
+            let (upkeep, slow) = self.upkeep.year(iri, lane_km);
+            out.routine[y] += upkeep;
             let growth = self.aadt[y] / aadt0 * per_cap;
             let mut congestion = 0.0;
             for &(share, pc_h) in &self.bands {
@@ -377,11 +355,8 @@ impl SectionSim {
             out.iri[y] = iri;
             out.sn[y] = cond.sn;
             // 3. Ageing under the year's traffic, slowed by any holding repairs.
-            self.model.age(
-                &mut cond,
-                self.esal_two_way[y] * lane_factor,
-                holding * self.routine.holding_slows,
-            );
+            self.model
+                .age(&mut cond, self.esal_two_way[y] * lane_factor, slow);
             // 4. The works take effect.
             if count > 0 {
                 last_works = Some(y as i64);

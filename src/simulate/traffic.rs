@@ -45,6 +45,11 @@ pub fn design_lane_factor(lanes: u8, p: &TrafficParams) -> f64 {
     lane_share(lanes, p.direction_factor, &p.lane_factor)
 }
 
+/// Design-lane ESALs of a section in the base year.
+pub fn design_lane_esals(section: &Section, p: &TrafficParams) -> f64 {
+    series(section, 1, p).esal_two_way[0] * design_lane_factor(section.lanes, p)
+}
+
 /// [`design_lane_factor`] from its two coefficients.
 pub fn lane_share(lanes: u8, direction_factor: f64, lane_factor: &[f64; 4]) -> f64 {
     let per_dir = usize::from(lanes_per_direction(lanes)).min(4);
