@@ -3,7 +3,7 @@
 //! An input is named by a key path, the same as where it is written in the scenario (values in
 //! the key's own units), or by one of four whole-run inputs:
 //! - `factor.capital_cost`: a factor on every capital treatment's cost (1 = as written);
-//! - `factor.routine_cost`: a factor on routine maintenance costs;
+//! - `factor.routine_cost`: a factor on routine maintenance costs (holding repairs included);
 //! - `factor.unit_values`: a factor on every road-user unit value (time, operating, crash);
 //! - `shift.growth`: points added to every section's traffic growth rate (0.01 = one point);
 //! - `discount_rate`: the discount rate itself.
@@ -300,6 +300,7 @@ pub fn apply(run: &Run, values: &[(&str, f64)]) -> Varied {
                 let rt = &mut r.catalogue.routine;
                 rt.per_lane_km = scaled(rt.per_lane_km, x);
                 rt.per_lane_km_per_iri = scaled(rt.per_lane_km_per_iri, x);
+                rt.holding_per_lane_km = scaled(rt.holding_per_lane_km, x);
                 for t in &mut r.catalogue.treatments {
                     if t.category == crate::input::scenario::Category::Routine {
                         t.cost = scaled(t.cost, x);
@@ -389,5 +390,19 @@ mod tests {
         assert!((v.discounting().rate() - 0.08).abs() < 1e-15);
         let sec = &run.network.sections[0];
         assert!((v.section(sec).growth_rate - sec.growth_rate - 0.01).abs() < 1e-15);
+    }
+
+    #[test]
+    fn the_routine_factor_scales_every_routine_cost_holding_repairs_included() {
+        let run = demo();
+        let v = apply(&run, &[("factor.routine_cost", 1.5)]);
+        let (a, b) = (&run.catalogue.routine, &v.run.catalogue.routine);
+        for (x, y) in [
+            (a.per_lane_km, b.per_lane_km),
+            (a.per_lane_km_per_iri, b.per_lane_km_per_iri),
+            (a.holding_per_lane_km, b.holding_per_lane_km),
+        ] {
+            assert!((y.to_f64() - 1.5 * x.to_f64()).abs() < 1e-9, "{x} → {y}");
+        }
     }
 }
