@@ -435,6 +435,7 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
             .map(|x| x as u32),
         None => Some(0),
     };
+    let carry_place = t.get("carry_over").map(|v| v.place());
     let carry_over = match t.get("carry_over") {
         Some(v) => v
             .number_in(d, 0.0, 1.0, "a share from 0 to 1 of the roughness left")
@@ -464,6 +465,14 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
         }
         _ => None, // the value itself was bad and is already reported
     };
+    if let (Some(IriEffect::Reduce(_)), Some(p)) = (&iri, &carry_place) {
+        d.error(
+            p.clone(),
+            "carry_over beside iri_reduction",
+            "carry_over only with iri_after (a reduction leaves the rest of the roughness already)",
+        );
+        return None;
+    }
     let structure = match (&thickness, &coefficient, &sn_after) {
         (None, None, None) => Some(StructuralEffect::None),
         (Some((_, Some(h))), Some((_, Some(a))), None) => Some(StructuralEffect::Layer {
@@ -665,5 +674,12 @@ work_zone_days = 120
         ] {
             assert!(t.contains(want), "missing {want} in\n{t}");
         }
+        // A share of roughness carried over means nothing beside a reduction.
+        let bad = GOOD.replace("iri_after = 2.2\n", "iri_reduction = 1\ncarry_over = 0.3\n");
+        let mut d = Diagnostics::new();
+        assert!(parse("t.toml", &bad, &mut d).0.is_none());
+        let t = d.to_string();
+        assert!(t.contains("carry_over beside iri_reduction"), "{t}");
+        assert!(d.errors().iter().all(|e| e.place.line.is_some()), "{t}");
     }
 }
