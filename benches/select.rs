@@ -13,7 +13,7 @@ use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
 use pavestrat::input::{self, network, scenario};
 use pavestrat::plan::{candidates, select, Settings};
-use pavestrat::select::network::{exact, relative_gap, Method, Options};
+use pavestrat::select::network::{exact, relative_gap, Exact, Method, Options};
 use std::path::Path;
 use std::time::{Duration, Instant};
 
@@ -92,13 +92,13 @@ fn main() {
         let got = exact(problem.clone(), None, time, 1e-4);
         let spent = t.elapsed().as_secs_f64();
         match got {
-            Some((x, proven)) => println!(
+            Exact::Found(x, proven) => println!(
                 "  {n} sections, exact alone, {:.2} s allowed: {spent:.2} s, gap {:.2e} against the decomposed bound{}",
                 time.as_secs_f64(),
                 relative_gap(problem.plan_value(&x), bound),
                 if proven { " (proven)" } else { "" }
             ),
-            None => println!(
+            Exact::Infeasible | Exact::Nothing => println!(
                 "  {n} sections, exact alone, {:.2} s allowed: no plan ({spent:.2} s)",
                 time.as_secs_f64()
             ),

@@ -97,7 +97,7 @@ pub fn frontier(
     // The best plan so far and its value (internal sign: larger is better).
     let mut carried: Option<(Vec<u16>, f64)> = None;
     for &(level, unlimited) in &wanted {
-        c.set_budget_level(run, level, &scaled);
+        c.set_budget_level(run, level, &scaled)?;
         let total_budget: f64 = c
             .rows
             .iter()

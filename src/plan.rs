@@ -10,6 +10,12 @@
 //! a section's agency spending of its category in its year when the section is in its region (or
 //! the line has none); each section-year amount is rounded to the cent, the unit of the work
 //! programme. The residual value is credited after the period and counts against no line.
+//!
+//! Every row counts in exact integers: budget lines in cents, condition targets in millionths
+//! of a km (poor share) or of a km·m/km (mean IRI), each section's amount rounded once to that
+//! unit. A line's limit becomes the largest whole number of units within it (cents are whole,
+//! so for money this is the limit exactly), so the selection solves the problem the user
+//! stated, with no margin, and its bound and statuses are statements about that problem.
 
 use crate::diag::{Diagnostics, Place};
 use crate::economics::Discounting;
@@ -21,7 +27,7 @@ use crate::input::Run;
 use crate::money::Money;
 use crate::progress::Progress;
 use crate::select::network::{self, Infeasible, Options, Outcome};
-use crate::select::problem::{Offer, Problem};
+use crate::select::problem::{Offer, Problem, ProblemError};
 use crate::simulate::condition::{classify, ConditionClass};
 use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
@@ -42,6 +48,12 @@ pub enum RowKind {
     Target(usize),
 }
 
+/// Row units per money unit: budget lines count cents.
+pub const MONEY_UNITS: f64 = 100.0;
+/// Row units per km (poor share) or per km·m/km (mean IRI): target rows count millionths, fine
+/// enough that rounding each section's amount moves a network's mean IRI by less than 10⁻⁶ m/km.
+pub const TARGET_UNITS: f64 = 1e6;
+
 /// One row of the selection.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Row {
@@ -50,10 +62,41 @@ pub struct Row {
     /// The limit as the scenario gives it (after `--budget-scale`): money for budget lines;
     /// for targets, the measure's limit (m/km or share).
     pub limit: f64,
-    /// The limit in the row's own units (targets: length-weighted, km·m/km or km).
+    /// The limit in the row's own measure (targets: length-weighted, km·m/km or km).
     pub row_limit: f64,
     /// Exact limit of a budget line.
     pub money: Option<Money>,
+    /// The limit in whole row units (see [`MONEY_UNITS`], [`TARGET_UNITS`]): what the
+    /// selection holds exactly.
+    pub limit_units: i64,
+}
+
+impl Row {
+    /// Row units per unit of the row's measure.
+    pub fn units(&self) -> f64 {
+        match self.kind {
+            RowKind::Budget(_) => MONEY_UNITS,
+            RowKind::Target(_) => TARGET_UNITS,
+        }
+    }
+
+    /// An amount in row units, in the row's measure (money, km·m/km or km).
+    pub fn measure(&self, units: i64) -> f64 {
+        units as f64 / self.units()
+    }
+}
+
+/// `x` (in a row's measure) in whole row units, rounded to the nearest. A value that is not
+/// finite or is beyond the supported range becomes `i64::MAX` (or `MIN`), which the selection
+/// refuses with the row's name rather than wrapping.
+fn to_units(x: f64, per: f64) -> i64 {
+    let v = (x * per).round();
+    if v.is_nan() {
+        i64::MAX
+    } else {
+        // `as` saturates at the ends of the range.
+        v as i64
+    }
 }
 
 /// Every section's candidates, ready for selection.
@@ -135,12 +178,8 @@ impl Candidates {
     }
 }
 
-fn cents(x: f64) -> f64 {
-    (x * 100.0).round() / 100.0
-}
-
-/// A section's use of each row by one strategy's trace, as sparse (row, use).
-pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, f64)>) {
+/// A section's use of each row by one strategy's trace, as sparse (row, use in row units).
+pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, i64)>) {
     out.clear();
     let s = &run.scenario;
     let y0 = s.base_year;
@@ -157,7 +196,7 @@ pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u1
                     Category::Routine => t.routine[i],
                     Category::All => t.capital[i] + t.routine[i],
                 };
-                cents(x)
+                to_units(x, MONEY_UNITS)
             }
             RowKind::Target(k) => {
                 let line = &s.plan.targets[k];
@@ -166,18 +205,18 @@ pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u1
                 }
                 let iri = t.iri[(line.year - y0) as usize];
                 match line.measure {
-                    Measure::MeanIri => sec.length_km * iri,
+                    Measure::MeanIri => to_units(sec.length_km * iri, TARGET_UNITS),
                     Measure::PoorShare => {
                         if classify(iri, &s.models.condition) == ConditionClass::Poor {
-                            sec.length_km
+                            to_units(sec.length_km, TARGET_UNITS)
                         } else {
-                            0.0
+                            0
                         }
                     }
                 }
             }
         };
-        if u != 0.0 {
+        if u != 0 {
             out.push((j as u16, u));
         }
     }
@@ -193,32 +232,71 @@ pub fn target_length(run: &Run, t: &crate::input::plan::TargetLine) -> f64 {
         .sum()
 }
 
-/// The rows of a run: its budget lines (scaled) and target lines.
-pub fn rows(run: &Run, budget_scale: f64) -> Vec<Row> {
+/// The rows of a run: its budget lines (scaled) and target lines. A scaled limit that passes
+/// the largest supported amount is an input error naming its line.
+pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Error> {
     let s = &run.scenario;
     let mut rows = Vec::new();
+    let mut d = Diagnostics::new();
     let scale = Decimal::try_from(budget_scale).unwrap_or(Decimal::ONE);
+    let most = Decimal::from(crate::select::problem::MAX_ROW_TOTAL) / Decimal::ONE_HUNDRED;
     for (b, line) in s.budget_lines.iter().enumerate() {
-        let m = Money((line.limit.0 * scale).round_dp(2));
+        // Spending is whole cents, so the largest whole number of cents within the limit is
+        // the same limit.
+        let m = line
+            .limit
+            .0
+            .checked_mul(scale)
+            .map(|x| {
+                x.round_dp_with_strategy(2, rust_decimal::RoundingStrategy::ToNegativeInfinity)
+            })
+            .filter(|x| x.abs() <= most);
+        let Some(m) = m else {
+            d.error(
+                line.place.clone().with_subfield("limit"),
+                format!(
+                    "`{}` limit {} × budget scale {budget_scale}, beyond the largest supported amount",
+                    line.name, line.limit.0
+                ),
+                format!("a limit of at most {} (money units)", most.normalize()),
+            );
+            continue;
+        };
+        let m = Money(m);
+        let cents = (m.0 * Decimal::ONE_HUNDRED).trunc();
         rows.push(Row {
             name: line.name.clone(),
             kind: RowKind::Budget(b),
             limit: m.to_f64(),
             row_limit: m.to_f64(),
             money: Some(m),
+            limit_units: i64::try_from(cents).unwrap_or(i64::MAX),
         });
     }
     for (k, t) in s.plan.targets.iter().enumerate() {
         let length = target_length(run, t);
+        let row_limit = t.at_most * length;
+        // The largest whole number of units within the limit (a hair of float noise in the
+        // product is not allowed to cut a unit off a limit that is whole).
+        let raw = row_limit * TARGET_UNITS;
+        let units = (raw + 1e-9 * raw.abs()).floor();
         rows.push(Row {
             name: t.name.clone(),
             kind: RowKind::Target(k),
             limit: t.at_most,
-            row_limit: t.at_most * length,
+            row_limit,
             money: None,
+            limit_units: if units.is_finite() {
+                units as i64
+            } else {
+                i64::MAX
+            },
         });
     }
-    rows
+    if d.has_errors() {
+        return Err(crate::error::Error::Input(d));
+    }
+    Ok(rows)
 }
 
 struct SectionCands {
@@ -353,16 +431,8 @@ pub fn candidates_with(
     progress: &Progress,
 ) -> Result<Candidates, crate::error::Error> {
     let e = Enumerator::for_run(run);
-    let rows = rows(run, settings.budget_scale);
-    // Money rows get a margin of a cent and a part in 10⁹ below their limit, so that the
-    // selection's floating-point sums can never pass a limit the exact re-check holds.
-    let limits: Vec<f64> = rows
-        .iter()
-        .map(|r| match r.kind {
-            RowKind::Budget(_) => r.row_limit - 0.01 - 2e-9 * r.row_limit.abs(),
-            RowKind::Target(_) => r.row_limit,
-        })
-        .collect();
+    let rows = rows(run, settings.budget_scale)?;
+    let limits: Vec<i64> = rows.iter().map(|r| r.limit_units).collect();
     let held = commitments(run);
     let secs = &run.network.sections;
     type ChunkOut = (
@@ -374,7 +444,7 @@ pub fn candidates_with(
         Vec<(u32, f64, f64)>,
         Vec<f64>,
         Vec<(Place, String, String)>,
-        Option<String>,
+        Option<(String, ProblemError)>,
     );
     let mut out = Candidates {
         rows,
@@ -426,7 +496,7 @@ pub fn candidates_with(
                             }
                         }
                         Err(err) => {
-                            fault.get_or_insert(format!("section {}: {err}", sec.id));
+                            fault.get_or_insert((sec.id.0.clone(), err));
                         }
                     }
                 }
@@ -434,13 +504,15 @@ pub fn candidates_with(
             })
             .collect();
         for (p, st, npv, pva, en, un, bp, problems, fault) in chunks {
-            if let Some(f) = fault {
-                return Err(crate::error::Error::Internal(f));
+            if let Some((section, err)) = fault {
+                return Err(too_large(run, &rows, &section, err));
             }
             for (place, found, expected) in problems {
                 d.error(place, found, expected);
             }
-            out.problem.append(p);
+            if let Err(err) = out.problem.append(p) {
+                return Err(too_large(run, &rows, "(all sections together)", err));
+            }
             out.strategy.extend(st);
             out.npv.extend(npv);
             out.pv_agency.extend(pva);
@@ -453,6 +525,33 @@ pub fn candidates_with(
         return Err(crate::error::Error::Input(d));
     }
     Ok(out)
+}
+
+/// A group the selection could not take: a row whose amounts pass the supported range is the
+/// input's fault (huge costs or limits) and names the line; anything else is internal.
+fn too_large(run: &Run, rows: &[Row], section: &str, err: ProblemError) -> crate::error::Error {
+    let ProblemError::TooLarge(j) = err else {
+        return crate::error::Error::Internal(format!("section {section}: {err}"));
+    };
+    let row = &rows[j];
+    let place = match row.kind {
+        RowKind::Budget(b) => run.scenario.budget_lines[b].place.clone(),
+        RowKind::Target(k) => run.scenario.plan.targets[k].place.clone(),
+    };
+    let most = crate::select::problem::MAX_ROW_TOTAL as f64 / row.units();
+    let mut d = Diagnostics::new();
+    d.error(
+        place,
+        format!(
+            "`{}`: the amounts the sections could put on this line (section {section} and those before it) pass the largest supported total",
+            row.name
+        ),
+        format!(
+            "costs and limits whose totals over the network stay below {} — check the treatment costs and unit values for a misplaced decimal point",
+            crate::money::grouped(most, 0)
+        ),
+    );
+    crate::error::Error::Input(d)
 }
 
 /// Build the candidates, select, and re-check the plan exactly.
@@ -495,9 +594,14 @@ impl Candidates {
     /// Set every budget line's limit to the scenario's limit × `level` where `scaled(row)` says
     /// so, and to the scenario's own limit elsewhere (targets are never scaled). The selection
     /// keeps the same margin below each money limit as [`candidates`] does.
-    pub fn set_budget_level(&mut self, run: &Run, level: f64, scaled: &dyn Fn(&Row) -> bool) {
-        let full = rows(run, 1.0);
-        let at_level = rows(run, level);
+    pub fn set_budget_level(
+        &mut self,
+        run: &Run,
+        level: f64,
+        scaled: &dyn Fn(&Row) -> bool,
+    ) -> Result<(), crate::error::Error> {
+        let full = rows(run, 1.0)?;
+        let at_level = rows(run, level)?;
         for (j, row) in self.rows.iter_mut().enumerate() {
             if let RowKind::Budget(_) = row.kind {
                 *row = if scaled(&full[j]) {
@@ -505,22 +609,23 @@ impl Candidates {
                 } else {
                     full[j].clone()
                 };
-                self.problem.limits[j] = row.row_limit - 0.01 - 2e-9 * row.row_limit.abs();
+                self.problem.limits[j] = row.limit_units;
             }
         }
+        Ok(())
     }
 
     /// The most each row could be used: every section at its candidate using the row most.
-    pub fn largest_use(&self) -> Vec<f64> {
-        let mut most = vec![0.0; self.rows.len()];
-        let mut here = vec![0.0_f64; self.rows.len()];
+    pub fn largest_use(&self) -> Vec<i64> {
+        let mut most = vec![0i64; self.rows.len()];
+        let mut here = vec![0i64; self.rows.len()];
         for g in 0..self.sections() {
-            here.iter_mut().for_each(|x| *x = 0.0);
+            here.iter_mut().for_each(|x| *x = 0);
             for cand in self.problem.candidates(g) {
                 let (rs, vs) = self.problem.uses(cand);
                 for (&j, &x) in rs.iter().zip(vs) {
                     let h = &mut here[j as usize];
-                    *h = h.max(x);
+                    *h = (*h).max(x);
                 }
             }
             for (m, h) in most.iter_mut().zip(&here) {
@@ -537,15 +642,17 @@ impl Candidates {
         let most = self.largest_use();
         let mut level: f64 = 0.0;
         for (row, m) in self.rows.iter().zip(most) {
-            if !matches!(row.kind, RowKind::Budget(_)) || !scaled(row) || m <= 0.0 {
+            if !matches!(row.kind, RowKind::Budget(_)) || !scaled(row) || m <= 0 {
                 continue;
             }
             let base = row.money.map(Money::to_f64).unwrap_or(row.row_limit);
             if base <= 0.0 {
                 return None;
             }
-            // A cent of headroom per line, beyond the selection's own margin.
-            level = level.max((m + 0.02 + 3e-9 * m) / base);
+            // A part in 10⁹ of headroom, so that the scaled limit rounded down to the cent
+            // still covers the most the line could count.
+            let m = row.measure(m);
+            level = level.max(m * (1.0 + 1e-9) / base + 0.01 / base);
         }
         Some(level)
     }
@@ -644,24 +751,25 @@ pub fn condition_series(run: &Run, c: &Candidates, plan: &[u16]) -> ConditionSer
 
 fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error {
     let money = &run.scenario.money_label;
-    let describe = |j: usize, amount: f64, verb: &str| -> String {
+    let describe = |j: usize, amount: i64, verb: &str| -> String {
         let row = &c.rows[j];
         match row.kind {
             RowKind::Budget(_) => format!(
                 "{}: limit {} {money}, {verb} {} {money}",
                 row.name,
-                crate::money::grouped(row.row_limit, 2),
-                crate::money::grouped(amount, 2)
+                crate::money::grouped(row.measure(row.limit_units), 2),
+                crate::money::grouped(row.measure(amount), 2)
             ),
             RowKind::Target(k) => {
                 let t = &run.scenario.plan.targets[k];
-                let per = if row.row_limit > 0.0 {
-                    amount / (row.row_limit / t.at_most.max(f64::MIN_POSITIVE))
+                let length = target_length(run, t);
+                let per = if length > 0.0 {
+                    row.measure(amount) / length
                 } else {
-                    amount
+                    0.0
                 };
                 format!(
-                    "{}: {} at most {}, {verb} {:.4}",
+                    "{}: {} at most {}, {verb} {:.6}",
                     row.name,
                     t.measure.name(),
                     t.at_most,
@@ -688,7 +796,20 @@ fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error
                 .map(|&(j, used)| describe(j, used, "closest plan found"))
                 .collect();
             format!(
-                "no plan was found that meets every line together; the closest plan found breaks:\n  {}",
+                "each line can be met on its own, but a complete search proved that no plan meets \
+                 them all together; the closest plan found breaks:\n  {}",
+                lines.join("\n  ")
+            )
+        }
+        Infeasible::NotFound(rows) => {
+            let lines: Vec<String> = rows
+                .iter()
+                .map(|&(j, used)| describe(j, used, "closest plan found"))
+                .collect();
+            format!(
+                "no plan meeting every line together was found within the time limit, though none \
+                 was proven impossible (give it more time with --time-limit, or loosen these \
+                 lines); the closest plan found breaks:\n  {}",
                 lines.join("\n  ")
             )
         }
@@ -729,10 +850,11 @@ pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate
                 uses(run, &c.rows, sec, &t, &mut u);
                 for &(j, x) in &u {
                     match c.rows[j as usize].kind {
+                        // Cents to decimal money: exact.
                         RowKind::Budget(b) => {
-                            spent[b] += Money::from_f64_rounded(x).map_or(Decimal::MAX, |m| m.0)
+                            spent[b] = spent[b].saturating_add(Decimal::new(x, 2))
                         }
-                        RowKind::Target(k) => target[k] += x,
+                        RowKind::Target(k) => target[k] += c.rows[j as usize].measure(x),
                     }
                 }
             }

@@ -84,17 +84,17 @@ pub fn check_size(layout: &Layout, draws: u64) -> Result<()> {
 }
 
 /// The budget rows a run's plan spends against.
-fn budget_rows(run: &Run) -> Vec<Row> {
-    crate::plan::rows(run, 1.0)
+fn budget_rows(run: &Run) -> Result<Vec<Row>, crate::error::Error> {
+    Ok(crate::plan::rows(run, 1.0)?
         .into_iter()
         .filter(|r| matches!(r.kind, RowKind::Budget(_)))
-        .collect()
+        .collect())
 }
 
 /// The layout of a run under a held plan.
-pub fn layout(run: &Run, held: &HeldPlan) -> Layout {
-    let rows = budget_rows(run);
-    Layout {
+pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error> {
+    let rows = budget_rows(run)?;
+    Ok(Layout {
         sections: run
             .network
             .sections
@@ -116,7 +116,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Layout {
             .map(|u| format!("{} ({})", u.input, u.distribution.name()))
             .collect(),
         money: run.scenario.money_label.clone(),
-    }
+    })
 }
 
 /// Compute one draw into `out` (length [`Layout::width`]).
@@ -159,7 +159,7 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [
                 let tr = if i == 0 { &base } else { &t };
                 crate::plan::uses(run, rows, &s2, tr, &mut u);
                 for &(j, x) in &u {
-                    spend[j as usize] += x;
+                    spend[j as usize] += rows[j as usize].measure(x);
                 }
             }
         }
@@ -175,10 +175,10 @@ pub fn simulate(
     first: u64,
     draws: u64,
     progress: &Progress,
-) -> Slice {
-    let layout = layout(run, held);
+) -> Result<Slice, crate::error::Error> {
+    let layout = layout(run, held)?;
     let width = layout.width();
-    let rows = budget_rows(run);
+    let rows = budget_rows(run)?;
     let mut values = vec![0.0; width * draws as usize];
     values
         .par_chunks_mut(width.max(1))
@@ -187,13 +187,13 @@ pub fn simulate(
             draw(run, held, &rows, seed, first + i as u64, out);
             progress.inc(1);
         });
-    Slice {
+    Ok(Slice {
         seed,
         first,
         draws,
         layout,
         values,
-    }
+    })
 }
 
 const MAGIC: &[u8] = b"PAVESTRAT-RISK-SLICE 1\n";

@@ -298,3 +298,124 @@ fn least_cost_meets_the_targets() {
         assert!(a <= 0.10 + 1e-9, "{}: {a}", t["line"]);
     }
 }
+
+/// A scenario with every `[[budget]]` and `[[target]]` entry replaced by `budget`.
+fn with_budget(scenario: &str, budget: &str) -> String {
+    let mut out = String::new();
+    let mut skipping = false;
+    for line in scenario.lines() {
+        let t = line.trim_start();
+        if t.starts_with("[[budget]]") || t.starts_with("[[target]]") {
+            skipping = true;
+            continue;
+        }
+        if skipping && (t.is_empty() || t.starts_with('[')) {
+            skipping = false;
+        }
+        if !skipping {
+            out.push_str(line);
+            out.push('\n');
+        }
+    }
+    out.push_str(budget);
+    out
+}
+
+#[test]
+fn a_line_limited_to_exactly_one_candidates_cost_is_met_with_it() {
+    // Three sections and one capital line in 2027. With the limit set to exactly what the most
+    // valuable 2027-spending candidate costs, that candidate (with every other section at its
+    // base) fits, so the plan is worth at least its NPV, and the bound is at least that much.
+    let wd = Workdir::new();
+    wd.run(&["init", "--sections", "3", "--seed", "4", "net"])
+        .expect_code(0);
+    let line = |limit: &str| {
+        format!(
+            "\n[[budget]]\nname = \"works\"\ncategory = \"capital\"\nfirst_year = 2027\nlast_year = 2027\nper_year = \"{limit}\"\n"
+        )
+    };
+    let original = wd.read("net/scenario.toml");
+    wd.write(
+        "net/scenario.toml",
+        with_budget(&original, &line("1000000000")),
+    );
+    wd.run(&["plan", "--scenario", "net/scenario.toml", "--out", "wide"])
+        .expect_code(0);
+    let cands = rows(&wd.read("wide/candidates.csv"));
+    let best = cands
+        .iter()
+        .filter(|c| cents(&c["cost:works-2027"]) > 0)
+        .max_by(|a, b| {
+            let (x, y): (f64, f64) = (a["npv"].parse().unwrap(), b["npv"].parse().unwrap());
+            x.total_cmp(&y)
+        })
+        .expect("some candidate spends in 2027")
+        .clone();
+    let npv: f64 = best["npv"].parse().unwrap();
+    let limit = &best["cost:works-2027"];
+    for (name, text) in [
+        ("exact", limit.clone()),
+        ("a cent more", {
+            let c = cents(limit) + 1;
+            format!("{}.{:02}", c / 100, c % 100)
+        }),
+    ] {
+        wd.write("net/scenario.toml", with_budget(&original, &line(&text)));
+        for method in ["auto", "exact", "decomposed"] {
+            let out = format!("tight-{method}");
+            let _ = std::fs::remove_dir_all(wd.join(&out));
+            wd.run(&[
+                "plan",
+                "--scenario",
+                "net/scenario.toml",
+                "--method",
+                method,
+                "--out",
+                &out,
+            ])
+            .expect_code(0);
+            let s = summary(&wd, &out);
+            let objective = s["objective"].as_f64().unwrap();
+            let bound = s["bound"].as_f64().unwrap();
+            assert!(
+                objective >= npv - 0.01,
+                "{name}, {method}: plan {objective} below the fitting candidate's {npv} ({} at {limit})",
+                best["strategy"]
+            );
+            assert!(
+                bound >= objective - 0.01,
+                "{name}, {method}: bound {bound} < {objective}"
+            );
+            let used = rows(&wd.read(&format!("{out}/budget_use.csv")));
+            assert!(cents(&used[0]["used"]) <= cents(&used[0]["limit"]));
+            assert_eq!(cents(&used[0]["limit"]), cents(&text));
+        }
+    }
+}
+
+#[test]
+fn a_zero_line_that_no_section_must_spend_on_is_feasible() {
+    let wd = Workdir::new();
+    wd.run(&["init", "--sections", "3", "--seed", "4", "net"])
+        .expect_code(0);
+    let original = wd.read("net/scenario.toml");
+    let line = "\n[[budget]]\nname = \"works\"\ncategory = \"capital\"\nfirst_year = 2027\nlast_year = 2031\nper_year = \"900000\"\nyears = { 2030 = \"0\" }\n";
+    wd.write("net/scenario.toml", with_budget(&original, line));
+    wd.run(&["plan", "--scenario", "net/scenario.toml", "--out", "a"])
+        .expect_code(0);
+    let used = rows(&wd.read("a/budget_use.csv"));
+    let zero = used.iter().find(|u| u["line"] == "works-2030").unwrap();
+    assert_eq!(cents(&zero["used"]), 0);
+    // The budget scale 0, which the help allows, makes every line zero: the base spends no
+    // capital, so the plan is the base and it is feasible.
+    wd.run(&[
+        "plan",
+        "--scenario",
+        "net/scenario.toml",
+        "--budget-scale",
+        "0",
+        "--out",
+        "b",
+    ])
+    .expect_code(0);
+}

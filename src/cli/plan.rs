@@ -349,9 +349,9 @@ fn write_files(
                     chosen_name == un_name
                 );
                 let mut cs = String::new();
-                let mut dense = vec![0.0; c.rows.len()];
+                let mut dense = vec![0i64; c.rows.len()];
                 for cand in c.problem.candidates(g) {
-                    dense.iter_mut().for_each(|x| *x = 0.0);
+                    dense.iter_mut().for_each(|x| *x = 0);
                     let (rs, vs) = c.problem.uses(cand);
                     for (&j, &x) in rs.iter().zip(vs) {
                         dense[j as usize] = x;
@@ -365,13 +365,15 @@ fn write_files(
                         Amount(c.pv_agency[cand])
                     );
                     for (j, x) in dense.iter().enumerate() {
-                        match (c.rows[j].kind.clone(), *x == 0.0) {
+                        // The selection's own integers, written exactly: cents as money,
+                        // millionths as the target's measure.
+                        match (c.rows[j].kind.clone(), *x == 0) {
                             (_, true) => cs.push_str(",0"),
                             (RowKind::Budget(_), false) => {
-                                let _ = write!(cs, ",{}", Amount(*x));
+                                let _ = write!(cs, ",{}", rust_decimal::Decimal::new(*x, 2));
                             }
                             (RowKind::Target(_), false) => {
-                                let _ = write!(cs, ",{x:.6}");
+                                let _ = write!(cs, ",{}", rust_decimal::Decimal::new(*x, 6));
                             }
                         }
                     }

@@ -75,9 +75,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             ));
         }
         let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
-        crate::risk::check_size(&crate::risk::layout(&run, &held), args.draws)?;
+        crate::risk::check_size(&crate::risk::layout(&run, &held)?, args.draws)?;
         let bar = ctx.progress.bar("risk", args.draws, "draws");
-        let s = simulate(&run, &held, args.seed, args.first_draw, args.draws, &bar);
+        let s = simulate(&run, &held, args.seed, args.first_draw, args.draws, &bar)?;
         bar.finish();
         s
     } else {

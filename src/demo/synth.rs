@@ -142,12 +142,16 @@ pub fn synthetic_files(n: usize, seed: u64) -> (String, String) {
 /// The demo scenario with every budget amount (`per_year` and single-year `years` limits)
 /// multiplied by `factor`, rounded to whole units: budgets for a synthetic network of another
 /// size. A `[[budget]]` entry with a `region` is multiplied by `regional(region)` instead, so
-/// that regional lines follow the number of sections the draw put in each region. Commitments
+/// that regional lines follow the number of sections the draw put in each region; an entry whose
+/// region got no section is left out. Commitments
 /// are left out: they name the demo's own sections.
 pub fn scaled_scenario(text: &str, factor: f64, regional: &dyn Fn(&str) -> f64) -> String {
     // Each line's factor: that of the [[budget]] entry it belongs to.
     let lines: Vec<&str> = text.lines().collect();
     let mut factors = vec![factor; lines.len()];
+    // Regional entries whose region has no section in the drawn network are left out (the
+    // scenario would be refused: a line for a region the network does not have).
+    let mut skip = vec![false; lines.len()];
     let mut i = 0;
     while i < lines.len() {
         if lines[i].trim_start().starts_with("[[budget]]") {
@@ -167,8 +171,10 @@ pub fn scaled_scenario(text: &str, factor: f64, regional: &dyn Fn(&str) -> f64) 
                 Some(t.trim().split('"').nth(1)?.to_owned())
             });
             if let Some(r) = region {
-                for f in &mut factors[i..end] {
-                    *f = regional(&r);
+                let f = regional(&r);
+                for (x, s) in factors[i..end].iter_mut().zip(&mut skip[i..end]) {
+                    *x = f;
+                    *s = f <= 0.0;
                 }
             }
             i = end;
@@ -179,7 +185,10 @@ pub fn scaled_scenario(text: &str, factor: f64, regional: &dyn Fn(&str) -> f64) 
     let mut out = String::with_capacity(text.len());
     // Commitments name the demo's sections, which a synthetic network does not have.
     let mut in_commit = false;
-    for (line, factor) in lines.iter().copied().zip(factors) {
+    for ((line, factor), skip) in lines.iter().copied().zip(factors).zip(skip) {
+        if skip {
+            continue;
+        }
         let scale = |amount: &str| -> String {
             match amount.parse::<f64>() {
                 Ok(x) => format!("{:.0}", x * factor),

@@ -16,25 +16,30 @@ use std::time::Instant;
 pub struct Searched {
     pub plan: Vec<u16>,
     pub value: f64,
-    /// `true` when every branch was explored or pruned: the plan is optimal.
+    /// `true` when every branch was explored or pruned: the plan is optimal (or, when none was
+    /// found, no plan fits).
     pub complete: bool,
+    /// `false` when there was no incumbent and the search found no plan that fits.
+    pub found: bool,
     pub nodes: u64,
 }
 
 /// Search for a plan better than `incumbent` (which must fit), bounded by L(`prices`) =
-/// `bound`. Stops at `deadline` or after `max_nodes` nodes.
+/// `bound`; with no incumbent, for any plan that fits and then better ones (a complete search
+/// that finds none proves that no plan fits). Stops at `deadline` or after `max_nodes` nodes.
 pub fn search(
     p: &Problem,
     prices: &[f64],
     bound: f64,
-    incumbent: &[u16],
+    incumbent: Option<&[u16]>,
     deadline: Instant,
     max_nodes: u64,
 ) -> Searched {
     let groups = p.groups();
     let rows = p.rows();
-    let mut best_plan = incumbent.to_vec();
-    let mut best_value = p.plan_value(incumbent);
+    let mut best_plan = incumbent.map_or_else(|| vec![0; groups], <[u16]>::to_vec);
+    let mut found = incumbent.is_some();
+    let mut best_value = incumbent.map_or(f64::NEG_INFINITY, |i| p.plan_value(i));
     // Each group's candidates by reduced-value loss, ascending.
     let mut options: Vec<Vec<(f64, u16)>> = Vec::with_capacity(groups);
     for g in 0..groups {
@@ -54,28 +59,27 @@ pub fn search(
     let second = |g: usize| options[g].get(1).map_or(f64::INFINITY, |x| x.0);
     order.sort_by(|&a, &b| second(a).total_cmp(&second(b)).then(a.cmp(&b)));
     // Least use of each row by the groups from depth d on.
-    let mut rest = vec![vec![0.0; rows]; groups + 1];
+    let mut rest = vec![vec![0i64; rows]; groups + 1];
     for d in (0..groups).rev() {
         let g = order[d];
-        let mut least = vec![f64::INFINITY; rows];
+        let mut least = vec![i64::MAX; rows];
         for c in p.candidates(g) {
-            let mut u = vec![0.0; rows];
+            let mut u = vec![0i64; rows];
             let (rs, vs) = p.uses(c);
             for (&j, &x) in rs.iter().zip(vs) {
                 u[j as usize] = x;
             }
             for (l, x) in least.iter_mut().zip(u) {
-                *l = l.min(x);
+                *l = (*l).min(x);
             }
         }
         for j in 0..rows {
             rest[d][j] = rest[d + 1][j] + least[j];
         }
     }
-    let tol: Vec<f64> = p.limits.iter().map(|l| 1e-9 * l.abs().max(1.0)).collect();
-    let eps = 1e-9 * bound.abs().max(1.0);
+    let eps = tolerance(bound);
 
-    let mut used = vec![0.0; rows];
+    let mut used = vec![0i64; rows];
     let mut choice = vec![0u16; groups];
     // Stack of (depth, next option index to try at that depth).
     let mut next = vec![0usize; groups + 1];
@@ -87,7 +91,8 @@ pub fn search(
     loop {
         if d == groups {
             // A complete plan that fits (checked on the way down).
-            if value_at[d] > best_value + eps {
+            if !found || value_at[d] > best_value + eps {
+                found = true;
                 best_value = value_at[d];
                 for (i, &g) in order.iter().enumerate() {
                     best_plan[g] = choice[i];
@@ -106,7 +111,7 @@ pub fn search(
             let (loss, k) = options[g][next[d]];
             next[d] += 1;
             nodes += 1;
-            if bound - (loss_at[d] + loss) <= best_value + eps {
+            if found && bound - (loss_at[d] + loss) <= best_value + eps {
                 // Options are in loss order: the rest of this group cannot do better.
                 next[d] = options[g].len();
                 break;
@@ -116,7 +121,8 @@ pub fn search(
             for (&j, &x) in rs.iter().zip(vs) {
                 used[j as usize] += x;
             }
-            let fits = (0..rows).all(|j| used[j] + rest[d + 1][j] <= p.limits[j] + tol[j]);
+            // Exact: uses are integers (see `Problem`).
+            let fits = (0..rows).all(|j| used[j] + rest[d + 1][j] <= p.limits[j]);
             if fits {
                 choice[d] = k;
                 loss_at[d + 1] = loss_at[d] + loss;
@@ -148,11 +154,18 @@ pub fn search(
         plan: best_plan,
         value: best_value,
         complete,
+        found,
         nodes,
     }
 }
 
-fn undo(p: &Problem, used: &mut [f64], g: usize, k: u16) {
+/// How much better than the best plan a branch must be able to get to be explored: a plan the
+/// search calls optimal is within this of the optimum.
+pub fn tolerance(bound: f64) -> f64 {
+    1e-10 * bound.abs().max(1.0)
+}
+
+fn undo(p: &Problem, used: &mut [i64], g: usize, k: u16) {
     let (rs, vs) = p.uses(p.global(g, k));
     for (&j, &x) in rs.iter().zip(vs) {
         used[j as usize] -= x;
@@ -172,8 +185,8 @@ mod tests {
         // P2 (1600, 612), P3 (900, 400) → best P1 + P3 = 936. Start from the largest-NPV-first
         // plan (P2 alone, 612); prices 0.4 give L = 0.4·2000 + max(0, 136) + max(0, −28) +
         // max(0, 40) = 976 ≥ 936 (worked by hand).
-        let mut p = Problem::new(vec![2000.0]);
-        for (c, v) in [(1000.0, 536.0), (1600.0, 612.0), (900.0, 400.0)] {
+        let mut p = Problem::new(vec![2000]);
+        for (c, v) in [(1000, 536.0), (1600, 612.0), (900, 400.0)] {
             p.push_group(&[
                 Offer::default(),
                 Offer {
@@ -187,12 +200,38 @@ mod tests {
             &p,
             &[0.4],
             976.0,
-            &[0, 1, 0],
+            Some(&[0, 1, 0]),
             Instant::now() + Duration::from_secs(5),
             u64::MAX,
         );
         assert!(s.complete);
         assert_eq!(s.plan, vec![1, 0, 1]);
         assert_eq!(s.value, 936.0);
+    }
+
+    #[test]
+    fn without_an_incumbent_it_finds_a_plan_or_proves_there_is_none() {
+        // Limits met exactly by one plan only: group 0 must take 7, group 1 must take 3.
+        let mut p = Problem::new(vec![10]);
+        for uses in [[7, 8], [3, 5]] {
+            p.push_group(&[
+                Offer {
+                    value: 1.0,
+                    uses: vec![(0, uses[0])],
+                },
+                Offer {
+                    value: 2.0,
+                    uses: vec![(0, uses[1])],
+                },
+            ])
+            .unwrap();
+        }
+        let deadline = Instant::now() + Duration::from_secs(5);
+        let s = search(&p, &[0.0], 4.0, None, deadline, u64::MAX);
+        assert!(s.complete && s.found);
+        assert_eq!(s.plan, vec![0, 0]);
+        p.limits[0] = 9;
+        let s = search(&p, &[0.0], 4.0, None, deadline, u64::MAX);
+        assert!(s.complete && !s.found);
     }
 }

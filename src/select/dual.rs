@@ -37,7 +37,7 @@ pub struct Evaluation {
     pub bound: f64,
     /// The argmax plan's value and row use.
     pub value: f64,
-    pub used: Vec<f64>,
+    pub used: Vec<i64>,
     pub plan: Vec<u16>,
 }
 
@@ -46,13 +46,13 @@ pub fn evaluate(p: &Problem, prices: &[f64]) -> Evaluation {
     let groups = p.groups();
     let rows = p.rows();
     let mut plan = vec![0u16; groups];
-    let parts: Vec<(f64, f64, Vec<f64>)> = plan
+    let parts: Vec<(f64, f64, Vec<i64>)> = plan
         .par_chunks_mut(CHUNK)
         .enumerate()
         .map(|(ci, out)| {
             let mut reduced_sum = 0.0;
             let mut value_sum = 0.0;
-            let mut used = vec![0.0; rows];
+            let mut used = vec![0i64; rows];
             for (i, slot) in out.iter_mut().enumerate() {
                 let g = ci * CHUNK + i;
                 let range = p.candidates(g);
@@ -62,7 +62,7 @@ pub fn evaluate(p: &Problem, prices: &[f64]) -> Evaluation {
                     let (rs, vs) = p.uses(c);
                     let mut r = p.value(c);
                     for (&j, &u) in rs.iter().zip(vs) {
-                        r -= prices[j as usize] * u;
+                        r -= prices[j as usize] * u as f64;
                     }
                     if r > best {
                         best = r;
@@ -80,9 +80,13 @@ pub fn evaluate(p: &Problem, prices: &[f64]) -> Evaluation {
             (reduced_sum, value_sum, used)
         })
         .collect();
-    let mut bound: f64 = prices.iter().zip(&p.limits).map(|(l, b)| l * b).sum();
+    let mut bound: f64 = prices
+        .iter()
+        .zip(&p.limits)
+        .map(|(l, &b)| l * b as f64)
+        .sum();
     let mut value = 0.0;
-    let mut used = vec![0.0; rows];
+    let mut used = vec![0i64; rows];
     for (r, v, u) in parts {
         bound += r;
         value += v;
@@ -109,7 +113,7 @@ pub struct Prices {
     pub iterations: usize,
     /// Plans remembered by the cuts, with their value and use, and the weight the final master
     /// gives each (weights sum to 1 when the combination fits the rows; empty if none fits).
-    pub plans: Vec<(Vec<u16>, f64, Vec<f64>)>,
+    pub plans: Vec<(Vec<u16>, f64, Vec<i64>)>,
     pub weights: Vec<f64>,
     /// The argmax plan at the best prices.
     pub at_best: Evaluation,
@@ -122,7 +126,7 @@ struct Cut {
     idle: u32,
     plan: Vec<u16>,
     value: f64,
-    used: Vec<f64>,
+    used: Vec<i64>,
 }
 
 /// Minimise L until (f_up − f_low)/|f_up| ≤ `tolerance`, `max_iter` evaluations, or `deadline`.
@@ -135,12 +139,12 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
     for c in 0..p.candidate_count() {
         let (rs, vs) = p.uses(c);
         for (&j, &u) in rs.iter().zip(vs) {
-            largest[j as usize] = largest[j as usize].max(u.abs());
+            largest[j as usize] = largest[j as usize].max(u.unsigned_abs() as f64);
         }
     }
     for j in 0..rows {
-        let s = if p.limits[j].abs() > 0.0 {
-            p.limits[j].abs()
+        let s = if p.limits[j] != 0 {
+            p.limits[j].unsigned_abs() as f64
         } else {
             largest[j].max(1.0)
         };
@@ -155,7 +159,7 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
     let to_cut = |e: Evaluation, at: &[f64]| -> Cut {
         // In scaled space: λ' = λ·scale/vscale; L/vscale = a + g·λ'.
         let g: Vec<f64> = (0..rows)
-            .map(|j| (p.limits[j] - e.used[j]) / scale[j])
+            .map(|j| (p.limits[j] - e.used[j]) as f64 / scale[j])
             .collect();
         let f = e.bound / vscale;
         let a = f - g.iter().zip(at).map(|(x, y)| x * y).sum::<f64>();
@@ -228,9 +232,9 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
     }
     // Rows whose largest possible use fits their limit cannot bind: their price is zero. Setting
     // it so never raises L (the groups gain at most λ_j·max use ≤ λ_j·limit).
-    let mut max_use = vec![0.0; rows];
+    let mut max_use = vec![0i64; rows];
     for g in 0..p.groups() {
-        let mut m = vec![0.0f64; rows];
+        let mut m = vec![0i64; rows];
         for c in p.candidates(g) {
             let (rs, vs) = p.uses(c);
             for (&j, &u) in rs.iter().zip(vs) {
@@ -257,7 +261,7 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
             prices = unscale(&centre);
         }
     }
-    let plans: Vec<(Vec<u16>, f64, Vec<f64>)> = cuts
+    let plans: Vec<(Vec<u16>, f64, Vec<i64>)> = cuts
         .into_iter()
         .map(|c| (c.plan, c.value, c.used))
         .collect();
@@ -336,7 +340,7 @@ fn project(cuts: &[Cut], centre: &[f64], level: f64, cap: f64) -> Option<(Vec<f6
 
 /// The convex combination of `plans` of most value whose row use fits `limits` (the master's
 /// dual): weights summing to 1, or empty when no combination fits.
-pub fn combine(plans: &[(Vec<u16>, f64, Vec<f64>)], limits: &[f64]) -> Vec<f64> {
+pub fn combine(plans: &[(Vec<u16>, f64, Vec<i64>)], limits: &[i64]) -> Vec<f64> {
     if plans.is_empty() {
         return Vec::new();
     }
@@ -354,11 +358,12 @@ pub fn combine(plans: &[(Vec<u16>, f64, Vec<f64>)], limits: &[f64]) -> Vec<f64> 
     let one: Expression = mu.iter().copied().sum();
     model = model.with(constraint!(one == 1.0));
     for (j, &limit) in limits.iter().enumerate() {
-        let s = if limit.abs() > 0.0 { limit.abs() } else { 1.0 };
+        let limit = limit as f64;
+        let s = if limit != 0.0 { limit.abs() } else { 1.0 };
         let mut e = Expression::from(0.0);
         for (m, p) in mu.iter().zip(plans) {
-            if p.2[j] != 0.0 {
-                e.add_mul(p.2[j] / s, *m);
+            if p.2[j] != 0 {
+                e.add_mul(p.2[j] as f64 / s, *m);
             }
         }
         model = model.with(constraint!(e <= limit / s));
@@ -376,7 +381,7 @@ mod tests {
     use super::*;
     use std::time::Duration;
 
-    fn offer(value: f64, uses: &[(u16, f64)]) -> Offer {
+    fn offer(value: f64, uses: &[(u16, i64)]) -> Offer {
         Offer {
             value,
             uses: uses.to_vec(),
@@ -385,25 +390,25 @@ mod tests {
 
     #[test]
     fn bound_at_zero_prices_is_the_unconstrained_best() {
-        let mut p = Problem::new(vec![5.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])])
+        let mut p = Problem::new(vec![5]);
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3)])])
             .unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])])
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3)])])
             .unwrap();
         let e = evaluate(&p, &[0.0]);
         assert_eq!(e.bound, 7.0);
         assert_eq!(e.plan, vec![1, 1]);
-        assert_eq!(e.used, vec![6.0]);
+        assert_eq!(e.used, vec![6]);
     }
 
     #[test]
     fn minimum_equals_the_lp_relaxation() {
         // Two items of use 3 under a limit of 5: the LP takes the better whole and 2/3 of the
         // other, 4 + 2/3·3 = 6 (worked by hand).
-        let mut p = Problem::new(vec![5.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0)])])
+        let mut p = Problem::new(vec![5]);
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3)])])
             .unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0)])])
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3)])])
             .unwrap();
         let r = minimise(&p, 1e-9, 500, Instant::now() + Duration::from_secs(30));
         assert!((r.bound - 6.0).abs() < 1e-6, "bound {}", r.bound);
@@ -414,10 +419,10 @@ mod tests {
 
     #[test]
     fn rows_that_cannot_bind_have_zero_price() {
-        let mut p = Problem::new(vec![5.0, 100.0]);
-        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3.0), (1, 1.0)])])
+        let mut p = Problem::new(vec![5, 100]);
+        p.push_group(&[offer(0.0, &[]), offer(4.0, &[(0, 3), (1, 1)])])
             .unwrap();
-        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3.0), (1, 1.0)])])
+        p.push_group(&[offer(0.0, &[]), offer(3.0, &[(0, 3), (1, 1)])])
             .unwrap();
         let r = minimise(&p, 1e-9, 500, Instant::now() + Duration::from_secs(30));
         assert_eq!(r.prices[1], 0.0);

@@ -92,7 +92,8 @@ pub struct Outcome {
     /// Position of the chosen candidate in each group.
     pub plan: Vec<u16>,
     pub value: f64,
-    pub used: Vec<f64>,
+    /// The plan's exact use of each row.
+    pub used: Vec<i64>,
     /// Upper bound on the value of any plan.
     pub bound: f64,
     pub gap: f64,
@@ -113,11 +114,15 @@ pub enum Infeasible {
     /// These rows cannot be met even if every group takes its smallest use of them: (row, least
     /// possible use).
     #[error("rows that no plan can meet")]
-    Rows(Vec<(usize, f64)>),
-    /// No plan was found that meets every row; these rows were broken by the closest plan found
-    /// (row, its use).
-    #[error("no plan found that meets every row together")]
-    Together(Vec<(usize, f64)>),
+    Rows(Vec<(usize, i64)>),
+    /// Each row alone can be met, but a complete search proved that no plan meets them all
+    /// together; these rows were broken by the closest plan found (row, its use).
+    #[error("no plan meets every row together")]
+    Together(Vec<(usize, i64)>),
+    /// No plan that meets every row was found within the time limit, and none was proven
+    /// impossible either; these rows were broken by the closest plan found (row, its use).
+    #[error("no plan found within the time limit that meets every row (not proven impossible)")]
+    NotFound(Vec<(usize, i64)>),
 }
 
 /// Problems at most this many candidates go to the exact path when the method is `auto`.
@@ -134,17 +139,15 @@ const WINDOW_BINARIES: usize = if cfg!(feature = "highs") { 20_000 } else { 150 
 const SWAP_CANDIDATES: usize = 60_000;
 /// Most time one window of the neighbourhood search may take.
 const WINDOW_TIME: Duration = Duration::from_secs(2);
+/// Time the exact search gets to find a plan that fits (or prove there is none) when the
+/// decomposed path's repair found none, even past the time limit.
+const RESCUE_TIME: Duration = Duration::from_secs(2);
 /// A group is settled when the price plans give one candidate at least this weight.
 const SETTLED: f64 = 0.9;
 
-fn tolerance(limit: f64) -> f64 {
-    1e-9 * limit.abs().max(1.0)
-}
-
-fn fits(used: &[f64], limits: &[f64]) -> bool {
-    used.iter()
-        .zip(limits)
-        .all(|(u, l)| *u <= l + tolerance(*l))
+/// Whether a plan's exact row use meets every limit: no tolerance, the uses are integers.
+fn fits(used: &[i64], limits: &[i64]) -> bool {
+    used.iter().zip(limits).all(|(u, l)| u <= l)
 }
 
 /// The relative gap between a plan's value and a bound.
@@ -163,9 +166,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     let deadline = start + o.time_limit;
     let rows = p.rows();
     // Rows no plan can meet, even at each group's least use.
-    let mut least = vec![0.0; rows];
+    let mut least = vec![0i64; rows];
     for g in 0..p.groups() {
-        let mut m = vec![f64::INFINITY; rows];
+        let mut m = vec![i64::MAX; rows];
         let mut seen = vec![false; rows];
         let n = p.candidates(g).len();
         let mut counts = vec![0usize; rows];
@@ -181,13 +184,13 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         for j in 0..rows {
             if seen[j] {
                 // A candidate that does not use the row uses 0 of it.
-                let lo = if counts[j] < n { m[j].min(0.0) } else { m[j] };
+                let lo = if counts[j] < n { m[j].min(0) } else { m[j] };
                 least[j] += lo;
             }
         }
     }
-    let broken: Vec<(usize, f64)> = (0..rows)
-        .filter(|&j| least[j] > p.limits[j] + tolerance(p.limits[j]))
+    let broken: Vec<(usize, i64)> = (0..rows)
+        .filter(|&j| least[j] > p.limits[j])
         .map(|j| (j, least[j]))
         .collect();
     if !broken.is_empty() {
@@ -297,7 +300,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         );
     }
     let mut method = Method::Decomposed;
-    let mut proven = false;
+    // Set when a MIP solver proved its plan optimal to within `o.gap`: its value then bounds
+    // every plan's from above, up to that gap.
+    let mut mip_bound: Option<f64> = None;
     let small = p.candidate_count() <= EXACT_AUTO_CANDIDATES;
     let want_exact = match o.method {
         Method::Exact => true,
@@ -305,7 +310,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         Method::Decomposed => false,
     };
     let value_now = |plan: &[u16]| p.plan_value(plan);
-    let gap_now = |plan: &[u16], used: &[f64]| {
+    let gap_now = |plan: &[u16], used: &[i64]| {
         if fits(used, &p.limits) {
             relative_gap(value_now(plan), bound)
         } else {
@@ -313,10 +318,58 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         }
     };
     let mut proven_exactly = false;
-    if want_exact {
+    // Set when a complete search (or the MIP solver) showed that no plan meets every row.
+    let mut proven_none = false;
+    // The closest plan the decomposed path found, for the message when nothing fits.
+    let closest = used.clone();
+    if !fits(&used, &p.limits) {
+        // The repair did not reach a plan that fits: hand over to the exact search, which
+        // either finds one or proves there is none (given a little time beyond the limit, so
+        // that a feasible problem is not called infeasible because the prices took the time).
         method = Method::Exact;
-        if fits(&used, &p.limits) && gap_now(&plan, &used) > 1e-9 {
-            let s = branch::search(p, &prices.prices, bound, &plan, deadline, BRANCH_NODES);
+        let until = deadline.max(Instant::now() + RESCUE_TIME);
+        let s = branch::search(p, &prices.prices, bound, None, until, BRANCH_NODES);
+        if debug {
+            eprintln!(
+                "rescue search: {} nodes, complete {}, found {}",
+                s.nodes, s.complete, s.found
+            );
+        }
+        if s.found {
+            used = p.plan_use(&s.plan);
+            plan = s.plan;
+            proven_exactly = s.complete;
+        } else if s.complete {
+            proven_none = true;
+        } else {
+            let left = until.saturating_duration_since(Instant::now());
+            match exact(p.clone(), None, left, o.gap) {
+                Exact::Found(x, optimal) => {
+                    let u = p.plan_use(&x);
+                    if fits(&u, &p.limits) {
+                        if optimal {
+                            mip_bound = Some(p.plan_value(&x));
+                        }
+                        plan = x;
+                        used = u;
+                    }
+                }
+                Exact::Infeasible => proven_none = true,
+                Exact::Nothing => {}
+            }
+        }
+    }
+    if want_exact && fits(&used, &p.limits) && !proven_exactly {
+        method = Method::Exact;
+        if gap_now(&plan, &used) > 1e-9 {
+            let s = branch::search(
+                p,
+                &prices.prices,
+                bound,
+                Some(&plan),
+                deadline,
+                BRANCH_NODES,
+            );
             if debug {
                 eprintln!(
                     "branch and bound: {} nodes, complete {}, {} at {:.2} s",
@@ -332,21 +385,28 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
             }
             proven_exactly = s.complete;
         }
-        if !proven_exactly && gap_now(&plan, &used) > o.gap * 1e-3 {
-            let warm = fits(&used, &p.limits).then(|| plan.clone());
+        if !proven_exactly && mip_bound.is_none() && gap_now(&plan, &used) > o.gap * 1e-3 {
             let left = deadline.saturating_duration_since(Instant::now());
-            if let Some((x, optimal)) = exact(p.clone(), warm, left, o.gap) {
+            if let Exact::Found(x, optimal) = exact(p.clone(), Some(plan.clone()), left, o.gap) {
                 let u = p.plan_use(&x);
-                if fits(&u, &p.limits)
-                    && (!fits(&used, &p.limits) || p.plan_value(&x) >= p.plan_value(&plan))
-                {
-                    plan = x;
-                    used = u;
+                // A solver works to a feasibility tolerance: its plan counts only if it meets
+                // the limits exactly, and only then does its proof bound the problem.
+                if fits(&u, &p.limits) {
+                    if optimal {
+                        mip_bound = Some(p.plan_value(&x));
+                    }
+                    if p.plan_value(&x) >= p.plan_value(&plan) {
+                        plan = x;
+                        used = u;
+                    }
                 }
-                proven = optimal && fits(&used, &p.limits);
             }
         }
-    } else if gap_now(&plan, &used) > o.gap && Instant::now() < deadline {
+    } else if !want_exact
+        && fits(&used, &p.limits)
+        && gap_now(&plan, &used) > o.gap
+        && Instant::now() < deadline
+    {
         improve_contested(p, &mut plan, &mut used, &prices, deadline, o.gap);
         if p.candidate_count() <= SWAP_CANDIDATES && gap_now(&plan, &used) > o.gap {
             swap_search(p, &mut plan, &mut used, deadline, enough);
@@ -361,25 +421,30 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
     if !fits(&used, &p.limits) {
         let broken = (0..rows)
-            .filter(|&j| used[j] > p.limits[j] + tolerance(p.limits[j]))
-            .map(|j| (j, used[j]))
+            .filter(|&j| closest[j] > p.limits[j])
+            .map(|j| (j, closest[j]))
             .collect();
-        return Err(Infeasible::Together(broken));
+        return Err(if proven_none {
+            Infeasible::Together(broken)
+        } else {
+            Infeasible::NotFound(broken)
+        });
     }
     let value = p.plan_value(&plan);
-    // A solver's proof is to within the gap it was asked for.
-    let bound = if proven_exactly {
-        value
-    } else if proven {
-        bound.min(value + o.gap * value.abs()).max(value)
-    } else {
-        bound.max(value)
-    };
+    // The search's proof holds to within its pruning tolerance; a solver's to within the gap it
+    // was asked for.
+    let mut bound = bound.max(value);
+    if proven_exactly {
+        bound = bound.min(value + branch::tolerance(bound));
+    }
+    if let Some(m) = mip_bound {
+        bound = bound.min(m + o.gap * m.abs()).max(value);
+    }
     let gap = relative_gap(value, bound);
     let timed_out = Instant::now() >= deadline;
     let status = if gap <= 1e-9 {
         Status::Optimal
-    } else if proven || gap <= o.gap {
+    } else if gap <= o.gap {
         Status::WithinGap
     } else if timed_out {
         Status::TimeLimit
@@ -402,7 +467,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
 
 /// The two parts of L(λ) − value(plan): each group's reduced-value loss against its best at
 /// the prices, and the priced slack of the rows.
-fn gap_parts(p: &Problem, plan: &[u16], used: &[f64], lambda: &[f64]) -> (f64, f64) {
+fn gap_parts(p: &Problem, plan: &[u16], used: &[i64], lambda: &[f64]) -> (f64, f64) {
     let reduced = |c: usize| p.reduced(c, lambda);
     let mut loss = 0.0;
     for (g, &k) in plan.iter().enumerate() {
@@ -416,7 +481,7 @@ fn gap_parts(p: &Problem, plan: &[u16], used: &[f64], lambda: &[f64]) -> (f64, f
         .iter()
         .zip(&p.limits)
         .zip(used)
-        .map(|((l, b), u)| l * (b - u))
+        .map(|((l, b), u)| l * (b - u) as f64)
         .sum();
     (loss, slack)
 }
@@ -459,22 +524,24 @@ fn recover(p: &Problem, prices: &Prices) -> (Vec<u16>, Vec<usize>) {
 /// Move groups to other candidates until every row fits, giving up as little value as possible
 /// per unit of excess removed. Returns whether the plan fits.
 #[allow(clippy::needless_range_loop)]
-fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: Option<&[f64]>) -> bool {
+fn repair(p: &Problem, plan: &mut [u16], used: &mut [i64], prices: Option<&[f64]>) -> bool {
     let reduced = |c: usize| prices.map_or(p.value(c), |l| p.reduced(c, l));
     let rows = p.rows();
-    let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
-    let excess = |used: &[f64]| -> f64 {
+    let scale: Vec<f64> = p
+        .limits
+        .iter()
+        .map(|l| (l.unsigned_abs() as f64).max(1.0))
+        .collect();
+    let excess = |used: &[i64]| -> f64 {
         (0..rows)
-            .map(|j| (used[j] - p.limits[j]).max(0.0) / scale[j])
+            .map(|j| (used[j] - p.limits[j]).max(0) as f64 / scale[j])
             .sum()
     };
     for _round in 0..50 {
         if fits(used, &p.limits) {
             return true;
         }
-        let over: Vec<bool> = (0..rows)
-            .map(|j| used[j] > p.limits[j] + tolerance(p.limits[j]))
-            .collect();
+        let over: Vec<bool> = (0..rows).map(|j| used[j] > p.limits[j]).collect();
         // Every move of a group that uses an over-limit row, scored by the excess it removes
         // (alone) per value given up.
         let mut moves: Vec<(f64, usize, u16)> = Vec::new();
@@ -533,7 +600,7 @@ fn repair(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: Option<&[f64]
 }
 
 /// Replace candidate `from` by `to` in a row-use vector.
-fn apply(p: &Problem, used: &mut [f64], from: usize, to: usize) {
+fn apply(p: &Problem, used: &mut [i64], from: usize, to: usize) {
     let (rs, vs) = p.uses(from);
     for (&j, &u) in rs.iter().zip(vs) {
         used[j as usize] -= u;
@@ -545,7 +612,7 @@ fn apply(p: &Problem, used: &mut [f64], from: usize, to: usize) {
 }
 
 /// Whether replacing `from` by `to` keeps every row within its limit.
-fn move_fits(p: &Problem, used: &[f64], from: usize, to: usize, delta: &mut [f64]) -> bool {
+fn move_fits(p: &Problem, used: &[i64], from: usize, to: usize, delta: &mut [i64]) -> bool {
     let (rs, vs) = p.uses(to);
     for (&j, &u) in rs.iter().zip(vs) {
         delta[j as usize] += u;
@@ -558,14 +625,14 @@ fn move_fits(p: &Problem, used: &[f64], from: usize, to: usize, delta: &mut [f64
     for rs in [p.uses(to).0, p.uses(from).0] {
         for &j in rs {
             let j = j as usize;
-            if delta[j] > 0.0 && used[j] + delta[j] > p.limits[j] + tolerance(p.limits[j]) {
+            if delta[j] > 0 && used[j] + delta[j] > p.limits[j] {
                 ok = false;
             }
         }
     }
     for rs in [p.uses(to).0, p.uses(from).0] {
         for &j in rs {
-            delta[j as usize] = 0.0;
+            delta[j as usize] = 0;
         }
     }
     ok
@@ -574,9 +641,9 @@ fn move_fits(p: &Problem, used: &[f64], from: usize, to: usize, delta: &mut [f64
 /// Upgrade groups to candidates of more value while the rows allow, best value per priced use
 /// first, until a pass changes nothing.
 #[allow(clippy::needless_range_loop)]
-fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
+fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [i64], prices: &[f64]) {
     let rows = p.rows();
-    let mut delta = vec![0.0; rows];
+    let mut delta = vec![0i64; rows];
     for _pass in 0..20 {
         let mut moves: Vec<(f64, usize, u16)> = Vec::new();
         for g in 0..p.groups() {
@@ -621,7 +688,7 @@ fn upgrade(p: &Problem, plan: &mut [u16], used: &mut [f64], prices: &[f64]) {
 /// Pair exchanges: move two groups at once (typically one gives up money that lets the other
 /// take a better candidate) when the pair raises the plan's value and every row still fits.
 /// Takes the best exchange found in each sweep until none improves or the deadline passes.
-fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instant, enough: f64) {
+fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [i64], deadline: Instant, enough: f64) {
     let rows = p.rows();
     let n = p.candidate_count();
     // Each candidate's group.
@@ -631,7 +698,7 @@ fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instan
             group[c] = g;
         }
     }
-    let mut delta = vec![0.0; rows];
+    let mut delta = vec![0i64; rows];
     for _sweep in 0..1000 {
         if p.plan_value(plan) >= enough {
             return;
@@ -660,16 +727,14 @@ fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instan
                     continue;
                 }
                 let cur2 = p.global(group[c2], plan[group[c2]]);
-                for (c, sign) in [(c1, 1.0), (cur1, -1.0), (c2, 1.0), (cur2, -1.0)] {
+                for (c, sign) in [(c1, 1), (cur1, -1), (c2, 1), (cur2, -1)] {
                     let (rs, vs) = p.uses(c);
                     for (&j, &u) in rs.iter().zip(vs) {
                         delta[j as usize] += sign * u;
                     }
                 }
-                let ok = (0..rows).all(|j| {
-                    delta[j] <= 0.0 || used[j] + delta[j] <= p.limits[j] + tolerance(p.limits[j])
-                });
-                delta.iter_mut().for_each(|d| *d = 0.0);
+                let ok = (0..rows).all(|j| delta[j] <= 0 || used[j] + delta[j] <= p.limits[j]);
+                delta.iter_mut().for_each(|d| *d = 0);
                 if ok {
                     best = Some((gain, c1, c2));
                 }
@@ -694,7 +759,7 @@ fn swap_search(p: &Problem, plan: &mut [u16], used: &mut [f64], deadline: Instan
 fn improve_contested(
     p: &Problem,
     plan: &mut [u16],
-    used: &mut [f64],
+    used: &mut [i64],
     prices: &Prices,
     deadline: Instant,
     gap: f64,
@@ -775,7 +840,7 @@ fn improve_contested(
         let sub = p.subset(&chosen, limits);
         let warm: Vec<u16> = chosen.iter().map(|&g| plan[g]).collect();
         let left = deadline.saturating_duration_since(Instant::now());
-        let Some((x, _)) = exact(sub, Some(warm), left.min(WINDOW_TIME), gap / 10.0) else {
+        let Exact::Found(x, _) = exact(sub, Some(warm), left.min(WINDOW_TIME), gap / 10.0) else {
             continue;
         };
         let mut candidate = plan.to_vec();
@@ -795,22 +860,29 @@ fn improve_contested(
     }
 }
 
-/// The whole problem `p` as a 0/1 programme, solved with this build's solver within `time`;
-/// `None` when it found no plan. The flag is true when the solver proved the plan optimal.
+/// What the MIP solver came back with.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Exact {
+    /// A plan, and whether the solver proved it optimal (to within the gap it was given). The
+    /// solver works to a feasibility tolerance: check the plan against the exact limits.
+    Found(Vec<u16>, bool),
+    /// The solver proved that no plan meets the rows (even with its tolerance, so none does
+    /// exactly either).
+    Infeasible,
+    /// No plan in the time, or the solver failed.
+    Nothing,
+}
+
+/// The whole problem `p` as a 0/1 programme, solved with this build's solver within `time`.
 /// The solve runs on its own thread and is abandoned (its result ignored) if it overruns the
 /// time by more than a second: solvers do not always stop on time.
-pub fn exact(
-    p: Problem,
-    warm: Option<Vec<u16>>,
-    time: Duration,
-    gap: f64,
-) -> Option<(Vec<u16>, bool)> {
+pub fn exact(p: Problem, warm: Option<Vec<u16>>, time: Duration, gap: f64) -> Exact {
     if time.is_zero() {
-        return None;
+        return Exact::Nothing;
     }
     let (tx, rx) = mpsc::channel();
     let secs = time.as_secs_f64();
-    std::thread::Builder::new()
+    let spawned = std::thread::Builder::new()
         .name("exact-selection".into())
         .spawn(move || {
             #[cfg(feature = "highs")]
@@ -819,19 +891,15 @@ pub fn exact(
             let r = exact_with(good_lp::microlp, &p, warm.as_deref(), secs, gap);
             let _ = tx.send(r);
         })
-        .ok()?;
+        .ok();
+    if spawned.is_none() {
+        return Exact::Nothing;
+    }
     rx.recv_timeout(time + Duration::from_secs(1))
-        .ok()
-        .flatten()
+        .unwrap_or(Exact::Nothing)
 }
 
-fn exact_with<S: Solver>(
-    solver: S,
-    p: &Problem,
-    warm: Option<&[u16]>,
-    secs: f64,
-    gap: f64,
-) -> Option<(Vec<u16>, bool)>
+fn exact_with<S: Solver>(solver: S, p: &Problem, warm: Option<&[u16]>, secs: f64, gap: f64) -> Exact
 where
     S::Model: WithTimeLimit + WithInitialSolution + WithMipGap,
     <S::Model as SolverModel>::Error: Into<ResolutionError>,
@@ -854,12 +922,16 @@ where
         }
     }
     let mut rows: Vec<Expression> = (0..p.rows()).map(|_| Expression::from(0.0)).collect();
-    let scale: Vec<f64> = p.limits.iter().map(|l| l.abs().max(1.0)).collect();
+    let scale: Vec<f64> = p
+        .limits
+        .iter()
+        .map(|l| (l.unsigned_abs() as f64).max(1.0))
+        .collect();
     for (g, xs) in x.iter().enumerate() {
         for (c, v) in p.candidates(g).zip(xs) {
             let (rs, vs) = p.uses(c);
             for (&j, &u) in rs.iter().zip(vs) {
-                rows[j as usize].add_mul(u / scale[j as usize], *v);
+                rows[j as usize].add_mul(u as f64 / scale[j as usize], *v);
             }
         }
     }
@@ -869,7 +941,7 @@ where
         model = model.with(constraint!(one == 1.0));
     }
     for (j, row) in rows.into_iter().enumerate() {
-        model = model.with(constraint!(row <= p.limits[j] / scale[j]));
+        model = model.with(constraint!(row <= p.limits[j] as f64 / scale[j]));
     }
     if let Some(w) = warm {
         let start: Vec<(Variable, f64)> = x
@@ -887,9 +959,13 @@ where
     if let Ok(m) = model.with_mip_gap((gap as f32).max(0.0)) {
         model = m;
     } else {
-        return None;
+        return Exact::Nothing;
     }
-    let s = model.solve().map_err(Into::into).ok()?;
+    let s = match model.solve().map_err(Into::into) {
+        Ok(s) => s,
+        Err(ResolutionError::Infeasible) => return Exact::Infeasible,
+        Err(_) => return Exact::Nothing,
+    };
     // Proven optimal, or proven within the gap it was given.
     let optimal = matches!(
         s.status(),
@@ -904,7 +980,7 @@ where
                 .map_or(0, |(k, _)| k as u16)
         })
         .collect();
-    Some((plan, optimal))
+    Exact::Found(plan, optimal)
 }
 
 #[cfg(test)]
@@ -914,9 +990,9 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
-    type Groups = [Vec<(f64, Vec<f64>)>];
+    type Groups = [Vec<(f64, Vec<i64>)>];
 
-    fn problem(groups: &Groups, limits: &[f64]) -> Problem {
+    fn problem(groups: &Groups, limits: &[i64]) -> Problem {
         let mut p = Problem::new(limits.to_vec());
         for g in groups {
             let offers: Vec<Offer> = g
@@ -926,7 +1002,7 @@ mod tests {
                     uses: c
                         .iter()
                         .enumerate()
-                        .filter(|(_, x)| **x != 0.0)
+                        .filter(|(_, x)| **x != 0)
                         .map(|(j, x)| (j as u16, *x))
                         .collect(),
                 })
@@ -936,12 +1012,12 @@ mod tests {
         p
     }
 
-    /// Best value by trying every combination; `None` when none fits.
-    fn brute(groups: &Groups, limits: &[f64]) -> Option<f64> {
-        let mut best: Option<f64> = None;
+    /// Every combination's value and use, in odometer order.
+    fn every_plan(groups: &Groups, rows: usize) -> Vec<(f64, Vec<i64>)> {
+        let mut out = Vec::new();
         let mut idx = vec![0usize; groups.len()];
         loop {
-            let mut used = vec![0.0; limits.len()];
+            let mut used = vec![0i64; rows];
             let mut v = 0.0;
             for (g, &k) in groups.iter().zip(&idx) {
                 v += g[k].0;
@@ -949,13 +1025,11 @@ mod tests {
                     *u += c;
                 }
             }
-            if used.iter().zip(limits).all(|(u, l)| *u <= l + 1e-9) {
-                best = Some(best.map_or(v, |b: f64| b.max(v)));
-            }
+            out.push((v, used));
             let mut i = 0;
             loop {
                 if i == groups.len() {
-                    return best;
+                    return out;
                 }
                 idx[i] += 1;
                 if idx[i] < groups[i].len() {
@@ -965,6 +1039,16 @@ mod tests {
                 i += 1;
             }
         }
+    }
+
+    /// Best value by trying every combination (exact integer feasibility); `None` when none
+    /// fits.
+    fn brute(groups: &Groups, limits: &[i64]) -> Option<f64> {
+        every_plan(groups, limits.len())
+            .into_iter()
+            .filter(|(_, u)| u.iter().zip(limits).all(|(u, l)| u <= l))
+            .map(|(v, _)| v)
+            .reduce(f64::max)
     }
 
     fn opts(method: Method) -> Options {
@@ -981,12 +1065,12 @@ mod tests {
         // P2 (1600, 612), P3 (900, 400): the best set is P1 + P3 = 936, where taking the largest
         // NPV first gives 612.
         let groups = vec![
-            vec![(0.0, vec![0.0]), (536.0, vec![1000.0])],
-            vec![(0.0, vec![0.0]), (612.0, vec![1600.0])],
-            vec![(0.0, vec![0.0]), (400.0, vec![900.0])],
+            vec![(0.0, vec![0]), (536.0, vec![1000])],
+            vec![(0.0, vec![0]), (612.0, vec![1600])],
+            vec![(0.0, vec![0]), (400.0, vec![900])],
         ];
         for m in [Method::Exact, Method::Decomposed] {
-            let o = solve(&problem(&groups, &[2000.0]), &opts(m)).unwrap();
+            let o = solve(&problem(&groups, &[2000]), &opts(m)).unwrap();
             assert!((o.value - 936.0).abs() < 1e-9, "{m:?}: {}", o.value);
             assert_eq!(o.plan, vec![1, 0, 1]);
             assert!(o.bound >= 936.0 - 1e-9);
@@ -994,16 +1078,53 @@ mod tests {
     }
 
     #[test]
+    fn a_candidate_that_costs_exactly_the_limit_is_chosen() {
+        // One cent (here one unit) below the limit is not the limit: a section whose works cost
+        // exactly the line's limit fits, and a plan without them is not optimal.
+        let groups = vec![
+            vec![(0.0, vec![0]), (1_153_974.95, vec![12_200_000])],
+            vec![(0.0, vec![0]), (10.0, vec![12_200_001])],
+            vec![(0.0, vec![0])],
+        ];
+        for limit in [12_200_000, 12_200_001] {
+            for m in [Method::Exact, Method::Decomposed, Method::Auto] {
+                let o = solve(&problem(&groups, &[limit]), &opts(m)).unwrap();
+                assert_eq!(o.plan, vec![1, 0, 0], "{m:?} at {limit}");
+                // The decomposed path proves no more than its dual's tolerance.
+                if m != Method::Decomposed {
+                    assert_eq!(o.status, Status::Optimal, "{m:?} at {limit}");
+                }
+                assert!(o.gap < 1e-6, "{m:?} at {limit}: gap {}", o.gap);
+                assert!(o.bound >= 1_153_974.95);
+                assert_eq!(o.used, vec![12_200_000]);
+            }
+        }
+    }
+
+    #[test]
+    fn a_zero_limit_that_zero_use_meets_is_feasible() {
+        let groups = vec![
+            vec![(0.0, vec![0, 0]), (5.0, vec![3, 0])],
+            vec![(0.0, vec![0, 0]), (2.0, vec![0, 4])],
+        ];
+        for m in [Method::Exact, Method::Decomposed] {
+            let o = solve(&problem(&groups, &[0, 4]), &opts(m)).unwrap();
+            assert_eq!(o.plan, vec![0, 1], "{m:?}");
+            assert_eq!(o.status, Status::Optimal);
+        }
+    }
+
+    #[test]
     fn unlimited_budgets_give_every_group_its_best() {
         let groups = vec![
-            vec![
-                (0.0, vec![0.0, 0.0]),
-                (5.0, vec![3.0, 1.0]),
-                (7.0, vec![9.0, 2.0]),
-            ],
-            vec![(0.0, vec![0.0, 0.0]), (2.0, vec![1.0, 0.0])],
+            vec![(0.0, vec![0, 0]), (5.0, vec![3, 1]), (7.0, vec![9, 2])],
+            vec![(0.0, vec![0, 0]), (2.0, vec![1, 0])],
         ];
-        let o = solve(&problem(&groups, &[1e9, 1e9]), &opts(Method::Decomposed)).unwrap();
+        let o = solve(
+            &problem(&groups, &[1_000_000_000, 1_000_000_000]),
+            &opts(Method::Decomposed),
+        )
+        .unwrap();
         assert_eq!(o.plan, vec![2, 1]);
         assert_eq!(o.status, Status::Optimal);
         assert_eq!(o.prices, vec![0.0, 0.0]);
@@ -1011,53 +1132,132 @@ mod tests {
 
     #[test]
     fn rows_nobody_can_meet_are_named() {
-        let groups = vec![vec![(0.0, vec![5.0]), (1.0, vec![6.0])]];
-        match solve(&problem(&groups, &[4.0]), &opts(Method::Auto)) {
-            Err(Infeasible::Rows(r)) => assert_eq!(r, vec![(0, 5.0)]),
+        let groups = vec![vec![(0.0, vec![5]), (1.0, vec![6])]];
+        match solve(&problem(&groups, &[4]), &opts(Method::Auto)) {
+            Err(Infeasible::Rows(r)) => assert_eq!(r, vec![(0, 5)]),
             other => panic!("{other:?}"),
         }
     }
 
-    type Case = (Vec<Vec<(f64, Vec<f64>)>>, Vec<f64>);
+    #[test]
+    fn rows_that_cannot_be_met_together_are_proven_so() {
+        // Each group must spend on one of two rows; each row alone can be met (least use 0),
+        // but both groups together put 2 on rows that allow 1 in all.
+        let groups = vec![
+            vec![(0.0, vec![1, 0]), (0.0, vec![0, 1])],
+            vec![(0.0, vec![1, 0]), (0.0, vec![0, 1])],
+        ];
+        for m in [Method::Exact, Method::Decomposed] {
+            match solve(&problem(&groups, &[1, 0]), &opts(m)) {
+                Err(Infeasible::Together(_)) => {}
+                other => panic!("{m:?}: {other:?}"),
+            }
+        }
+    }
+
+    type Case = (Vec<Vec<(f64, Vec<i64>)>>, Vec<i64>);
 
     fn arb_case() -> impl Strategy<Value = Case> {
         (1usize..=3).prop_flat_map(|rows| {
             let cand = (
                 -20.0f64..100.0,
-                proptest::collection::vec(prop_oneof![Just(0.0), 0.0f64..50.0], rows),
+                proptest::collection::vec(prop_oneof![Just(0i64), 0i64..5_000], rows),
             );
             let group = proptest::collection::vec(cand, 1..4).prop_map(move |mut g| {
                 // Every group may do nothing, as a section's base.
-                g.insert(0, (0.0, vec![0.0; rows]));
+                g.insert(0, (0.0, vec![0; rows]));
                 g
             });
             (
                 proptest::collection::vec(group, 1..6),
-                proptest::collection::vec(0.0f64..120.0, rows),
+                proptest::collection::vec(0i64..12_000, rows),
             )
         })
+    }
+
+    /// Groups with no zero option (commitments, or a required treatment), and limits set
+    /// exactly to one plan's use — or to zero where that plan uses nothing.
+    fn arb_tight_case() -> impl Strategy<Value = (Case, prop::sample::Index)> {
+        (1usize..=3).prop_flat_map(|rows| {
+            let cand = (
+                -20.0f64..100.0,
+                proptest::collection::vec(prop_oneof![Just(0i64), 0i64..5_000], rows),
+            );
+            let group = proptest::collection::vec(cand, 1..4);
+            (
+                proptest::collection::vec(group, 1..6),
+                Just(vec![0i64; rows]),
+                any::<prop::sample::Index>(),
+            )
+                .prop_map(|(g, l, i)| ((g, l), i))
+        })
+    }
+
+    /// What a run claims, checked against brute force.
+    fn check_claims(groups: &Groups, limits: &[i64], m: Method) -> Result<(), TestCaseError> {
+        let best = brute(groups, limits);
+        let p = problem(groups, limits);
+        let o = match solve(&p, &opts(m)) {
+            Ok(o) => o,
+            Err(e) => {
+                prop_assert!(
+                    best.is_none(),
+                    "{m:?} said {e:?} but the optimum is {best:?}"
+                );
+                // Infeasibility claims: `Rows` only when some row's least use passes its limit.
+                return Ok(());
+            }
+        };
+        let best = best.expect("a plan was returned, so one fits");
+        let used = p.plan_use(&o.plan);
+        prop_assert_eq!(&used, &o.used);
+        for (u, l) in used.iter().zip(limits) {
+            prop_assert!(u <= l, "{:?} uses {} of {}", m, u, l);
+        }
+        prop_assert!(
+            o.value <= best + 1e-9,
+            "{m:?} {} above optimum {best}",
+            o.value
+        );
+        let tol = 1e-9 * best.abs().max(1.0);
+        prop_assert!(
+            o.bound >= best - tol,
+            "{m:?} bound {} below the optimum {best}",
+            o.bound
+        );
+        prop_assert!(
+            o.value >= best - o.gap * o.bound.abs() - tol,
+            "{m:?} {} not within gap {} of {best}",
+            o.value,
+            o.gap
+        );
+        match o.status {
+            Status::Optimal => prop_assert!(
+                (o.value - best).abs() <= tol,
+                "{m:?} optimal {} vs {best}",
+                o.value
+            ),
+            Status::WithinGap => prop_assert!(o.value >= best - 1e-4 * best.abs() - tol),
+            _ => {}
+        }
+        Ok(())
     }
 
     proptest! {
         #![proptest_config(ProptestConfig { cases: 64, ..ProptestConfig::default() })]
 
         /// Both paths against brute force: the plan fits every row, is worth no more than the
-        /// optimum, lies within its reported gap of it, and the bound is never below it.
+        /// optimum, lies within its reported gap of it, the bound is never below it, and the
+        /// status is true.
         #[test]
         fn both_paths_agree_with_brute_force((groups, limits) in arb_case()) {
-            let best = brute(&groups, &limits).expect("the do-nothing plan fits");
+            prop_assert!(brute(&groups, &limits).is_some(), "the do-nothing plan fits");
             for m in [Method::Exact, Method::Decomposed] {
+                check_claims(&groups, &limits, m)?;
                 let o = solve(&problem(&groups, &limits), &opts(m)).unwrap();
-                let used = problem(&groups, &limits).plan_use(&o.plan);
-                for (u, l) in used.iter().zip(&limits) {
-                    prop_assert!(*u <= l + 1e-9, "{m:?} uses {u} of {l}");
-                }
-                prop_assert!(o.value <= best + 1e-9, "{m:?} {} above optimum {best}", o.value);
-                prop_assert!(o.bound >= best - 1e-6 * best.abs().max(1.0), "{m:?} bound {} below {best}", o.bound);
-                prop_assert!(o.value >= best - o.gap * o.bound.abs() - 1e-6, "{m:?} {} not within gap {} of {best}", o.value, o.gap);
                 // A row whose limit is above every possible use has a zero price.
                 for (j, l) in limits.iter().enumerate() {
-                    let most: f64 = groups.iter().map(|g| g.iter().map(|c| c.1[j]).fold(0.0, f64::max)).sum();
+                    let most: i64 = groups.iter().map(|g| g.iter().map(|c| c.1[j]).max().unwrap_or(0)).sum();
                     if most <= *l {
                         prop_assert_eq!(o.prices[j], 0.0);
                     }
@@ -1065,11 +1265,24 @@ mod tests {
             }
         }
 
+        /// Limits set exactly to some plan's spending (zero where it spends nothing), with no
+        /// do-nothing option: never called infeasible, bound never below the optimum, statuses
+        /// true — on every path.
+        #[test]
+        fn limits_at_a_plans_exact_use_are_feasible(((groups, _), pick) in arb_tight_case()) {
+            let plans = every_plan(&groups, groups[0][0].1.len());
+            let limits = plans[pick.index(plans.len())].1.clone();
+            for m in [Method::Exact, Method::Decomposed, Method::Auto] {
+                prop_assert!(solve(&problem(&groups, &limits), &opts(m)).is_ok(), "{m:?} infeasible at {limits:?}");
+                check_claims(&groups, &limits, m)?;
+            }
+        }
+
         /// Raising a budget never lowers the optimum (exact path, proven optimal).
         #[test]
-        fn more_money_never_hurts((groups, limits) in arb_case(), extra in 0.0f64..60.0) {
+        fn more_money_never_hurts((groups, limits) in arb_case(), extra in 0i64..6_000) {
             let a = solve(&problem(&groups, &limits), &opts(Method::Exact)).unwrap();
-            let more: Vec<f64> = limits.iter().map(|l| l + extra).collect();
+            let more: Vec<i64> = limits.iter().map(|l| l + extra).collect();
             let b = solve(&problem(&groups, &more), &opts(Method::Exact)).unwrap();
             if a.status == Status::Optimal && b.status == Status::Optimal {
                 prop_assert!(b.value >= a.value - 1e-9, "{} < {}", b.value, a.value);

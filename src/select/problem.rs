@@ -2,6 +2,11 @@
 //! values and their sparse use of each row (budget line or condition target), stored in flat
 //! arrays so that a million sections with tens of candidates each fit in memory and can be
 //! scanned quickly.
+//!
+//! Row uses and limits are exact integers (money in cents, condition targets in a fixed-point
+//! unit chosen by the caller), so a plan's use of a row is an exact sum and "fits" means exactly
+//! what the user's limit says: no tolerance and no safety margin changes the problem. Prices and
+//! values stay `f64`: they steer the search and bound it, but never decide feasibility.
 
 use std::ops::Range;
 
@@ -9,18 +14,25 @@ use std::ops::Range;
 /// candidate's position in its group as `u16`).
 pub const MAX_CANDIDATES: usize = u16::MAX as usize;
 
+/// Largest total use any plan can put on one row, and the largest limit (in the row's units):
+/// with every group's largest use summed below this, no sum, difference or exchange of uses in
+/// the search can overflow an `i64`. For money rows in cents it is about 2.3·10¹⁶ money units.
+pub const MAX_ROW_TOTAL: i64 = i64::MAX / 4;
+
 /// Groups of candidates, one to be chosen per group, and row limits.
 #[derive(Debug, Clone, Default)]
 pub struct Problem {
-    /// Limit of each row: Σ use ≤ limit.
-    pub limits: Vec<f64>,
+    /// Limit of each row: Σ use ≤ limit, exactly.
+    pub limits: Vec<i64>,
+    /// Per row: Σ over the groups so far of their largest |use| (bounded by [`MAX_ROW_TOTAL`]).
+    reach: Vec<i128>,
     /// Group g's candidates are `start[g]..start[g + 1]`.
     start: Vec<usize>,
     value: Vec<f64>,
     /// Candidate c's row uses are `cstart[c]..cstart[c + 1]` in `crow`/`cval`.
     cstart: Vec<usize>,
     crow: Vec<u16>,
-    cval: Vec<f64>,
+    cval: Vec<i64>,
 }
 
 /// Why a group cannot be added.
@@ -32,20 +44,25 @@ pub enum ProblemError {
     TooMany(usize),
     #[error("row {0} does not exist")]
     Row(usize),
-    #[error("a value or use that is not a finite number")]
+    #[error("a value that is not a finite number")]
     NotFinite,
+    #[error("row {0}: the uses of all groups together, or its limit, pass the largest supported total ({MAX_ROW_TOTAL} units)")]
+    TooLarge(usize),
 }
 
 /// One candidate as offered to [`Problem::push_group`]: its value and its (row, use) pairs.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Offer {
     pub value: f64,
-    pub uses: Vec<(u16, f64)>,
+    pub uses: Vec<(u16, i64)>,
 }
 
 impl Problem {
-    pub fn new(limits: Vec<f64>) -> Problem {
+    /// A problem with these row limits and no groups yet. A limit whose magnitude passes
+    /// [`MAX_ROW_TOTAL`] is refused when the first group is pushed (see [`Problem::check_limits`]).
+    pub fn new(limits: Vec<i64>) -> Problem {
         Problem {
+            reach: vec![0; limits.len()],
             limits,
             start: vec![0],
             value: Vec::new(),
@@ -81,8 +98,25 @@ impl Problem {
         self.value[c]
     }
 
+    /// The first row whose limit is out of the supported range, if any.
+    pub fn check_limits(&self) -> Result<(), ProblemError> {
+        match self
+            .limits
+            .iter()
+            .position(|l| l.unsigned_abs() > MAX_ROW_TOTAL as u64)
+        {
+            Some(j) => Err(ProblemError::TooLarge(j)),
+            None => Ok(()),
+        }
+    }
+
+    /// The limits as floats (for prices and scaling; never for feasibility).
+    pub fn limits_f64(&self) -> Vec<f64> {
+        self.limits.iter().map(|&l| l as f64).collect()
+    }
+
     /// Candidate `c`'s rows and uses.
-    pub fn uses(&self, c: usize) -> (&[u16], &[f64]) {
+    pub fn uses(&self, c: usize) -> (&[u16], &[i64]) {
         let r = self.cstart[c]..self.cstart[c + 1];
         (&self.crow[r.clone()], &self.cval[r])
     }
@@ -92,7 +126,7 @@ impl Problem {
         let (rows, vals) = self.uses(c);
         rows.iter()
             .zip(vals)
-            .map(|(&j, &u)| prices[j as usize] * u)
+            .map(|(&j, &u)| prices[j as usize] * u as f64)
             .sum()
     }
 
@@ -102,11 +136,11 @@ impl Problem {
     }
 
     /// Candidate `c`'s use of row `j`.
-    pub fn use_of(&self, c: usize, j: usize) -> f64 {
+    pub fn use_of(&self, c: usize, j: usize) -> i64 {
         let (rows, vals) = self.uses(c);
         rows.iter()
             .position(|&r| r as usize == j)
-            .map_or(0.0, |i| vals[i])
+            .map_or(0, |i| vals[i])
     }
 
     /// Add a group. Candidates that another candidate of the group dominates (at least as much
@@ -118,6 +152,7 @@ impl Problem {
             return Err(ProblemError::Empty);
         }
         let rows = self.rows();
+        self.check_limits()?;
         // The group's own rows, densely, so that dominance is a comparison of short vectors.
         let mut touched: Vec<u16> = Vec::new();
         for o in offers {
@@ -128,8 +163,8 @@ impl Problem {
                 if r as usize >= rows {
                     return Err(ProblemError::Row(r as usize));
                 }
-                if !u.is_finite() {
-                    return Err(ProblemError::NotFinite);
+                if u.unsigned_abs() > MAX_ROW_TOTAL as u64 {
+                    return Err(ProblemError::TooLarge(r as usize));
                 }
                 if !touched.contains(&r) {
                     touched.push(r);
@@ -138,12 +173,33 @@ impl Problem {
         }
         touched.sort_unstable();
         let w = touched.len();
-        let mut dense = vec![0.0; offers.len() * w];
+        let mut dense = vec![0i64; offers.len() * w];
         for (i, o) in offers.iter().enumerate() {
             for &(r, u) in &o.uses {
                 let k = touched.binary_search(&r).unwrap_or(0);
-                dense[i * w + k] += u;
+                let d = &mut dense[i * w + k];
+                *d = d
+                    .checked_add(u)
+                    .filter(|x| x.unsigned_abs() <= MAX_ROW_TOTAL as u64)
+                    .ok_or(ProblemError::TooLarge(r as usize))?;
             }
+        }
+        // The group's largest use of each of its rows, added to the row's reach: refused before
+        // anything is stored if a row would pass the supported total.
+        let mut reach = Vec::with_capacity(w);
+        for (k, &r) in touched.iter().enumerate() {
+            let most = (0..offers.len())
+                .map(|i| dense[i * w + k].unsigned_abs())
+                .max()
+                .unwrap_or(0);
+            let total = self.reach[r as usize] + most as i128;
+            if total > MAX_ROW_TOTAL as i128 {
+                return Err(ProblemError::TooLarge(r as usize));
+            }
+            reach.push(total);
+        }
+        for (k, &r) in touched.iter().enumerate() {
+            self.reach[r as usize] = reach[k];
         }
         // Highest value first (ties: original order), then each is kept unless an earlier kept
         // one dominates it.
@@ -168,7 +224,7 @@ impl Problem {
             self.value.push(offers[i].value);
             for (k, &r) in touched.iter().enumerate() {
                 let u = dense[i * w + k];
-                if u != 0.0 {
+                if u != 0 {
                     self.crow.push(r);
                     self.cval.push(u);
                 }
@@ -179,9 +235,10 @@ impl Problem {
         Ok(kept)
     }
 
-    /// Rows used by a plan (one candidate position per group), summed in group order.
-    pub fn plan_use(&self, plan: &[u16]) -> Vec<f64> {
-        let mut used = vec![0.0; self.rows()];
+    /// Rows used by a plan (one candidate position per group): exact sums, which cannot
+    /// overflow (see [`MAX_ROW_TOTAL`]).
+    pub fn plan_use(&self, plan: &[u16]) -> Vec<i64> {
+        let mut used = vec![0i64; self.rows()];
         for (g, &k) in plan.iter().enumerate() {
             let c = self.start[g] + k as usize;
             let (rows, vals) = self.uses(c);
@@ -205,20 +262,32 @@ impl Problem {
         self.start[g] + k as usize
     }
 
-    /// Add `other`'s groups after this problem's (same rows).
-    pub fn append(&mut self, other: Problem) {
+    /// Add `other`'s groups after this problem's (same rows). Fails, leaving this problem as
+    /// it was, when a row's total reach would pass [`MAX_ROW_TOTAL`].
+    pub fn append(&mut self, other: Problem) -> Result<(), ProblemError> {
+        for (j, (a, b)) in self.reach.iter().zip(&other.reach).enumerate() {
+            if a + b > MAX_ROW_TOTAL as i128 {
+                return Err(ProblemError::TooLarge(j));
+            }
+        }
+        for (a, b) in self.reach.iter_mut().zip(&other.reach) {
+            *a += b;
+        }
         let (nv, ne) = (self.value.len(), self.cval.len());
         self.start.extend(other.start[1..].iter().map(|s| s + nv));
         self.cstart.extend(other.cstart[1..].iter().map(|s| s + ne));
         self.value.extend(other.value);
         self.crow.extend(other.crow);
         self.cval.extend(other.cval);
+        Ok(())
     }
 
     /// A problem made of some groups only, with other limits (for solving a contested part
     /// exactly).
-    pub fn subset(&self, groups: &[usize], limits: Vec<f64>) -> Problem {
+    pub fn subset(&self, groups: &[usize], limits: Vec<i64>) -> Problem {
         let mut p = Problem::new(limits);
+        // A part of the groups reaches no further than the whole.
+        p.reach.clone_from(&self.reach);
         for &g in groups {
             for c in self.candidates(g) {
                 p.value.push(self.value[c]);
@@ -238,7 +307,7 @@ impl Problem {
 mod tests {
     use super::*;
 
-    fn offer(value: f64, uses: &[(u16, f64)]) -> Offer {
+    fn offer(value: f64, uses: &[(u16, i64)]) -> Offer {
         Offer {
             value,
             uses: uses.to_vec(),
@@ -247,32 +316,32 @@ mod tests {
 
     #[test]
     fn dominated_candidates_are_dropped_and_the_rest_kept_in_order() {
-        let mut p = Problem::new(vec![10.0, 10.0]);
+        let mut p = Problem::new(vec![100, 100]);
         let kept = p
             .push_group(&[
                 offer(0.0, &[]),
-                offer(5.0, &[(0, 3.0)]),
-                offer(4.0, &[(0, 3.0)]), // less value, same use: dominated
-                offer(6.0, &[(0, 2.0), (1, 1.0)]), // more value but uses row 1: kept
-                offer(5.0, &[(0, 3.0)]), // duplicate of the second: dropped
-                offer(-1.0, &[(1, 0.5)]), // the first does better for nothing
+                offer(5.0, &[(0, 30)]),
+                offer(4.0, &[(0, 30)]), // less value, same use: dominated
+                offer(6.0, &[(0, 20), (1, 10)]), // more value but uses row 1: kept
+                offer(5.0, &[(0, 30)]), // duplicate of the second: dropped
+                offer(-1.0, &[(1, 5)]), // the first does better for nothing
             ])
             .unwrap();
         assert_eq!(kept, vec![0, 1, 3]);
         assert_eq!(p.candidate_count(), 3);
-        assert_eq!(p.use_of(2, 0), 2.0);
-        assert_eq!(p.use_of(2, 1), 1.0);
-        assert_eq!(p.use_of(0, 1), 0.0);
-        assert_eq!(p.plan_use(&[2]), vec![2.0, 1.0]);
+        assert_eq!(p.use_of(2, 0), 20);
+        assert_eq!(p.use_of(2, 1), 10);
+        assert_eq!(p.use_of(0, 1), 0);
+        assert_eq!(p.plan_use(&[2]), vec![20, 10]);
         assert_eq!(p.plan_value(&[1]), 5.0);
     }
 
     #[test]
     fn bad_groups_are_errors() {
-        let mut p = Problem::new(vec![1.0]);
+        let mut p = Problem::new(vec![1]);
         assert_eq!(p.push_group(&[]), Err(ProblemError::Empty));
         assert_eq!(
-            p.push_group(&[offer(1.0, &[(3, 1.0)])]),
+            p.push_group(&[offer(1.0, &[(3, 1)])]),
             Err(ProblemError::Row(3))
         );
         assert_eq!(
@@ -280,5 +349,26 @@ mod tests {
             Err(ProblemError::NotFinite)
         );
         assert_eq!(p.groups(), 0);
+    }
+
+    #[test]
+    fn totals_that_could_overflow_are_refused_before_anything_is_stored() {
+        let mut p = Problem::new(vec![1]);
+        let half = MAX_ROW_TOTAL / 2 + 1;
+        p.push_group(&[offer(1.0, &[(0, half)])]).unwrap();
+        assert_eq!(
+            p.push_group(&[offer(1.0, &[(0, half)])]),
+            Err(ProblemError::TooLarge(0))
+        );
+        assert_eq!(p.groups(), 1);
+        assert_eq!(
+            p.push_group(&[offer(1.0, &[(0, i64::MAX), (0, i64::MAX)])]),
+            Err(ProblemError::TooLarge(0))
+        );
+        let mut q = Problem::new(vec![i64::MAX]);
+        assert_eq!(
+            q.push_group(&[offer(1.0, &[])]),
+            Err(ProblemError::TooLarge(0))
+        );
     }
 }
