@@ -123,6 +123,9 @@ impl fmt::Display for Diagnostic {
     }
 }
 
+/// Most findings printed of one list; the rest are counted (see [`Diagnostics::shown`]).
+pub const PRINTED: usize = 200;
+
 /// All findings of one validation pass, in the order found.
 #[derive(Debug, Clone, Default)]
 pub struct Diagnostics {
@@ -206,6 +209,20 @@ impl Diagnostics {
             ))
         });
         v
+    }
+
+    /// The first `limit` findings by place (errors before notes when both are asked for), and
+    /// how many are left out: long lists are cut so that a million bad rows print a page, not
+    /// a hundred megabytes.
+    pub fn shown(&self, limit: usize, errors_only: bool) -> (Vec<&Diagnostic>, usize) {
+        let mut all: Vec<&Diagnostic> = self
+            .sorted()
+            .into_iter()
+            .filter(|d| !errors_only || d.severity == Severity::Error)
+            .collect();
+        let hidden = all.len().saturating_sub(limit);
+        all.truncate(limit);
+        (all, hidden)
     }
 
     /// The closing line of a failed check: `3 problems found in the input`.

@@ -13,15 +13,59 @@ use std::path::{Path, PathBuf};
 /// The label of standard input in messages.
 pub const STDIN_LABEL: &str = "<stdin>";
 
-/// Read a whole input: a file, or standard input for `-`.
+/// Largest input file the tool reads (1 GiB): a national network of a million sections is
+/// about 150 MB. Larger files, and streams that do not end (`/dev/zero`), are refused with a
+/// message instead of filling memory.
+pub const MAX_INPUT_BYTES: u64 = 1 << 30;
+
+/// Read a whole input: a file, or standard input for `-`. Only regular files are read (a FIFO
+/// or a device could block forever or never end: pipe it on standard input with `-` instead),
+/// and at most [`MAX_INPUT_BYTES`].
 pub fn read_input(path: &str) -> std::io::Result<Vec<u8>> {
     if path == "-" {
-        let mut buf = Vec::new();
-        std::io::stdin().lock().read_to_end(&mut buf)?;
-        Ok(buf)
+        read_limited(std::io::stdin().lock())
     } else {
-        std::fs::read(path)
+        read_file(Path::new(path))
     }
+}
+
+/// Read a regular file of at most [`MAX_INPUT_BYTES`] (see [`read_input`]).
+pub fn read_file(path: &Path) -> std::io::Result<Vec<u8>> {
+    let meta = std::fs::metadata(path)?;
+    if !meta.is_file() {
+        let what = if meta.is_dir() {
+            "a directory"
+        } else {
+            "not a regular file (a FIFO, socket or device)"
+        };
+        return Err(std::io::Error::new(
+            std::io::ErrorKind::InvalidInput,
+            format!("{what}, which is not read (to read a stream, give `-` and pipe it on standard input)"),
+        ));
+    }
+    if meta.len() > MAX_INPUT_BYTES {
+        return Err(too_big(meta.len()));
+    }
+    read_limited(std::fs::File::open(path)?)
+}
+
+fn too_big(len: u64) -> std::io::Error {
+    std::io::Error::new(
+        std::io::ErrorKind::InvalidInput,
+        format!(
+            "{} bytes or more, beyond the largest input read ({} bytes, 1 GiB)",
+            len, MAX_INPUT_BYTES
+        ),
+    )
+}
+
+fn read_limited(r: impl Read) -> std::io::Result<Vec<u8>> {
+    let mut buf = Vec::new();
+    r.take(MAX_INPUT_BYTES + 1).read_to_end(&mut buf)?;
+    if buf.len() as u64 > MAX_INPUT_BYTES {
+        return Err(too_big(buf.len() as u64));
+    }
+    Ok(buf)
 }
 
 /// How an input is named in messages.

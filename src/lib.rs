@@ -12,6 +12,25 @@
 
 #![deny(clippy::float_cmp)]
 
+/// Write to standard error without ever panicking: a closed pipe (`2>&1 | head`) drops the text
+/// and the run goes on to its usual exit code. Use it instead of `eprintln!`/`eprint!`.
+#[macro_export]
+macro_rules! err_line {
+    ($($t:tt)*) => {{
+        use ::std::io::Write as _;
+        let _ = ::std::writeln!(::std::io::stderr(), $($t)*);
+    }};
+}
+
+/// [`err_line!`] without the line end.
+#[macro_export]
+macro_rules! err_text {
+    ($($t:tt)*) => {{
+        use ::std::io::Write as _;
+        let _ = ::std::write!(::std::io::stderr(), $($t)*);
+    }};
+}
+
 pub mod appraise;
 pub mod calibrate;
 pub mod cli;

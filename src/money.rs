@@ -23,7 +23,14 @@ pub enum MoneyError {
     /// Thousands separators or currency signs: say what to remove.
     Decorated(String),
     NotANumber(String),
+    /// Beyond [`MAX_AMOUNT`] in magnitude.
+    TooLarge(String),
 }
+
+/// The largest amount of money (in magnitude) any input may hold: 10¹⁵ money units. With it,
+/// no sum or product the tool forms from inputs can overflow its exact decimal arithmetic, and
+/// every budget line's total fits the selection's whole-cent rows.
+pub const MAX_AMOUNT: Decimal = Decimal::from_parts(2_764_472_320, 232_830, 0, false, 0);
 
 impl fmt::Display for MoneyError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
@@ -31,6 +38,11 @@ impl fmt::Display for MoneyError {
             MoneyError::Empty => write!(f, "an empty value"),
             MoneyError::Decorated(s) => write!(f, "`{s}` (separators or currency signs)"),
             MoneyError::NotANumber(s) => write!(f, "`{s}`"),
+            MoneyError::TooLarge(s) => write!(
+                f,
+                "`{s}`, beyond the largest supported amount ({})",
+                MAX_AMOUNT
+            ),
         }
     }
 }
@@ -57,9 +69,13 @@ impl Money {
         } else {
             Decimal::from_str(t)
         };
-        parsed
+        let m = parsed
             .map(Money)
-            .map_err(|_| MoneyError::NotANumber(t.to_owned()))
+            .map_err(|_| MoneyError::NotANumber(t.to_owned()))?;
+        if m.0.abs() > MAX_AMOUNT {
+            return Err(MoneyError::TooLarge(t.to_owned()));
+        }
+        Ok(m)
     }
 
     /// The amount as a float, for discounting.
@@ -159,6 +175,29 @@ pub fn grouped(x: f64, decimals: usize) -> String {
         out.insert(0, '-');
     }
     out
+}
+
+#[cfg(test)]
+mod amount_limit_tests {
+    use super::*;
+
+    #[test]
+    fn the_largest_amount_is_ten_to_the_fifteen() {
+        assert_eq!(MAX_AMOUNT, Decimal::from(1_000_000_000_000_000_i64));
+        assert!(Money::parse("1e15").is_ok());
+        assert!(matches!(
+            Money::parse("1000000000000000.01"),
+            Err(MoneyError::TooLarge(_))
+        ));
+        assert!(matches!(
+            Money::parse("-2e15"),
+            Err(MoneyError::TooLarge(_))
+        ));
+        assert!(matches!(
+            Money::parse("79228162514264337593543950335"),
+            Err(MoneyError::TooLarge(_))
+        ));
+    }
 }
 
 #[cfg(test)]

@@ -23,7 +23,7 @@ pub fn read(
 ) -> Result<Table> {
     let path = dir.join(name);
     let label = path.display().to_string();
-    let bytes = std::fs::read(&path).map_err(|e| {
+    let bytes = crate::io::read_file(&path).map_err(|e| {
         Error::Usage(format!(
             "cannot read {label}: {e}; expected the output directory of `{maker} --out DIR` (give it with --from DIR)"
         ))

@@ -37,6 +37,21 @@ pub fn decode_cp1252(bytes: &[u8]) -> String {
 /// is taken over without a copy.
 pub fn decode(file: &str, bytes: impl Into<Vec<u8>>, diags: &mut Diagnostics) -> String {
     let mut body: Vec<u8> = bytes.into();
+    if let Some((name, text)) = wide(&body) {
+        // One error for the whole file; the text is decoded anyway so that every other problem
+        // is found in the same pass.
+        diags
+            .error(
+                Place::line(file, 1).with_column(1),
+                format!("a file in {name}"),
+                "UTF-8 text",
+            )
+            .hint = Some(format!(
+            "save it again as UTF-8 (in a spreadsheet 'CSV (comma delimited)' or 'CSV UTF-8'; in \
+             a text editor 'Save with encoding: UTF-8'); it was read as {name} to check the rest"
+        ));
+        return text;
+    }
     let mut offset = 0;
     if body.starts_with(BOM) {
         diags
@@ -80,6 +95,77 @@ pub fn decode(file: &str, bytes: impl Into<Vec<u8>>, diags: &mut Diagnostics) ->
         );
     }
     text
+}
+
+/// A UTF-16 or UTF-32 file (by its byte-order mark, or, without one, by the zero bytes that
+/// ASCII text has in every second or every four bytes): its encoding's name and its text, with
+/// undecodable units as U+FFFD.
+fn wide(b: &[u8]) -> Option<(&'static str, String)> {
+    let utf32 = |b: &[u8], le: bool| -> String {
+        b.chunks(4)
+            .map(|c| {
+                let mut w = [0u8; 4];
+                w[..c.len()].copy_from_slice(c);
+                let u = if le {
+                    u32::from_le_bytes(w)
+                } else {
+                    u32::from_be_bytes(w)
+                };
+                char::from_u32(u).unwrap_or('\u{FFFD}')
+            })
+            .collect()
+    };
+    let utf16 = |b: &[u8], le: bool| -> String {
+        let units: Vec<u16> = b
+            .chunks(2)
+            .map(|c| {
+                let w = [c[0], *c.get(1).unwrap_or(&0)];
+                if le {
+                    u16::from_le_bytes(w)
+                } else {
+                    u16::from_be_bytes(w)
+                }
+            })
+            .collect();
+        String::from_utf16_lossy(&units)
+    };
+    if b.starts_with(&[0xFF, 0xFE, 0, 0]) {
+        return Some(("UTF-32 (little-endian)", utf32(&b[4..], true)));
+    }
+    if b.starts_with(&[0, 0, 0xFE, 0xFF]) {
+        return Some(("UTF-32 (big-endian)", utf32(&b[4..], false)));
+    }
+    if b.starts_with(&[0xFF, 0xFE]) {
+        return Some(("UTF-16 (little-endian)", utf16(&b[2..], true)));
+    }
+    if b.starts_with(&[0xFE, 0xFF]) {
+        return Some(("UTF-16 (big-endian)", utf16(&b[2..], false)));
+    }
+    // No byte-order mark: look at the zero bytes of the first 4 KiB.
+    let head = &b[..b.len().min(4096)];
+    if head.len() < 8 {
+        return None;
+    }
+    let zeros_at = |m: usize, r: usize| {
+        head.iter()
+            .enumerate()
+            .filter(|(i, &x)| i % m == r && x == 0)
+            .count() as f64
+            / (head.len() / m).max(1) as f64
+    };
+    if zeros_at(4, 1) > 0.9 && zeros_at(4, 2) > 0.9 && zeros_at(4, 3) > 0.9 {
+        return Some(("UTF-32 (little-endian)", utf32(b, true)));
+    }
+    if zeros_at(4, 0) > 0.9 && zeros_at(4, 1) > 0.9 && zeros_at(4, 2) > 0.9 {
+        return Some(("UTF-32 (big-endian)", utf32(b, false)));
+    }
+    if zeros_at(2, 1) > 0.9 && zeros_at(2, 0) < 0.1 {
+        return Some(("UTF-16 (little-endian)", utf16(b, true)));
+    }
+    if zeros_at(2, 0) > 0.9 && zeros_at(2, 1) < 0.1 {
+        return Some(("UTF-16 (big-endian)", utf16(b, false)));
+    }
+    None
 }
 
 /// Maps byte offsets of a text to 1-based line and column numbers.
@@ -166,5 +252,30 @@ mod tests {
         assert_eq!(ix.position(7), (2, 4));
         assert_eq!(ix.position(8), (3, 1));
         assert_eq!(ix.position(100), (3, 2));
+    }
+
+    #[test]
+    fn wide_encodings_are_one_error_and_still_read() {
+        let text = "section_id,length_km\nA,1.5\n";
+        let le: Vec<u8> = [0xFF, 0xFE]
+            .into_iter()
+            .chain(text.encode_utf16().flat_map(u16::to_le_bytes))
+            .collect();
+        let be_no_bom: Vec<u8> = text.encode_utf16().flat_map(u16::to_be_bytes).collect();
+        let le32: Vec<u8> = text
+            .chars()
+            .flat_map(|c| (c as u32).to_le_bytes())
+            .collect();
+        for (bytes, name) in [
+            (le, "UTF-16 (little-endian)"),
+            (be_no_bom, "UTF-16 (big-endian)"),
+            (le32, "UTF-32 (little-endian)"),
+        ] {
+            let mut d = Diagnostics::new();
+            assert_eq!(decode("n.csv", bytes, &mut d), text);
+            assert_eq!(d.error_count(), 1, "{d}");
+            assert!(d.to_string().contains(name), "{d}");
+            assert!(d.to_string().contains("UTF-8"), "{d}");
+        }
     }
 }

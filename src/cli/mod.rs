@@ -104,8 +104,12 @@ impl Context {
     /// Print the findings of an accepted input (its notes) on stderr unless quiet.
     pub fn notes(&self, d: &crate::diag::Diagnostics) {
         if !self.quiet {
-            for item in d.sorted() {
-                eprintln!("{item}");
+            let (items, hidden) = d.shown(crate::diag::PRINTED, false);
+            for item in items {
+                crate::err_line!("{item}");
+            }
+            if hidden > 0 {
+                crate::err_line!("… and {hidden} more notes, not shown");
             }
         }
     }
@@ -117,9 +121,9 @@ impl Context {
             return;
         }
         if let Some(n) = crate::input::provenance::note(m) {
-            eprintln!("{n}");
+            crate::err_line!("{n}");
             if self.verbose {
-                eprint!("{}", crate::input::provenance::listing(m));
+                crate::err_text!("{}", crate::input::provenance::listing(m));
             }
         }
     }
@@ -127,7 +131,7 @@ impl Context {
     /// Print a line on stderr unless quiet.
     pub fn say(&self, text: &str) {
         if !self.quiet {
-            eprintln!("{text}");
+            crate::err_line!("{text}");
         }
     }
 }
@@ -160,7 +164,7 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
             e.exit_code()
         }
         Err(_) => {
-            eprintln!(
+            crate::err_line!(
                 "internal fault: pavestrat stopped unexpectedly (see the message above); \
                  please report it with the input that caused it"
             );
@@ -172,14 +176,19 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
 fn print_error(e: &Error, ctx: Context) {
     match e {
         Error::Input(d) => {
-            for item in d.sorted() {
-                if !ctx.quiet || item.severity == crate::diag::Severity::Error {
-                    eprintln!("{item}");
-                }
+            let (items, hidden) = d.shown(crate::diag::PRINTED, ctx.quiet);
+            for item in items {
+                crate::err_line!("{item}");
             }
-            eprintln!("{}", d.problem_line());
+            if hidden > 0 {
+                crate::err_line!(
+                    "… and {hidden} more, not shown (the first {} by file and line are listed)",
+                    crate::diag::PRINTED
+                );
+            }
+            crate::err_line!("{}", d.problem_line());
         }
-        other => eprintln!("error: {other}"),
+        other => crate::err_line!("error: {other}"),
     }
 }
 

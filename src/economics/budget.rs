@@ -2,11 +2,14 @@
 //!
 //! When projects are independent (any combination may be built) but money is short, the set of
 //! greatest total NPV that fits the budget is a 0/1 knapsack, solved exactly through
-//! [`crate::select`]. Ranking rules — largest NPV first, or largest BCR first, taking each project
+//! the network selection engine ([`crate::select::network`], exact path, whole cents). Ranking rules — largest NPV first, or largest BCR first, taking each project
 //! that still fits — are what spreadsheets do; they are returned beside the optimum so a user can
 //! see how much value they leave on the table.
 
-use crate::select::{solve_default, Choice, SelectError};
+use crate::select::network::{self, Method, Options};
+use crate::select::problem::{Offer, Problem, MAX_ROW_TOTAL};
+use crate::select::SelectError;
+use std::time::Duration;
 
 /// One independent project: its present cost (counted against the budget) and its NPV.
 #[derive(Debug, Clone, PartialEq)]
@@ -37,30 +40,50 @@ impl Portfolio {
 }
 
 /// The exact best set: largest total NPV with total cost ≤ budget. Projects of negative NPV are
-/// never worth taking and are offered only as "not built".
+/// never worth taking and are offered only as "not built". Costs and the budget are counted in
+/// whole cents (each rounded to the nearest cent once), so "fits" is exact: a set that costs
+/// exactly the budget fits.
 pub fn best_set(projects: &[Project], budget: f64) -> Result<Portfolio, SelectError> {
-    let groups: Vec<Vec<Choice>> = projects
+    let cents = |x: f64| -> Result<i64, SelectError> {
+        let c = (x * 100.0).round();
+        if c.is_finite() && c.abs() <= MAX_ROW_TOTAL as f64 {
+            Ok(c as i64)
+        } else {
+            Err(SelectError::Solver(format!(
+                "an amount ({x}) beyond the supported range"
+            )))
+        }
+    };
+    let mut p = Problem::new(vec![cents(budget)?]);
+    let mut builds: Vec<Option<usize>> = Vec::with_capacity(projects.len());
+    for pr in projects {
+        let mut g = vec![Offer::default()];
+        if pr.npv > 0.0 {
+            let c = cents(pr.cost)?;
+            g.push(Offer {
+                value: pr.npv,
+                uses: if c == 0 { vec![] } else { vec![(0, c)] },
+            });
+        }
+        // Dominance may drop "build" (a project that costs more than it is worth nothing
+        // against) or "not built"; keep track of which position is which.
+        let kept = p
+            .push_group(&g)
+            .map_err(|e| SelectError::Solver(e.to_string()))?;
+        builds.push(kept.iter().position(|&k| k == 1));
+    }
+    let options = Options {
+        method: Method::Exact,
+        gap: 0.0,
+        time_limit: Duration::from_secs(10),
+    };
+    let o = network::solve(&p, &options).map_err(|_| SelectError::Infeasible)?;
+    let chosen = o
+        .plan
         .iter()
-        .map(|p| {
-            let mut g = vec![Choice {
-                value: 0.0,
-                costs: vec![0.0],
-            }];
-            if p.npv > 0.0 {
-                g.push(Choice {
-                    value: p.npv,
-                    costs: vec![p.cost],
-                });
-            }
-            g
-        })
-        .collect();
-    let s = solve_default(&groups, &[budget])?;
-    let chosen = s
-        .chosen
-        .iter()
+        .zip(&builds)
         .enumerate()
-        .filter(|(_, &k)| k == 1)
+        .filter(|(_, (&k, b))| **b == Some(k as usize))
         .map(|(i, _)| i)
         .collect();
     Ok(Portfolio::of(projects, chosen))

@@ -21,6 +21,17 @@ pub struct Doc<'i> {
     pub root: Spanned<DeTable<'i>>,
 }
 
+/// The line with the most nesting (dots, brackets and braces), when some line has a lot of it:
+/// where a parser that gives no place for "too deep" most likely stopped.
+fn deepest_line(text: &str) -> Option<usize> {
+    let (line, depth) = text
+        .lines()
+        .enumerate()
+        .map(|(i, l)| (i + 1, l.bytes().filter(|b| b"[{.".contains(b)).count()))
+        .max_by(|a, b| a.1.cmp(&b.1).then(b.0.cmp(&a.0)))?;
+    (depth >= 64).then_some(line)
+}
+
 impl<'i> Doc<'i> {
     /// Parse `text`, recording syntax errors (all the parser recovers from) in `diags`.
     pub fn parse(file: &str, text: &'i str, diags: &mut Diagnostics) -> Doc<'i> {
@@ -29,7 +40,10 @@ impl<'i> Doc<'i> {
         for e in errors {
             let place = match e.span() {
                 Some(s) => lines.place(file, s.start),
-                None => Place::file(file),
+                None => match deepest_line(text) {
+                    Some(line) => Place::line(file, line),
+                    None => Place::file(file),
+                },
             };
             diags.error(
                 place,

@@ -187,7 +187,7 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
         while iterations < max_iter && Instant::now() < deadline {
             let m = master_min(&cuts, rows, cap);
             if debug {
-                eprintln!(
+                crate::err_line!(
                     "it {iterations} f_up {f_up} master {:?} cuts {}",
                     m.as_ref().map(|x| x.0),
                     cuts.len()

@@ -201,7 +201,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
     if debug {
-        eprintln!("prices: {:.2} s", start.elapsed().as_secs_f64());
+        crate::err_line!("prices: {:.2} s", start.elapsed().as_secs_f64());
     }
     let bound = prices.bound;
     // A plan worth this much is within the requested gap.
@@ -235,7 +235,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         }
         let next: Vec<usize> = sub_open.iter().map(|&i| open[i]).collect();
         if debug {
-            eprintln!(
+            crate::err_line!(
                 "round: {} contested -> {} at {:.2} s",
                 open.len(),
                 next.len(),
@@ -265,7 +265,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         if fits(&u, &p.limits) {
             upgrade(p, &mut other, &mut u, &prices.prices);
             if debug {
-                eprintln!(
+                crate::err_line!(
                     "second start: {} at {:.2} s",
                     p.plan_value(&other),
                     start.elapsed().as_secs_f64()
@@ -280,7 +280,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     if fits(&used, &p.limits) {
         if debug {
             let (loss, slack) = gap_parts(p, &plan, &used, &prices.prices);
-            eprintln!(
+            crate::err_line!(
                 "upgrade: {} at {:.2} s; gap parts: reduced-value loss {loss:.0}, priced slack {slack:.0}",
                 p.plan_value(&plan),
                 start.elapsed().as_secs_f64()
@@ -291,7 +291,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         }
     }
     if debug {
-        eprintln!(
+        crate::err_line!(
             "dual: bound {bound} after {} updates, {:.2} s; recovered plan {} fits {} contested {contested}",
             prices.iterations,
             start.elapsed().as_secs_f64(),
@@ -330,9 +330,11 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
         let until = deadline.max(Instant::now() + RESCUE_TIME);
         let s = branch::search(p, &prices.prices, bound, None, until, BRANCH_NODES);
         if debug {
-            eprintln!(
+            crate::err_line!(
                 "rescue search: {} nodes, complete {}, found {}",
-                s.nodes, s.complete, s.found
+                s.nodes,
+                s.complete,
+                s.found
             );
         }
         if s.found {
@@ -371,7 +373,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
                 BRANCH_NODES,
             );
             if debug {
-                eprintln!(
+                crate::err_line!(
                     "branch and bound: {} nodes, complete {}, {} at {:.2} s",
                     s.nodes,
                     s.complete,
@@ -412,7 +414,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
             swap_search(p, &mut plan, &mut used, deadline, enough);
         }
         if debug {
-            eprintln!(
+            crate::err_line!(
                 "windows: {} at {:.2} s",
                 p.plan_value(&plan),
                 start.elapsed().as_secs_f64()
