@@ -37,6 +37,7 @@ fn unconstrained(run: &Run) -> HeldPlan {
             .map(|s| e.strategies(s))
             .collect(),
         chosen: c.unconstrained.iter().map(|u| u.0 as usize).collect(),
+        plan_run: None,
     }
 }
 

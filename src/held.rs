@@ -15,6 +15,9 @@ use std::path::Path;
 pub struct HeldPlan {
     pub strategies: Vec<Vec<Strategy>>,
     pub chosen: Vec<usize>,
+    /// The run id of the `plan` whose files it was read from (from the directory's manifest);
+    /// `None` when selected afresh or read from a directory without a manifest.
+    pub plan_run: Option<String>,
 }
 
 impl HeldPlan {
@@ -39,12 +42,18 @@ impl HeldPlan {
         Ok(HeldPlan {
             strategies: Self::enumerate(run),
             chosen,
+            plan_run: None,
         })
     }
 
     /// The plan in `dir/section_plan.csv` (written by `plan --out DIR`) for this run: every
     /// section must be there with one of its strategies.
     pub fn read(run: &Run, dir: &Path) -> Result<HeldPlan> {
+        // The directory's files must be one complete set (see `io::set`).
+        let manifest = crate::io::verify(dir)?;
+        let plan_run = manifest
+            .as_ref()
+            .and_then(|m| m.plan_run().map(str::to_owned));
         let t = crate::outputs::read(dir, "section_plan.csv", "pavestrat plan", |_| true)?;
         let (cs, cst) = (t.column("section_id")?, t.column("strategy")?);
         let strategies = Self::enumerate(run);
@@ -100,6 +109,7 @@ impl HeldPlan {
         Ok(HeldPlan {
             strategies,
             chosen: chosen.into_iter().map(|c| c.unwrap_or(0)).collect(),
+            plan_run,
         })
     }
 }

@@ -419,6 +419,25 @@ fn section_candidates(
     out
 }
 
+/// The commitments that no strategy of their section can keep — what [`candidates`] would
+/// refuse — found by simulating only the committed sections (so `check` reports them too).
+pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {
+    let held = commitments(run);
+    if held.is_empty() {
+        return;
+    }
+    let e = Enumerator::for_run(run);
+    let mut problems = Vec::new();
+    for sec in &run.network.sections {
+        if let Some(h) = held.get(sec.id.0.as_str()) {
+            section_candidates(run, &e, &[], Objective::Npv, sec, Some(h), &mut problems);
+        }
+    }
+    for (place, found, expected) in problems {
+        d.error(place, found, expected);
+    }
+}
+
 /// Simulate every section and build the selection problem. Bad commitments are input errors.
 pub fn candidates(run: &Run, settings: &Settings) -> Result<Candidates, crate::error::Error> {
     candidates_with(run, settings, &Progress::none())

@@ -473,7 +473,14 @@ mod tests {
             .zip(&strategies)
             .map(|(sec, st)| argmax(&npvs(&plain, &run, sec, st, None)))
             .collect();
-        (run, HeldPlan { strategies, chosen })
+        (
+            run,
+            HeldPlan {
+                strategies,
+                chosen,
+                plan_run: None,
+            },
+        )
     }
 
     /// Each strategy's NPV as `appraise` computes it (its own code path: the incremental

@@ -3,13 +3,13 @@
 //! separators and two decimals, rates as percentages), plus a sheet with the run's facts and the
 //! planning-level caution. Built with the `xlsx` cargo feature (on by default).
 //!
-//! The file is written under a temporary name beside its target and renamed when complete.
+//! The bytes are written by `plan`: with `--out`, as part of the directory's all-or-nothing set
+//! (staged beside the target and moved into place with it); alone, atomically.
 
 use crate::appraise::SectionResult;
 use crate::error::{Error, Result};
 use crate::input::Run;
 use crate::plan::Plan;
-use std::path::Path;
 
 /// Rows a worksheet holds, heading included.
 pub const MAX_ROWS: usize = 1_048_576;
@@ -27,17 +27,17 @@ pub fn available() -> Result<()> {
     }
 }
 
-/// Write the workbook for a plan and its sections' appraisal.
+/// The workbook for a plan and its sections' appraisal, as bytes.
 #[cfg(feature = "xlsx")]
-pub fn write_plan(path: &Path, run: &Run, p: &Plan, appraisal: &[SectionResult]) -> Result<()> {
-    let bytes = imp::workbook(run, p, appraisal)?;
-    crate::io::write_atomically(path, &bytes)
+pub fn plan_bytes(run: &Run, p: &Plan, appraisal: &[SectionResult]) -> Result<Vec<u8>> {
+    imp::workbook(run, p, appraisal)
 }
 
-/// Write the workbook for a plan and its sections' appraisal.
+/// The workbook for a plan and its sections' appraisal, as bytes.
 #[cfg(not(feature = "xlsx"))]
-pub fn write_plan(_path: &Path, _run: &Run, _p: &Plan, _appraisal: &[SectionResult]) -> Result<()> {
-    available()
+pub fn plan_bytes(_run: &Run, _p: &Plan, _appraisal: &[SectionResult]) -> Result<Vec<u8>> {
+    available()?;
+    Ok(Vec::new())
 }
 
 #[cfg(feature = "xlsx")]

@@ -161,9 +161,18 @@ fn writes_all_outputs_atomically() {
     let mut names: Vec<String> = std::fs::read_dir(wd.join("res/a"))
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| !n.starts_with('.'))
         .collect();
     names.sort();
-    assert_eq!(names, ["cashflow.csv", "cashflow.json", "incremental.csv"]);
+    assert_eq!(
+        names,
+        [
+            "cashflow.csv",
+            "cashflow.json",
+            "incremental.csv",
+            "manifest.json"
+        ]
+    );
     let csv = wd.read("res/a/cashflow.csv");
     assert!(
         csv.starts_with("alternative,npv,pv_benefits,pv_costs,bcr,irr,irr_status,mirr,fyrr\n"),

@@ -287,3 +287,106 @@ fn scenario_from_stdin() {
         .expect_code(0)
         .stdout_has("<stdin>: no errors");
 }
+
+#[test]
+fn check_refuses_every_commitment_that_plan_would() {
+    // What `plan` refuses, `check` reports, in one pass and with the same place.
+    let wd = Workdir::new();
+    wd.demo_files();
+    let s = wd.read("scenario.toml");
+    let commit = "section = \"HER-02\"\ntreatment = \"overlay\"\nyear = 2028";
+    assert!(s.contains(commit));
+    // A strategy name outside the period, which no template gives.
+    let bad = s.replace(
+        commit,
+        "section = \"HER-02\"\nstrategy = \"strengthen@1999\"",
+    );
+    wd.write("scenario.toml", &bad);
+    for cmd in ["check", "plan"] {
+        wd.run(&[cmd, "--scenario", "scenario.toml"])
+            .expect_code(2)
+            .stderr_has("commit[1].strategy: the strategy `strengthen@1999`");
+    }
+    // Two treatment commitments for one section in one year.
+    let bad = s.replace(
+        commit,
+        &format!("{commit}\n\n[[commit]]\nsection = \"HER-02\"\ntreatment = \"reconstruction\"\nyear = 2028"),
+    );
+    wd.write("scenario.toml", &bad);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("a second treatment commitment for section `HER-02` in 2028");
+    // A year outside the period is said once, as such, without "a treatment with no year".
+    let bad = s.replace(
+        commit,
+        "section = \"HER-02\"\ntreatment = \"overlay\"\nyear = 2100",
+    );
+    wd.write("scenario.toml", &bad);
+    let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+    out.expect_code(2).stderr_has("2100");
+    assert!(!out.stderr.contains("no year"), "{}", out.stderr);
+}
+
+#[test]
+fn streams_devices_and_wide_encodings_get_one_clear_line() {
+    let wd = Workdir::new();
+    wd.run(&["check", "--scenario", "/dev/zero"])
+        .expect_code(2)
+        .stderr_has("not a regular file");
+    wd.demo_files();
+    let net = wd.read("network.csv");
+    let utf16: Vec<u8> = [0xFF, 0xFE]
+        .into_iter()
+        .chain(net.encode_utf16().flat_map(u16::to_le_bytes))
+        .collect();
+    wd.write("network.csv", utf16);
+    let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+    out.expect_code(2).stderr_has("UTF-16 (little-endian)");
+    assert!(out.stderr.contains("1 problem found"), "{}", out.stderr);
+    // Nesting too deep for the TOML reader: the line is named.
+    let deep = format!("[{}]\n", vec!["a"; 3000].join("."));
+    wd.write("deep.toml", deep);
+    wd.run(&["check", "--scenario", "deep.toml"])
+        .expect_code(2)
+        .stderr_has("deep.toml:1:");
+}
+
+#[test]
+fn a_million_errors_print_a_page_and_a_closed_pipe_is_quiet() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let net = wd.read("network.csv");
+    let mut lines = net.lines();
+    let header = lines.next().unwrap();
+    let row = lines.next().unwrap();
+    let mut big = format!("{header}\n");
+    for _ in 0..5000 {
+        big.push_str(row);
+        big.push('\n');
+    }
+    wd.write("network.csv", big);
+    let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+    out.expect_code(2).stderr_has("more, not shown");
+    assert!(
+        out.stderr.lines().count() < 260,
+        "{} lines",
+        out.stderr.lines().count()
+    );
+    // Into a pipe closed at once: no panic, the usual exit code.
+    let bin = env!("CARGO_BIN_EXE_pavestrat");
+    let mut child = std::process::Command::new(bin)
+        .args(["check", "--scenario", "scenario.toml"])
+        .current_dir(wd.path())
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    drop(child.stderr.take());
+    drop(child.stdout.take());
+    let code = child.wait().unwrap().code();
+    assert_eq!(
+        code,
+        Some(2),
+        "bad input, closed pipes: exit 2 and no panic"
+    );
+}

@@ -25,6 +25,7 @@ fn plans_the_built_in_demo_within_every_line() {
     let mut names = std::fs::read_dir(wd.join("res"))
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| !n.starts_with('.'))
         .collect::<Vec<_>>();
     names.sort();
     assert_eq!(
@@ -33,6 +34,7 @@ fn plans_the_built_in_demo_within_every_line() {
             "budget_use.csv",
             "candidates.csv",
             "condition.csv",
+            "manifest.json",
             "section_plan.csv",
             "summary.json",
             "target_use.csv",

@@ -285,11 +285,16 @@ fn a_plan_from_elsewhere_is_refused_with_its_place() {
     let plan = wd.read("p/section_plan.csv");
     let second = plan.lines().nth(2).unwrap().to_owned();
     let strategy = second.split(',').nth(2).unwrap();
-    wd.write(
-        "p/section_plan.csv",
-        plan.replacen(&second, &second.replacen(strategy, "resurface@2099", 1), 1),
-    );
+    let edited = plan.replacen(&second, &second.replacen(strategy, "resurface@2099", 1), 1);
+    // Edited inside the plan's directory, the file no longer matches its manifest.
+    wd.write("p/section_plan.csv", &edited);
     wd.run(&["sensitivity", "--from", "p", "--out", "s"])
+        .expect_code(2)
+        .stderr_has("section_plan.csv")
+        .stderr_has("differ from what the `plan` run");
+    // A plan put together by hand (no manifest) is read, and its bad line named.
+    wd.write("q/section_plan.csv", &edited);
+    wd.run(&["sensitivity", "--from", "q", "--out", "s"])
         .expect_code(2)
         .stderr_has("section_plan.csv:3")
         .stderr_has("strategy")

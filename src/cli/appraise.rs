@@ -56,7 +56,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             if keep {
                 names.push("yearly.csv");
             }
-            let mut set = StreamSet::create(dir, &names)?;
+            let mut set = StreamSet::create(dir, "appraise", &names)?;
             for (i, head) in [APPRAISAL_HEAD, INCREMENTAL_HEAD, WIDENING_HEAD, YEARLY_HEAD]
                 .iter()
                 .take(names.len())

@@ -116,7 +116,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             "calibration.html",
             page(&run, &intervals, &fits, &label).into_bytes(),
         );
-        for p in set.commit(dir)? {
+        for p in set.commit(dir, "calibrate")? {
             ctx.say(&format!("wrote {}", p.display()));
         }
     } else {

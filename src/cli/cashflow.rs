@@ -125,7 +125,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             set.add("incremental.csv", incremental_csv(&result).into_bytes());
         }
         set.add("cashflow.json", json.into_bytes());
-        let written = set.commit(dir)?;
+        let written = set.commit(dir, "cashflow")?;
         for p in written {
             ctx.say(&format!("wrote {}", p.display()));
         }

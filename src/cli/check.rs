@@ -23,6 +23,13 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let Some(run) = run else {
         return Err(Error::Input(diags));
     };
+    // What `plan` would refuse beyond the readers: commitments no strategy can keep (only the
+    // committed sections are simulated).
+    let mut diags = diags;
+    crate::plan::commitment_problems(&run, &mut diags);
+    if diags.has_errors() {
+        return Err(Error::Input(diags));
+    }
     ctx.notes(&diags);
     ctx.defaults_note(&run.scenario.models);
     let s = &run.scenario;

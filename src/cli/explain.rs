@@ -43,6 +43,18 @@ struct Candidate {
 /// Run `explain`.
 pub fn run(args: Args, _ctx: Context) -> Result<()> {
     let dir = &args.from;
+    if let Some(m) = crate::io::verify(dir)? {
+        crate::io::check_plan_set(
+            dir,
+            &m,
+            &[
+                "summary.json",
+                "section_plan.csv",
+                "candidates.csv",
+                "budget_use.csv",
+            ],
+        )?;
+    }
     let summary_path = dir.join("summary.json");
     let summary: serde_json::Value = std::fs::read_to_string(&summary_path)
         .ok()

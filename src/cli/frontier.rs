@@ -112,7 +112,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let points = crate::frontier::frontier(&run, &mut c, &levels, &lines, &options, &bar)?;
     bar.finish();
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, &["frontier.csv"])?;
+        let mut set = StreamSet::create(dir, "frontier", &["frontier.csv"])?;
         set.write(0, crate::frontier::csv(&points).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));

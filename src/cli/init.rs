@@ -40,7 +40,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             .map(|f| f.1.to_vec())
             .unwrap_or_default()
     };
-    let mut set = OutputSet::new();
+    let mut set = OutputSet::plain();
     match args.sections {
         None => {
             for (name, bytes) in demo::FILES {
@@ -76,7 +76,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             )));
         }
     }
-    for p in set.commit(&args.dir)? {
+    for p in set.commit(&args.dir, "init")? {
         ctx.say(&format!("wrote {}", p.display()));
     }
     ctx.say(&format!(

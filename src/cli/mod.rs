@@ -156,6 +156,8 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
         verbose: cli.verbose,
         progress: crate::progress::Display::for_terminal(cli.quiet),
     };
+    // A signal while files are being written removes (or finishes) the staged set first.
+    crate::io::set::install_signal_cleanup();
     let result = std::panic::catch_unwind(|| run(cli.command, ctx));
     match result {
         Ok(Ok(())) => EXIT_OK,

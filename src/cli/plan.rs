@@ -178,7 +178,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         if args.report {
             names.extend(["frontier.csv", "report.html"]);
         }
-        let mut set = StreamSet::create(dir, &names)?;
+        let mut set = StreamSet::create(dir, "plan", &names)?;
         let mut small = write_files(&run, &plan, &facts, &mut set, args.report)?;
         if args.report {
             let mut c = plan.candidates.clone();
@@ -205,22 +205,34 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             let html = crate::report::render(&crate::report::Files::Memory(&small))?;
             set.write(FILES.len() + 1, html.as_bytes())?;
         }
+        // The workbook is part of the same all-or-nothing set: staged beside its target and
+        // moved into place with the directory's files.
+        if let Some(file) = &args.xlsx {
+            set.extra(file, &workbook(&run, &plan)?)?;
+        }
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
-    }
-    if let Some(file) = &args.xlsx {
-        let appraisal = {
-            let secs: Vec<_> = run.network.sections.iter().collect();
-            crate::appraise::network(&run, &secs, false)
-        };
-        crate::xlsx::write_plan(file, &run, &plan, &appraisal)?;
+        if let Some(file) = &args.xlsx {
+            ctx.say(&format!("wrote {}", file.display()));
+        }
+    } else if let Some(file) = &args.xlsx {
+        crate::io::write_atomically(file, &workbook(&run, &plan)?)?;
         ctx.say(&format!("wrote {}", file.display()));
     }
     if args.out.out.is_none() || !ctx.quiet {
         print_stdout(&render(&run, &plan, &facts))?;
     }
     Ok(())
+}
+
+/// The workbook of `--xlsx`: the plan and every section's appraisal.
+fn workbook(run: &Run, plan: &crate::plan::Plan) -> Result<Vec<u8>> {
+    let appraisal = {
+        let secs: Vec<_> = run.network.sections.iter().collect();
+        crate::appraise::network(run, &secs, false)
+    };
+    crate::xlsx::plan_bytes(run, plan, &appraisal)
 }
 
 /// Facts about a run besides the plan.
@@ -439,7 +451,7 @@ fn write_files(
     }
     set.write(2, bu.as_bytes())?;
     set.write(3, tu.as_bytes())?;
-    let summary = summary_json(run, p, facts);
+    let summary = summary_json(run, p, facts, set.run_id());
     set.write(5, summary.as_bytes())?;
     let condition = condition_csv(&crate::plan::condition_series(run, c, plan));
     set.write(6, condition.as_bytes())?;
@@ -522,7 +534,7 @@ fn price_text(x: f64) -> String {
 }
 
 /// `summary.json`.
-pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
+pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
     let o = &p.outcome;
     let c = &p.candidates;
     let t = totals(c, &o.plan);
@@ -542,6 +554,7 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts) -> String {
         .sum();
     let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.npv[0], pv_capital);
     let v = serde_json::json!({
+        "run_id": run_id,
         "objective": c.objective_of(o.value),
         "bound": c.objective_of(o.bound),
         "gap": o.gap,

@@ -21,9 +21,31 @@ pub struct Args {
 
 /// Run `report`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
+    // One plan's files, and analyses made for that plan, or a refusal that says which file
+    // and what to re-run.
+    let manifest = crate::io::verify(&args.from)?;
+    if let Some(m) = &manifest {
+        crate::io::check_plan_set(&args.from, m, &crate::report::FILES_READ)?;
+    }
     let html = render(&Files::Dir(&args.from))?;
-    let out = args.out.unwrap_or_else(|| args.from.join("report.html"));
-    crate::io::write_atomically(&out, html.as_bytes())?;
-    ctx.say(&format!("wrote {}", out.display()));
+    match args.out {
+        Some(out) => {
+            crate::io::write_atomically(&out, html.as_bytes())?;
+            ctx.say(&format!("wrote {}", out.display()));
+        }
+        None => {
+            // Into the plan's directory, as part of its manifest.
+            let mut set = crate::io::OutputSet::new();
+            set.add("report.html", html.into_bytes());
+            set.made_for(
+                manifest
+                    .as_ref()
+                    .and_then(|m| m.plan_run().map(str::to_owned)),
+            );
+            for p in set.commit(&args.from, "report")? {
+                ctx.say(&format!("wrote {}", p.display()));
+            }
+        }
+    }
     Ok(())
 }

@@ -56,6 +56,7 @@ pub const FILES: [&str; 3] = ["risk.csv", "risk_draws.csv", "risk_slice.bin"];
 
 /// Run `risk`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
+    let mut plan_run: Option<String> = None;
     let slice = if args.merge.is_empty() {
         let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
         let Some(run) = run else {
@@ -75,6 +76,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             ));
         }
         let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
+        plan_run.clone_from(&held.plan_run);
         crate::risk::check_size(&crate::risk::layout(&run, &held)?, args.draws)?;
         let bar = ctx.progress.bar("risk", args.draws, "draws");
         let s = simulate(&run, &held, args.seed, args.first_draw, args.draws, &bar)?;
@@ -82,14 +84,26 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         s
     } else {
         let mut parts = Vec::new();
+        let mut plans = Vec::new();
         for dir in &args.merge {
+            let m = crate::io::verify(dir)?;
+            plans.push(m.and_then(|m| {
+                m.files
+                    .get("risk_slice.bin")
+                    .and_then(|e| e.for_plan.clone())
+            }));
             let p = dir.join("risk_slice.bin");
             parts.push((p.display().to_string(), Slice::read(&p)?));
+        }
+        // The merged draws are of the plan every slice names, if they all name the same one.
+        if plans.windows(2).all(|w| w[0] == w[1]) {
+            plan_run = plans.into_iter().next().flatten();
         }
         merge(parts)?
     };
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, &FILES)?;
+        let mut set = StreamSet::create(dir, "risk", &FILES)?;
+        set.made_for(plan_run);
         set.write(0, slice.csv().as_bytes())?;
         set.write(1, slice.draws_csv().as_bytes())?;
         set.write(2, &slice.to_bytes())?;

@@ -108,7 +108,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let rows = analyse(&run, &held, &tests, &bar);
     bar.finish();
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, &["sensitivity.csv"])?;
+        let mut set = StreamSet::create(dir, "sensitivity", &["sensitivity.csv"])?;
+        set.made_for(held.plan_run.clone());
         set.write(0, csv(&run, &rows).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));

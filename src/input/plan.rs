@@ -156,7 +156,11 @@ fn read_commitments(
         let treatment = t
             .get("treatment")
             .and_then(|v| v.string(d).map(str::to_owned));
-        let year = t.get("year").and_then(|v| {
+        // Whether `year` was written at all, apart from whether it is a valid year (an invalid
+        // one is reported once, as such).
+        let year_value = t.get("year");
+        let had_year = year_value.is_some();
+        let year = year_value.and_then(|v| {
             v.integer_in(
                 d,
                 first,
@@ -164,7 +168,6 @@ fn read_commitments(
                 &format!("a year of the analysis period, {first} to {last}"),
             )
         });
-        let had_year = year.is_some();
         t.finish(d);
         let held = match (strategy, treatment, year) {
             (Some(s), None, None) => Some(Held::Strategy(s)),
@@ -215,6 +218,30 @@ fn read_commitments(
                 "one strategy commitment per section, or any number of treatment commitments",
             );
             continue;
+        }
+        if let Held::Treatment { treatment, year } = &held {
+            // A section gets one treatment a year, so two commitments in one year cannot both
+            // be kept.
+            if let Some(prev) = out.iter().find(|c| {
+                c.section == section
+                    && matches!(&c.held, Held::Treatment { year: y, .. } if y == year)
+            }) {
+                let Held::Treatment {
+                    treatment: other, ..
+                } = &prev.held
+                else {
+                    continue;
+                };
+                d.error(
+                    place.clone().with_subfield("year"),
+                    format!(
+                        "a second treatment commitment for section `{section}` in {year} (`{treatment}`; `{other}` at line {})",
+                        prev.place.line.unwrap_or(0)
+                    ),
+                    "at most one treatment commitment per section and year (a section gets one treatment a year)",
+                );
+                continue;
+            }
         }
         out.push(Commitment {
             section,

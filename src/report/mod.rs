@@ -19,6 +19,20 @@ use std::collections::BTreeMap;
 use std::fmt::Write as _;
 use std::path::Path;
 
+/// Every file the report reads from a plan's directory.
+pub const FILES_READ: [&str; 10] = [
+    "summary.json",
+    "condition.csv",
+    "budget_use.csv",
+    "work_programme.csv",
+    "target_use.csv",
+    "widening_plan.csv",
+    "frontier.csv",
+    "sensitivity.csv",
+    "risk.csv",
+    "risk_draws.csv",
+];
+
 /// Where the report's input files are.
 pub enum Files<'a> {
     /// Texts by file name (a run that has just made them).
