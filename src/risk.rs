@@ -46,6 +46,37 @@ pub struct Layout {
 }
 
 impl Layout {
+    /// Whether the parts of a layout read from a file agree with each other: one strategy list,
+    /// one plan choice (within its list) per section; one limit per budget line.
+    pub fn consistent(&self) -> std::result::Result<(), String> {
+        let n = self.sections.len();
+        if self.strategies.len() != n || self.plan.len() != n {
+            return Err(format!(
+                "{n} sections but {} strategy lists and {} plan choices",
+                self.strategies.len(),
+                self.plan.len()
+            ));
+        }
+        for (g, (list, &k)) in self.strategies.iter().zip(&self.plan).enumerate() {
+            if k >= list.len() {
+                return Err(format!(
+                    "section {} (`{}`) chooses strategy {k} of {}",
+                    g + 1,
+                    self.sections[g],
+                    list.len()
+                ));
+            }
+        }
+        if self.limits.len() != self.lines.len() {
+            return Err(format!(
+                "{} budget lines but {} limits",
+                self.lines.len(),
+                self.limits.len()
+            ));
+        }
+        Ok(())
+    }
+
     pub fn width(&self) -> usize {
         self.strategies.iter().map(Vec::len).sum::<usize>() + 1 + self.lines.len()
     }
@@ -233,6 +264,9 @@ impl Slice {
                 "{label}: {what}; expected a risk_slice.bin written by `pavestrat risk --out DIR`"
             ))
         };
+        if !path.is_file() {
+            return Err(bad("not a regular file".into()));
+        }
         let mut bytes = Vec::new();
         std::fs::File::open(path)
             .and_then(|mut f| f.read_to_end(&mut bytes))
@@ -246,6 +280,9 @@ impl Slice {
             .ok_or_else(|| bad("no header line".into()))?;
         let h: Header = serde_json::from_slice(&rest[..nl])
             .map_err(|e| bad(format!("an unreadable header ({e})")))?;
+        h.layout
+            .consistent()
+            .map_err(|e| bad(format!("a header that contradicts itself ({e})")))?;
         let body = &rest[nl + 1..];
         let width = h.layout.width();
         let want = width
@@ -494,5 +531,47 @@ mod tests {
         assert!((st.mean - 5.0).abs() < 1e-12);
         // Sample standard deviation (n − 1): √(32/7).
         assert!((st.sd - (32.0f64 / 7.0).sqrt()).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_slice_whose_header_contradicts_its_data_is_refused_not_indexed() {
+        let layout = Layout {
+            sections: vec!["A".into(), "B".into()],
+            strategies: vec![
+                vec!["base".into(), "overlay@2027".into()],
+                vec!["base".into()],
+            ],
+            plan: vec![1, 0],
+            lines: vec!["works-2027".into()],
+            limits: vec![100.0],
+            inputs: vec![],
+            money: String::new(),
+        };
+        assert!(layout.consistent().is_ok());
+        let slice = Slice {
+            seed: 1,
+            first: 0,
+            draws: 1,
+            values: vec![0.0; layout.width()],
+            layout,
+        };
+        let dir = tempfile::tempdir().unwrap();
+        for (what, change) in [
+            ("fewer limits", 0),
+            ("fewer sections", 1),
+            ("fewer strategies", 2),
+        ] {
+            let mut bad = slice.clone();
+            match change {
+                0 => bad.layout.limits.clear(),
+                1 => bad.layout.sections.pop().map(|_| ()).unwrap_or(()),
+                _ => bad.layout.strategies[0].truncate(1),
+            }
+            bad.values = vec![0.0; bad.layout.width()];
+            let p = dir.path().join(format!("{change}.bin"));
+            std::fs::write(&p, bad.to_bytes()).unwrap();
+            let e = Slice::read(&p).unwrap_err().to_string();
+            assert!(e.contains("contradicts itself"), "{what}: {e}");
+        }
     }
 }

@@ -435,6 +435,14 @@ impl StreamSet {
     /// Stage a single file outside the directory (a workbook), moved into place with the set.
     pub fn extra(&mut self, path: &Path, bytes: &[u8]) -> Result<()> {
         let fail = werr(path);
+        if let Ok(meta) = std::fs::symlink_metadata(path) {
+            if meta.is_dir() {
+                return Err(fail(std::io::Error::new(
+                    std::io::ErrorKind::AlreadyExists,
+                    "is a directory; give a file name",
+                )));
+            }
+        }
         let parent = match path.parent() {
             Some(d) if !d.as_os_str().is_empty() => d.to_owned(),
             _ => PathBuf::from("."),
