@@ -50,6 +50,7 @@ pub mod outputs;
 pub mod plan;
 pub mod progress;
 pub mod report;
+pub mod resources;
 pub mod risk;
 pub mod select;
 pub mod sensitivity;

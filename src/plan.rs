@@ -419,6 +419,31 @@ fn section_candidates(
     out
 }
 
+/// What building a run's candidates will cost: (strategies, seconds, peak bytes), from the
+/// strategies of up to 1,000 evenly spaced sections scaled to the network, and the measured rates
+/// of [`crate::resources`].
+pub fn estimate(run: &Run) -> (f64, f64, f64) {
+    let secs = &run.network.sections;
+    if secs.is_empty() {
+        return (0.0, 0.0, 0.0);
+    }
+    let e = Enumerator::for_run(run);
+    let step = secs.len().div_ceil(1000).max(1);
+    let sample: Vec<&Section> = secs.iter().step_by(step).collect();
+    let per: f64 = sample
+        .iter()
+        .map(|s| e.strategies(s).len() as f64)
+        .sum::<f64>()
+        / sample.len() as f64;
+    let strategies = per * secs.len() as f64;
+    let years = f64::from(run.scenario.analysis_years);
+    (
+        strategies,
+        crate::resources::simulation_seconds(strategies * years),
+        strategies * crate::resources::PLAN_BYTES_PER_STRATEGY,
+    )
+}
+
 /// The commitments that no strategy of their section can keep — what [`candidates`] would
 /// refuse — found by simulating only the committed sections (so `check` reports them too).
 pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {

@@ -97,21 +97,33 @@ pub struct Slice {
 /// for). Every draw's numbers are kept so that statistics and merges are exact.
 pub const MAX_RAW_BYTES: u64 = 12 << 30;
 
-/// Refuse a run or merge whose raw results would not fit [`MAX_RAW_BYTES`].
-pub fn check_size(layout: &Layout, draws: u64) -> Result<()> {
+/// Refuse a run or merge whose raw results would not fit [`MAX_RAW_BYTES`] or the machine's
+/// memory ([`crate::resources::memory_allowance`]), naming the most draws that fit. Returns the
+/// raw results' size in bytes.
+pub fn check_size(layout: &Layout, draws: u64) -> Result<f64> {
     let bytes = (layout.width() as u64)
         .saturating_mul(draws)
         .saturating_mul(8);
-    if bytes > MAX_RAW_BYTES {
+    let allowed =
+        (MAX_RAW_BYTES as f64).min(crate::resources::memory_allowance(MAX_RAW_BYTES as f64));
+    if bytes as f64 > allowed {
         let per_draw = layout.width() as u64 * 8;
         return Err(Error::Usage(format!(
-            "--draws {draws}: {draws} draws of {} numbers each would hold {:.1} GiB of raw results; expected at most {} draws for this network (12 GiB); use fewer draws",
+            "--draws {draws}: {draws} draws of {} numbers each would hold {} of raw results; expected at most {} draws for this network ({} may be held on this machine); use fewer draws, or split the run with --first-draw and merge the slices",
             layout.width(),
-            bytes as f64 / (1u64 << 30) as f64,
-            MAX_RAW_BYTES / per_draw.max(1)
+            crate::resources::bytes(bytes as f64),
+            (allowed / per_draw.max(1) as f64).floor(),
+            crate::resources::bytes(allowed),
         )));
     }
-    Ok(())
+    Ok(bytes as f64)
+}
+
+/// Time a run of `draws` draws will take, from the simulation's measured throughput: every
+/// strategy of every section is simulated over the period in each draw.
+pub fn estimated_seconds(layout: &Layout, draws: u64, years: u32) -> f64 {
+    let strategies: usize = layout.strategies.iter().map(Vec::len).sum();
+    crate::resources::simulation_seconds(strategies as f64 * f64::from(years) * draws as f64)
 }
 
 /// The budget rows a run's plan spends against.

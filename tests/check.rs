@@ -390,3 +390,67 @@ fn a_million_errors_print_a_page_and_a_closed_pipe_is_quiet() {
         "bad input, closed pipes: exit 2 and no panic"
     );
 }
+
+#[test]
+fn mutated_demo_files_exit_0_or_2_with_a_place() {
+    // A bounded fuzz of the whole binary: seeded byte mutations of each demo file, then `check`.
+    // Never a panic or an internal fault; a rejection is exit 2 and every error line names the
+    // file. PAVESTRAT_FUZZ_RUNS raises the count (CI runs more).
+    let runs: u64 = std::env::var("PAVESTRAT_FUZZ_RUNS")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(40);
+    let wd = Workdir::new();
+    let mut state = 0x9e37_79b9_7f4a_7c15_u64;
+    let mut next = move || {
+        // SplitMix64 (Steele, Lea & Flood 2014), as the tool's own streams.
+        state = state.wrapping_add(0x9e37_79b9_7f4a_7c15);
+        let mut z = state;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        z ^ (z >> 31)
+    };
+    let names = [
+        "scenario.toml",
+        "network.csv",
+        "treatments.toml",
+        "templates.toml",
+    ];
+    for i in 0..runs {
+        wd.demo_files();
+        let name = names[(i % 4) as usize];
+        let mut b = std::fs::read(wd.join(name)).unwrap();
+        for _ in 0..1 + next() % 6 {
+            let at = (next() as usize) % b.len().max(1);
+            let x = next() as u8;
+            match next() % 4 {
+                0 if !b.is_empty() => b[at] ^= x | 1,
+                1 => b.insert(at, x),
+                2 if !b.is_empty() => {
+                    b.remove(at);
+                }
+                _ => {
+                    let end = (at + 1 + (next() as usize) % 40).min(b.len());
+                    let piece = b[at..end].to_vec();
+                    b.splice(at..at, piece);
+                }
+            }
+        }
+        wd.write(name, &b);
+        let out = wd.run(&["check", "--scenario", "scenario.toml"]);
+        assert!(
+            out.code == 0 || out.code == 2,
+            "run {i}, {name}: exit {}\n{}",
+            out.code,
+            out.shown
+        );
+        if out.code == 2 {
+            for line in out.stderr.lines().filter(|l| l.starts_with("error: ")) {
+                assert!(
+                    names.iter().any(|n| line.contains(n)),
+                    "run {i}: an error without its file: {line}"
+                );
+            }
+        }
+    }
+}

@@ -154,6 +154,26 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if args.xlsx.is_some() {
         crate::xlsx::available()?;
     }
+    let (strategies, secs, bytes) = crate::plan::estimate(&run);
+    let allowed = crate::resources::memory_allowance(f64::INFINITY);
+    if bytes > allowed {
+        let n = run.network.sections.len() as f64;
+        return Err(Error::Usage(format!(
+            "this network ({} sections, about {:.0} strategies) would need about {} to plan, more than this machine can give ({}); expected at most about {:.0} sections here: split the network (by region, say) and plan the parts with their share of each budget",
+            run.network.sections.len(),
+            strategies,
+            crate::resources::bytes(bytes),
+            crate::resources::bytes(allowed),
+            (n * allowed / bytes).floor()
+        )));
+    }
+    if secs > crate::resources::ANNOUNCE_SECONDS || bytes > crate::resources::ANNOUNCE_BYTES {
+        ctx.say(&format!(
+            "note: about {strategies:.0} strategies to simulate: about {} and {} (estimated from the measured simulation speed), then the selection",
+            crate::resources::duration(secs),
+            crate::resources::bytes(bytes)
+        ));
+    }
     let bar = ctx
         .progress
         .bar("simulate", run.network.sections.len() as u64, "sections");

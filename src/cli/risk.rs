@@ -77,7 +77,18 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
         plan_run.clone_from(&held.plan_run);
-        crate::risk::check_size(&crate::risk::layout(&run, &held)?, args.draws)?;
+        let layout = crate::risk::layout(&run, &held)?;
+        let raw = crate::risk::check_size(&layout, args.draws)?;
+        let secs = crate::risk::estimated_seconds(&layout, args.draws, run.scenario.analysis_years);
+        if secs > crate::resources::ANNOUNCE_SECONDS || raw > crate::resources::ANNOUNCE_BYTES {
+            ctx.say(&format!(
+                "note: {} draws × {} strategies: about {} and {} of raw results (estimated from the measured simulation speed; fewer --draws, or slices with --first-draw, take less)",
+                args.draws,
+                layout.strategies.iter().map(Vec::len).sum::<usize>(),
+                crate::resources::duration(secs),
+                crate::resources::bytes(raw)
+            ));
+        }
         let bar = ctx.progress.bar("risk", args.draws, "draws");
         let s = simulate(&run, &held, args.seed, args.first_draw, args.draws, &bar)?;
         bar.finish();

@@ -488,4 +488,114 @@ mod robustness {
             }
         }
     }
+
+    /// The demo's four files in memory, one of them changed.
+    struct Mem(Vec<(String, Vec<u8>)>);
+
+    impl Source for Mem {
+        fn read(&self, path: &Path) -> std::io::Result<Vec<u8>> {
+            let key = path.to_string_lossy();
+            self.0
+                .iter()
+                .find(|(n, _)| *n == key)
+                .map(|(_, b)| b.clone())
+                .ok_or_else(|| std::io::Error::new(std::io::ErrorKind::NotFound, "no such file"))
+        }
+
+        fn label(&self, path: &Path) -> String {
+            path.display().to_string()
+        }
+    }
+
+    /// Byte-level mutations of the kind a fuzzer makes: flip, insert, delete, duplicate or drop
+    /// a line, splice in a run of one byte.
+    fn mutate(mut b: Vec<u8>, ops: &[(u8, usize, u8)]) -> Vec<u8> {
+        for &(op, at, x) in ops {
+            let at = if b.is_empty() { 0 } else { at % b.len() };
+            match op % 6 {
+                0 if !b.is_empty() => b[at] ^= x | 1,
+                1 => b.insert(at, x),
+                2 if !b.is_empty() => {
+                    b.remove(at);
+                }
+                3 => {
+                    let start = b[..at]
+                        .iter()
+                        .rposition(|c| *c == b'\n')
+                        .map_or(0, |p| p + 1);
+                    let end = b[at..]
+                        .iter()
+                        .position(|c| *c == b'\n')
+                        .map_or(b.len(), |p| at + p + 1);
+                    let line = b[start..end].to_vec();
+                    b.splice(end..end, line);
+                }
+                4 => {
+                    let start = b[..at]
+                        .iter()
+                        .rposition(|c| *c == b'\n')
+                        .map_or(0, |p| p + 1);
+                    let end = b[at..]
+                        .iter()
+                        .position(|c| *c == b'\n')
+                        .map_or(b.len(), |p| at + p + 1);
+                    b.drain(start..end);
+                }
+                _ => b
+                    .splice(at..at, std::iter::repeat_n(x, 1 + (x as usize % 300)))
+                    .for_each(drop),
+            }
+        }
+        b
+    }
+
+    // Cases: PROPTEST_CASES (default 256); CI runs many more, in release, for a bounded time.
+    proptest! {
+        /// Whole runs over mutated demo files: never a panic; every error names its file, and
+        /// every error of a file that was read names a line or says it is about the whole file.
+        #[test]
+        fn whole_runs_survive_byte_mutations(file in 0usize..4, ops in proptest::collection::vec((any::<u8>(), any::<usize>(), any::<u8>()), 1..10)) {
+            let names = ["scenario.toml", "network.csv", "treatments.toml", "templates.toml"];
+            let mut files: Vec<(String, Vec<u8>)> = crate::demo::FILES
+                .iter()
+                .map(|(n, b)| ((*n).to_owned(), b.to_vec()))
+                .collect();
+            let target = names[file];
+            for f in &mut files {
+                if f.0 == target {
+                    f.1 = mutate(std::mem::take(&mut f.1), &ops);
+                }
+            }
+            let (run, d) = load(&Mem(files), Path::new("scenario.toml"));
+            for e in d.errors() {
+                prop_assert!(!e.place.file.is_empty(), "{e}");
+            }
+            if let Some(run) = run {
+                let mut more = Diagnostics::new();
+                crate::plan::commitment_problems(&run, &mut more);
+                for e in more.errors() {
+                    prop_assert!(e.place.file == "scenario.toml" && e.place.line.is_some(), "{e}");
+                }
+            }
+        }
+
+        /// Every reader on arbitrary bytes: never a panic.
+        #[test]
+        fn readers_survive_arbitrary_bytes(bytes in proptest::collection::vec(any::<u8>(), 0..3000)) {
+            let mut d = Diagnostics::new();
+            let text = crate::text::decode("b", bytes.clone(), &mut d);
+            let _ = network::parse("n.csv", &text, &mut d);
+            let _ = cashflow::parse("c.csv", &text, &mut d);
+            let _ = scenario::parse("s.toml", &text, Path::new("."), &mut d);
+            let _ = treatments::parse("t.toml", &text, &mut d);
+            let _ = templates::parse("p.toml", &text, &mut d);
+            let dir = tempfile::tempdir().unwrap();
+            std::fs::write(dir.path().join("risk_slice.bin"), &bytes).unwrap();
+            let _ = crate::risk::Slice::read(&dir.path().join("risk_slice.bin"));
+            std::fs::write(dir.path().join("manifest.json"), &bytes).unwrap();
+            let _ = crate::io::verify(dir.path());
+            std::fs::write(dir.path().join("section_plan.csv"), &bytes).unwrap();
+            let _ = crate::outputs::read(dir.path(), "section_plan.csv", "pavestrat plan", |_| true);
+        }
+    }
 }

@@ -1246,7 +1246,11 @@ mod tests {
     }
 
     proptest! {
-        #![proptest_config(ProptestConfig { cases: 64, ..ProptestConfig::default() })]
+        // 64 cases by default; PROPTEST_CASES sets more (CI runs a longer pass).
+        #![proptest_config(ProptestConfig {
+            cases: std::env::var("PROPTEST_CASES").ok().and_then(|v| v.parse().ok()).unwrap_or(64),
+            ..ProptestConfig::default()
+        })]
 
         /// Both paths against brute force: the plan fits every row, is worth no more than the
         /// optimum, lies within its reported gap of it, the bound is never below it, and the
