@@ -421,3 +421,76 @@ fn a_zero_line_that_no_section_must_spend_on_is_feasible() {
     ])
     .expect_code(0);
 }
+
+#[test]
+fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
+    // Tiny networks whose every line's limit is exactly what one plan (a random pick of one
+    // candidate per section) spends there: that plan fits, so every method must find a plan
+    // worth at least as much, and never exit 3.
+    let wd = Workdir::new();
+    let mut state = 0x2545_f491_4f6c_dd1d_u64;
+    let mut next = move || {
+        state ^= state << 13;
+        state ^= state >> 7;
+        state ^= state << 17;
+        state
+    };
+    for seed in ["4", "9"] {
+        let net = format!("net{seed}");
+        wd.run(&["init", "--sections", "3", "--seed", seed, &net])
+            .expect_code(0);
+        let original = wd.read(&format!("{net}/scenario.toml"));
+        let mut lines = String::new();
+        let line = |name: &str, category: &str, year: u32, limit: &str| {
+            format!(
+                "\n[[budget]]\nname = \"{name}\"\ncategory = \"{category}\"\nfirst_year = {year}\nlast_year = {year}\nper_year = \"{limit}\"\n"
+            )
+        };
+        for year in 2027..=2030 {
+            lines.push_str(&line(&format!("cap{year}"), "capital", year, "1000000000"));
+            lines.push_str(&line(&format!("run{year}"), "routine", year, "1000000000"));
+        }
+        let path = format!("{net}/scenario.toml");
+        wd.write(&path, with_budget(&original, &lines));
+        wd.run(&["plan", "--scenario", &path, "--out", &format!("{net}/wide")])
+            .expect_code(0);
+        let cands = rows(&wd.read(&format!("{net}/wide/candidates.csv")));
+        let mut by_section: Vec<Vec<&HashMap<String, String>>> = Vec::new();
+        for c in &cands {
+            match by_section.last_mut() {
+                Some(v) if v[0]["section_id"] == c["section_id"] => v.push(c),
+                _ => by_section.push(vec![c]),
+            }
+        }
+        for pick in 0..4 {
+            let chosen: Vec<&HashMap<String, String>> = by_section
+                .iter()
+                .map(|v| v[(next() as usize) % v.len()])
+                .collect();
+            let npv: f64 = chosen.iter().map(|c| c["npv"].parse::<f64>().unwrap()).sum();
+            let mut exact = String::new();
+            for year in 2027..=2030 {
+                for (prefix, category) in [("cap", "capital"), ("run", "routine")] {
+                    let name = format!("{prefix}{year}");
+                    let col = format!("cost:{name}-{year}");
+                    let spent: i64 = chosen.iter().map(|c| cents(&c[&col])).sum();
+                    let text = format!("{}.{:02}", spent / 100, spent % 100);
+                    exact.push_str(&line(&name, category, year, &text));
+                }
+            }
+            wd.write(&path, with_budget(&original, &exact));
+            for method in ["auto", "exact", "decomposed"] {
+                let out = format!("{net}/tight-{pick}-{method}");
+                wd.run(&["plan", "--scenario", &path, "--method", method, "--out", &out])
+                    .expect_code(0);
+                let s = summary(&wd, &out);
+                let objective = s["objective"].as_f64().unwrap();
+                assert!(
+                    objective >= npv - 0.02,
+                    "{net} pick {pick} {method}: {objective} below the fitting plan's {npv}"
+                );
+                assert!(s["bound"].as_f64().unwrap() >= objective - 0.01);
+            }
+        }
+    }
+}
