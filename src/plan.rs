@@ -238,7 +238,11 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
     let s = &run.scenario;
     let mut rows = Vec::new();
     let mut d = Diagnostics::new();
-    let scale = Decimal::try_from(budget_scale).unwrap_or(Decimal::ONE);
+    let Ok(scale) = Decimal::try_from(budget_scale) else {
+        return Err(crate::error::Error::Usage(format!(
+            "a budget scale of {budget_scale}, which is not a usable factor; expected a number from 0 to 1000000"
+        )));
+    };
     let most = Decimal::from(crate::select::problem::MAX_ROW_TOTAL) / Decimal::ONE_HUNDRED;
     for (b, line) in s.budget_lines.iter().enumerate() {
         // Spending is whole cents, so the largest whole number of cents within the limit is
@@ -258,7 +262,10 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
                     "`{}` limit {} × budget scale {budget_scale}, beyond the largest supported amount",
                     line.name, line.limit.0
                 ),
-                format!("a limit of at most {} (money units)", most.normalize()),
+                format!(
+                    "a limit of at most {} money units (after the budget scale)",
+                    crate::money::grouped(crate::select::problem::MAX_ROW_TOTAL as f64 / 100.0, 0)
+                ),
             );
             continue;
         };

@@ -467,7 +467,10 @@ fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
                 .iter()
                 .map(|v| v[(next() as usize) % v.len()])
                 .collect();
-            let npv: f64 = chosen.iter().map(|c| c["npv"].parse::<f64>().unwrap()).sum();
+            let npv: f64 = chosen
+                .iter()
+                .map(|c| c["npv"].parse::<f64>().unwrap())
+                .sum();
             let mut exact = String::new();
             for year in 2027..=2030 {
                 for (prefix, category) in [("cap", "capital"), ("run", "routine")] {
@@ -481,8 +484,16 @@ fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
             wd.write(&path, with_budget(&original, &exact));
             for method in ["auto", "exact", "decomposed"] {
                 let out = format!("{net}/tight-{pick}-{method}");
-                wd.run(&["plan", "--scenario", &path, "--method", method, "--out", &out])
-                    .expect_code(0);
+                wd.run(&[
+                    "plan",
+                    "--scenario",
+                    &path,
+                    "--method",
+                    method,
+                    "--out",
+                    &out,
+                ])
+                .expect_code(0);
                 let s = summary(&wd, &out);
                 let objective = s["objective"].as_f64().unwrap();
                 assert!(
@@ -493,4 +504,54 @@ fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
             }
         }
     }
+}
+
+#[test]
+fn huge_amounts_are_located_input_errors_not_panics() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let t = wd.read("treatments.toml");
+    assert!(t.contains("cost = \"61000\""));
+    // A treatment cost at the largest amount: the network's totals pass what a line can count.
+    wd.write(
+        "treatments.toml",
+        t.replace("cost = \"61000\"", "cost = \"1e15\""),
+    );
+    for args in [
+        vec!["plan", "--time-limit", "1"],
+        vec!["frontier", "--time-limit", "1"],
+        vec!["sensitivity"],
+        vec!["risk", "--draws", "2"],
+    ] {
+        let mut a = args.clone();
+        a.extend(["--scenario", "scenario.toml"]);
+        wd.run(&a)
+            .expect_code(2)
+            .stderr_has("scenario.toml:")
+            .stderr_has("largest supported total");
+    }
+    // Beyond the largest amount: refused where it is written.
+    wd.write(
+        "treatments.toml",
+        t.replace("cost = \"61000\"", "cost = \"1e16\""),
+    );
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("treatments.toml:")
+        .stderr_has("largest supported amount");
+    wd.write("treatments.toml", &t);
+    let s = wd.read("scenario.toml");
+    wd.write(
+        "scenario.toml",
+        s.replace("per_year = \"560000\"", "per_year = \"1e15\""),
+    );
+    wd.run(&[
+        "plan",
+        "--scenario",
+        "scenario.toml",
+        "--budget-scale",
+        "1000000",
+    ])
+    .expect_code(2)
+    .stderr_has("budget scale 1000000");
 }
