@@ -301,6 +301,25 @@ fn least_cost_meets_the_targets() {
     }
 }
 
+/// Run `plan` with a method into `out` (exit 0 expected): the plan's objective and bound.
+fn planned(wd: &Workdir, scenario: &str, method: &str, out: &str) -> (f64, f64) {
+    wd.run(&[
+        "plan",
+        "--scenario",
+        scenario,
+        "--method",
+        method,
+        "--out",
+        out,
+    ])
+    .expect_code(0);
+    let s = summary(wd, out);
+    (
+        s["objective"].as_f64().unwrap(),
+        s["bound"].as_f64().unwrap(),
+    )
+}
+
 /// A scenario with every `[[budget]]` and `[[target]]` entry replaced by `budget`.
 fn with_budget(scenario: &str, budget: &str) -> String {
     let mut out = String::new();
@@ -366,19 +385,7 @@ fn a_line_limited_to_exactly_one_candidates_cost_is_met_with_it() {
         for method in ["auto", "exact", "decomposed"] {
             let out = format!("tight-{method}");
             let _ = std::fs::remove_dir_all(wd.join(&out));
-            wd.run(&[
-                "plan",
-                "--scenario",
-                "net/scenario.toml",
-                "--method",
-                method,
-                "--out",
-                &out,
-            ])
-            .expect_code(0);
-            let s = summary(&wd, &out);
-            let objective = s["objective"].as_f64().unwrap();
-            let bound = s["bound"].as_f64().unwrap();
+            let (objective, bound) = planned(&wd, "net/scenario.toml", method, &out);
             assert!(
                 objective >= npv - 0.01,
                 "{name}, {method}: plan {objective} below the fitting candidate's {npv} ({} at {limit})",
@@ -484,23 +491,12 @@ fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
             wd.write(&path, with_budget(&original, &exact));
             for method in ["auto", "exact", "decomposed"] {
                 let out = format!("{net}/tight-{pick}-{method}");
-                wd.run(&[
-                    "plan",
-                    "--scenario",
-                    &path,
-                    "--method",
-                    method,
-                    "--out",
-                    &out,
-                ])
-                .expect_code(0);
-                let s = summary(&wd, &out);
-                let objective = s["objective"].as_f64().unwrap();
+                let (objective, bound) = planned(&wd, &path, method, &out);
                 assert!(
                     objective >= npv - 0.02,
                     "{net} pick {pick} {method}: {objective} below the fitting plan's {npv}"
                 );
-                assert!(s["bound"].as_f64().unwrap() >= objective - 0.01);
+                assert!(bound >= objective - 0.01);
             }
         }
     }

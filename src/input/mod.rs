@@ -507,6 +507,19 @@ mod robustness {
         }
     }
 
+    /// The byte range of the line holding offset `at` (its line end included).
+    fn line_around(b: &[u8], at: usize) -> (usize, usize) {
+        let start = b[..at]
+            .iter()
+            .rposition(|c| *c == b'\n')
+            .map_or(0, |p| p + 1);
+        let end = b[at..]
+            .iter()
+            .position(|c| *c == b'\n')
+            .map_or(b.len(), |p| at + p + 1);
+        (start, end)
+    }
+
     /// Byte-level mutations of the kind a fuzzer makes: flip, insert, delete, duplicate or drop
     /// a line, splice in a run of one byte.
     fn mutate(mut b: Vec<u8>, ops: &[(u8, usize, u8)]) -> Vec<u8> {
@@ -519,26 +532,12 @@ mod robustness {
                     b.remove(at);
                 }
                 3 => {
-                    let start = b[..at]
-                        .iter()
-                        .rposition(|c| *c == b'\n')
-                        .map_or(0, |p| p + 1);
-                    let end = b[at..]
-                        .iter()
-                        .position(|c| *c == b'\n')
-                        .map_or(b.len(), |p| at + p + 1);
+                    let (start, end) = line_around(&b, at);
                     let line = b[start..end].to_vec();
                     b.splice(end..end, line);
                 }
                 4 => {
-                    let start = b[..at]
-                        .iter()
-                        .rposition(|c| *c == b'\n')
-                        .map_or(0, |p| p + 1);
-                    let end = b[at..]
-                        .iter()
-                        .position(|c| *c == b'\n')
-                        .map_or(b.len(), |p| at + p + 1);
+                    let (start, end) = line_around(&b, at);
                     b.drain(start..end);
                 }
                 _ => b

@@ -79,9 +79,9 @@ pub fn input_label(path: &str) -> String {
 
 pub use set::{check_plan_set, recover, verify, Manifest, OutputSet, StreamSet};
 
-/// Write one file all or nothing: into a temporary file beside `path`, renamed over it when
-/// complete (a failure leaves no partial file).
-pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
+/// `bytes` in a temporary file beside `path` (same directory, so it can be renamed over it),
+/// on disk and readable as an ordinary file (0644), ready to persist.
+pub(crate) fn stage_beside(path: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile> {
     let fail = |source| Error::Write {
         path: path.to_owned(),
         source,
@@ -109,7 +109,18 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
             .set_permissions(std::fs::Permissions::from_mode(0o644))
             .map_err(fail)?;
     }
-    tmp.persist(path).map_err(|e| fail(e.error))?;
+    Ok(tmp)
+}
+
+/// Write one file all or nothing: into a temporary file beside `path`, renamed over it when
+/// complete (a failure leaves no partial file).
+pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
+    stage_beside(path, bytes)?
+        .persist(path)
+        .map_err(|e| Error::Write {
+            path: path.to_owned(),
+            source: e.error,
+        })?;
     Ok(())
 }
 

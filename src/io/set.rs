@@ -443,29 +443,7 @@ impl StreamSet {
                 )));
             }
         }
-        let parent = match path.parent() {
-            Some(d) if !d.as_os_str().is_empty() => d.to_owned(),
-            _ => PathBuf::from("."),
-        };
-        std::fs::create_dir_all(&parent).map_err(&fail)?;
-        let name = path
-            .file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default();
-        let mut tmp = tempfile::Builder::new()
-            .prefix(&format!(".{name}."))
-            .suffix(".tmp")
-            .tempfile_in(&parent)
-            .map_err(&fail)?;
-        tmp.write_all(bytes).map_err(&fail)?;
-        tmp.as_file().sync_all().map_err(&fail)?;
-        #[cfg(unix)]
-        {
-            use std::os::unix::fs::PermissionsExt;
-            tmp.as_file()
-                .set_permissions(std::fs::Permissions::from_mode(0o644))
-                .map_err(&fail)?;
-        }
+        let tmp = crate::io::stage_beside(path, bytes)?;
         self.extras.push((tmp, path.to_owned()));
         Ok(())
     }
