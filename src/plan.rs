@@ -451,6 +451,81 @@ pub fn estimate(run: &Run) -> (f64, f64, f64) {
     )
 }
 
+/// Budget lines whose total over the network could pass what a line can count (about
+/// 2.3·10¹⁶): an input error at the line, found without simulating, from an upper bound — every
+/// treatment of the catalogue in the same year on the section widened by the most lanes any
+/// treatment adds, and routine upkeep and holding repairs at the roughness cap. `check` and
+/// `plan` both run it, so they refuse the same inputs; the selection's own range check stays
+/// behind it.
+pub fn spending_bound_problems(run: &Run, d: &mut Diagnostics) {
+    let cat = &run.catalogue;
+    let added = cat
+        .treatments
+        .iter()
+        .map(|t| t.lanes_added)
+        .max()
+        .unwrap_or(0);
+    let upkeep = crate::simulate::costs::Upkeep::new(&cat.routine);
+    let iri_max = run.scenario.models.condition.iri_max;
+    let most = crate::select::problem::MAX_ROW_TOTAL as f64 / MONEY_UNITS;
+    // Per section: (capital, routine) upper bounds for one year.
+    let per: Vec<(f64, f64)> = run
+        .network
+        .sections
+        .iter()
+        .map(|sec| {
+            let lanes = sec.lanes.saturating_add(added);
+            let capital: f64 = cat
+                .treatments
+                .iter()
+                .map(|t| {
+                    t.cost.to_f64().abs()
+                        * crate::simulate::costs::quantity(
+                            t.cost_per,
+                            sec.length_km,
+                            lanes,
+                            sec.lane_width_m
+                                .unwrap_or(crate::simulate::DEFAULT_LANE_WIDTH_M),
+                        )
+                })
+                .sum();
+            let routine = upkeep
+                .year(iri_max, sec.length_km * f64::from(lanes))
+                .0
+                .abs();
+            (capital, routine)
+        })
+        .collect();
+    for line in &run.scenario.budget_lines {
+        let total: f64 = run
+            .network
+            .sections
+            .iter()
+            .zip(&per)
+            .filter(|(sec, _)| line.region.is_none() || line.region == sec.region)
+            .map(|(_, &(c, r))| match line.category {
+                Category::Capital => c,
+                Category::Routine => r,
+                Category::All => c + r,
+            })
+            .sum();
+        if total.is_nan() || total > most {
+            d.error(
+                line.place.clone(),
+                format!(
+                    "`{}`: the sections could put up to {} on this line, beyond the largest supported total",
+                    line.name,
+                    crate::money::grouped(total, 0)
+                ),
+                format!(
+                    "costs whose totals over the network stay below {} — check the treatment costs and the routine costs for a misplaced decimal point",
+                    crate::money::grouped(most, 0)
+                ),
+            );
+        }
+    }
+}
+
 /// The commitments that no strategy of their section can keep — what [`candidates`] would
 /// refuse — found by simulating only the committed sections (so `check` reports them too).
 pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {
@@ -481,6 +556,11 @@ pub fn candidates_with(
     settings: &Settings,
     progress: &Progress,
 ) -> Result<Candidates, crate::error::Error> {
+    let mut d = Diagnostics::new();
+    spending_bound_problems(run, &mut d);
+    if d.has_errors() {
+        return Err(crate::error::Error::Input(d));
+    }
     let e = Enumerator::for_run(run);
     let rows = rows(run, settings.budget_scale)?;
     let limits: Vec<i64> = rows.iter().map(|r| r.limit_units).collect();

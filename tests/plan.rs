@@ -514,6 +514,7 @@ fn huge_amounts_are_located_input_errors_not_panics() {
         t.replace("cost = \"61000\"", "cost = \"1e15\""),
     );
     for args in [
+        vec!["check"],
         vec!["plan", "--time-limit", "1"],
         vec!["frontier", "--time-limit", "1"],
         vec!["sensitivity"],

@@ -24,9 +24,10 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         return Err(Error::Input(diags));
     };
     // What `plan` would refuse beyond the readers: commitments no strategy can keep (only the
-    // committed sections are simulated).
+    // committed sections are simulated), and lines whose totals could pass the supported range.
     let mut diags = diags;
     crate::plan::commitment_problems(&run, &mut diags);
+    crate::plan::spending_bound_problems(&run, &mut diags);
     if diags.has_errors() {
         return Err(Error::Input(diags));
     }

@@ -211,6 +211,14 @@ impl DirLock {
                 );
                 file.lock().map_err(werr(&path))?;
             }
+            // A file system without locks (some network mounts): go on unlocked rather than
+            // refuse to write at all.
+            Err(std::fs::TryLockError::Error(e)) if e.kind() == std::io::ErrorKind::Unsupported => {
+                crate::err_line!(
+                    "note: {} cannot be locked ({e}); do not run two commands into it at once",
+                    dir.display()
+                );
+            }
             Err(std::fs::TryLockError::Error(e)) => return Err(werr(&path)(e)),
         }
         Ok(DirLock { _file: file })
