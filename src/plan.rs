@@ -443,12 +443,8 @@ pub fn estimate(run: &Run) -> (f64, f64, f64) {
         .sum::<f64>()
         / sample.len() as f64;
     let strategies = per * secs.len() as f64;
-    let years = f64::from(run.scenario.analysis_years);
-    (
-        strategies,
-        crate::resources::simulation_seconds(strategies * years),
-        strategies * crate::resources::PLAN_BYTES_PER_STRATEGY,
-    )
+    let (seconds, bytes) = crate::resources::plan_cost(strategies, run.scenario.analysis_years);
+    (strategies, seconds, bytes)
 }
 
 /// Budget lines whose total over the network could pass what a line can count (about

@@ -38,6 +38,15 @@ pub fn simulation_seconds(steps: f64) -> f64 {
     steps / (STEPS_PER_SECOND_PER_THREAD * threads)
 }
 
+/// Time (seconds) and peak memory (bytes) of building a plan's candidates for `strategies`
+/// strategies over `years` years.
+pub fn plan_cost(strategies: f64, years: u32) -> (f64, f64) {
+    (
+        simulation_seconds(strategies * f64::from(years)),
+        strategies * PLAN_BYTES_PER_STRATEGY,
+    )
+}
+
 /// A duration in words: `40 s`, `12 min`, `3.5 h`.
 pub fn duration(seconds: f64) -> String {
     if seconds < 1.0 {

@@ -576,7 +576,9 @@ mod tests {
             let mut bad = slice.clone();
             match change {
                 0 => bad.layout.limits.clear(),
-                1 => bad.layout.sections.pop().map(|_| ()).unwrap_or(()),
+                1 => {
+                    bad.layout.sections.pop();
+                }
                 _ => bad.layout.strategies[0].truncate(1),
             }
             bad.values = vec![0.0; bad.layout.width()];

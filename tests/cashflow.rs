@@ -321,3 +321,28 @@ fn an_unwritable_output_is_an_internal_fault_and_leaves_nothing() {
         .stderr_has("cannot write");
     assert_eq!(wd.listing(), ["blocker", "f.csv"]);
 }
+
+#[test]
+fn independent_projects_too_large_to_count_are_bad_input() {
+    // Each amount within the largest allowed (10¹⁵), but the projects' present costs together
+    // pass what the whole-cent selection holds: exit 2 with what to change, never a fault.
+    let wd = Workdir::new();
+    let mut csv = String::from("alternative,year,benefit,cost\n");
+    for a in ["a", "b"] {
+        for y in 2027..2077 {
+            csv.push_str(&format!("{a},{y},1000000000000000,900000000000000\n"));
+        }
+    }
+    wd.write("huge.csv", csv);
+    wd.run(&[
+        "cashflow",
+        "--rate",
+        "6%",
+        "--independent",
+        "--budget",
+        "1e15",
+        "huge.csv",
+    ])
+    .expect_code(2)
+    .stderr_has("largest supported total");
+}

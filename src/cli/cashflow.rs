@@ -20,6 +20,7 @@ use crate::format::{csv_field, irr_text, num, opt, pct, rates};
 use crate::input::cashflow::{parse, Flows, SINGLE};
 use crate::io::{print_stdout, OutputSet};
 use crate::money::{grouped, Money};
+use crate::select::SelectError;
 use serde_json::{json, Value};
 use std::path::Path;
 
@@ -185,12 +186,15 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
                     npv: i.npv,
                 })
                 .collect();
-            let best =
-                best_set(&projects, b).map_err(|e| Error::Internal(format!("selection: {e}")))?;
+            let located = |e: SelectError| match e {
+                SelectError::Range(m) => Error::Usage(format!("--budget with these projects: {m}")),
+                other => Error::Internal(format!("selection: {other}")),
+            };
+            let best = best_set(&projects, b).map_err(located)?;
             Some(BudgetResult {
                 budget: b,
-                by_npv: greedy(&projects, b, Ranking::Npv),
-                by_ratio: greedy(&projects, b, Ranking::NpvPerCost),
+                by_npv: greedy(&projects, b, Ranking::Npv).map_err(located)?,
+                by_ratio: greedy(&projects, b, Ranking::NpvPerCost).map_err(located)?,
                 best,
                 projects,
             })

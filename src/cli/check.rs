@@ -99,11 +99,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         strategies
     ));
     let steps = strategies as f64 * f64::from(s.analysis_years);
+    let (seconds, bytes) = crate::resources::plan_cost(strategies as f64, s.analysis_years);
     out.push_str(&format!(
         "  work        `plan` simulates {steps:.0} section-years of strategies: about {} on {} threads and {} at its peak (estimates from measured rates)\n",
-        crate::resources::duration(crate::resources::simulation_seconds(steps)),
+        crate::resources::duration(seconds),
         rayon::current_num_threads(),
-        crate::resources::bytes(strategies as f64 * crate::resources::PLAN_BYTES_PER_STRATEGY)
+        crate::resources::bytes(bytes)
     ));
     if s.budget_lines.is_empty() {
         out.push_str("  budgets     none (selection will be unconstrained)\n");

@@ -1,13 +1,14 @@
 //! Independent projects under one budget: the best set, and what ranking rules would pick.
 //!
 //! When projects are independent (any combination may be built) but money is short, the set of
-//! greatest total NPV that fits the budget is a 0/1 knapsack, solved exactly through
-//! the network selection engine ([`crate::select::network`], exact path, whole cents). Ranking rules — largest NPV first, or largest BCR first, taking each project
-//! that still fits — are what spreadsheets do; they are returned beside the optimum so a user can
-//! see how much value they leave on the table.
+//! greatest total NPV that fits the budget is a 0/1 knapsack, solved exactly by the network
+//! selection engine ([`crate::select::network`], exact path, whole cents). Ranking rules —
+//! largest NPV first, or largest BCR first, taking each project that still fits — are what
+//! spreadsheets do; they are returned beside the optimum so a user can see how much value they
+//! leave on the table.
 
 use crate::select::network::{self, Method, Options};
-use crate::select::problem::{Offer, Problem, MAX_ROW_TOTAL};
+use crate::select::problem::{Offer, Problem, ProblemError, MAX_ROW_TOTAL};
 use crate::select::SelectError;
 use std::time::Duration;
 
@@ -39,27 +40,51 @@ impl Portfolio {
     }
 }
 
-/// The exact best set: largest total NPV with total cost ≤ budget. Projects of negative NPV are
-/// never worth taking and are offered only as "not built". Costs and the budget are counted in
-/// whole cents (each rounded to the nearest cent once), so "fits" is exact: a set that costs
-/// exactly the budget fits.
-pub fn best_set(projects: &[Project], budget: f64) -> Result<Portfolio, SelectError> {
-    let cents = |x: f64| -> Result<i64, SelectError> {
-        let c = (x * 100.0).round();
-        if c.is_finite() && c.abs() <= MAX_ROW_TOTAL as f64 {
-            Ok(c as i64)
-        } else {
-            Err(SelectError::Solver(format!(
-                "an amount ({x}) beyond the supported range"
-            )))
+/// Which way an amount is rounded to whole cents.
+#[derive(Debug, Clone, Copy)]
+enum Toward {
+    /// A cost: rounded up, so a set counted as fitting really fits.
+    Up,
+    /// A budget: rounded down, for the same reason.
+    Down,
+}
+
+/// An amount in whole cents. An amount within floating-point noise (a billionth, relative) of a
+/// whole cent is that cent, so a cost of exactly the budget still fits; any other fraction of a
+/// cent is rounded `toward`. Counting costs up and the budget down means a set that fits in
+/// cents has a true total cost within the budget.
+fn cents(x: f64, toward: Toward) -> Result<i64, SelectError> {
+    let c = x * 100.0;
+    let nearest = c.round();
+    let c = if (c - nearest).abs() <= 1e-9 * nearest.abs().max(1.0) {
+        nearest
+    } else {
+        match toward {
+            Toward::Up => c.ceil(),
+            Toward::Down => c.floor(),
         }
     };
-    let mut p = Problem::new(vec![cents(budget)?]);
+    if c.is_finite() && c.abs() <= MAX_ROW_TOTAL as f64 {
+        Ok(c as i64)
+    } else {
+        Err(SelectError::Range(format!(
+            "an amount ({x}) beyond the supported range"
+        )))
+    }
+}
+
+/// The exact best set: largest total NPV with total cost ≤ budget. Projects of negative NPV are
+/// never worth taking and are offered only as "not built". Costs and the budget are counted in
+/// whole cents (costs rounded up, the budget down; an amount within a billionth of a whole cent is
+/// that cent), so "fits" is exact and never generous: a set that costs exactly the budget fits,
+/// one that passes it by a fraction of a cent does not.
+pub fn best_set(projects: &[Project], budget: f64) -> Result<Portfolio, SelectError> {
+    let mut p = Problem::new(vec![cents(budget, Toward::Down)?]);
     let mut builds: Vec<Option<usize>> = Vec::with_capacity(projects.len());
     for pr in projects {
         let mut g = vec![Offer::default()];
         if pr.npv > 0.0 {
-            let c = cents(pr.cost)?;
+            let c = cents(pr.cost, Toward::Up)?;
             g.push(Offer {
                 value: pr.npv,
                 uses: if c == 0 { vec![] } else { vec![(0, c)] },
@@ -67,9 +92,13 @@ pub fn best_set(projects: &[Project], budget: f64) -> Result<Portfolio, SelectEr
         }
         // Dominance may drop "build" (a project that costs more than it is worth nothing
         // against) or "not built"; keep track of which position is which.
-        let kept = p
-            .push_group(&g)
-            .map_err(|e| SelectError::Solver(e.to_string()))?;
+        let kept = p.push_group(&g).map_err(|e| match e {
+            ProblemError::TooLarge(_) => SelectError::Range(format!(
+                "the projects' costs together pass the largest supported total ({} money units)",
+                MAX_ROW_TOTAL / 100
+            )),
+            other => SelectError::Solver(other.to_string()),
+        })?;
         builds.push(kept.iter().position(|&k| k == 1));
     }
     let options = Options {
@@ -98,8 +127,9 @@ pub enum Ranking {
     NpvPerCost,
 }
 
-/// Walk the projects in ranking order, taking each of positive NPV that still fits.
-pub fn greedy(projects: &[Project], budget: f64, rule: Ranking) -> Portfolio {
+/// Walk the projects in ranking order, taking each of positive NPV that still fits (counted in
+/// whole cents as [`best_set`] counts, so the two answer the same question).
+pub fn greedy(projects: &[Project], budget: f64, rule: Ranking) -> Result<Portfolio, SelectError> {
     let key = |p: &Project| match rule {
         Ranking::Npv => p.npv,
         Ranking::NpvPerCost => {
@@ -116,16 +146,19 @@ pub fn greedy(projects: &[Project], budget: f64, rule: Ranking) -> Portfolio {
             .total_cmp(&key(&projects[a]))
             .then(a.cmp(&b))
     });
-    let mut left = budget;
+    let mut left = cents(budget, Toward::Down)?;
     let mut chosen = Vec::new();
     for i in order {
         let p = &projects[i];
-        if p.npv > 0.0 && p.cost <= left {
-            left -= p.cost;
-            chosen.push(i);
+        if p.npv > 0.0 {
+            let c = cents(p.cost, Toward::Up)?;
+            if c <= left {
+                left -= c;
+                chosen.push(i);
+            }
         }
     }
-    Portfolio::of(projects, chosen)
+    Ok(Portfolio::of(projects, chosen))
 }
 
 #[cfg(test)]
@@ -152,7 +185,7 @@ mod tests {
         let best = best_set(&projects, 2000.0).unwrap();
         assert_eq!(best.chosen, vec![0, 2]);
         assert!((best.npv - 936.0).abs() < 1e-9);
-        let by_npv = greedy(&projects, 2000.0, Ranking::Npv);
+        let by_npv = greedy(&projects, 2000.0, Ranking::Npv).unwrap();
         assert_eq!(by_npv.chosen, vec![1]);
         assert!((by_npv.npv - 612.0).abs() < 1e-9);
     }
@@ -184,10 +217,33 @@ mod tests {
             }
             assert!((best.npv - brute).abs() < 1e-9, "budget {budget}");
             for rule in [Ranking::Npv, Ranking::NpvPerCost] {
-                let g = greedy(&projects, budget, rule);
+                let g = greedy(&projects, budget, rule).unwrap();
                 assert!(g.cost <= budget + 1e-9);
                 assert!(g.npv <= best.npv + 1e-9);
             }
         }
+    }
+
+    #[test]
+    fn fractions_of_a_cent_never_make_a_set_pass_the_budget() {
+        // A cost a fraction of a cent over the budget does not fit; one exactly at it, or a
+        // fraction of a cent under a whole-cent budget, does. Both answers agree with the rankings.
+        let over = [p("a", 195.7742, 50.0)];
+        assert!(best_set(&over, 195.77).unwrap().chosen.is_empty());
+        assert!(greedy(&over, 195.77, Ranking::Npv)
+            .unwrap()
+            .chosen
+            .is_empty());
+        let exact = [p("a", 122_000.0, 50.0)];
+        assert_eq!(best_set(&exact, 122_000.0).unwrap().chosen, vec![0]);
+        assert_eq!(
+            greedy(&exact, 122_000.0, Ranking::Npv).unwrap().chosen,
+            vec![0]
+        );
+        let under = [p("a", 121_999.996, 50.0)];
+        assert_eq!(best_set(&under, 122_000.0).unwrap().chosen, vec![0]);
+        // 0.1 + 0.2 is not 0.3 in binary; counted in cents it is.
+        let noisy = [p("a", 0.1 + 0.2, 1.0)];
+        assert_eq!(best_set(&noisy, 0.3).unwrap().chosen, vec![0]);
     }
 }

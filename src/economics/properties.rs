@@ -138,7 +138,7 @@ proptest! {
         let best = best_set(&projects, budget).unwrap();
         prop_assert!(best.cost <= budget * (1.0 + 1e-9) + 1e-9);
         for rule in [Ranking::Npv, Ranking::NpvPerCost] {
-            let g = greedy(&projects, budget, rule);
+            let g = greedy(&projects, budget, rule).unwrap();
             prop_assert!(g.cost <= budget + 1e-9);
             prop_assert!(g.npv <= best.npv + 1e-6);
         }

@@ -222,16 +222,14 @@ fn read_commitments(
         if let Held::Treatment { treatment, year } = &held {
             // A section gets one treatment a year, so two commitments in one year cannot both
             // be kept.
-            if let Some(prev) = out.iter().find(|c| {
-                c.section == section
-                    && matches!(&c.held, Held::Treatment { year: y, .. } if y == year)
-            }) {
-                let Held::Treatment {
-                    treatment: other, ..
-                } = &prev.held
-                else {
-                    continue;
-                };
+            let earlier = out.iter().find_map(|c| match &c.held {
+                Held::Treatment {
+                    treatment: other,
+                    year: y,
+                } if c.section == section && y == year => Some((c, other)),
+                _ => None,
+            });
+            if let Some((prev, other)) = earlier {
                 d.error(
                     place.clone().with_subfield("year"),
                     format!(

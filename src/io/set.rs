@@ -137,7 +137,7 @@ pub fn install_signal_cleanup() {
                 let live = LIVE.lock().unwrap_or_else(|p| p.into_inner());
                 for stage in live.iter() {
                     if let Some(dir) = stage.parent() {
-                        settle(dir, stage);
+                        let _ = settle(dir, stage);
                     }
                 }
                 std::process::exit(128 + sig);
@@ -145,27 +145,32 @@ pub fn install_signal_cleanup() {
         });
 }
 
-/// Finish (journalled) or remove (not yet journalled) one staging directory of `dir`.
-fn settle(dir: &Path, stage: &Path) {
+/// Finish (journalled) or remove (not yet journalled) one staging directory of `dir`. A move
+/// that fails leaves the staging directory, journal and all, for the next opener to finish: it
+/// is never removed with part of a committed set still inside.
+fn settle(dir: &Path, stage: &Path) -> std::io::Result<()> {
     let journal = std::fs::read(stage.join(JOURNAL))
         .ok()
         .and_then(|b| serde_json::from_slice::<Journal>(&b).ok());
     if let Some(j) = journal {
-        for name in &j.files {
+        for name in j.files.iter().map(String::as_str) {
             let from = stage.join(name);
             if from.exists() {
-                let _ = std::fs::rename(&from, dir.join(name));
+                std::fs::rename(&from, dir.join(name))?;
             }
         }
         for name in &j.remove {
-            let _ = std::fs::remove_file(dir.join(name));
+            match std::fs::remove_file(dir.join(name)) {
+                Err(e) if e.kind() != std::io::ErrorKind::NotFound => return Err(e),
+                _ => {}
+            }
         }
         let from = stage.join(MANIFEST);
         if from.exists() {
-            let _ = std::fs::rename(&from, dir.join(MANIFEST));
+            std::fs::rename(&from, dir.join(MANIFEST))?;
         }
     }
-    let _ = std::fs::remove_dir_all(stage);
+    std::fs::remove_dir_all(stage)
 }
 
 /// Finish or remove every staging directory a cut-short run left in `dir`. Call with the lock
@@ -181,7 +186,8 @@ pub fn recover(dir: &Path) {
         .collect();
     stages.sort();
     for s in stages {
-        settle(dir, &s);
+        // A staging directory that cannot be settled now is tried again next time.
+        let _ = settle(dir, &s);
     }
 }
 
@@ -521,7 +527,9 @@ impl StreamSet {
         for (tmp, target) in std::mem::take(&mut self.extras) {
             tmp.persist(&target).map_err(|e| werr(&target)(e.error))?;
         }
-        settle(&self.dir, &self.stage);
+        // Past the commit point: a move that fails leaves the journalled staging directory for
+        // the next opener to finish, and says so.
+        settle(&self.dir, &self.stage).map_err(werr(&self.dir))?;
         self.committed = true;
         drop(live);
         self.forget();
@@ -755,6 +763,33 @@ mod tests {
         std::fs::write(early.join("a.csv"), b"never").unwrap();
         let m = verify(d).unwrap().unwrap();
         assert_eq!(m.plan_run(), Some("killed"));
+        assert_eq!(std::fs::read(d.join("b.csv")).unwrap(), b"new b");
+        assert_eq!(listing(d), vec![LOCK, "a.csv", "b.csv", MANIFEST]);
+    }
+
+    #[test]
+    fn a_move_that_fails_after_the_commit_point_is_finished_by_the_next_opener() {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let mut set = StreamSet::create(d, "plan", &["a.csv", "b.csv"]).unwrap();
+        set.write(0, b"new a").unwrap();
+        set.write(1, b"new b").unwrap();
+        // Something takes b.csv's place after the set was opened: its move fails.
+        std::fs::create_dir(d.join("b.csv")).unwrap();
+        std::fs::write(d.join("b.csv/x"), b"").unwrap();
+        assert!(set.commit().is_err());
+        let stages: Vec<String> = listing(d)
+            .into_iter()
+            .filter(|n| n.starts_with(STAGE_PREFIX))
+            .collect();
+        assert_eq!(
+            stages.len(),
+            1,
+            "the journalled set is kept, not thrown away half moved"
+        );
+        std::fs::remove_dir_all(d.join("b.csv")).unwrap();
+        let m = verify(d).unwrap().unwrap();
+        assert_eq!(m.files.len(), 2);
         assert_eq!(std::fs::read(d.join("b.csv")).unwrap(), b"new b");
         assert_eq!(listing(d), vec![LOCK, "a.csv", "b.csv", MANIFEST]);
     }
