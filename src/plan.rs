@@ -709,10 +709,15 @@ pub fn solve_checked(
     candidates: &Candidates,
     options: &Options,
 ) -> Result<(Outcome, Checked), crate::error::Error> {
-    let outcome = match network::solve(&candidates.problem, options) {
+    let mut outcome = match network::solve(&candidates.problem, options) {
         Ok(o) => o,
         Err(inf) => return Err(infeasible(run, candidates, inf)),
     };
+    // The selection prices a row unit (a cent, a millionth); reports price a unit of the row's
+    // own measure (money, km, km·m/km).
+    for (p, row) in outcome.prices.iter_mut().zip(&candidates.rows) {
+        *p *= row.units();
+    }
     let checked = recheck(run, candidates, &outcome.plan)?;
     Ok((outcome, checked))
 }

@@ -34,6 +34,7 @@ fn plans_the_built_in_demo_within_every_line() {
             "budget_use.csv",
             "candidates.csv",
             "condition.csv",
+            "limits.csv",
             "manifest.json",
             "section_plan.csv",
             "summary.json",
@@ -551,4 +552,48 @@ fn huge_amounts_are_located_input_errors_not_panics() {
     ])
     .expect_code(2)
     .stderr_has("budget scale 1000000");
+}
+
+#[test]
+fn budget_prices_are_per_unit_of_money_and_bound_the_plan() {
+    // Weak duality (common practice for Lagrangian prices): for prices λ ≥ 0 per unit of money,
+    // Σ λ·limit + Σ over sections of max over candidates (NPV − Σ λ·cost) bounds every plan's
+    // NPV. Computed from the written files, it must be no lower than the plan and, when the
+    // prices are per unit of money as labelled, close to it: much closer than the NPV the network
+    // would earn with no limits (prices mislabelled by a factor of 100 would give nearly that).
+    let wd = Workdir::new();
+    wd.run(&["plan", "-q", "--out", "res"]).expect_code(0);
+    let s = summary(&wd, "res");
+    let objective = s["objective"].as_f64().unwrap();
+    let mut price: HashMap<String, f64> = HashMap::new();
+    let mut dual = 0.0;
+    for b in rows(&wd.read("res/budget_use.csv")) {
+        let p: f64 = b["price"].parse().unwrap();
+        dual += p * b["limit"].parse::<f64>().unwrap();
+        price.insert(format!("cost:{}", b["line"]), p);
+    }
+    let mut best: HashMap<String, f64> = HashMap::new();
+    let mut unlimited: HashMap<String, f64> = HashMap::new();
+    for c in rows(&wd.read("res/candidates.csv")) {
+        let npv: f64 = c["npv"].parse().unwrap();
+        let priced: f64 = price
+            .iter()
+            .map(|(col, p)| p * c[col].parse::<f64>().unwrap())
+            .sum();
+        let e = best.entry(c["section_id"].clone()).or_insert(f64::MIN);
+        *e = e.max(npv - priced);
+        let u = unlimited.entry(c["section_id"].clone()).or_insert(f64::MIN);
+        *u = u.max(npv);
+    }
+    let bound = dual + best.values().sum::<f64>();
+    let free: f64 = unlimited.values().sum();
+    // Candidates' NPVs are to the cent: allow half a cent per candidate section.
+    assert!(
+        bound >= objective - 0.005 * best.len() as f64,
+        "{bound} < {objective}"
+    );
+    assert!(
+        bound - objective < 0.25 * (free - objective),
+        "the priced bound {bound} is not near the plan {objective} (no limits: {free})"
+    );
 }

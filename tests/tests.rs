@@ -10,4 +10,5 @@ mod plan;
 mod readme;
 mod report;
 mod risk;
+mod select;
 mod util;

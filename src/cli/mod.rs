@@ -15,6 +15,7 @@ pub mod init;
 pub mod plan;
 pub mod report;
 pub mod risk;
+pub mod select;
 pub mod sensitivity;
 
 use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
@@ -89,6 +90,10 @@ pub enum Command {
     /// Appraise a plain cash-flow stream, or compare alternatives incrementally.
     #[command(after_help = AFTER_HELP)]
     Cashflow(cashflow::Args),
+    /// Choose one candidate per section within row limits, from candidates made anywhere (an
+    /// asset system's list, or a plan's candidates.csv and limits.csv).
+    #[command(after_help = AFTER_HELP)]
+    Select(select::Args),
 }
 
 /// What every command receives besides its own arguments.
@@ -207,6 +212,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Sensitivity(a) => sensitivity::run(a, ctx),
         Command::Risk(a) => risk::run(a, ctx),
         Command::Cashflow(a) => cashflow::run(a, ctx),
+        Command::Select(a) => select::run(a, ctx),
     }
 }
 

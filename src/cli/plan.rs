@@ -19,7 +19,10 @@
 //!   length-weighted condition each year under the plan, the base and the unconstrained choice;
 //! - `widening_plan.csv`: for sections that can be widened, the best strategy widening in each
 //!   year with its NPV and the widening's FYRR, each timing rule's year and the plan's year;
-//! - `summary.json`: the certificate, the run's facts and the scenario's key assumptions.
+//! - `summary.json`: the certificate, the run's facts and the scenario's key assumptions;
+//! - `limits.csv`: `row,limit` for every `cost:`/`use:` column of `candidates.csv`, so that
+//!   `pavestrat select candidates.csv --limits limits.csv` re-solves the same selection (with
+//!   `--minimise pv_agency_cost` for a least-cost plan).
 //!
 //! `--report` adds `frontier.csv` (see `pavestrat frontier`) and `report.html` (see
 //! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
@@ -55,12 +58,14 @@ pub struct Args {
     #[arg(long, value_name = "WHAT", value_parser = ["npv", "least-cost"])]
     pub objective: Option<String>,
 
-    /// Solution path: exact (the whole 0/1 programme), decomposed (budget prices, then the
-    /// contested sections exactly), or auto (exact for small networks).
+    /// Solution path: exact (a branch and bound that proves the plan optimal, or narrows the gap
+    /// until the time limit), decomposed (budget prices, then the contested sections exactly),
+    /// or auto (exact up to 10,000 candidates, decomposed above).
     #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "exact", "decomposed"])]
     pub method: String,
 
-    /// Stop once the plan is proven within this relative gap of the bound (fraction or %).
+    /// Stop once the plan is proven within this relative gap of the bound (fraction or %). The
+    /// exact path first spends up to a second seeking a complete proof.
     #[arg(long, value_name = "GAP", default_value = "0.0001", value_parser = parse_gap)]
     pub gap: f64,
 
@@ -113,7 +118,7 @@ pub(super) fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
 }
 
 /// The output files, in the order they are created.
-pub const FILES: [&str; 8] = [
+pub const FILES: [&str; 9] = [
     "work_programme.csv",
     "section_plan.csv",
     "budget_use.csv",
@@ -122,6 +127,7 @@ pub const FILES: [&str; 8] = [
     "summary.json",
     "condition.csv",
     "widening_plan.csv",
+    "limits.csv",
 ];
 
 /// Run `plan`.
@@ -192,6 +198,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         selection_seconds,
         budget_scale: args.budget_scale,
         requested_gap: args.gap,
+        time_limit: args.time_limit,
     };
     if let Some(dir) = &args.out.out {
         let mut names: Vec<&str> = FILES.to_vec();
@@ -263,6 +270,7 @@ pub struct Facts {
     pub selection_seconds: f64,
     pub budget_scale: f64,
     pub requested_gap: f64,
+    pub time_limit: f64,
 }
 
 /// Totals of a plan for reporting: (plan, unconstrained, base), as NPV and as PV agency cost.
@@ -477,12 +485,32 @@ fn write_files(
     set.write(6, condition.as_bytes())?;
     let widening = widening_csv(run, p);
     set.write(7, widening.as_bytes())?;
+    set.write(8, limits_csv(c).as_bytes())?;
     small.insert("budget_use.csv".into(), bu);
     small.insert("target_use.csv".into(), tu);
     small.insert("summary.json".into(), summary);
     small.insert("condition.csv".into(), condition);
     small.insert("widening_plan.csv".into(), widening);
     Ok(small)
+}
+
+/// `limits.csv`: each row of the selection as `select --limits` reads it, with the limit the
+/// selection held exactly (cents as money, millionths as the target's length-weighted measure).
+fn limits_csv(c: &Candidates) -> String {
+    let mut s = String::from("row,limit\n");
+    for row in &c.rows {
+        let (prefix, places) = match row.kind {
+            RowKind::Budget(_) => ("cost", 2),
+            RowKind::Target(_) => ("use", 6),
+        };
+        let _ = writeln!(
+            s,
+            "{},{}",
+            Field(&format!("{prefix}:{}", row.name)),
+            rust_decimal::Decimal::new(row.limit_units, places)
+        );
+    }
+    s
 }
 
 /// `condition.csv` from the three cases' series.
@@ -767,6 +795,11 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
         o.contested,
         f.selection_seconds,
         f.candidate_seconds
+    );
+    let _ = writeln!(
+        s,
+        "{}",
+        o.status.meaning(o.gap, f.requested_gap, f.time_limit)
     );
     let _ = writeln!(s, "\n{}", crate::CAUTION);
     s

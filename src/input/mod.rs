@@ -6,6 +6,7 @@
 //! network, windows against the analysis period). Every problem of every file lands in one
 //! [`Diagnostics`] list; later stages receive only a `Run` that passed.
 
+pub mod candidates;
 pub mod cashflow;
 pub mod csvfile;
 pub mod models;

@@ -14,6 +14,7 @@ pub mod branch;
 pub mod dual;
 pub mod network;
 pub mod problem;
+pub mod tree;
 
 /// Why no plan came back.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

@@ -5,8 +5,9 @@
 //!   final combination of price plans settles are fixed, the rest (contested) are chosen by a
 //!   repair to feasibility, an upgrade pass at the prices, and an exact MIP on the contested
 //!   groups over the money the fixed ones leave.
-//! - **exact**: the whole 0/1 programme through good_lp (microlp, or HiGHS with the `highs`
-//!   feature), warm-started from the decomposed plan and stopped at the time limit.
+//! - **exact**: the decomposed path's plan, then a best-bound branch and bound with Lagrangian
+//!   node bounds ([`super::tree`]) that proves it optimal or improves it and its bound until the
+//!   time limit.
 //!
 //! Either way the dual gives an upper bound on every plan's value, so each run reports the
 //! plan's value, a bound and the gap between them — a certificate that needs no trust in the
@@ -15,6 +16,7 @@
 use super::branch;
 use super::dual::{self, Prices};
 use super::problem::Problem;
+use super::tree;
 use good_lp::{
     constraint, variable, Expression, ProblemVariables, ResolutionError, Solution, SolutionStatus,
     Solver, SolverModel, Variable, WithInitialSolution, WithMipGap, WithTimeLimit,
@@ -63,6 +65,37 @@ impl Status {
             Status::WithinGap => "within-gap",
             Status::TimeLimit => "time-limit",
             Status::GapOpen => "gap-open",
+        }
+    }
+}
+
+impl Status {
+    /// What the status means for the user, in words, and what to do for more: `gap` is the
+    /// run's gap, `requested` the gap asked for, `seconds` the time limit it had.
+    pub fn meaning(self, gap: f64, requested: f64, seconds: f64) -> String {
+        let pct = |x: f64| {
+            if x >= 1e-4 {
+                format!("{:.2} %", x * 100.0)
+            } else {
+                format!("{:.4} %", x * 100.0)
+            }
+        };
+        match self {
+            Status::Optimal => "No plan that keeps every limit is better: this one is proven best.".into(),
+            Status::WithinGap => format!(
+                "This plan is proven within {} of the best possible, as asked (--gap {}); a smaller --gap asks for more.",
+                pct(gap),
+                pct(requested)
+            ),
+            Status::TimeLimit => format!(
+                "This plan is proven within {} of the best possible; the time limit ({seconds} s) stopped the search, and more time may close the gap (for example --time-limit {}).",
+                pct(gap),
+                (seconds * 6.0).ceil()
+            ),
+            Status::GapOpen => format!(
+                "This plan is proven within {} of the best possible; this path cannot close the gap further (--method exact with a longer --time-limit may).",
+                pct(gap)
+            ),
         }
     }
 }
@@ -125,8 +158,12 @@ pub enum Infeasible {
     NotFound(Vec<(usize, i64)>),
 }
 
-/// Problems at most this many candidates go to the exact path when the method is `auto`.
-pub const EXACT_AUTO_CANDIDATES: usize = 4000;
+/// Problems at most this many candidates go to the exact path (the tree search of
+/// [`super::tree`]) when the method is `auto`; larger ones to the decomposed path, whose
+/// neighbourhood search improves plans faster there (measured in benches/README.md).
+pub const EXACT_AUTO_CANDIDATES: usize = 10_000;
+/// How long the exact path works towards a complete proof before it accepts the requested gap.
+const PROOF_TIME: Duration = Duration::from_secs(1);
 /// Most groups handed to the exact solver as the contested part.
 const CONTESTED_CAP: usize = if cfg!(feature = "highs") { 1000 } else { 60 };
 /// Node budget of the branch and bound at fixed prices (a fraction of a second): it proves
@@ -361,47 +398,38 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
             }
         }
     }
+    // Set when the tree search stopped short of a complete proof: its bound (the best among its
+    // waiting nodes) holds for every plan.
+    let mut tree_bound: Option<f64> = None;
     if want_exact && fits(&used, &p.limits) && !proven_exactly {
         method = Method::Exact;
         if gap_now(&plan, &used) > 1e-9 {
-            let s = branch::search(
-                p,
-                &prices.prices,
-                bound,
-                Some(&plan),
+            // A proof is sought first, for up to PROOF_TIME, even when the plan is already
+            // within the requested gap; after that the search stops at the requested gap.
+            let stop = tree::Stop {
                 deadline,
-                BRANCH_NODES,
-            );
+                gap: o.gap,
+                gap_from: (start + PROOF_TIME).min(deadline),
+            };
+            let t = tree::prove(p, &prices.prices, bound, Some(&plan), stop);
             if debug {
                 crate::err_line!(
-                    "branch and bound: {} nodes, complete {}, {} at {:.2} s",
-                    s.nodes,
-                    s.complete,
-                    s.value,
+                    "tree: {} nodes, complete {}, value {} bound {} at {:.2} s",
+                    t.nodes,
+                    t.complete,
+                    t.value,
+                    t.bound,
                     start.elapsed().as_secs_f64()
                 );
             }
-            if s.value > p.plan_value(&plan) {
-                used = p.plan_use(&s.plan);
-                plan = s.plan;
+            if t.value > p.plan_value(&plan) {
+                used = p.plan_use(&t.plan);
+                plan = t.plan;
             }
-            proven_exactly = s.complete;
-        }
-        if !proven_exactly && mip_bound.is_none() && gap_now(&plan, &used) > o.gap * 1e-3 {
-            let left = deadline.saturating_duration_since(Instant::now());
-            if let Exact::Found(x, optimal) = exact(p.clone(), Some(plan.clone()), left, o.gap) {
-                let u = p.plan_use(&x);
-                // A solver works to a feasibility tolerance: its plan counts only if it meets
-                // the limits exactly, and only then does its proof bound the problem.
-                if fits(&u, &p.limits) {
-                    if optimal {
-                        mip_bound = Some(p.plan_value(&x));
-                    }
-                    if p.plan_value(&x) >= p.plan_value(&plan) {
-                        plan = x;
-                        used = u;
-                    }
-                }
+            if t.complete {
+                proven_exactly = true;
+            } else {
+                tree_bound = Some(t.bound);
             }
         }
     } else if !want_exact
@@ -441,6 +469,9 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
     if let Some(m) = mip_bound {
         bound = bound.min(m + o.gap * m.abs()).max(value);
+    }
+    if let Some(t) = tree_bound {
+        bound = bound.min(t).max(value);
     }
     let gap = relative_gap(value, bound);
     let timed_out = Instant::now() >= deadline;
