@@ -143,11 +143,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         Some(o) => Objective::parse(o).unwrap_or_default(),
         None => run.scenario.plan.objective,
     };
-    let method = match args.method.as_str() {
-        "exact" => Method::Exact,
-        "decomposed" => Method::Decomposed,
-        _ => Method::Auto,
-    };
+    let method = Method::from_name(&args.method);
     let settings = Settings {
         objective,
         budget_scale: args.budget_scale,

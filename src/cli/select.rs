@@ -98,11 +98,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     };
     let built = build(&file, &limits_label, limits, sign, &mut d).ok_or(Error::Input(d.clone()))?;
     ctx.notes(&d);
-    let method = match args.method.as_str() {
-        "exact" => Method::Exact,
-        "decomposed" => Method::Decomposed,
-        _ => Method::Auto,
-    };
+    let method = Method::from_name(&args.method);
     let options = Options {
         method,
         gap: args.gap,

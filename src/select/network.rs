@@ -35,6 +35,16 @@ pub enum Method {
 }
 
 impl Method {
+    /// The method a command-line name gives (`exact`, `decomposed`; anything else is `auto`,
+    /// which the commands' value parsers leave as the only other name).
+    pub fn from_name(name: &str) -> Method {
+        match name {
+            "exact" => Method::Exact,
+            "decomposed" => Method::Decomposed,
+            _ => Method::Auto,
+        }
+    }
+
     pub fn name(self) -> &'static str {
         match self {
             Method::Auto => "auto",

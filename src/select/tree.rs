@@ -167,6 +167,17 @@ impl<'a> Search<'a> {
         }
     }
 
+    /// Group `g` is down to candidate `c`: record it and add it to the fixed groups' value and
+    /// use.
+    fn fix(&mut self, g: usize, c: usize, value: &mut f64, used: &mut [i64]) {
+        self.arg[g] = c as u32;
+        *value += self.p.value(c);
+        let (rs, vs) = self.p.uses(c);
+        for (&j, &u) in rs.iter().zip(vs) {
+            used[j as usize] += u;
+        }
+    }
+
     fn eps(&self, bound: f64) -> f64 {
         tolerance(bound)
     }
@@ -208,14 +219,7 @@ impl<'a> Search<'a> {
             self.count[g] = n;
             match n {
                 0 => return Node::Pruned,
-                1 => {
-                    self.arg[g] = one as u32;
-                    fixed_value += p.value(one);
-                    let (rs, vs) = p.uses(one);
-                    for (&j, &u) in rs.iter().zip(vs) {
-                        fixed_use[j as usize] += u;
-                    }
-                }
+                1 => self.fix(g, one, &mut fixed_value, &mut fixed_use),
                 _ => free.push(g),
             }
         }
@@ -274,12 +278,7 @@ impl<'a> Search<'a> {
                     0 => return Node::Pruned,
                     1 => {
                         let c = p.candidates(g).find(|&c| self.alive[c]).expect("one alive");
-                        self.arg[g] = c as u32;
-                        fixed_value += p.value(c);
-                        let (rs, vs) = p.uses(c);
-                        for (&j, &u) in rs.iter().zip(vs) {
-                            fixed_use[j as usize] += u;
-                        }
+                        self.fix(g, c, &mut fixed_value, &mut fixed_use);
                     }
                     _ => still.push(g),
                 }
