@@ -3,8 +3,12 @@
 multiple-choice multidimensional knapsack instances (../shared/benchmarks/mmkp/, see its README
 for the format and provenance; the instances are read from there, never copied here).
 
-usage: benches/mmkp.py PAVESTRAT DATA_DIR SECONDS INSTANCE...
-prints one Markdown table row per instance and time limit.
+usage: benches/mmkp.py [--check AIM [--bound-only NAME,...]] PAVESTRAT DATA_DIR SECONDS INSTANCE...
+prints one Markdown table row per instance and time limit. With --check, exits 1 when on any
+instance pavestrat's plan is more than AIM percent below SciPy's at the same time limit, or its
+bound is below a value some plan is known to reach (the listed best known, SciPy's plan, its own
+plan): such a bound would be false. Instances named in --bound-only are checked for the bound
+alone.
 """
 import csv, json, os, subprocess, sys, tempfile, time
 
@@ -82,13 +86,21 @@ def run_scipy(cap, classes, seconds):
 
 
 def main():
-    exe, data, seconds = sys.argv[1], sys.argv[2], float(sys.argv[3])
+    args = sys.argv[1:]
+    aim = None
+    bound_only = set()
+    if args[:1] == ["--check"]:
+        aim, args = float(args[1]), args[2:]
+        if args[:1] == ["--bound-only"]:
+            bound_only, args = set(args[1].split(",")), args[2:]
+    exe, data, seconds = args[0], args[1], float(args[2])
+    failures = []
     listed = {}
     with open(os.path.join(data, "listed_values.csv"), encoding="utf-8-sig") as f:
         for row in csv.reader(f):
             if len(row) >= 2:
                 listed[row[0]] = float(row[1])
-    for name in sys.argv[4:]:
+    for name in args[3:]:
         cap, classes = read(os.path.join(data, name))
         with tempfile.TemporaryDirectory() as d:
             write_select(cap, classes, d)
@@ -100,6 +112,20 @@ def main():
         valid = "—" if pb is None or best is None else ("yes" if pb >= best - 1e-6 else "NO")
         print(f"| {name} | {len(classes)}×{len(cap)} | {seconds:g} s | {fmt(best)} | {fmt(pv)} | "
               f"{fmt(pb)} | {ps} | {fmt(sv)} | {fmt(sb)} | {below} | {valid} |", flush=True)
+        if aim is not None:
+            if pv is None:
+                failures.append(f"{name}: pavestrat gave no plan ({ps})")
+                continue
+            if name not in bound_only and sv is not None and (sv - pv) / sv * 100 > aim:
+                failures.append(f"{name}: plan {pv:.0f} is {(sv - pv) / sv * 100:.3f} % below "
+                                f"SciPy's {sv:.0f} (aim {aim} %)")
+            reached = max(x for x in (best, sv, pv) if x is not None)
+            if pb < reached - 1e-6 * max(1.0, abs(reached)):
+                failures.append(f"{name}: bound {pb} is below {reached:.0f}, a value a plan "
+                                f"reaches")
+    for f in failures:
+        print("FAIL", f, file=sys.stderr)
+    sys.exit(1 if failures else 0)
 
 
 if __name__ == "__main__":

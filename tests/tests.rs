@@ -5,6 +5,7 @@ mod appraise;
 mod calibrate;
 mod cashflow;
 mod check;
+mod golden;
 mod outputs;
 mod plan;
 mod readme;

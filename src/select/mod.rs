@@ -12,6 +12,7 @@
 
 pub mod branch;
 pub mod dual;
+mod moves;
 pub mod network;
 pub mod problem;
 pub mod tree;

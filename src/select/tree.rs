@@ -19,7 +19,14 @@
 //!   use, passes the limit is removed (exact, integer uses);
 //! - **reduced-cost fixing**: a candidate whose reduced-value loss against its group's best at λ
 //!   takes L(λ) below the best plan known is removed — no better plan uses it;
-//! - the argmax plan of each evaluation is a plan when it fits, and then a new incumbent if better.
+//! - the argmax plan of each evaluation is a plan when it fits, and then a new incumbent if better;
+//! - at the node's best prices the argmax plan is also rounded into a plan: repaired, group by
+//!   group, at the least priced value lost per unit of excess removed, then upgraded while the
+//!   rows allow, then (when it beats the best plan) improved by pair exchanges. This is the
+//!   repair-and-improve pattern of the MMKP heuristics of Khan, Li, Manning & Akbar ("Solving
+//!   the knapsack problem for adaptive multimedia systems", Studia Informatica Universalis 2,
+//!   2002; cited from memory), applied at every node so that dense instances, where few argmax
+//!   plans fit, still get good plans early.
 //!
 //! Branching is on a group: the child that fixes it to the candidate the subgradient steps
 //! chose most often is taken at once (a dive, for plans), the child that removes that candidate
@@ -28,14 +35,17 @@
 //! stopped by its deadline still reports a valid, often tighter, bound.
 
 use super::branch::tolerance;
+use super::moves::{fits, repair, swap_search, upgrade};
 use super::problem::Problem;
 use std::cell::Cell;
 use std::collections::BinaryHeap;
 use std::rc::Rc;
-use std::time::Instant;
+use std::time::{Duration, Instant};
 
 /// Subgradient steps at a node.
 const STEPS: usize = 30;
+/// Longest pair-exchange search on a new best plan.
+const SWAP_TIME: Duration = Duration::from_millis(20);
 /// Most waiting nodes kept (each holds a price vector and a link into the shared decisions).
 const MAX_OPEN: usize = 2_000_000;
 /// Most removal entries kept in the decisions of all waiting nodes together (4 bytes each).
@@ -191,6 +201,39 @@ impl<'a> Search<'a> {
                 self.alive[x as usize] = false;
             }
             link = c.parent.as_ref();
+        }
+    }
+
+    /// A plan from the node's best prices: each free group's best candidate there (the fixed
+    /// groups' own), repaired until it fits and upgraded while the rows allow; the best plan
+    /// known if it is worth more. Repairs may leave the node (any plan that fits is a plan).
+    fn round(&mut self, free: &[usize], lambda: &[f64]) {
+        let p = self.p;
+        for &g in free {
+            self.arg[g] = self.best_arg[g];
+        }
+        let mut plan: Vec<u16> = (0..p.groups())
+            .map(|g| (self.arg[g] as usize - p.candidates(g).start) as u16)
+            .collect();
+        let mut used = p.plan_use(&plan);
+        if !fits(&used, &p.limits) && !repair(p, &mut plan, &mut used, Some(lambda)) {
+            return;
+        }
+        upgrade(p, &mut plan, &mut used, lambda);
+        let mut v = p.plan_value(&plan);
+        if !self.found || v > self.best_value {
+            // A new best plan: pair exchanges may raise it further.
+            swap_search(
+                p,
+                &mut plan,
+                &mut used,
+                Instant::now() + SWAP_TIME,
+                f64::INFINITY,
+            );
+            v = p.plan_value(&plan);
+            self.found = true;
+            self.best_value = v;
+            self.best_plan = plan;
         }
     }
 
@@ -397,8 +440,9 @@ impl<'a> Search<'a> {
         if free.is_empty() {
             return Node::Pruned;
         }
-        // Reduced-cost fixing at the best prices.
         let lambda = self.lambda(&best_mu);
+        self.round(&free, &lambda);
+        // Reduced-cost fixing at the best prices.
         let mut pick_group = usize::MAX;
         let mut pick_key = (u32::MAX, f64::INFINITY);
         for &g in &free {
