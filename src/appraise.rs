@@ -215,34 +215,43 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     }
 }
 
-/// The widening timing of one section from the NPV of its widening strategies alone (no IRR
-/// or incremental analysis): what a plan's report needs. `None` when it has no widening strategy.
-pub fn widening_only(run: &Run, e: &Enumerator<'_>, sec: &Section) -> Option<WideningTiming> {
-    let strategies = e.strategies(sec);
-    let cat = &run.catalogue;
-    if !strategies.iter().any(|st| st.widening_year(cat).is_some()) {
-        return None;
-    }
-    let s = &run.scenario;
-    let (d, y0) = (&s.discounting, s.base_year);
-    let sim = SectionSim::new(run, sec);
-    let mut base = Trace::default();
-    sim.run(&strategies[0], &mut base);
-    let base_flows = base.flows(d);
-    let mut t = Trace::default();
-    let options: Vec<(Option<i32>, f64)> = strategies
-        .iter()
-        .map(|st| match st.widening_year(cat) {
-            Some(w) => {
-                sim.run(st, &mut t);
-                let flows = increment(&t.flows(d), &base_flows, y0);
-                let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
-                (Some(y0 + w as i32), npv)
+/// The best widening strategy of one calendar widening year.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WideningOption {
+    pub year: i32,
+    /// The strategy's position in its section's enumeration.
+    pub strategy: u32,
+    /// Its NPV against the base.
+    pub npv: f64,
+}
+
+/// Each widening year's best strategy, by year, from `(position, calendar widening year, NPV
+/// against the base)` of every widening strategy in enumeration order; of equal NPVs the first
+/// is kept.
+pub fn best_by_widening_year(
+    options: impl IntoIterator<Item = (u32, i32, f64)>,
+) -> Vec<WideningOption> {
+    let mut best: Vec<WideningOption> = Vec::new();
+    for (strategy, year, npv) in options {
+        match best.iter_mut().find(|b| b.year == year) {
+            Some(slot) => {
+                if npv > slot.npv {
+                    *slot = WideningOption {
+                        year,
+                        strategy,
+                        npv,
+                    };
+                }
             }
-            None => (None, 0.0),
-        })
-        .collect();
-    widening_timing(run, &sim, &strategies, &options, d)
+            None => best.push(WideningOption {
+                year,
+                strategy,
+                npv,
+            }),
+        }
+    }
+    best.sort_by_key(|b| b.year);
+    best
 }
 
 /// `options[i]`: strategy i's calendar widening year (if it widens) and NPV against the base.
@@ -253,35 +262,41 @@ fn widening_timing(
     options: &[(Option<i32>, f64)],
     d: &Discounting,
 ) -> Option<WideningTiming> {
-    let mut best: Vec<(i32, usize)> = Vec::new();
-    for (i, &(year, npv)) in options.iter().enumerate() {
-        let Some(y) = year else { continue };
-        match best.iter_mut().find(|(yy, _)| *yy == y) {
-            Some(slot) => {
-                if npv > options[slot.1].1 {
-                    slot.1 = i;
-                }
-            }
-            None => best.push((y, i)),
-        }
-    }
+    let best = best_by_widening_year(
+        options
+            .iter()
+            .enumerate()
+            .filter_map(|(i, &(y, npv))| y.map(|y| (i as u32, y, npv))),
+    );
+    widening_years(run, sim, strategies, &best, d)
+}
+
+/// The widening timing from each widening year's best strategy (`best`, by year): the first-year
+/// rate of return of widening in that year against the same strategy without the widening (two
+/// simulations a year), and the years chosen by that rate and by NPV. `None` when `best` is empty.
+pub fn widening_years(
+    run: &Run,
+    sim: &SectionSim,
+    strategies: &[Strategy],
+    best: &[WideningOption],
+    d: &Discounting,
+) -> Option<WideningTiming> {
     if best.is_empty() {
         return None;
     }
-    best.sort_by_key(|b| b.0);
     let (mut with, mut without) = (Trace::default(), Trace::default());
     let y0 = run.scenario.base_year;
     let years: Vec<WideningYear> = best
         .iter()
-        .map(|&(year, i)| {
-            let st = &strategies[i];
+        .map(|b| {
+            let st = &strategies[b.strategy as usize];
             sim.run(st, &mut with);
             sim.run(&st.without_widening(&run.catalogue), &mut without);
             let flows = increment(&with.flows(d), &without.flows(d), y0);
             WideningYear {
-                year,
+                year: b.year,
                 strategy: st.name.clone(),
-                npv: options[i].1,
+                npv: b.npv,
                 fyrr: fyrr(&flows.net()),
             }
         })

@@ -17,6 +17,7 @@
 //! so for money this is the limit exactly), so the selection solves the problem the user
 //! stated, with no margin, and its bound and statuses are statements about that problem.
 
+use crate::appraise::WideningOption;
 use crate::diag::{Diagnostics, Place};
 use crate::economics::Discounting;
 use crate::enumerate::{Enumerator, Strategy};
@@ -116,6 +117,10 @@ pub struct Candidates {
     pub unconstrained: Vec<(u32, f64, f64)>,
     /// Per section: the base's PV agency cost.
     pub base_pv_agency: Vec<f64>,
+    /// Each section's widening options (the best strategy of each widening year, commitments
+    /// aside): section g's are `widening[widening_start[g]..widening_start[g + 1]]`.
+    pub widening: Vec<WideningOption>,
+    pub widening_start: Vec<u32>,
 }
 
 /// Settings of a planning run.
@@ -160,6 +165,12 @@ pub struct Checked {
 }
 
 impl Candidates {
+    /// Section `g`'s widening options (each widening year's best strategy), by year.
+    pub fn widening_of(&self, g: usize) -> &[WideningOption] {
+        let (a, b) = (self.widening_start[g], self.widening_start[g + 1]);
+        &self.widening[a as usize..b as usize]
+    }
+
     pub fn sections(&self) -> usize {
         self.problem.groups()
     }
@@ -314,6 +325,44 @@ struct SectionCands {
     enumerated: u32,
     unconstrained: (u32, f64, f64),
     base_pv_agency: f64,
+    /// Each widening year's best strategy, whatever the commitments (for the widening table).
+    widening: Vec<WideningOption>,
+}
+
+/// The candidates of one parallel chunk of sections, in network order, before they join the
+/// whole.
+struct Chunk {
+    problem: Problem,
+    strategy: Vec<u32>,
+    npv: Vec<f64>,
+    pv_agency: Vec<f64>,
+    enumerated: Vec<u32>,
+    unconstrained: Vec<(u32, f64, f64)>,
+    base_pv_agency: Vec<f64>,
+    widening: Vec<WideningOption>,
+    /// Widening options of each section of the chunk.
+    widening_count: Vec<u32>,
+    problems: Vec<(Place, String, String)>,
+    /// The first section whose candidates the selection could not take.
+    fault: Option<(String, ProblemError)>,
+}
+
+impl Chunk {
+    fn new(limits: &[i64]) -> Chunk {
+        Chunk {
+            problem: Problem::new(limits.to_vec()),
+            strategy: Vec::new(),
+            npv: Vec::new(),
+            pv_agency: Vec::new(),
+            enumerated: Vec::new(),
+            unconstrained: Vec::new(),
+            base_pv_agency: Vec::new(),
+            widening: Vec::new(),
+            widening_count: Vec::new(),
+            problems: Vec::new(),
+            fault: None,
+        }
+    }
 }
 
 /// The commitments of each section, by section id.
@@ -352,7 +401,9 @@ fn section_candidates(
         enumerated: strategies.len() as u32,
         unconstrained: (0, 0.0, 0.0),
         base_pv_agency: d.pv(y0, &base_flows.agency),
+        widening: Vec::new(),
     };
+    let mut widening: Vec<(u32, i32, f64)> = Vec::new();
     let mut best: Option<(f64, u32, f64, f64)> = None;
     let mut u = Vec::new();
     for (i, st) in strategies.iter().enumerate() {
@@ -362,6 +413,13 @@ fn section_candidates(
             sim.run(st, &mut trace);
             &trace
         };
+        let npv_of = |t: &Trace| {
+            let flows = crate::appraise::increment(&t.flows(d), &base_flows, y0);
+            d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs)
+        };
+        if let Some(w) = st.widening_year(&run.catalogue) {
+            widening.push((i as u32, y0 + w as i32, npv_of(t)));
+        }
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
                 Held::Strategy(name) => *name == st.name,
@@ -373,10 +431,8 @@ fn section_candidates(
                 continue;
             }
         }
-        let own = t.flows(d);
-        let flows = crate::appraise::increment(&own, &base_flows, y0);
-        let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
-        let pv_agency = d.pv(y0, &own.agency);
+        let npv = npv_of(t);
+        let pv_agency = d.pv(y0, &t.flows(d).agency);
         let value = match objective {
             Objective::Npv => npv,
             Objective::LeastCost => -pv_agency,
@@ -393,6 +449,7 @@ fn section_candidates(
         out.npv.push(npv);
         out.pv_agency.push(pv_agency);
     }
+    out.widening = crate::appraise::best_by_widening_year(widening);
     match best {
         Some((_, i, npv, pva)) => out.unconstrained = (i, npv, pva),
         None => {
@@ -562,17 +619,6 @@ pub fn candidates_with(
     let limits: Vec<i64> = rows.iter().map(|r| r.limit_units).collect();
     let held = commitments(run);
     let secs = &run.network.sections;
-    type ChunkOut = (
-        Problem,
-        Vec<u32>,
-        Vec<f64>,
-        Vec<f64>,
-        Vec<u32>,
-        Vec<(u32, f64, f64)>,
-        Vec<f64>,
-        Vec<(Place, String, String)>,
-        Option<(String, ProblemError)>,
-    );
     let mut out = Candidates {
         rows,
         problem: Problem::new(limits.clone()),
@@ -583,20 +629,18 @@ pub fn candidates_with(
         enumerated: Vec::with_capacity(secs.len()),
         unconstrained: Vec::with_capacity(secs.len()),
         base_pv_agency: Vec::with_capacity(secs.len()),
+        widening: Vec::new(),
+        widening_start: vec![0],
     };
     let rows = out.rows.clone();
     let mut d = Diagnostics::new();
     // Blocks of sections one after the other, each in parallel chunks, so that only one block's
     // partial results exist beside the growing whole.
     for block in secs.chunks(BLOCK) {
-        let chunks: Vec<ChunkOut> = block
+        let chunks: Vec<Chunk> = block
             .par_chunks(CHUNK)
             .map(|chunk| {
-                let mut p = Problem::new(limits.clone());
-                let (mut st, mut npv, mut pva) = (Vec::new(), Vec::new(), Vec::new());
-                let (mut en, mut un, mut bp) = (Vec::new(), Vec::new(), Vec::new());
-                let mut problems = Vec::new();
-                let mut fault = None;
+                let mut k = Chunk::new(&limits);
                 for sec in chunk {
                     let c = section_candidates(
                         run,
@@ -605,47 +649,54 @@ pub fn candidates_with(
                         settings.objective,
                         sec,
                         held.get(sec.id.0.as_str()),
-                        &mut problems,
+                        &mut k.problems,
                     );
                     progress.inc(1);
-                    en.push(c.enumerated);
-                    un.push(c.unconstrained);
-                    bp.push(c.base_pv_agency);
+                    k.enumerated.push(c.enumerated);
+                    k.unconstrained.push(c.unconstrained);
+                    k.base_pv_agency.push(c.base_pv_agency);
+                    k.widening.extend(&c.widening);
+                    k.widening_count.push(c.widening.len() as u32);
                     if c.offers.is_empty() {
                         continue;
                     }
-                    match p.push_group(&c.offers) {
+                    match k.problem.push_group(&c.offers) {
                         Ok(kept) => {
-                            for k in kept {
-                                st.push(c.strategy[k]);
-                                npv.push(c.npv[k]);
-                                pva.push(c.pv_agency[k]);
+                            for i in kept {
+                                k.strategy.push(c.strategy[i]);
+                                k.npv.push(c.npv[i]);
+                                k.pv_agency.push(c.pv_agency[i]);
                             }
                         }
                         Err(err) => {
-                            fault.get_or_insert((sec.id.0.clone(), err));
+                            k.fault.get_or_insert((sec.id.0.clone(), err));
                         }
                     }
                 }
-                (p, st, npv, pva, en, un, bp, problems, fault)
+                k
             })
             .collect();
-        for (p, st, npv, pva, en, un, bp, problems, fault) in chunks {
-            if let Some((section, err)) = fault {
+        for k in chunks {
+            if let Some((section, err)) = k.fault {
                 return Err(too_large(run, &rows, &section, err));
             }
-            for (place, found, expected) in problems {
+            for (place, found, expected) in k.problems {
                 d.error(place, found, expected);
             }
-            if let Err(err) = out.problem.append(p) {
+            if let Err(err) = out.problem.append(k.problem) {
                 return Err(too_large(run, &rows, "(all sections together)", err));
             }
-            out.strategy.extend(st);
-            out.npv.extend(npv);
-            out.pv_agency.extend(pva);
-            out.enumerated.extend(en);
-            out.unconstrained.extend(un);
-            out.base_pv_agency.extend(bp);
+            out.strategy.extend(k.strategy);
+            out.npv.extend(k.npv);
+            out.pv_agency.extend(k.pv_agency);
+            out.enumerated.extend(k.enumerated);
+            out.unconstrained.extend(k.unconstrained);
+            out.base_pv_agency.extend(k.base_pv_agency);
+            out.widening.extend(k.widening);
+            for n in k.widening_count {
+                let last = *out.widening_start.last().expect("starts at 0");
+                out.widening_start.push(last + n);
+            }
         }
     }
     if d.has_errors() {

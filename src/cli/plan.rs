@@ -537,10 +537,16 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
         .par_iter()
         .enumerate()
         .map(|(g, sec)| {
-            let Some(w) = crate::appraise::widening_only(run, &e, sec) else {
+            let best = c.widening_of(g);
+            if best.is_empty() {
+                return String::new();
+            }
+            let strategies = e.strategies(sec);
+            let sim = crate::simulate::SectionSim::new(run, sec);
+            let d = &run.scenario.discounting;
+            let Some(w) = crate::appraise::widening_years(run, &sim, &strategies, best, d) else {
                 return String::new();
             };
-            let strategies = e.strategies(sec);
             let chosen = &strategies[c.strategy[c.chosen(&p.outcome.plan, g)] as usize];
             let planned = chosen.widening_year(cat).map(|x| y0 + x as i32);
             let mut s = String::new();
