@@ -160,6 +160,7 @@ impl<'a> Enumerator<'a> {
         let mut out = vec![Strategy::base()];
         let mut names: HashSet<String> = HashSet::new();
         names.insert(BASE.to_owned());
+        let mut name = String::new();
         for c in &self.compiled {
             if !feasible(c.template, section) {
                 continue;
@@ -172,12 +173,13 @@ impl<'a> Enumerator<'a> {
             };
             for works in &timed {
                 for thr in &thresholds {
-                    let name = self.name(c, works, *thr);
-                    if !names.insert(name.clone()) {
+                    self.name_into(c, works, *thr, &mut name);
+                    if names.contains(name.as_str()) {
                         continue;
                     }
+                    names.insert(name.clone());
                     out.push(Strategy {
-                        name,
+                        name: name.clone(),
                         template: Some(c.index),
                         works: works.clone(),
                         trigger: thr.map(|iri| TriggerRule {
@@ -252,16 +254,29 @@ impl<'a> Enumerator<'a> {
         true
     }
 
-    fn name(&self, c: &Compiled<'_>, works: &[Works], threshold: Option<f64>) -> String {
-        let mut parts: Vec<String> = works
-            .iter()
-            .zip(&c.steps)
-            .map(|(w, (_, tag, _))| format!("{tag}@{}", self.base_year + w.year as i32))
-            .collect();
-        if let (Some(thr), Some((_, tag, _))) = (threshold, c.trigger) {
-            parts.push(format!("{tag}@iri{thr}"));
+    /// The strategy's name into `out` (cleared first): each step as `tag@year`, then the
+    /// trigger as `tag@iriX`, joined by `+`.
+    fn name_into(
+        &self,
+        c: &Compiled<'_>,
+        works: &[Works],
+        threshold: Option<f64>,
+        out: &mut String,
+    ) {
+        use std::fmt::Write;
+        out.clear();
+        for (w, (_, tag, _)) in works.iter().zip(&c.steps) {
+            if !out.is_empty() {
+                out.push('+');
+            }
+            let _ = write!(out, "{tag}@{}", self.base_year + w.year as i32);
         }
-        parts.join("+")
+        if let (Some(thr), Some((_, tag, _))) = (threshold, c.trigger) {
+            if !out.is_empty() {
+                out.push('+');
+            }
+            let _ = write!(out, "{tag}@iri{thr}");
+        }
     }
 }
 

@@ -413,12 +413,11 @@ fn section_candidates(
             sim.run(st, &mut trace);
             &trace
         };
-        let npv_of = |t: &Trace| {
-            let flows = crate::appraise::increment(&t.flows(d), &base_flows, y0);
-            d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs)
-        };
+        let own = t.flows(d);
+        let flows = crate::appraise::increment(&own, &base_flows, y0);
+        let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
         if let Some(w) = st.widening_year(&run.catalogue) {
-            widening.push((i as u32, y0 + w as i32, npv_of(t)));
+            widening.push((i as u32, y0 + w as i32, npv));
         }
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
@@ -431,8 +430,7 @@ fn section_candidates(
                 continue;
             }
         }
-        let npv = npv_of(t);
-        let pv_agency = d.pv(y0, &t.flows(d).agency);
+        let pv_agency = d.pv(y0, &own.agency);
         let value = match objective {
             Objective::Npv => npv,
             Objective::LeastCost => -pv_agency,
