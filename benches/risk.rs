@@ -36,7 +36,11 @@ fn unconstrained(run: &Run) -> HeldPlan {
             .iter()
             .map(|s| e.strategies(s))
             .collect(),
-        chosen: c.unconstrained.iter().map(|u| u.0 as usize).collect(),
+        chosen: c
+            .unconstrained
+            .iter()
+            .map(|u| u.strategy as usize)
+            .collect(),
         plan_run: None,
     }
 }

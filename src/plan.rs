@@ -112,15 +112,25 @@ pub struct Candidates {
     pub npv: Vec<f64>,
     pub pv_agency: Vec<f64>,
     /// Per section (network order): the strategies enumerated, and the best one with no limits
-    /// (commitments still held) as (strategy position, NPV, PV agency cost).
+    /// (commitments still held).
     pub enumerated: Vec<u32>,
-    pub unconstrained: Vec<(u32, f64, f64)>,
+    pub unconstrained: Vec<Unconstrained>,
     /// Per section: the base's PV agency cost.
     pub base_pv_agency: Vec<f64>,
     /// Each section's widening options (the best strategy of each widening year, commitments
     /// aside): section g's are `widening[widening_start[g]..widening_start[g + 1]]`.
     pub widening: Vec<WideningOption>,
     pub widening_start: Vec<u32>,
+}
+
+/// A section's best strategy with no budget or target limits (its commitments still held).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Unconstrained {
+    /// The strategy's position in the section's enumeration.
+    pub strategy: u32,
+    /// Its NPV against the base.
+    pub npv: f64,
+    pub pv_agency: f64,
 }
 
 /// Settings of a planning run.
@@ -323,7 +333,7 @@ struct SectionCands {
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
     enumerated: u32,
-    unconstrained: (u32, f64, f64),
+    unconstrained: Unconstrained,
     base_pv_agency: f64,
     /// Each widening year's best strategy, whatever the commitments (for the widening table).
     widening: Vec<WideningOption>,
@@ -337,7 +347,7 @@ struct Chunk {
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
     enumerated: Vec<u32>,
-    unconstrained: Vec<(u32, f64, f64)>,
+    unconstrained: Vec<Unconstrained>,
     base_pv_agency: Vec<f64>,
     widening: Vec<WideningOption>,
     /// Widening options of each section of the chunk.
@@ -399,7 +409,7 @@ fn section_candidates(
         npv: Vec::with_capacity(strategies.len()),
         pv_agency: Vec::with_capacity(strategies.len()),
         enumerated: strategies.len() as u32,
-        unconstrained: (0, 0.0, 0.0),
+        unconstrained: Unconstrained::default(),
         base_pv_agency: d.pv(y0, &base_flows.agency),
         widening: Vec::new(),
     };
@@ -449,7 +459,13 @@ fn section_candidates(
     }
     out.widening = crate::appraise::best_by_widening_year(widening);
     match best {
-        Some((_, i, npv, pva)) => out.unconstrained = (i, npv, pva),
+        Some((_, i, npv, pva)) => {
+            out.unconstrained = Unconstrained {
+                strategy: i,
+                npv,
+                pv_agency: pva,
+            }
+        }
         None => {
             // No strategy keeps every commitment of this section.
             let cs = held.map(Vec::as_slice).unwrap_or(&[]);
@@ -882,7 +898,7 @@ pub fn condition_series(run: &Run, c: &Candidates, plan: &[u16]) -> ConditionSer
                 let picks = [
                     c.strategy[c.chosen(plan, g)] as usize,
                     0,
-                    c.unconstrained[g].0 as usize,
+                    c.unconstrained[g].strategy as usize,
                 ];
                 for (case, &k) in picks.iter().enumerate() {
                     sim.run(&strategies[k], &mut t);

@@ -179,7 +179,7 @@ mod imp {
         for (g, sec) in secs.iter().enumerate() {
             let strategies = e.strategies(sec);
             let k = c.chosen(plan, g);
-            let (u, unpv, _) = c.unconstrained[g];
+            let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
             let chosen = &strategies[c.strategy[k] as usize].name;
             let un = &strategies[u as usize].name;
             sh.line(&[

@@ -269,24 +269,34 @@ pub struct Facts {
     pub time_limit: f64,
 }
 
-/// Totals of a plan for reporting: (plan, unconstrained, base), as NPV and as PV agency cost.
+/// NPV against the base and PV agency cost of one way to treat the whole network.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Total {
+    pub npv: f64,
+    pub pv_agency: f64,
+}
+
+/// Totals of a plan for reporting: the plan, every section at its best with no limits, and the
+/// base (whose NPV against itself is 0).
 pub struct Totals {
-    pub npv: [f64; 3],
-    pub pv_agency: [f64; 3],
+    pub plan: Total,
+    pub unconstrained: Total,
+    pub base: Total,
 }
 
 pub fn totals(c: &Candidates, plan: &[u16]) -> Totals {
     let mut t = Totals {
-        npv: [0.0; 3],
-        pv_agency: [0.0; 3],
+        plan: Total::default(),
+        unconstrained: Total::default(),
+        base: Total::default(),
     };
     for g in 0..c.sections() {
         let k = c.chosen(plan, g);
-        t.npv[0] += c.npv[k];
-        t.pv_agency[0] += c.pv_agency[k];
-        t.npv[1] += c.unconstrained[g].1;
-        t.pv_agency[1] += c.unconstrained[g].2;
-        t.pv_agency[2] += c.base_pv_agency[g];
+        t.plan.npv += c.npv[k];
+        t.plan.pv_agency += c.pv_agency[k];
+        t.unconstrained.npv += c.unconstrained[g].npv;
+        t.unconstrained.pv_agency += c.unconstrained[g].pv_agency;
+        t.base.pv_agency += c.base_pv_agency[g];
     }
     t
 }
@@ -370,7 +380,7 @@ fn write_files(
                 let g = ci * CHUNK + i;
                 let strategies = e.strategies(sec);
                 let k = c.chosen(plan, g);
-                let (u, unpv, _) = c.unconstrained[g];
+                let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
                 let chosen_name = &strategies[c.strategy[k] as usize].name;
                 let un_name = &strategies[u as usize].name;
                 let sp = format!(
@@ -602,7 +612,7 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         .filter(|w| run.catalogue.treatments[w.treatment].category != Category::Routine)
         .map(|w| w.cost * d.factor(run.scenario.base_year + w.year as i32))
         .sum();
-    let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.npv[0], pv_capital);
+    let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.plan.npv, pv_capital);
     let v = serde_json::json!({
         "run_id": run_id,
         "objective": c.objective_of(o.value),
@@ -622,8 +632,8 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         "price_updates": o.iterations,
         "contested_sections": o.contested,
         "budget_scale": f.budget_scale,
-        "npv": { "plan": t.npv[0], "unconstrained": t.npv[1], "base": 0.0 },
-        "pv_agency_cost": { "plan": t.pv_agency[0], "unconstrained": t.pv_agency[1], "base": t.pv_agency[2] },
+        "npv": { "plan": t.plan.npv, "unconstrained": t.unconstrained.npv, "base": t.base.npv },
+        "pv_agency_cost": { "plan": t.plan.pv_agency, "unconstrained": t.unconstrained.pv_agency, "base": t.base.pv_agency },
         "pv_capital": { "plan": pv_capital },
         "npv_per_capital": npv_per_capital,
         "bcr_capital": bcr_capital,
@@ -704,24 +714,24 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
         }
     );
     let _ = writeln!(s, "{:<28} {:>18} {:>20}", "", "NPV", "PV agency cost");
-    for (label, i) in [
-        ("this plan", 0),
-        ("no budget limits", 1),
-        ("base (routine only)", 2),
+    for (label, x) in [
+        ("this plan", t.plan),
+        ("no budget limits", t.unconstrained),
+        ("base (routine only)", t.base),
     ] {
         let _ = writeln!(
             s,
             "{:<28} {:>18} {:>20}",
             label,
-            grouped(t.npv[i], 0),
-            grouped(t.pv_agency[i], 0)
+            grouped(x.npv, 0),
+            grouped(x.pv_agency, 0)
         );
     }
-    if t.npv[1].abs() > 0.0 {
+    if t.unconstrained.npv.abs() > 0.0 {
         let _ = writeln!(
             s,
             "the plan keeps {:.1} % of the NPV the network could earn with no budget limits",
-            100.0 * t.npv[0] / t.npv[1]
+            100.0 * t.plan.npv / t.unconstrained.npv
         );
     }
     let _ = writeln!(s, "\nBudget lines (money in {money}; price = gain in the objective per unit of money added to the line):");
