@@ -324,3 +324,26 @@ pub fn network(run: &Run, sections: &[&Section], keep_traces: bool) -> Vec<Secti
         .map(|sec| section(run, &e, sec, keep_traces))
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn each_widening_year_keeps_its_best_strategy_and_the_first_of_equals() {
+        let best = best_by_widening_year([
+            (1, 2030, 5.0),
+            (2, 2028, 1.0),
+            (3, 2030, 7.0),
+            (4, 2030, 7.0),
+            (5, 2028, -2.0),
+        ]);
+        let o = |year, strategy, npv| WideningOption {
+            year,
+            strategy,
+            npv,
+        };
+        assert_eq!(best, vec![o(2028, 2, 1.0), o(2030, 3, 7.0)]);
+        assert!(best_by_widening_year([]).is_empty());
+    }
+}

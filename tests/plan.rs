@@ -597,3 +597,42 @@ fn budget_prices_are_per_unit_of_money_and_bound_the_plan() {
         "the priced bound {bound} is not near the plan {objective} (no limits: {free})"
     );
 }
+
+/// The widening table of `plan` (from the candidates stage's NPVs) says what `appraise`'s
+/// widening analysis says, row by row, on the demo and on a synthetic network.
+#[test]
+fn plan_widening_table_agrees_with_appraise() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "init", "net", "--sections", "30", "--seed", "9"])
+        .expect_code(0);
+    for (scenario, tag) in [(None, "demo"), (Some("net/scenario.toml"), "net")] {
+        let mut plan = vec!["-q", "plan", "--out"];
+        let mut appraise = vec!["-q", "appraise", "--out"];
+        let (p, a) = (format!("{tag}-plan"), format!("{tag}-appraise"));
+        plan.push(&p);
+        appraise.push(&a);
+        if let Some(s) = scenario {
+            plan.extend(["--scenario", s]);
+            appraise.extend(["--scenario", s]);
+        }
+        wd.run(&plan).expect_code(0);
+        wd.run(&appraise).expect_code(0);
+        let from_plan = rows(&wd.read(&format!("{p}/widening_plan.csv")));
+        let from_appraise = rows(&wd.read(&format!("{a}/widening.csv")));
+        assert!(!from_plan.is_empty(), "{tag}: no widening rows");
+        assert_eq!(from_plan.len(), from_appraise.len(), "{tag}");
+        for (x, y) in from_plan.iter().zip(&from_appraise) {
+            for (px, ax) in [
+                ("section_id", "section_id"),
+                ("year", "widen_year"),
+                ("strategy", "strategy"),
+                ("npv", "npv"),
+                ("fyrr", "fyrr"),
+                ("by_fyrr", "best_by_fyrr"),
+                ("by_npv", "best_by_npv"),
+            ] {
+                assert_eq!(x[px], y[ax], "{tag}: {px} of {x:?} against {y:?}");
+            }
+        }
+    }
+}
