@@ -796,30 +796,13 @@ where
 #[cfg(test)]
 #[allow(clippy::float_cmp)]
 mod tests {
-    use super::super::problem::Offer;
     use super::*;
     use proptest::prelude::*;
 
     type Groups = [Vec<(f64, Vec<i64>)>];
 
     fn problem(groups: &Groups, limits: &[i64]) -> Problem {
-        let mut p = Problem::new(limits.to_vec());
-        for g in groups {
-            let offers: Vec<Offer> = g
-                .iter()
-                .map(|(v, c)| Offer {
-                    value: *v,
-                    uses: c
-                        .iter()
-                        .enumerate()
-                        .filter(|(_, x)| **x != 0)
-                        .map(|(j, x)| (j as u16, *x))
-                        .collect(),
-                })
-                .collect();
-            p.push_group(&offers).unwrap();
-        }
-        p
+        Problem::from_dense(groups, limits)
     }
 
     /// Every combination's value and use, in odometer order.

@@ -303,6 +303,31 @@ impl Problem {
 }
 
 #[cfg(test)]
+impl Problem {
+    /// A problem from dense groups, for tests: each candidate's value and its use of every row
+    /// (zero uses left out), pushed group by group.
+    pub(crate) fn from_dense(groups: &[Vec<(f64, Vec<i64>)>], limits: &[i64]) -> Problem {
+        let mut p = Problem::new(limits.to_vec());
+        for g in groups {
+            let offers: Vec<Offer> = g
+                .iter()
+                .map(|(v, u)| Offer {
+                    value: *v,
+                    uses: u
+                        .iter()
+                        .enumerate()
+                        .filter(|(_, &x)| x != 0)
+                        .map(|(j, &x)| (j as u16, x))
+                        .collect(),
+                })
+                .collect();
+            p.push_group(&offers).unwrap();
+        }
+        p
+    }
+}
+
+#[cfg(test)]
 #[allow(clippy::float_cmp)]
 mod tests {
     use super::*;

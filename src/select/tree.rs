@@ -665,7 +665,6 @@ pub fn prove(
 
 #[cfg(test)]
 mod tests {
-    use super::super::problem::Offer;
     use super::*;
     use proptest::prelude::*;
     use std::time::Duration;
@@ -673,23 +672,7 @@ mod tests {
     type Groups = Vec<Vec<(f64, Vec<i64>)>>;
 
     fn problem(groups: &Groups, limits: &[i64]) -> Problem {
-        let mut p = Problem::new(limits.to_vec());
-        for g in groups {
-            let offers: Vec<Offer> = g
-                .iter()
-                .map(|(v, u)| Offer {
-                    value: *v,
-                    uses: u
-                        .iter()
-                        .enumerate()
-                        .filter(|(_, &x)| x != 0)
-                        .map(|(j, &x)| (j as u16, x))
-                        .collect(),
-                })
-                .collect();
-            p.push_group(&offers).unwrap();
-        }
-        p
+        Problem::from_dense(groups, limits)
     }
 
     /// The optimum by trying every plan of the (dominance-reduced) problem.
