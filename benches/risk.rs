@@ -29,18 +29,21 @@ fn unconstrained(run: &Run) -> HeldPlan {
     )
     .expect("candidates");
     let e = pavestrat::enumerate::Enumerator::for_run(run);
+    let strategies: Vec<_> = run
+        .network
+        .sections
+        .iter()
+        .map(|s| e.strategies(s))
+        .collect();
+    let chosen = c
+        .unconstrained
+        .iter()
+        .zip(&strategies)
+        .map(|(u, all)| all.iter().position(|s| s.key == u.strategy).unwrap_or(0))
+        .collect();
     HeldPlan {
-        strategies: run
-            .network
-            .sections
-            .iter()
-            .map(|s| e.strategies(s))
-            .collect(),
-        chosen: c
-            .unconstrained
-            .iter()
-            .map(|u| u.strategy as usize)
-            .collect(),
+        strategies,
+        chosen,
         plan_run: None,
     }
 }

@@ -16,7 +16,7 @@
 
 use crate::economics::incremental::{analyse, Analysis};
 use crate::economics::{appraise, fyrr, Discounting, Indicators, Stream};
-use crate::enumerate::{Enumerator, Strategy};
+use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::input::network::Section;
 use crate::input::Run;
 use crate::simulate::{Flows, SectionSim, Trace};
@@ -131,10 +131,13 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    let mut trace = Trace::default();
+    // Each strategy replays only the years after its works part from the previous one's.
+    let mut trace = base.clone();
     let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
     let mut traces = Vec::new();
+    // Every strategy's own flows, for the widening's return against the same works without it.
+    let mut owns: Vec<Flows> = Vec::with_capacity(strategies.len());
     for st in &strategies {
         let t = if st.is_base() {
             &base
@@ -174,6 +177,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         if keep_traces {
             traces.push((st.name.clone(), t.clone()));
         }
+        owns.push(own);
     }
     let incremental = analyse(&alternatives, d);
     let position: HashMap<&str, usize> = partial
@@ -204,7 +208,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         .iter()
         .map(|r| (r.widening_year, r.indicators.npv))
         .collect();
-    let widening = widening_timing(run, &sim, &strategies, &options, d);
+    let widening = widening_timing(run, &sim, &strategies, &owns, &options, d);
     SectionResult {
         section: sec.id.0.clone(),
         strategies: partial,
@@ -215,102 +219,125 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
     }
 }
 
-/// The best widening strategy of one calendar widening year.
+/// The best widening strategy of one calendar widening year (`K`: how the strategy is named).
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct WideningOption {
+pub struct WideningOption<K = StrategyRef> {
     pub year: i32,
-    /// The strategy's position in its section's enumeration.
-    pub strategy: u32,
+    /// The strategy.
+    pub strategy: K,
     /// Its NPV against the base.
     pub npv: f64,
+    /// The widening's own first-year rate of return: the strategy against the same strategy
+    /// without its widening ([`widening_returns`]).
+    pub fyrr: Option<f64>,
 }
 
-/// Each widening year's best strategy, by year, from `(position, calendar widening year, NPV
+/// Each widening year's best strategy, by year, from `(strategy, calendar widening year, NPV
 /// against the base)` of every widening strategy in enumeration order; of equal NPVs the first
-/// is kept.
-pub fn best_by_widening_year(
-    options: impl IntoIterator<Item = (u32, i32, f64)>,
-) -> Vec<WideningOption> {
-    let mut best: Vec<WideningOption> = Vec::new();
+/// is kept. Their FYRRs are left for [`widening_returns`].
+pub fn best_by_widening_year<K: Copy>(
+    options: impl IntoIterator<Item = (K, i32, f64)>,
+) -> Vec<WideningOption<K>> {
+    let mut best: Vec<WideningOption<K>> = Vec::new();
     for (strategy, year, npv) in options {
+        let option = WideningOption {
+            year,
+            strategy,
+            npv,
+            fyrr: None,
+        };
         match best.iter_mut().find(|b| b.year == year) {
             Some(slot) => {
                 if npv > slot.npv {
-                    *slot = WideningOption {
-                        year,
-                        strategy,
-                        npv,
-                    };
+                    *slot = option;
                 }
             }
-            None => best.push(WideningOption {
-                year,
-                strategy,
-                npv,
-            }),
+            None => best.push(option),
         }
     }
     best.sort_by_key(|b| b.year);
     best
 }
 
-/// `options[i]`: strategy i's calendar widening year (if it widens) and NPV against the base.
+/// The first-year rate of return of each option's widening: the strategy's own flows (`own[i]`
+/// of `strategies[i]`) against those of the same strategy without its widening. That strategy
+/// is usually one of the section's own (strengthening alone, say), whose flows are at hand;
+/// otherwise it is simulated (from its widening year on, see [`SectionSim::run`]).
+pub fn widening_returns(
+    run: &Run,
+    sim: &SectionSim,
+    strategies: &[Strategy],
+    own: &[Flows],
+    options: &mut [WideningOption<usize>],
+    d: &Discounting,
+) {
+    let y0 = run.scenario.base_year;
+    let mut t = Trace::default();
+    for o in options {
+        let st = &strategies[o.strategy];
+        let without = st.without_widening(&run.catalogue);
+        let known = strategies
+            .iter()
+            .position(|x| x.works == without.works && x.trigger == without.trigger);
+        let flows = match known {
+            Some(j) => increment(&own[o.strategy], &own[j], y0),
+            None => {
+                sim.run(&without, &mut t);
+                increment(&own[o.strategy], &t.flows(d), y0)
+            }
+        };
+        o.fyrr = fyrr(&flows.net());
+    }
+}
+
+/// The two timing rules over a section's widening options (by year): the first year whose FYRR
+/// reaches the discount rate, and the year of highest NPV (the earlier of equals).
+pub fn timing_rules<K>(
+    options: &[WideningOption<K>],
+    d: &Discounting,
+) -> (Option<i32>, Option<i32>) {
+    let by_fyrr = options
+        .iter()
+        .find(|w| w.fyrr.is_some_and(|f| f >= d.rate()))
+        .map(|w| w.year);
+    let by_npv = options
+        .iter()
+        .max_by(|a, b| a.npv.total_cmp(&b.npv).then(b.year.cmp(&a.year)))
+        .map(|w| w.year);
+    (by_fyrr, by_npv)
+}
+
+/// The widening timing of a section from its strategies and their own flows: NPV and FYRR of
+/// each widening year's best strategy, and the two rules' answers. `None` when no strategy
+/// widens.
 fn widening_timing(
     run: &Run,
     sim: &SectionSim,
     strategies: &[Strategy],
-    options: &[(Option<i32>, f64)],
+    own: &[Flows],
+    npv: &[(Option<i32>, f64)],
     d: &Discounting,
 ) -> Option<WideningTiming> {
-    let best = best_by_widening_year(
-        options
-            .iter()
+    let mut best = best_by_widening_year(
+        npv.iter()
             .enumerate()
-            .filter_map(|(i, &(y, npv))| y.map(|y| (i as u32, y, npv))),
+            .filter_map(|(i, &(y, npv))| y.map(|y| (i, y, npv))),
     );
-    widening_years(run, sim, strategies, &best, d)
-}
-
-/// The widening timing from each widening year's best strategy (`best`, by year): the first-year
-/// rate of return of widening in that year against the same strategy without the widening (two
-/// simulations a year), and the years chosen by that rate and by NPV. `None` when `best` is empty.
-pub fn widening_years(
-    run: &Run,
-    sim: &SectionSim,
-    strategies: &[Strategy],
-    best: &[WideningOption],
-    d: &Discounting,
-) -> Option<WideningTiming> {
     if best.is_empty() {
         return None;
     }
-    let (mut with, mut without) = (Trace::default(), Trace::default());
-    let y0 = run.scenario.base_year;
-    let years: Vec<WideningYear> = best
-        .iter()
-        .map(|b| {
-            let st = &strategies[b.strategy as usize];
-            sim.run(st, &mut with);
-            sim.run(&st.without_widening(&run.catalogue), &mut without);
-            let flows = increment(&with.flows(d), &without.flows(d), y0);
-            WideningYear {
-                year: b.year,
-                strategy: st.name.clone(),
-                npv: b.npv,
-                fyrr: fyrr(&flows.net()),
-            }
-        })
-        .collect();
-    let by_fyrr = years
-        .iter()
-        .find(|w| w.fyrr.is_some_and(|f| f >= d.rate()))
-        .map(|w| w.year);
-    let by_npv = years
-        .iter()
-        .max_by(|a, b| a.npv.total_cmp(&b.npv).then(b.year.cmp(&a.year)))
-        .map(|w| w.year);
+    widening_returns(run, sim, strategies, own, &mut best, d);
+    let (by_fyrr, by_npv) = timing_rules(&best, d);
     Some(WideningTiming {
-        years,
+        years: best
+            .iter()
+            .map(|b| WideningYear {
+                year: b.year,
+                strategy: strategies[b.strategy].name.clone(),
+                npv: b.npv,
+                fyrr: b.fyrr,
+            })
+            .collect(),
         by_fyrr,
         by_npv,
     })
@@ -342,8 +369,9 @@ mod tests {
             year,
             strategy,
             npv,
+            fyrr: None,
         };
         assert_eq!(best, vec![o(2028, 2, 1.0), o(2030, 3, 7.0)]);
-        assert!(best_by_widening_year([]).is_empty());
+        assert!(best_by_widening_year::<u32>([]).is_empty());
     }
 }

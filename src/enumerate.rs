@@ -36,10 +36,42 @@ pub struct TriggerRule {
     pub min_gap_years: u32,
 }
 
+/// A strategy of one section in 14 bytes: its template, the year of each step and the trigger
+/// threshold. Enough to rebuild the strategy ([`Enumerator::strategy`]) or name it
+/// ([`Enumerator::name`]) without enumerating the section again, so later stages keep these
+/// instead of strategies. [`StrategyRef::BASE`] is the base.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub struct StrategyRef {
+    /// Template index + 1; 0 for the base.
+    template: u16,
+    /// Threshold index + 1 in the template's trigger; 0 without a trigger.
+    threshold: u16,
+    /// Steps used in `years`.
+    steps: u8,
+    /// Each step's year after the base year (the period is at most 100 years).
+    years: [u8; crate::input::MAX_STEPS],
+}
+
+impl StrategyRef {
+    /// The base strategy.
+    pub const BASE: StrategyRef = StrategyRef {
+        template: 0,
+        threshold: 0,
+        steps: 0,
+        years: [0; crate::input::MAX_STEPS],
+    };
+
+    pub fn is_base(self) -> bool {
+        self.template == 0
+    }
+}
+
 /// One strategy for one section.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Strategy {
     pub name: String,
+    /// The strategy in a few bytes, for later stages to hold.
+    pub key: StrategyRef,
     /// Index of the template it came from; `None` for the base.
     pub template: Option<usize>,
     /// Timed works in year order.
@@ -52,6 +84,7 @@ impl Strategy {
     pub fn base() -> Strategy {
         Strategy {
             name: BASE.to_owned(),
+            key: StrategyRef::BASE,
             template: None,
             works: Vec::new(),
             trigger: None,
@@ -75,6 +108,7 @@ impl Strategy {
     pub fn without_widening(&self, cat: &Catalogue) -> Strategy {
         Strategy {
             name: format!("{} without widening", self.name),
+            key: self.key,
             template: self.template,
             works: self
                 .works
@@ -100,6 +134,9 @@ struct Compiled<'a> {
 #[derive(Debug, Clone)]
 pub struct Enumerator<'a> {
     compiled: Vec<Compiled<'a>>,
+    /// Template index → position in `compiled` (templates naming an unknown treatment have
+    /// none).
+    by_template: Vec<Option<usize>>,
     catalogue: &'a Catalogue,
     base_year: i32,
     period: u32,
@@ -135,9 +172,14 @@ impl<'a> Enumerator<'a> {
                     trigger,
                 })
             })
-            .collect();
+            .collect::<Vec<Compiled<'a>>>();
+        let mut by_template = vec![None; templates.len()];
+        for (i, c) in compiled.iter().enumerate() {
+            by_template[c.index] = Some(i);
+        }
         Enumerator {
             compiled,
+            by_template,
             catalogue,
             base_year,
             period,
@@ -172,26 +214,87 @@ impl<'a> Enumerator<'a> {
                 None => vec![None],
             };
             for works in &timed {
-                for thr in &thresholds {
+                for (t, thr) in thresholds.iter().enumerate() {
                     self.name_into(c, works, *thr, &mut name);
                     if names.contains(name.as_str()) {
                         continue;
                     }
                     names.insert(name.clone());
-                    out.push(Strategy {
-                        name: name.clone(),
-                        template: Some(c.index),
-                        works: works.clone(),
-                        trigger: thr.map(|iri| TriggerRule {
-                            treatment: c.trigger.map_or(0, |t| t.0),
-                            iri,
-                            min_gap_years: c.template.min_gap_years,
-                        }),
-                    });
+                    let key = Self::key_of(c, works, thr.map(|_| t));
+                    out.push(self.build(c, key, works.clone(), name.clone()));
                 }
             }
         }
         out
+    }
+
+    /// The key of a template's strategy with these works and trigger threshold.
+    fn key_of(c: &Compiled<'_>, works: &[Works], threshold: Option<usize>) -> StrategyRef {
+        let mut years = [0u8; crate::input::MAX_STEPS];
+        for (slot, w) in years.iter_mut().zip(works) {
+            // Years are below the period, at most 100 (checked when the scenario is read).
+            *slot = w.year.min(u32::from(u8::MAX)) as u8;
+        }
+        StrategyRef {
+            // `load` refuses more templates than a u16 holds, and more thresholds too.
+            template: (c.index + 1).min(usize::from(u16::MAX)) as u16,
+            threshold: threshold.map_or(0, |t| (t + 1).min(usize::from(u16::MAX)) as u16),
+            steps: works.len().min(crate::input::MAX_STEPS) as u8,
+            years,
+        }
+    }
+
+    fn build(
+        &self,
+        c: &Compiled<'_>,
+        key: StrategyRef,
+        works: Vec<Works>,
+        name: String,
+    ) -> Strategy {
+        let threshold = match (c.trigger, key.threshold) {
+            (Some((_, _, iri)), t) if t > 0 => iri.get(usize::from(t) - 1).copied(),
+            _ => None,
+        };
+        Strategy {
+            name,
+            key,
+            template: Some(c.index),
+            works,
+            trigger: threshold.map(|iri| TriggerRule {
+                treatment: c.trigger.map_or(0, |t| t.0),
+                iri,
+                min_gap_years: c.template.min_gap_years,
+            }),
+        }
+    }
+
+    /// The strategy `key` names, rebuilt without enumerating: the same works, trigger and name
+    /// as the one [`Enumerator::strategies`] gave. `None` for a key of no template here.
+    pub fn strategy(&self, key: StrategyRef) -> Option<Strategy> {
+        if key.is_base() {
+            return Some(Strategy::base());
+        }
+        let c = &self.compiled[(*self.by_template.get(usize::from(key.template) - 1)?)?];
+        let works: Vec<Works> = key.years[..usize::from(key.steps).min(c.steps.len())]
+            .iter()
+            .zip(&c.steps)
+            .map(|(&y, &(treatment, _, _))| Works {
+                year: u32::from(y),
+                treatment,
+            })
+            .collect();
+        let threshold = match (c.trigger, key.threshold) {
+            (Some((_, _, iri)), t) if t > 0 => Some(*iri.get(usize::from(t) - 1)?),
+            _ => None,
+        };
+        let mut name = String::new();
+        self.name_into(c, &works, threshold, &mut name);
+        Some(self.build(c, key, works, name))
+    }
+
+    /// The name of the strategy `key` names (empty for a key of no template here).
+    pub fn name(&self, key: StrategyRef) -> String {
+        self.strategy(key).map(|s| s.name).unwrap_or_default()
     }
 
     fn expand(
@@ -417,5 +520,29 @@ steps = [
                 assert!(x.works.iter().all(|w| w.year < run.scenario.analysis_years));
             }
         }
+    }
+
+    #[test]
+    fn every_key_rebuilds_its_strategy() {
+        // The demo and a synthetic network with other lanes, carriageways and last works.
+        let run = demo();
+        let e = Enumerator::for_run(&run);
+        let text = crate::demo::synth::network_csv(200, 11);
+        let mut d = Diagnostics::new();
+        let synth = crate::input::network::parse("synth.csv", &text, &mut d).unwrap();
+        assert!(!d.has_errors(), "{d}");
+        let mut seen = 0;
+        for s in run.network.sections.iter().chain(&synth.sections) {
+            let all = e.strategies(s);
+            let keys: HashSet<StrategyRef> = all.iter().map(|x| x.key).collect();
+            assert_eq!(keys.len(), all.len(), "{}: keys are unique", s.id);
+            for st in &all {
+                assert_eq!(e.strategy(st.key).as_ref(), Some(st), "{}", st.name);
+                assert_eq!(e.name(st.key), st.name);
+                seen += 1;
+            }
+        }
+        assert!(seen > 5_000, "{seen}");
+        assert!(e.strategy(StrategyRef::BASE).is_some_and(|b| b.is_base()));
     }
 }

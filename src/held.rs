@@ -36,11 +36,15 @@ impl HeldPlan {
         let c = crate::plan::candidates(run, settings)?;
         let plan = crate::plan::select(run, c, &settings.select)?;
         let c = &plan.candidates;
+        let strategies = Self::enumerate(run);
         let chosen = (0..c.sections())
-            .map(|g| c.strategy[c.chosen(&plan.outcome.plan, g)] as usize)
+            .map(|g| {
+                let key = c.strategy[c.chosen(&plan.outcome.plan, g)];
+                strategies[g].iter().position(|s| s.key == key).unwrap_or(0)
+            })
             .collect();
         Ok(HeldPlan {
-            strategies: Self::enumerate(run),
+            strategies,
             chosen,
             plan_run: None,
         })

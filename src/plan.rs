@@ -20,7 +20,7 @@
 use crate::appraise::WideningOption;
 use crate::diag::{Diagnostics, Place};
 use crate::economics::Discounting;
-use crate::enumerate::{Enumerator, Strategy};
+use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::input::network::Section;
 use crate::input::plan::{Held, Measure, Objective};
 use crate::input::scenario::Category;
@@ -106,9 +106,8 @@ pub struct Candidates {
     pub rows: Vec<Row>,
     pub problem: Problem,
     pub objective: Objective,
-    /// Per candidate: the strategy's position in its section's enumeration, its NPV against the
-    /// base and its PV agency cost.
-    pub strategy: Vec<u32>,
+    /// Per candidate: the strategy, its NPV against the base and its PV agency cost.
+    pub strategy: Vec<StrategyRef>,
     pub npv: Vec<f64>,
     pub pv_agency: Vec<f64>,
     /// Per section (network order): the strategies enumerated, and the best one with no limits
@@ -126,8 +125,7 @@ pub struct Candidates {
 /// A section's best strategy with no budget or target limits (its commitments still held).
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct Unconstrained {
-    /// The strategy's position in the section's enumeration.
-    pub strategy: u32,
+    pub strategy: StrategyRef,
     /// Its NPV against the base.
     pub npv: f64,
     pub pv_agency: f64,
@@ -329,7 +327,7 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
 
 struct SectionCands {
     offers: Vec<Offer>,
-    strategy: Vec<u32>,
+    strategy: Vec<StrategyRef>,
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
     enumerated: u32,
@@ -343,7 +341,7 @@ struct SectionCands {
 /// whole.
 struct Chunk {
     problem: Problem,
-    strategy: Vec<u32>,
+    strategy: Vec<StrategyRef>,
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
     enumerated: Vec<u32>,
@@ -402,7 +400,8 @@ fn section_candidates(
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    let mut trace = Trace::default();
+    // Each strategy replays only the years after its works part from the previous one's.
+    let mut trace = base.clone();
     let mut out = SectionCands {
         offers: Vec::with_capacity(strategies.len()),
         strategy: Vec::with_capacity(strategies.len()),
@@ -413,8 +412,10 @@ fn section_candidates(
         base_pv_agency: d.pv(y0, &base_flows.agency),
         widening: Vec::new(),
     };
-    let mut widening: Vec<(u32, i32, f64)> = Vec::new();
-    let mut best: Option<(f64, u32, f64, f64)> = None;
+    let mut widening: Vec<(usize, i32, f64)> = Vec::new();
+    // Every strategy's own flows, for the widening's return against the same works without it.
+    let mut owns: Vec<crate::simulate::Flows> = Vec::with_capacity(strategies.len());
+    let mut best: Option<(f64, StrategyRef, f64, f64)> = None;
     let mut u = Vec::new();
     for (i, st) in strategies.iter().enumerate() {
         let t = if i == 0 {
@@ -427,8 +428,10 @@ fn section_candidates(
         let flows = crate::appraise::increment(&own, &base_flows, y0);
         let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
         if let Some(w) = st.widening_year(&run.catalogue) {
-            widening.push((i as u32, y0 + w as i32, npv));
+            widening.push((i, y0 + w as i32, npv));
         }
+        let pv_agency = d.pv(y0, &own.agency);
+        owns.push(own);
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
                 Held::Strategy(name) => *name == st.name,
@@ -440,24 +443,33 @@ fn section_candidates(
                 continue;
             }
         }
-        let pv_agency = d.pv(y0, &own.agency);
         let value = match objective {
             Objective::Npv => npv,
             Objective::LeastCost => -pv_agency,
         };
         if best.is_none_or(|b| value > b.0) {
-            best = Some((value, i as u32, npv, pv_agency));
+            best = Some((value, st.key, npv, pv_agency));
         }
         uses(run, rows, sec, t, &mut u);
         out.offers.push(Offer {
             value,
             uses: u.clone(),
         });
-        out.strategy.push(i as u32);
+        out.strategy.push(st.key);
         out.npv.push(npv);
         out.pv_agency.push(pv_agency);
     }
-    out.widening = crate::appraise::best_by_widening_year(widening);
+    let mut widening = crate::appraise::best_by_widening_year(widening);
+    crate::appraise::widening_returns(run, &sim, &strategies, &owns, &mut widening, d);
+    out.widening = widening
+        .into_iter()
+        .map(|w| WideningOption {
+            year: w.year,
+            strategy: strategies[w.strategy].key,
+            npv: w.npv,
+            fyrr: w.fyrr,
+        })
+        .collect();
     match best {
         Some((_, i, npv, pva)) => {
             out.unconstrained = Unconstrained {
@@ -893,15 +905,15 @@ pub fn condition_series(run: &Run, c: &Candidates, plan: &[u16]) -> ConditionSer
             let mut t = Trace::default();
             for (i, sec) in chunk.iter().enumerate() {
                 let g = ci * CHUNK + i;
-                let strategies = e.strategies(sec);
                 let sim = SectionSim::new(run, sec);
                 let picks = [
-                    c.strategy[c.chosen(plan, g)] as usize,
-                    0,
-                    c.unconstrained[g].strategy as usize,
+                    c.strategy[c.chosen(plan, g)],
+                    StrategyRef::BASE,
+                    c.unconstrained[g].strategy,
                 ];
                 for (case, &k) in picks.iter().enumerate() {
-                    sim.run(&strategies[k], &mut t);
+                    let st = e.strategy(k).unwrap_or_else(Strategy::base);
+                    sim.run(&st, &mut t);
                     for y in 0..n {
                         let iri = t.iri[y];
                         part.0[case][y] += sec.length_km * iri;
@@ -1035,9 +1047,10 @@ pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate
             let mut u = Vec::new();
             for (i, sec) in chunk.iter().enumerate() {
                 let g = ci * CHUNK + i;
-                let k = c.strategy[c.chosen(plan, g)] as usize;
-                let strategies = e.strategies(sec);
-                SectionSim::new(run, sec).run(&strategies[k], &mut t);
+                let st = e
+                    .strategy(c.strategy[c.chosen(plan, g)])
+                    .unwrap_or_else(Strategy::base);
+                SectionSim::new(run, sec).run(&st, &mut t);
                 works.extend(t.works.iter().map(|&(year, treatment, cost)| PlannedWork {
                     year,
                     section: g,

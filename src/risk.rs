@@ -187,6 +187,7 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [
         let sim = SectionSim::new(&v.run, &s2);
         let strategies = &held.strategies[g];
         sim.run(&strategies[0], &mut base);
+        t.clone_from(&base);
         let base_flows = base.flows(d);
         for (i, st) in strategies.iter().enumerate() {
             let npv = if i == 0 {

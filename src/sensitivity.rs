@@ -127,6 +127,7 @@ fn npvs(
     let sim = SectionSim::new(&v.run, &s2);
     let (mut base, mut t) = (Trace::default(), Trace::default());
     sim.run(&strategies[0], &mut base);
+    t.clone_from(&base);
     let d = v.discounting();
     let bf = base.flows(d);
     let y0 = run.scenario.base_year;

@@ -177,11 +177,10 @@ mod imp {
             "same",
         ])?;
         for (g, sec) in secs.iter().enumerate() {
-            let strategies = e.strategies(sec);
             let k = c.chosen(plan, g);
             let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
-            let chosen = &strategies[c.strategy[k] as usize].name;
-            let un = &strategies[u as usize].name;
+            let chosen = &e.name(c.strategy[k]);
+            let un = &e.name(u);
             sh.line(&[
                 Cell::Text(&sec.id.0),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),

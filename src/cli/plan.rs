@@ -378,11 +378,10 @@ fn write_files(
             .enumerate()
             .map(|(i, sec)| {
                 let g = ci * CHUNK + i;
-                let strategies = e.strategies(sec);
                 let k = c.chosen(plan, g);
                 let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
-                let chosen_name = &strategies[c.strategy[k] as usize].name;
-                let un_name = &strategies[u as usize].name;
+                let chosen_name = &e.name(c.strategy[k]);
+                let un_name = &e.name(u);
                 let sp = format!(
                     "{},{},{},{},{},{},{},{}\n",
                     Field(&sec.id.0),
@@ -392,7 +391,7 @@ fn write_files(
                     Amount(c.pv_agency[k]),
                     Field(un_name),
                     Amount(unpv),
-                    chosen_name == un_name
+                    c.strategy[k] == u
                 );
                 let mut cs = String::new();
                 let mut dense = vec![0i64; c.rows.len()];
@@ -406,7 +405,7 @@ fn write_files(
                         cs,
                         "{},{},{},{}",
                         Field(&sec.id.0),
-                        Field(&strategies[c.strategy[cand] as usize].name),
+                        Field(&e.name(c.strategy[cand])),
                         Amount(c.npv[cand]),
                         Amount(c.pv_agency[cand])
                     );
@@ -551,26 +550,23 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
             if best.is_empty() {
                 return String::new();
             }
-            let strategies = e.strategies(sec);
-            let sim = crate::simulate::SectionSim::new(run, sec);
-            let d = &run.scenario.discounting;
-            let Some(w) = crate::appraise::widening_years(run, &sim, &strategies, best, d) else {
-                return String::new();
-            };
-            let chosen = &strategies[c.strategy[c.chosen(&p.outcome.plan, g)] as usize];
-            let planned = chosen.widening_year(cat).map(|x| y0 + x as i32);
+            let (by_fyrr, by_npv) = crate::appraise::timing_rules(best, &run.scenario.discounting);
+            let planned = e
+                .strategy(c.strategy[c.chosen(&p.outcome.plan, g)])
+                .and_then(|chosen| chosen.widening_year(cat))
+                .map(|x| y0 + x as i32);
             let mut s = String::new();
-            for wy in &w.years {
+            for wy in best {
                 let _ = writeln!(
                     s,
                     "{},{},{},{},{},{},{},{}",
                     Field(&sec.id.0),
                     wy.year,
-                    Field(&wy.strategy),
+                    Field(&e.name(wy.strategy)),
                     Amount(wy.npv),
                     crate::format::Fixed(wy.fyrr, 6),
-                    w.by_fyrr == Some(wy.year),
-                    w.by_npv == Some(wy.year),
+                    by_fyrr == Some(wy.year),
+                    by_npv == Some(wy.year),
                     planned == Some(wy.year)
                 );
             }

@@ -305,6 +305,16 @@ pub const MAX_STEPS: usize = 8;
 pub const MAX_STRATEGIES_PER_TEMPLATE: u64 = 10_000;
 
 fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
+    // Strategies are referred to by a template number that fits in 16 bits.
+    if templates.len() >= usize::from(u16::MAX) {
+        if let Some(t) = templates.last() {
+            d.error(
+                t.place.clone(),
+                format!("{} strategy templates", templates.len()),
+                format!("at most {} templates in one run", u16::MAX - 1),
+            );
+        }
+    }
     for t in templates {
         if t.steps.len() > MAX_STEPS {
             d.error(

@@ -62,7 +62,41 @@ pub struct Trace {
     pub works: Vec<(u32, usize, f64)>,
     /// Residual value of the last works, credited the year after the period ends.
     pub residual: f64,
+    /// The state at the start of each year, so that the next strategy run into this trace
+    /// replays only the years after the two strategies' works first differ.
+    resume: Resume,
 }
+
+/// The state of a run at the start of each year, and the section simulation it belongs to.
+#[derive(Debug, Clone, Default)]
+struct Resume {
+    /// [`SectionSim::id`] of the run the states are from; 0 when none.
+    owner: u64,
+    states: Vec<YearState>,
+}
+
+/// Bookkeeping of how the trace was made, not part of what it says: two traces with equal years
+/// are equal whichever runs they were resumed from.
+impl PartialEq for Resume {
+    fn eq(&self, _: &Resume) -> bool {
+        true
+    }
+}
+
+/// Everything a run carries from one year into the next.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct YearState {
+    cond: Condition,
+    lanes: u8,
+    cw: Carriageway,
+    crash_factor: f64,
+    per_cap: f64,
+    lane_factor: f64,
+    last_works: Option<i64>,
+}
+
+/// A source of unique [`SectionSim`] ids (0 is never given).
+static NEXT_SIM_ID: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
 
 impl Trace {
     fn reset(&mut self, n: usize) {
@@ -137,6 +171,9 @@ struct Effect {
 /// One section, ready to run strategies on.
 #[derive(Debug, Clone)]
 pub struct SectionSim {
+    /// Unique among the simulations of this process: a trace's resume states are used only by
+    /// the simulation that wrote them (a clone shares the id, and the same arithmetic).
+    id: u64,
     years: usize,
     length_km: f64,
     lanes: u8,
@@ -246,6 +283,7 @@ impl SectionSim {
             })
             .collect();
         SectionSim {
+            id: NEXT_SIM_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
             years,
             length_km: length,
             lanes: section.lanes,
@@ -279,21 +317,54 @@ impl SectionSim {
         self.years
     }
 
-    /// Play `strategy` into `out` (its buffers are reused).
+    /// Play `strategy` into `out` (its buffers are reused). When `out` holds an earlier run of
+    /// this section, only the years from the first year the two strategies' works differ are
+    /// played again: until then both follow the same arithmetic, so the result is the same to
+    /// the bit as a run from the base year.
     pub fn run(&self, strategy: &Strategy, out: &mut Trace) {
         let n = self.years;
-        out.reset(n);
-        let mut cond = self.start;
-        let mut lanes = self.lanes;
-        let mut cw = self.carriageway;
-        let mut crash_factor = 1.0;
-        let mut per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
-        let mut lane_factor = traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
-        let mut last_works = self.last_works;
-        let mut next = 0usize;
+        let from = self.replay_from(strategy, out);
+        if from == n {
+            // The same works every year: the trace already is this strategy's.
+            return;
+        }
+        let mut s = if from == 0 {
+            out.reset(n);
+            out.resume.owner = self.id;
+            out.resume.states.clear();
+            out.resume.states.resize(n, self.initial_state());
+            self.initial_state()
+        } else {
+            for v in [
+                &mut out.capital,
+                &mut out.routine,
+                &mut out.operating,
+                &mut out.time,
+                &mut out.crashes,
+                &mut out.delay,
+                &mut out.iri,
+                &mut out.sn,
+            ] {
+                v[from..].fill(0.0);
+            }
+            let keep = out.works.partition_point(|w| (w.0 as usize) < from);
+            out.works.truncate(keep);
+            out.resume.states[from]
+        };
+        let mut next = strategy.works.partition_point(|w| (w.year as usize) < from);
         let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
         let mut done = [0usize; crate::input::MAX_STEPS];
-        for y in 0..n {
+        for y in from..n {
+            out.resume.states[y] = s;
+            let YearState {
+                mut cond,
+                mut lanes,
+                mut cw,
+                mut crash_factor,
+                mut per_cap,
+                mut lane_factor,
+                mut last_works,
+            } = s;
             // 1. Works due this year.
             let first = next;
             while next < strategy.works.len() && strategy.works[next].year as usize == y {
@@ -389,8 +460,74 @@ impl SectionSim {
                     crash_factor *= w.crash_factor;
                 }
             }
+            s = YearState {
+                cond,
+                lanes,
+                cw,
+                crash_factor,
+                per_cap,
+                lane_factor,
+                last_works,
+            };
         }
         out.residual = self.residual(&out.works);
+    }
+
+    /// The state at the start of the base year.
+    fn initial_state(&self) -> YearState {
+        YearState {
+            cond: self.start,
+            lanes: self.lanes,
+            cw: self.carriageway,
+            crash_factor: 1.0,
+            per_cap: 1.0 / capacity::capacity_pc_h(self.lanes, self.carriageway, &self.capacity),
+            lane_factor: traffic::lane_share(self.lanes, self.direction_factor, &self.lane_factor),
+            last_works: self.last_works,
+        }
+    }
+
+    /// The first year in which `strategy` would do other works than the run held in `out` did
+    /// (0 when `out` holds no run of this section; the period's length when it would do the
+    /// same every year). Until that year the two runs are the same, state and money.
+    fn replay_from(&self, strategy: &Strategy, out: &Trace) -> usize {
+        let n = self.years;
+        if out.resume.owner != self.id || out.resume.states.len() != n || out.iri.len() != n {
+            return 0;
+        }
+        let (mut mine, mut theirs) = (0usize, 0usize);
+        for y in 0..n {
+            let first = mine;
+            while mine < strategy.works.len() && strategy.works[mine].year as usize == y {
+                mine += 1;
+            }
+            let their_first = theirs;
+            while theirs < out.works.len() && out.works[theirs].0 as usize == y {
+                theirs += 1;
+            }
+            let done = &out.works[their_first..theirs];
+            let same = if mine > first {
+                // Timed works, as many as a year takes (see `run`).
+                let timed = &strategy.works[first..mine];
+                let taken = timed.len().min(crate::input::MAX_STEPS);
+                taken == done.len() && timed.iter().zip(done).all(|(w, d)| w.treatment == d.1)
+            } else if let Some(tr) = &strategy.trigger {
+                let st = &out.resume.states[y];
+                let gap_ok = st
+                    .last_works
+                    .is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
+                if st.cond.iri >= tr.iri && gap_ok {
+                    done.len() == 1 && done[0].1 == tr.treatment
+                } else {
+                    done.is_empty()
+                }
+            } else {
+                done.is_empty()
+            };
+            if !same {
+                return y;
+            }
+        }
+        n
     }
 
     /// Residual value of the last pavement works and of the last widening (each group's last
