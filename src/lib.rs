@@ -40,6 +40,7 @@ pub mod distribution;
 pub mod economics;
 pub mod enumerate;
 pub mod error;
+pub mod evaluate;
 pub mod format;
 pub mod frontier;
 pub mod held;

@@ -199,44 +199,85 @@ impl Candidates {
 
 /// A section's use of each row by one strategy's trace, as sparse (row, use in row units).
 pub fn uses(run: &Run, rows: &[Row], sec: &Section, t: &Trace, out: &mut Vec<(u16, i64)>) {
-    out.clear();
-    let s = &run.scenario;
-    let y0 = s.base_year;
-    for (j, row) in rows.iter().enumerate() {
-        let u = match row.kind {
-            RowKind::Budget(b) => {
-                let line = &s.budget_lines[b];
-                if line.region.is_some() && line.region != sec.region {
-                    continue;
+    SectionRows::new(run, rows, sec).uses(t, out);
+}
+
+/// The rows that can count one section (its region's and every region's), with what each reads
+/// from a trace: worked out once per section, then read for each of its strategies.
+#[derive(Debug, Clone)]
+pub struct SectionRows<'a> {
+    reads: Vec<(u16, Read)>,
+    length_km: f64,
+    classes: &'a crate::input::models::ConditionParams,
+}
+
+/// What a row reads from a trace, at a year index.
+#[derive(Debug, Clone, Copy)]
+enum Read {
+    Money(Category, usize),
+    MeanIri(usize),
+    PoorShare(usize),
+}
+
+impl<'a> SectionRows<'a> {
+    pub fn new(run: &'a Run, rows: &[Row], sec: &Section) -> SectionRows<'a> {
+        let s = &run.scenario;
+        let y0 = s.base_year;
+        let mut reads = Vec::new();
+        for (j, row) in rows.iter().enumerate() {
+            let (region, read) = match row.kind {
+                RowKind::Budget(b) => {
+                    let line = &s.budget_lines[b];
+                    let i = (line.year - y0) as usize;
+                    (&line.region, Read::Money(line.category, i))
                 }
-                let i = (line.year - y0) as usize;
-                let x = match line.category {
-                    Category::Capital => t.capital[i],
-                    Category::Routine => t.routine[i],
-                    Category::All => t.capital[i] + t.routine[i],
-                };
-                to_units(x, MONEY_UNITS)
+                RowKind::Target(k) => {
+                    let line = &s.plan.targets[k];
+                    let i = (line.year - y0) as usize;
+                    let read = match line.measure {
+                        Measure::MeanIri => Read::MeanIri(i),
+                        Measure::PoorShare => Read::PoorShare(i),
+                    };
+                    (&line.region, read)
+                }
+            };
+            if region.is_some() && *region != sec.region {
+                continue;
             }
-            RowKind::Target(k) => {
-                let line = &s.plan.targets[k];
-                if line.region.is_some() && line.region != sec.region {
-                    continue;
+            reads.push((j as u16, read));
+        }
+        SectionRows {
+            reads,
+            length_km: sec.length_km,
+            classes: &s.models.condition,
+        }
+    }
+
+    /// The trace's use of each row, as sparse (row, use in row units).
+    pub fn uses(&self, t: &Trace, out: &mut Vec<(u16, i64)>) {
+        out.clear();
+        for &(j, read) in &self.reads {
+            let u = match read {
+                Read::Money(category, i) => {
+                    let x = match category {
+                        Category::Capital => t.capital[i],
+                        Category::Routine => t.routine[i],
+                        Category::All => t.capital[i] + t.routine[i],
+                    };
+                    to_units(x, MONEY_UNITS)
                 }
-                let iri = t.iri[(line.year - y0) as usize];
-                match line.measure {
-                    Measure::MeanIri => to_units(sec.length_km * iri, TARGET_UNITS),
-                    Measure::PoorShare => {
-                        if classify(iri, &s.models.condition) == ConditionClass::Poor {
-                            to_units(sec.length_km, TARGET_UNITS)
-                        } else {
-                            0
-                        }
+                Read::MeanIri(i) => to_units(self.length_km * t.iri[i], TARGET_UNITS),
+                Read::PoorShare(i) => {
+                    if classify(t.iri[i], self.classes) == ConditionClass::Poor {
+                        to_units(self.length_km, TARGET_UNITS)
+                    } else {
+                        0
                     }
                 }
+            };
+            if u != 0 {
+                out.push((j, u));
             }
-        };
-        if u != 0 {
-            out.push((j as u16, u));
         }
     }
 }
@@ -417,6 +458,7 @@ fn section_candidates(
     let mut owns: Vec<crate::simulate::Flows> = Vec::with_capacity(strategies.len());
     let mut best: Option<(f64, StrategyRef, f64, f64)> = None;
     let mut u = Vec::new();
+    let reads = SectionRows::new(run, rows, sec);
     for (i, st) in strategies.iter().enumerate() {
         let t = if i == 0 {
             &base
@@ -425,8 +467,7 @@ fn section_candidates(
             &trace
         };
         let own = t.flows(d);
-        let flows = crate::appraise::increment(&own, &base_flows, y0);
-        let npv = d.pv(y0, &flows.benefits) - d.pv(y0, &flows.costs);
+        let npv = crate::evaluate::npv_against(d, y0, &own, &base_flows);
         if let Some(w) = st.widening_year(&run.catalogue) {
             widening.push((i, y0 + w as i32, npv));
         }
@@ -450,7 +491,7 @@ fn section_candidates(
         if best.is_none_or(|b| value > b.0) {
             best = Some((value, st.key, npv, pv_agency));
         }
-        uses(run, rows, sec, t, &mut u);
+        reads.uses(t, &mut u);
         out.offers.push(Offer {
             value,
             uses: u.clone(),

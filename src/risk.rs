@@ -18,7 +18,6 @@
 //! highest NPV, the base counting as zero; ties to the earlier strategy), and that a budget line's
 //! spending is above its limit.
 
-use crate::appraise::increment;
 use crate::distribution::stream;
 use crate::error::{Error, Result};
 use crate::held::HeldPlan;
@@ -194,8 +193,7 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [
                 0.0
             } else {
                 sim.run(st, &mut t);
-                let f = increment(&t.flows(d), &base_flows, y0);
-                d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
+                crate::evaluate::npv_against(d, y0, &t.flows(d), &base_flows)
             };
             npvs[at + i] = npv;
             if i == held.chosen[g] {

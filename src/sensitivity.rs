@@ -12,8 +12,8 @@
 //! happens within the input's search range: factors 0.01 to 11, growth ±10 points, rates 0 to
 //! 100 %.
 
-use crate::appraise::increment;
 use crate::enumerate::Strategy;
+use crate::evaluate::{Parts, Scales, Split};
 use crate::held::HeldPlan;
 use crate::input::network::Section;
 use crate::input::Run;
@@ -139,10 +139,80 @@ fn npvs(
                 return 0.0;
             }
             sim.run(st, &mut t);
-            let f = increment(&t.flows(d), &bf, y0);
-            d.pv(y0, &f.benefits) - d.pv(y0, &f.costs)
+            crate::evaluate::npv_against(d, y0, &t.flows(d), &bf)
         })
         .collect()
+}
+
+/// Whether input `i` ([`INPUTS`] order) only scales money or discounts it (everything but
+/// growth): its NPVs come from a [`Linear`] with no new simulation.
+fn is_linear(i: usize) -> bool {
+    INPUTS[i].0 != "shift.growth"
+}
+
+/// A section's strategies simulated once at the scenario's values, their money split by what
+/// the cost and unit-value factors scale ([`crate::evaluate`]).
+struct Linear {
+    /// The strategies split, by index.
+    which: Vec<usize>,
+    splits: Vec<Split>,
+    parts: Vec<Parts>,
+}
+
+impl Linear {
+    /// `strategies[k]` against the base, for each k of `which`.
+    fn new(run: &Run, sec: &Section, strategies: &[Strategy], which: &[usize]) -> Linear {
+        let sim = SectionSim::new(run, sec);
+        let d = &run.scenario.discounting;
+        let y0 = run.scenario.base_year;
+        let (mut base, mut t) = (Trace::default(), Trace::default());
+        sim.run(&strategies[0], &mut base);
+        t.clone_from(&base);
+        let splits: Vec<Split> = which
+            .iter()
+            .map(|&k| {
+                sim.run(&strategies[k], &mut t);
+                Split::of(&sim, &t, &base)
+            })
+            .collect();
+        let parts = splits.iter().map(|s| s.pv(d, y0)).collect();
+        Linear {
+            which: which.to_vec(),
+            splits,
+            parts,
+        }
+    }
+
+    /// The NPVs (in `which` order) with input `i` at `x` (`i` linear); the base's is 0.
+    fn npvs(&self, run: &Run, i: usize, x: f64) -> Vec<f64> {
+        let y0 = run.scenario.base_year;
+        let at = |k: usize, v: f64| if self.which[k] == 0 { 0.0 } else { v };
+        match INPUTS[i].0 {
+            "factor.capital_cost" => self
+                .parts
+                .iter()
+                .enumerate()
+                .map(|(k, p)| at(k, p.npv(&Scales::capital(x))))
+                .collect(),
+            "factor.unit_values" => self
+                .parts
+                .iter()
+                .enumerate()
+                .map(|(k, p)| at(k, p.npv(&Scales::users(x))))
+                .collect(),
+            _ => {
+                // The discount rate: the same split money, discounted at `x` (a rate the
+                // scenario could not take keeps the scenario's, as `vary::apply` does).
+                let d0 = &run.scenario.discounting;
+                let d = d0.with_rate(x).unwrap_or(*d0);
+                self.splits
+                    .iter()
+                    .enumerate()
+                    .map(|(k, s)| at(k, s.pv(&d, y0).npv(&Scales::ONE)))
+                    .collect()
+            }
+        }
+    }
 }
 
 fn argmax(x: &[f64]) -> usize {
@@ -209,6 +279,17 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     let chosen = held.chosen[g];
     let at0 = npvs(&shared.plain, run, sec, strategies, None);
     let best0 = argmax(&at0);
+    // Every strategy once more, its money split: the cost, unit-value and rate tests need no
+    // other simulation; growth simulates again at each value.
+    let all: Vec<usize> = (0..strategies.len()).collect();
+    let lin = Linear::new(run, sec, strategies, &all);
+    let eval = |i: usize, x: f64, only: Option<usize>| -> Vec<f64> {
+        if is_linear(i) {
+            lin.npvs(run, i, x)
+        } else {
+            npvs(&value_of(run, i, x), run, sec, strategies, only)
+        }
+    };
     let mut rows = vec![Row {
         section: Some(g),
         strategy: strategies[chosen].name.clone(),
@@ -223,7 +304,11 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     for (i, &c) in shared.central.iter().enumerate() {
         for (test, x, v) in &shared.tested[i] {
             let (test, x) = (*test, *x);
-            let n = npvs(v, run, sec, strategies, Some(chosen))[chosen];
+            let n = if is_linear(i) {
+                lin.npvs(run, i, x)[chosen]
+            } else {
+                npvs(v, run, sec, strategies, Some(chosen))[chosen]
+            };
             rows.push(Row {
                 section: Some(g),
                 strategy: strategies[chosen].name.clone(),
@@ -250,7 +335,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
             let mut prev = c;
             let sign0 = at0[chosen] > 0.0;
             for &x in &grid {
-                let n = npvs(&value_of(run, i, x), run, sec, strategies, None);
+                let n = eval(i, x, None);
                 if zero.is_none() && chosen != 0 && (n[chosen] > 0.0) != sign0 {
                     zero = Some((prev, x));
                 }
@@ -266,10 +351,10 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 let row = match zero {
                     Some((a, b)) => {
                         let x = bisect(a, b, tol, |m| {
-                            let n = npvs(&value_of(run, i, m), run, sec, strategies, Some(chosen));
+                            let n = eval(i, m, Some(chosen));
                             (n[chosen] > 0.0) != sign0
                         });
-                        let n = npvs(&value_of(run, i, x), run, sec, strategies, Some(chosen));
+                        let n = eval(i, x, Some(chosen));
                         (Some(x), Some(n[chosen]))
                     }
                     None => (None, None),
@@ -288,11 +373,8 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
             }
             let (value, npv, other) = match change {
                 Some((a, b, _)) => {
-                    let x = bisect(a, b, tol, |m| {
-                        let n = npvs(&value_of(run, i, m), run, sec, strategies, None);
-                        argmax(&n) != best0
-                    });
-                    let n = npvs(&value_of(run, i, x), run, sec, strategies, None);
+                    let x = bisect(a, b, tol, |m| argmax(&eval(i, m, None)) != best0);
+                    let n = eval(i, x, None);
                     (Some(x), Some(n[best0]), strategies[argmax(&n)].name.clone())
                 }
                 None => (None, None, String::new()),
@@ -332,10 +414,37 @@ fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
     per.iter().sum()
 }
 
+/// The plan's NPV with input `i` at `x`: from each section's chosen strategy split once
+/// (`chosen`) for the linear inputs, simulated again for growth.
+fn plan_npv_at(run: &Run, held: &HeldPlan, chosen: &[Option<Linear>], i: usize, x: f64) -> f64 {
+    if !is_linear(i) {
+        return plan_npv(run, held, &value_of(run, i, x));
+    }
+    let per: Vec<f64> = chosen
+        .par_iter()
+        .map(|l| match l {
+            Some(l) => l.npvs(run, i, x)[0],
+            None => 0.0,
+        })
+        .collect();
+    per.iter().sum()
+}
+
 /// Every row: the network plan's first, then each section's.
 pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -> Vec<Row> {
     let shared = Shared::new(run, tests);
     let n0 = plan_npv(run, held, &shared.plain);
+    // Each section's chosen strategy, its money split (none for a section left at its base).
+    let chosen: Vec<Option<Linear>> = run
+        .network
+        .sections
+        .par_iter()
+        .enumerate()
+        .map(|(g, sec)| {
+            let c = held.chosen[g];
+            (c != 0).then(|| Linear::new(run, sec, &held.strategies[g], &[c]))
+        })
+        .collect();
     let mut rows = vec![Row {
         section: None,
         strategy: String::new(),
@@ -358,7 +467,11 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
-                npv: Some(plan_npv(run, held, v)),
+                npv: Some(if is_linear(i) {
+                    plan_npv_at(run, held, &chosen, i, x)
+                } else {
+                    plan_npv(run, held, v)
+                }),
                 other: String::new(),
             });
         }
@@ -372,7 +485,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 .map(|s| c + sign * s)
                 .filter(|x| *x >= min && *x <= max)
             {
-                if (plan_npv(run, held, &value_of(run, i, x)) > 0.0) != (n0 > 0.0) {
+                if (plan_npv_at(run, held, &chosen, i, x) > 0.0) != (n0 > 0.0) {
                     found = Some((prev, x));
                     break;
                 }
@@ -380,7 +493,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
             }
             let value = found.map(|(a, b)| {
                 bisect(a, b, tol, |m| {
-                    (plan_npv(run, held, &value_of(run, i, m)) > 0.0) != (n0 > 0.0)
+                    (plan_npv_at(run, held, &chosen, i, m) > 0.0) != (n0 > 0.0)
                 })
             });
             rows.push(Row {
@@ -391,7 +504,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction,
                 value,
                 change: value.map(|x| x - c),
-                npv: value.map(|x| plan_npv(run, held, &value_of(run, i, x))),
+                npv: value.map(|x| plan_npv_at(run, held, &chosen, i, x)),
                 other: String::new(),
             });
         }

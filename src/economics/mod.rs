@@ -139,6 +139,12 @@ impl Discounting {
 
     /// Present value of `values`, one a year starting in `first_year`, summed in year order.
     pub fn pv(&self, first_year: i32, values: &[f64]) -> f64 {
+        self.pv_of(first_year, values.iter().copied())
+    }
+
+    /// [`Discounting::pv`] of values computed as they are summed (no stream is built): the
+    /// same arithmetic in the same order.
+    pub fn pv_of(&self, first_year: i32, values: impl IntoIterator<Item = f64>) -> f64 {
         // Factors by repeated division keep the sum cheap; one powf for the first year.
         let step = 1.0 / (1.0 + self.rate);
         let mut f = self.factor(first_year);

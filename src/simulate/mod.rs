@@ -202,6 +202,8 @@ pub struct SectionSim {
     speed: SpeedParams,
     direction_factor: f64,
     lane_factor: [f64; 4],
+    /// Each vehicle class's share of the traffic.
+    shares: [f64; 4],
 }
 
 impl SectionSim {
@@ -309,6 +311,7 @@ impl SectionSim {
             speed: m.speed,
             direction_factor: m.traffic.direction_factor,
             lane_factor: m.traffic.lane_factor,
+            shares: t.shares,
         }
     }
 
@@ -548,5 +551,51 @@ impl SectionSim {
             }
         }
         total
+    }
+
+    /// The residual value of [`SectionSim::residual`] in two parts: of capital-category
+    /// treatments and of routine-category ones (what the cost factors scale apart).
+    pub fn residual_split(&self, works: &[(u32, usize, f64)]) -> (f64, f64) {
+        let (mut capital, mut routine) = (0.0, 0.0);
+        for widen in [false, true] {
+            let group =
+                |w: &&(u32, usize, f64)| (self.treatments[w.1].action == Action::Widen) == widen;
+            let Some(last) = works.iter().filter(group).map(|w| w.0).max() else {
+                continue;
+            };
+            for w in works.iter().filter(group).filter(|w| w.0 == last) {
+                let tr = &self.treatments[w.1];
+                for &(share, life) in &tr.parts {
+                    let v = costs::residual_value(w.2 * share, w.0, life, self.years as u32);
+                    if tr.capital {
+                        capital += v;
+                    } else {
+                        routine += v;
+                    }
+                }
+            }
+        }
+        (capital, routine)
+    }
+
+    /// The traffic's mix weighted by each class's unit value of time (per vehicle-hour), as
+    /// the scenario `run` gives the unit values: what the travel-time and work-zone costs scale
+    /// with.
+    pub fn value_of_time(&self, run: &Run) -> f64 {
+        let uv = &run.scenario.unit_values;
+        VehicleClass::ALL
+            .iter()
+            .map(|c| self.shares[*c as usize] * uv.time.get(*c).to_f64())
+            .sum()
+    }
+
+    /// [`SectionSim::value_of_time`] for vehicle operating costs (per vehicle-km on a smooth
+    /// road).
+    pub fn value_of_operating(&self, run: &Run) -> f64 {
+        let uv = &run.scenario.unit_values;
+        VehicleClass::ALL
+            .iter()
+            .map(|c| self.shares[*c as usize] * uv.operating.get(*c).to_f64())
+            .sum()
     }
 }
