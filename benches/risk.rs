@@ -90,5 +90,15 @@ fn main() {
             .unwrap_or_else(|| panic!("the scaled scenario parses: {d}"));
         let draws = (200_000 / n as u64).clamp(4, 1000);
         measure(&format!("synthetic {n}"), &run, draws);
+        // The cost and unit-value inputs alone: every strategy simulated once, draws weigh
+        // its split money.
+        run.scenario
+            .uncertain
+            .retain(|u| pavestrat::evaluate::scales_money_only(&u.input));
+        measure(
+            &format!("synthetic {n}, money inputs only"),
+            &run,
+            draws * 20,
+        );
     }
 }

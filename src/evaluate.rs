@@ -45,12 +45,12 @@ pub struct Split {
 impl Split {
     /// `with`'s money less `base`'s (both runs of `sim`).
     pub fn of(sim: &SectionSim, with: &Trace, base: &Trace) -> Split {
-        let diff = |a: &[f64], b: &[f64]| -> Vec<f64> {
-            a.iter().zip(b).map(|(x, y)| x - y).collect()
-        };
+        let diff =
+            |a: &[f64], b: &[f64]| -> Vec<f64> { a.iter().zip(b).map(|(x, y)| x - y).collect() };
         let (wc, wr) = sim.residual_split(&with.works);
         let (bc, br) = sim.residual_split(&base.works);
-        let time = |t: &Trace| -> Vec<f64> { t.time.iter().zip(&t.delay).map(|(a, b)| a + b).collect() };
+        let time =
+            |t: &Trace| -> Vec<f64> { t.time.iter().zip(&t.delay).map(|(a, b)| a + b).collect() };
         Split {
             capital: diff(&with.capital, &base.capital),
             routine: diff(&with.routine, &base.routine),
@@ -199,8 +199,14 @@ mod tests {
             &[],
             &[("factor.capital_cost", 1.37)],
             &[("factor.routine_cost", 0.61), ("factor.unit_values", 1.8)],
-            &[("unit_values.time.car", 11.5), ("unit_values.crash", 40_000.0)],
-            &[("unit_values.time.heavy_truck", 0.0), ("factor.capital_cost", 0.2)],
+            &[
+                ("unit_values.time.car", 11.5),
+                ("unit_values.crash", 40_000.0),
+            ],
+            &[
+                ("unit_values.time.heavy_truck", 0.0),
+                ("factor.capital_cost", 0.2),
+            ],
             &[("discount_rate", 0.11), ("factor.unit_values", 0.7)],
         ];
         let mut checked = 0;

@@ -253,6 +253,33 @@ impl<'a> SectionRows<'a> {
         }
     }
 
+    /// The use of each budget row by yearly capital and routine spending scaled by `capital`
+    /// and `routine`, as sparse (row, use in row units); target rows are left out.
+    pub fn money_uses(
+        &self,
+        spending: (&[f64], &[f64]),
+        capital: f64,
+        routine: f64,
+        out: &mut Vec<(u16, i64)>,
+    ) {
+        out.clear();
+        for &(j, read) in &self.reads {
+            let Read::Money(category, i) = read else {
+                continue;
+            };
+            let (c, r) = (capital * spending.0[i], routine * spending.1[i]);
+            let x = match category {
+                Category::Capital => c,
+                Category::Routine => r,
+                Category::All => c + r,
+            };
+            let u = to_units(x, MONEY_UNITS);
+            if u != 0 {
+                out.push((j, u));
+            }
+        }
+    }
+
     /// The trace's use of each row, as sparse (row, use in row units).
     pub fn uses(&self, t: &Trace, out: &mut Vec<(u16, i64)>) {
         out.clear();

@@ -20,9 +20,10 @@
 
 use crate::distribution::stream;
 use crate::error::{Error, Result};
+use crate::evaluate::{Parts, Scales, Split};
 use crate::held::HeldPlan;
 use crate::input::Run;
-use crate::plan::{Row, RowKind};
+use crate::plan::{Row, RowKind, SectionRows};
 use crate::progress::Progress;
 use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
@@ -163,13 +164,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
 
 /// Compute one draw into `out` (length [`Layout::width`]).
 fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [f64]) {
-    let mut rng = stream(seed, k);
-    let values: Vec<(&str, f64)> = run
-        .scenario
-        .uncertain
-        .iter()
-        .map(|u| (u.input.as_str(), u.distribution.sample(&mut rng)))
-        .collect();
+    let values = sample(run, seed, k);
     let v = crate::vary::apply(run, &values);
     let d = v.discounting();
     let y0 = run.scenario.base_year;
@@ -209,7 +204,140 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [
     }
 }
 
-/// Run draws `first .. first + draws`.
+/// Every section simulated once at the scenario's values, for draws whose inputs only scale
+/// money ([`crate::evaluate::scales_money_only`]): each strategy's money split by what scales
+/// it, and the plan's yearly capital and routine spending.
+struct Linear<'a> {
+    sims: Vec<SectionSim>,
+    /// Per section, its strategies' parts (enumeration order).
+    parts: Vec<Vec<Parts>>,
+    /// Per section, the plan's strategy's capital and routine spending by year.
+    spending: Vec<(Vec<f64>, Vec<f64>)>,
+    rows: Vec<SectionRows<'a>>,
+}
+
+impl<'a> Linear<'a> {
+    /// `None` when some uncertain input changes more than money.
+    fn new(run: &'a Run, held: &HeldPlan, rows: &[Row]) -> Option<Linear<'a>> {
+        let s = &run.scenario;
+        if !s
+            .uncertain
+            .iter()
+            .all(|u| crate::evaluate::scales_money_only(&u.input))
+        {
+            return None;
+        }
+        let d = &s.discounting;
+        let y0 = s.base_year;
+        let per: Vec<_> = run
+            .network
+            .sections
+            .par_iter()
+            .enumerate()
+            .map(|(g, sec)| {
+                let sim = SectionSim::new(run, sec);
+                let strategies = &held.strategies[g];
+                let (mut base, mut t) = (Trace::default(), Trace::default());
+                sim.run(&strategies[0], &mut base);
+                t.clone_from(&base);
+                let mut spending = (base.capital.clone(), base.routine.clone());
+                let parts: Vec<Parts> = strategies
+                    .iter()
+                    .enumerate()
+                    .map(|(i, st)| {
+                        if i == 0 {
+                            return Parts::default();
+                        }
+                        sim.run(st, &mut t);
+                        if i == held.chosen[g] {
+                            spending = (t.capital.clone(), t.routine.clone());
+                        }
+                        Split::of(&sim, &t, &base).pv(d, y0)
+                    })
+                    .collect();
+                (sim, parts, spending, SectionRows::new(run, rows, sec))
+            })
+            .collect();
+        let mut l = Linear {
+            sims: Vec::with_capacity(per.len()),
+            parts: Vec::with_capacity(per.len()),
+            spending: Vec::with_capacity(per.len()),
+            rows: Vec::with_capacity(per.len()),
+        };
+        for (sim, parts, spending, rows) in per {
+            l.sims.push(sim);
+            l.parts.push(parts);
+            l.spending.push(spending);
+            l.rows.push(rows);
+        }
+        Some(l)
+    }
+
+    /// One draw from the split money; `false` (and `out` untouched) when a unit value that is
+    /// zero as written is drawn above zero, which no scale of zero money gives.
+    fn draw(
+        &self,
+        run: &Run,
+        held: &HeldPlan,
+        rows: &[Row],
+        values: &[(&str, f64)],
+        out: &mut [f64],
+    ) -> bool {
+        let v = crate::vary::apply(run, values);
+        let factor = |name: &str| -> f64 {
+            values
+                .iter()
+                .filter(|(n, _)| *n == name)
+                .map(|(_, x)| *x)
+                .product()
+        };
+        let (fc, fr) = (factor("factor.capital_cost"), factor("factor.routine_cost"));
+        let mut scales = Vec::with_capacity(self.sims.len());
+        for sim in &self.sims {
+            match Scales::of(sim, run, &v.run, fc, fr) {
+                Some(s) => scales.push(s),
+                None => return false,
+            }
+        }
+        let nstrat: usize = held.strategies.iter().map(Vec::len).sum();
+        let (npvs, rest) = out.split_at_mut(nstrat);
+        let (network, spend) = rest.split_at_mut(1);
+        network[0] = 0.0;
+        spend.iter_mut().for_each(|x| *x = 0.0);
+        let mut u = Vec::new();
+        let mut at = 0;
+        for (g, parts) in self.parts.iter().enumerate() {
+            for (i, p) in parts.iter().enumerate() {
+                let npv = if i == 0 { 0.0 } else { p.npv(&scales[g]) };
+                npvs[at + i] = npv;
+                if i == held.chosen[g] {
+                    network[0] += npv;
+                }
+            }
+            let (cap, rt) = &self.spending[g];
+            self.rows[g].money_uses((cap, rt), fc, fr, &mut u);
+            for &(j, x) in &u {
+                spend[j as usize] += rows[j as usize].measure(x);
+            }
+            at += parts.len();
+        }
+        true
+    }
+}
+
+/// The sampled values of draw `k`.
+fn sample(run: &Run, seed: u64, k: u64) -> Vec<(&str, f64)> {
+    let mut rng = stream(seed, k);
+    run.scenario
+        .uncertain
+        .iter()
+        .map(|u| (u.input.as_str(), u.distribution.sample(&mut rng)))
+        .collect()
+}
+
+/// Run draws `first .. first + draws`. When every uncertain input only scales money (the cost
+/// and unit-value factors, time and crash unit values), each strategy is simulated once and the
+/// draws weigh its split money; otherwise every draw simulates every strategy.
 pub fn simulate(
     run: &Run,
     held: &HeldPlan,
@@ -222,11 +350,18 @@ pub fn simulate(
     let width = layout.width();
     let rows = budget_rows(run)?;
     let mut values = vec![0.0; width * draws as usize];
+    let linear = Linear::new(run, held, &rows);
     values
         .par_chunks_mut(width.max(1))
         .enumerate()
         .for_each(|(i, out)| {
-            draw(run, held, &rows, seed, first + i as u64, out);
+            let k = first + i as u64;
+            let done = linear
+                .as_ref()
+                .is_some_and(|l| l.draw(run, held, &rows, &sample(run, seed, k), out));
+            if !done {
+                draw(run, held, &rows, seed, k, out);
+            }
             progress.inc(1);
         });
     Ok(Slice {
@@ -529,6 +664,46 @@ impl Slice {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Draws of inputs that only scale money, weighed from split money, give what simulating
+    /// every draw gives: every strategy's NPV, the plan's NPV and each line's spending (to
+    /// rounding: 1e-9 of the amount, or a cent of spending rounded apart).
+    #[test]
+    fn money_only_draws_agree_with_simulated_draws() {
+        let (run, d) = crate::input::load(
+            &crate::demo::SOURCE,
+            std::path::Path::new(crate::demo::SCENARIO),
+        );
+        assert!(!d.has_errors(), "{d}");
+        let full = run.unwrap();
+        let mut run = full.clone();
+        run.scenario
+            .uncertain
+            .retain(|u| crate::evaluate::scales_money_only(&u.input));
+        assert!(run.scenario.uncertain.len() >= 3);
+        let settings = crate::plan::Settings {
+            objective: run.scenario.plan.objective,
+            budget_scale: 1.0,
+            select: Default::default(),
+        };
+        let held = HeldPlan::select(&run, &settings).unwrap();
+        let rows = budget_rows(&run).unwrap();
+        let linear = Linear::new(&run, &held, &rows).expect("money-only inputs");
+        let width = layout(&run, &held).unwrap().width();
+        let (mut a, mut b) = (vec![0.0; width], vec![0.0; width]);
+        for k in 0..12 {
+            assert!(linear.draw(&run, &held, &rows, &sample(&run, 5, k), &mut a));
+            draw(&run, &held, &rows, 5, k, &mut b);
+            for (i, (x, y)) in a.iter().zip(&b).enumerate() {
+                assert!(
+                    (x - y).abs() <= 1e-9 * (1.0 + y.abs()) + 0.011,
+                    "draw {k}, value {i}: {x} against {y}"
+                );
+            }
+        }
+        // A physical input among them: every draw simulates.
+        assert!(Linear::new(&full, &held, &rows).is_none());
+    }
 
     #[test]
     fn quantiles_interpolate_like_numpy() {

@@ -761,9 +761,17 @@ mod tests {
         for w in values.windows(2) {
             let (a, b) = (w[0], w[1]);
             for (x, y) in [(a, b), (b, a), (a, a)] {
-                assert_eq!(soft_min(x, y).to_bits(), soft_min_symmetric(x, y).to_bits(), "{x} {y}");
+                assert_eq!(
+                    soft_min(x, y).to_bits(),
+                    soft_min_symmetric(x, y).to_bits(),
+                    "{x} {y}"
+                );
                 let (p, t) = (x.min(5.0), y.min(5.0));
-                assert_eq!(psr_floor(p, t).to_bits(), psr_floor_symmetric(p, t).to_bits(), "{p} {t}");
+                assert_eq!(
+                    psr_floor(p, t).to_bits(),
+                    psr_floor_symmetric(p, t).to_bits(),
+                    "{p} {t}"
+                );
             }
         }
     }
