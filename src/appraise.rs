@@ -14,8 +14,8 @@
 //! reaches the discount rate. The year of highest NPV is reported beside it; the two agree when
 //! benefits grow steadily.
 
-use crate::economics::incremental::{analyse, Analysis};
-use crate::economics::{appraise, fyrr, Discounting, Indicators, Stream};
+use crate::economics::incremental::{analyse_with, Analysis};
+use crate::economics::{appraise, appraise_with, fyrr, Discounting, Indicators, Stream};
 use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::input::network::Section;
 use crate::input::Run;
@@ -120,8 +120,25 @@ pub fn capital_ratios(npv: f64, capital: f64) -> (Option<f64>, Option<f64>) {
     }
 }
 
+/// Which strategies' IRRs an appraisal looks for: the root search is most of its arithmetic.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum IrrScope {
+    /// Every strategy's and every incremental step's.
+    Every,
+    /// The preferred strategy's only (what a summary shows).
+    Preferred,
+    /// None (`--no-irr`).
+    Skipped,
+}
+
 /// Appraise every strategy of one section.
-pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) -> SectionResult {
+pub fn section(
+    run: &Run,
+    e: &Enumerator<'_>,
+    sec: &Section,
+    keep_traces: bool,
+    irr: IrrScope,
+) -> SectionResult {
     let s = &run.scenario;
     let d = &s.discounting;
     let y0 = s.base_year;
@@ -161,7 +178,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
             // The base against itself (flows exactly zero); the others' indicators come from the
             // incremental analysis below, which appraises every alternative once.
             indicators: if st.is_base() {
-                appraise(&flows, d)
+                appraise_with(&flows, d, irr != IrrScope::Skipped)
             } else {
                 appraise(&Stream::default(), d)
             },
@@ -179,7 +196,7 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         }
         owns.push(own);
     }
-    let incremental = analyse(&alternatives, d);
+    let incremental = analyse_with(&alternatives, d, irr == IrrScope::Every);
     let position: HashMap<&str, usize> = partial
         .iter()
         .enumerate()
@@ -204,6 +221,14 @@ pub fn section(run: &Run, e: &Enumerator<'_>, sec: &Section, keep_traces: bool) 
         .winner
         .clone()
         .unwrap_or_else(|| crate::enumerate::BASE.to_owned());
+    if irr == IrrScope::Preferred {
+        if let (Some(r), Some((_, stream))) = (
+            partial.iter_mut().find(|r| r.strategy == best),
+            alternatives.iter().find(|a| a.0 == best),
+        ) {
+            r.indicators.irr = crate::economics::irr(&stream.net());
+        }
+    }
     let options: Vec<(Option<i32>, f64)> = partial
         .iter()
         .map(|r| (r.widening_year, r.indicators.npv))
@@ -344,11 +369,16 @@ fn widening_timing(
 }
 
 /// Appraise `sections` of the run in parallel (one task per section); results in input order.
-pub fn network(run: &Run, sections: &[&Section], keep_traces: bool) -> Vec<SectionResult> {
+pub fn network(
+    run: &Run,
+    sections: &[&Section],
+    keep_traces: bool,
+    irr: IrrScope,
+) -> Vec<SectionResult> {
     let e = Enumerator::for_run(run);
     sections
         .par_iter()
-        .map(|sec| section(run, &e, sec, keep_traces))
+        .map(|sec| section(run, &e, sec, keep_traces, irr))
         .collect()
 }
 

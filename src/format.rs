@@ -52,6 +52,7 @@ pub fn irr_text(irr: &Irr) -> String {
                 .join(", ")
         ),
         Irr::None => "none".to_owned(),
+        Irr::Skipped => "not computed".to_owned(),
     }
 }
 

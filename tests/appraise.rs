@@ -342,3 +342,42 @@ fn results_do_not_depend_on_the_thread_count() {
         assert_eq!(one, wd.read(&format!("three/{file}")), "{file}");
     }
 }
+
+#[test]
+fn no_irr_skips_only_the_rates() {
+    let wd = Workdir::new();
+    wd.run(&["appraise", "--out", "all", "-q"]).expect_code(0);
+    wd.run(&["appraise", "--out", "fast", "-q", "--no-irr"])
+        .expect_code(0);
+    for file in ["appraisal.csv", "incremental.csv"] {
+        let (all, fast) = (
+            rows(&wd.read(&format!("all/{file}"))),
+            rows(&wd.read(&format!("fast/{file}"))),
+        );
+        assert_eq!(all.len(), fast.len(), "{file}");
+        let (irr, status) = if file == "appraisal.csv" {
+            ("irr", "irr_status")
+        } else {
+            ("d_irr", "d_irr_status")
+        };
+        assert!(all.iter().any(|r| r[status] == "unique"), "{file}");
+        for (a, f) in all.iter().zip(&fast) {
+            assert_eq!(f[status], "skipped", "{file}");
+            assert_eq!(f[irr], "", "{file}");
+            // Everything else is the same, to the byte.
+            for (k, v) in a {
+                if k != irr && k != status {
+                    assert_eq!(&f[k], v, "{file} {k}");
+                }
+            }
+        }
+    }
+    // Without --out only the preferred strategies' IRRs are looked for: the summary is the
+    // same as with every IRR.
+    let plain = wd.run(&["appraise"]);
+    plain.expect_code(0);
+    let with_out = wd.run(&["appraise", "--out", "again"]);
+    with_out.expect_code(0);
+    assert!(plain.stdout.contains("Widening timing"));
+    assert_eq!(plain.stdout, with_out.stdout);
+}

@@ -32,6 +32,12 @@ pub struct Args {
     #[arg(long, value_name = "ID", num_args = 1..)]
     pub section: Vec<String>,
 
+    /// Do not look for IRRs (most of the arithmetic of a large appraisal): the irr columns are
+    /// left empty with the status `skipped`. Without --out only the preferred strategies' IRRs
+    /// are looked for, as only they are printed.
+    #[arg(long)]
+    pub no_irr: bool,
+
     #[command(flatten)]
     pub out: OutArg,
 }
@@ -68,12 +74,19 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         None => None,
     };
+    let scope = if args.no_irr {
+        appraise::IrrScope::Skipped
+    } else if args.out.out.is_some() {
+        appraise::IrrScope::Every
+    } else {
+        appraise::IrrScope::Preferred
+    };
     let mut summary = Summary::default();
     let bar = ctx
         .progress
         .bar("appraise", picked.len() as u64, "sections");
     for chunk in picked.chunks(CHUNK) {
-        let results = appraise::network(&run, chunk, keep);
+        let results = appraise::network(&run, chunk, keep, scope);
         bar.inc(chunk.len() as u64);
         if let Some(set) = &mut files {
             set.write(0, appraisal_rows(&results).as_bytes())?;

@@ -253,7 +253,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
 fn workbook(run: &Run, plan: &crate::plan::Plan) -> Result<Vec<u8>> {
     let appraisal = {
         let secs: Vec<_> = run.network.sections.iter().collect();
-        crate::appraise::network(run, &secs, false)
+        crate::appraise::network(run, &secs, false, crate::appraise::IrrScope::Every)
     };
     crate::xlsx::plan_bytes(run, plan, &appraisal)
 }

@@ -8,7 +8,7 @@
 //! equivalently incremental BCR > 1 or incremental IRR above the discount rate for a conventional
 //! increment. The last defender standing is the alternative of highest NPV.
 
-use super::{appraise, bcr, irr, Discounting, Indicators, Irr, Stream};
+use super::{appraise_with, bcr, irr, Discounting, Indicators, Irr, Stream};
 
 /// One alternative's own indicators (each against doing nothing).
 #[derive(Debug, Clone, PartialEq)]
@@ -49,13 +49,22 @@ const TIE: f64 = 1e-9;
 ///
 /// Ties in PV of cost are ordered by name, so the chain is the same on every run.
 pub fn analyse(alternatives: &[(String, Stream)], d: &Discounting) -> Analysis {
+    analyse_with(alternatives, d, true)
+}
+
+/// [`analyse`], with IRRs (each alternative's and each step's) looked for only when `with_irr`.
+pub fn analyse_with(
+    alternatives: &[(String, Stream)],
+    d: &Discounting,
+    with_irr: bool,
+) -> Analysis {
     let mut ranked: Vec<(Ranked, &Stream)> = alternatives
         .iter()
         .map(|(n, s)| {
             (
                 Ranked {
                     name: n.clone(),
-                    indicators: appraise(s, d),
+                    indicators: appraise_with(s, d, with_irr),
                 },
                 s,
             )
@@ -98,7 +107,11 @@ pub fn analyse(alternatives: &[(String, Stream)], d: &Discounting) -> Analysis {
             d_pv_costs: dc,
             d_npv,
             d_bcr: bcr(db, dc),
-            d_irr: irr(&inc.net()),
+            d_irr: if with_irr {
+                irr(&inc.net())
+            } else {
+                Irr::Skipped
+            },
             accepted,
         });
         if accepted {

@@ -31,6 +31,8 @@ pub enum Irr {
     Multiple(Vec<f64>),
     /// No rate in (−99 %, 1000 %] makes NPV zero.
     None,
+    /// Not looked for (`appraise --no-irr`, or a row no output shows).
+    Skipped,
 }
 
 impl Irr {
@@ -40,6 +42,7 @@ impl Irr {
             Irr::Unique(_) => "unique",
             Irr::Multiple(_) => "multiple",
             Irr::None => "none",
+            Irr::Skipped => "skipped",
         }
     }
 
@@ -48,7 +51,7 @@ impl Irr {
         match self {
             Irr::Unique(r) => vec![*r],
             Irr::Multiple(v) => v.clone(),
-            Irr::None => vec![],
+            Irr::None | Irr::Skipped => vec![],
         }
     }
 

@@ -301,6 +301,12 @@ pub struct Indicators {
 
 /// Appraise a stream under a discounting rule.
 pub fn appraise(stream: &Stream, d: &Discounting) -> Indicators {
+    appraise_with(stream, d, true)
+}
+
+/// [`appraise`], with the IRR looked for only when `with_irr` (else [`Irr::Skipped`]): the
+/// root search is most of an appraisal's arithmetic.
+pub fn appraise_with(stream: &Stream, d: &Discounting, with_irr: bool) -> Indicators {
     let pv_benefits = d.pv(stream.first_year, &stream.benefits);
     let pv_costs = d.pv(stream.first_year, &stream.costs);
     let net = stream.net();
@@ -309,7 +315,7 @@ pub fn appraise(stream: &Stream, d: &Discounting) -> Indicators {
         pv_costs,
         npv: pv_benefits - pv_costs,
         bcr: bcr(pv_benefits, pv_costs),
-        irr: irr(&net),
+        irr: if with_irr { irr(&net) } else { Irr::Skipped },
         mirr: mirr(&net, d.rate(), d.rate()),
         fyrr: fyrr(&net),
     }

@@ -137,7 +137,7 @@ fn user_costs_rise_with_roughness_and_with_congestion() {
 fn the_base_strategy_against_itself_is_exactly_zero() {
     let run = demo();
     let picked: Vec<&Section> = run.network.sections.iter().take(6).collect();
-    for r in appraise::network(&run, &picked, false) {
+    for r in appraise::network(&run, &picked, false, appraise::IrrScope::Every) {
         let b = r.get("base").unwrap();
         assert!(
             b.indicators.npv.abs() <= 0.0,
@@ -164,7 +164,7 @@ fn the_base_strategy_against_itself_is_exactly_zero() {
 
 fn widening(run: &Run, sec: &Section) -> appraise::WideningTiming {
     let e = Enumerator::for_run(run);
-    appraise::section(run, &e, sec, false)
+    appraise::section(run, &e, sec, false, appraise::IrrScope::Every)
         .widening
         .expect("widening strategies")
 }
