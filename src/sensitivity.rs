@@ -603,7 +603,7 @@ mod tests {
         let v = value_of(run, i, x);
         let e = Enumerator::for_run(&v.run);
         let sec = v.section(&run.network.sections[g]);
-        crate::appraise::section(&v.run, &e, &sec, false)
+        crate::appraise::section(&v.run, &e, &sec, false, crate::appraise::IrrScope::Every)
             .strategies
             .into_iter()
             .map(|s| (s.strategy, s.indicators.npv))
