@@ -8,13 +8,13 @@
 //! Run with `cargo bench --bench risk [-- SIZES]`, SIZES a comma-separated list of synthetic
 //! network sizes (default `10000`); the demo is always measured. Best of three rounds.
 
+use pavestrat::analysis::held::HeldPlan;
+use pavestrat::analysis::risk::simulate;
 use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
-use pavestrat::held::HeldPlan;
 use pavestrat::input::{self, network, scenario, Run};
 use pavestrat::plan::{candidates, Settings};
 use pavestrat::progress::Progress;
-use pavestrat::risk::simulate;
 use std::path::Path;
 use std::time::Instant;
 

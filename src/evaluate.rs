@@ -211,7 +211,7 @@ mod tests {
         ];
         let mut checked = 0;
         for values in cases {
-            let v = crate::vary::apply(&run, values);
+            let v = crate::analysis::vary::apply(&run, values);
             let factor = |name: &str| {
                 values
                     .iter()

@@ -5,8 +5,9 @@
 //! The library follows the data one way: [`input`] reads and validates every file into one
 //! resolved [`input::Run`]; [`enumerate`] expands the strategy templates per section;
 //! [`simulate`] plays each strategy year by year; [`appraise`] weighs each against the base with
-//! the arithmetic of [`economics`]; [`select`] chooses under budgets; [`cli`] holds one module per
-//! subcommand. The binary only calls [`cli::main`].
+//! the arithmetic of [`economics`]; [`select`] chooses under budgets. The command line (one
+//! module per subcommand, its arguments, terminal output and progress bars) is the binary's own:
+//! the library takes no arguments and draws nothing.
 //!
 //! All results are planning-level estimates: see [`CAUTION`].
 
@@ -31,35 +32,26 @@ macro_rules! err_text {
     }};
 }
 
+pub mod analysis;
 pub mod appraise;
 pub mod calibrate;
-pub mod cli;
+pub mod debug;
 pub mod demo;
 pub mod diag;
-pub mod distribution;
 pub mod economics;
 pub mod enumerate;
 pub mod error;
 pub mod evaluate;
-pub mod format;
-pub mod frontier;
-pub mod held;
 pub mod input;
 pub mod io;
 pub mod money;
-pub mod outputs;
+pub mod output;
 pub mod plan;
 pub mod progress;
-pub mod report;
 pub mod resources;
-pub mod risk;
 pub mod select;
-pub mod sensitivity;
 pub mod simulate;
-pub mod stats;
 pub mod text;
-pub mod vary;
-pub mod xlsx;
 
 /// The caution printed by `--help`, by every report and in the README.
 pub const CAUTION: &str = "Planning-level estimates only. Pavement designs, safety decisions and \

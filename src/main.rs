@@ -1,5 +1,10 @@
-//! The `pavestrat` binary: everything lives in the library; see `pavestrat::cli`.
+//! The `pavestrat` binary: the command line, one module per subcommand (`cli`); the work is the
+//! library's (`pavestrat`).
+
+#![deny(clippy::float_cmp)]
+
+mod cli;
 
 fn main() -> std::process::ExitCode {
-    std::process::ExitCode::from(pavestrat::cli::main(std::env::args_os()))
+    std::process::ExitCode::from(cli::main(std::env::args_os()))
 }

@@ -1,138 +1,103 @@
-//! Progress of long stages (simulation, selection, frontier levels, risk draws) on the terminal.
-//!
-//! A [`Progress`] draws a bar with its rate and time left on stderr only when stderr is a
-//! terminal and the run is not `--quiet`; otherwise every call is a no-op, so library code can
-//! report progress unconditionally and pipes, logs and tests see nothing.
+//! Progress of long stages (simulation, selection, frontier levels, risk draws), as the library
+//! reports it: a [`Progress`] counts units done into whatever [`Meter`] the caller gave it (the
+//! command line draws a bar on a terminal), or into nothing. Library code reports progress
+//! unconditionally; it never draws or prints.
 
-use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
-use std::io::IsTerminal;
-use std::time::Duration;
+use std::sync::Arc;
 
-/// Whether bars may be drawn: set once by the command line.
-#[derive(Debug, Clone, Copy, Default)]
-pub struct Display {
-    pub enabled: bool,
+/// Where a stage's progress goes.
+pub trait Meter: Send + Sync {
+    /// `n` more units done.
+    fn inc(&self, n: u64);
+    /// Set the position (for clocks: tenths of a second).
+    fn set(&self, pos: u64);
+    /// The stage is over.
+    fn finish(&self);
 }
 
-impl Display {
-    /// Bars are drawn when not quiet and stderr is a terminal.
-    pub fn for_terminal(quiet: bool) -> Display {
-        Display {
-            enabled: !quiet && std::io::stderr().is_terminal(),
-        }
-    }
-
-    /// No bars at all.
-    pub fn hidden() -> Display {
-        Display { enabled: false }
-    }
-
-    /// A bar over `len` units of `unit` (e.g. "sections"), labelled `stage`.
-    pub fn bar(&self, stage: &str, len: u64, unit: &str) -> Progress {
-        if !self.enabled {
-            return Progress { bar: None };
-        }
-        let bar = ProgressBar::with_draw_target(Some(len), ProgressDrawTarget::stderr());
-        let template = format!(
-            "{{prefix:>12}} [{{bar:32}}] {{human_pos}}/{{human_len}} {unit} · {{per_sec}} · {{eta}} left"
-        );
-        if let Ok(style) = ProgressStyle::with_template(&template) {
-            bar.set_style(style.progress_chars("=> "));
-        }
-        bar.set_prefix(stage.to_owned());
-        bar.enable_steady_tick(Duration::from_millis(200));
-        Progress { bar: Some(bar) }
-    }
-
-    /// A bar that fills with time towards a limit (for searches that stop at a time limit).
-    pub fn clock(&self, stage: &str, seconds: f64) -> Progress {
-        if !self.enabled {
-            return Progress { bar: None };
-        }
-        let len = (seconds * 10.0).ceil().max(1.0) as u64;
-        let bar = ProgressBar::with_draw_target(Some(len), ProgressDrawTarget::stderr());
-        if let Ok(style) =
-            ProgressStyle::with_template("{prefix:>12} [{bar:32}] {elapsed} of the time limit")
-        {
-            bar.set_style(style.progress_chars("=> "));
-        }
-        bar.set_prefix(stage.to_owned());
-        Progress { bar: Some(bar) }
-    }
-}
-
-/// One stage's bar (or nothing). Cheap to clone and safe to share between threads.
-#[derive(Debug, Clone, Default)]
+/// One stage's progress (or nothing). Cheap to clone and safe to share between threads.
+#[derive(Clone, Default)]
 pub struct Progress {
-    bar: Option<ProgressBar>,
+    meter: Option<Arc<dyn Meter>>,
+}
+
+impl std::fmt::Debug for Progress {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Progress")
+            .field("shown", &self.is_shown())
+            .finish()
+    }
 }
 
 impl Progress {
-    /// A progress that shows nothing.
+    /// A progress that goes nowhere.
     pub fn none() -> Progress {
-        Progress { bar: None }
+        Progress { meter: None }
+    }
+
+    /// A progress counted into `meter`.
+    pub fn to(meter: impl Meter + 'static) -> Progress {
+        Progress {
+            meter: Some(Arc::new(meter)),
+        }
     }
 
     /// Count `n` more units done.
     pub fn inc(&self, n: u64) {
-        if let Some(b) = &self.bar {
-            b.inc(n);
+        if let Some(m) = &self.meter {
+            m.inc(n);
         }
     }
 
     /// Set the position (for clocks: tenths of a second).
     pub fn set(&self, pos: u64) {
-        if let Some(b) = &self.bar {
-            b.set_position(pos);
+        if let Some(m) = &self.meter {
+            m.set(pos);
         }
     }
 
-    /// Whether anything is drawn.
+    /// Whether it goes anywhere.
     pub fn is_shown(&self) -> bool {
-        self.bar.is_some()
+        self.meter.is_some()
     }
 
-    /// Remove the bar from the terminal.
+    /// The stage is over.
     pub fn finish(&self) {
-        if let Some(b) = &self.bar {
-            b.finish_and_clear();
+        if let Some(m) = &self.meter {
+            m.finish();
         }
     }
-}
-
-/// Run `f` while a thread moves a clock bar (see [`Display::clock`]) with the time elapsed.
-pub fn ticking<T>(clock: &Progress, f: impl FnOnce() -> T) -> T {
-    if !clock.is_shown() {
-        return f();
-    }
-    let done = std::sync::atomic::AtomicBool::new(false);
-    let start = std::time::Instant::now();
-    let out = std::thread::scope(|s| {
-        s.spawn(|| {
-            while !done.load(std::sync::atomic::Ordering::Relaxed) {
-                clock.set((start.elapsed().as_secs_f64() * 10.0) as u64);
-                std::thread::sleep(Duration::from_millis(100));
-            }
-        });
-        let out = f();
-        done.store(true, std::sync::atomic::Ordering::Relaxed);
-        out
-    });
-    clock.finish();
-    out
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use std::sync::atomic::{AtomicU64, Ordering};
+
+    struct Count(Arc<AtomicU64>);
+
+    impl Meter for Count {
+        fn inc(&self, n: u64) {
+            self.0.fetch_add(n, Ordering::Relaxed);
+        }
+        fn set(&self, pos: u64) {
+            self.0.store(pos, Ordering::Relaxed);
+        }
+        fn finish(&self) {}
+    }
 
     #[test]
-    fn hidden_progress_draws_nothing_and_accepts_every_call() {
-        let p = Display::hidden().bar("simulate", 10, "sections");
-        assert!(!p.is_shown());
+    fn progress_counts_into_its_meter_or_nowhere() {
+        let n = Arc::new(AtomicU64::new(0));
+        let p = Progress::to(Count(n.clone()));
         p.inc(3);
-        p.set(5);
-        p.finish();
-        assert!(!Display::hidden().clock("select", 2.0).is_shown());
+        p.clone().inc(4);
+        assert_eq!(n.load(Ordering::Relaxed), 7);
+        p.set(2);
+        assert_eq!(n.load(Ordering::Relaxed), 2);
+        let none = Progress::none();
+        none.inc(5);
+        none.finish();
+        assert!(p.is_shown() && !none.is_shown());
     }
 }

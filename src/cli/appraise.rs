@@ -8,16 +8,16 @@
 //! picked with `--section`, `yearly.csv` (each strategy's condition and costs year by year).
 
 use super::{load_scenario, Context, OutArg};
-use crate::appraise::{self, SectionResult};
-use crate::diag::did_you_mean;
-use crate::error::{Error, Result};
-use crate::format::{irr_text, pct, Amount, Field, Fixed, Rates};
-use crate::input::models::ConditionParams;
-use crate::input::network::Section;
-use crate::input::Run;
-use crate::io::{print_stdout, StreamSet};
-use crate::money::grouped;
-use crate::simulate::condition::{classify, ConditionClass};
+use pavestrat::appraise::{self, SectionResult};
+use pavestrat::diag::did_you_mean;
+use pavestrat::error::{Error, Result};
+use pavestrat::input::models::ConditionParams;
+use pavestrat::input::network::Section;
+use pavestrat::input::Run;
+use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::money::grouped;
+use pavestrat::output::format::{irr_text, pct, Amount, Field, Fixed, Rates};
+use pavestrat::simulate::condition::{classify, ConditionClass};
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
@@ -114,7 +114,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
 fn pick_sections<'r>(
     run: &'r Run,
     ids: &[String],
-) -> Result<Vec<&'r crate::input::network::Section>> {
+) -> Result<Vec<&'r pavestrat::input::network::Section>> {
     let all = &run.network.sections;
     if ids.is_empty() {
         return Ok(all.iter().collect());
@@ -126,7 +126,7 @@ fn pick_sections<'r>(
             Some(s) => {
                 if !out
                     .iter()
-                    .any(|o: &&crate::input::network::Section| o.id == s.id)
+                    .any(|o: &&pavestrat::input::network::Section| o.id == s.id)
                 {
                     out.push(s);
                 }
@@ -202,7 +202,7 @@ fn incremental_rows(results: &[SectionResult]) -> String {
                 Field(&r.section),
                 k + 1,
                 Field(&st.challenger),
-                Field(st.defender.as_deref().unwrap_or(crate::enumerate::BASE)),
+                Field(st.defender.as_deref().unwrap_or(pavestrat::enumerate::BASE)),
                 Amount(st.d_pv_benefits),
                 Amount(st.d_pv_costs),
                 Amount(st.d_npv),
@@ -302,7 +302,7 @@ impl Summary {
         for (sec, r) in sections.iter().zip(results) {
             self.sections += 1;
             self.strategies += r.strategies.len();
-            let (Some(b), Some(base)) = (r.get(&r.best), r.get(crate::enumerate::BASE)) else {
+            let (Some(b), Some(base)) = (r.get(&r.best), r.get(pavestrat::enumerate::BASE)) else {
                 continue;
             };
             self.total_npv += b.indicators.npv;
@@ -428,7 +428,7 @@ impl Summary {
             }
         }
         s.push('\n');
-        s.push_str(crate::CAUTION);
+        s.push_str(pavestrat::CAUTION);
         s.push('\n');
         s
     }

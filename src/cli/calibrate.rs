@@ -1,5 +1,5 @@
 //! `pavestrat calibrate --scenario FILE --surveys FILE [--out DIR] [--write-scenario FILE]`:
-//! fit the roughness families to an agency's condition surveys (see [`crate::calibrate`]).
+//! fit the roughness families to an agency's condition surveys (see [`pavestrat::calibrate`]).
 //!
 //! Writes `calibration.toml` (the fitted `[condition.family.NAME]` tables, ready to paste),
 //! `calibration.csv` (each interval: observed rise, and the rise the scenario's and the fitted
@@ -8,11 +8,11 @@
 //! paths made absolute, so that it still finds its files wherever it is written.
 
 use super::Context;
-use crate::calibrate::{self, Fit, Interval};
-use crate::diag::{Diagnostics, Place};
-use crate::error::{Error, Result};
-use crate::format::Field;
-use crate::io::OutputSet;
+use pavestrat::calibrate::{self, Fit, Interval};
+use pavestrat::diag::{Diagnostics, Place};
+use pavestrat::error::{Error, Result};
+use pavestrat::io::OutputSet;
+use pavestrat::output::format::Field;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
@@ -38,14 +38,14 @@ pub struct Args {
 
 /// Run `calibrate`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
-    let (run, diags) = crate::input::load(&crate::input::Disk, &args.scenario);
+    let (run, diags) = pavestrat::input::load(&pavestrat::input::Disk, &args.scenario);
     let Some(run) = run else {
         return Err(Error::Input(diags));
     };
     ctx.notes(&diags);
     let mut d = Diagnostics::new();
     let Some((label, text)) =
-        crate::input::read_text(&crate::input::Disk, &args.surveys, None, &mut d)
+        pavestrat::input::read_text(&pavestrat::input::Disk, &args.surveys, None, &mut d)
     else {
         return Err(Error::Input(d));
     };
@@ -120,7 +120,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             ctx.say(&format!("wrote {}", p.display()));
         }
     } else {
-        crate::io::print_stdout(&toml)?;
+        pavestrat::io::print_stdout(&toml)?;
     }
     if let Some(path) = &args.write_scenario {
         let original = std::fs::read_to_string(&args.scenario).map_err(|e| {
@@ -142,7 +142,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             strategies.join(", ")
         );
         let text = calibrate::scenario_with(&original, &fits, &label, Some(&files));
-        crate::io::write_atomically(path, text.as_bytes())?;
+        pavestrat::io::write_atomically(path, text.as_bytes())?;
         ctx.say(&format!("wrote {}", path.display()));
     }
     ctx.say(summary.trim_end());
@@ -167,9 +167,9 @@ fn model_of<'f>(fits: &'f [Fit], family: &str) -> Option<&'f Fit> {
 }
 
 fn scenario_model(
-    run: &crate::input::Run,
+    run: &pavestrat::input::Run,
     family: &str,
-) -> Option<crate::input::models::FamilyModel> {
+) -> Option<pavestrat::input::models::FamilyModel> {
     run.scenario
         .models
         .condition
@@ -178,7 +178,7 @@ fn scenario_model(
 }
 
 /// `calibration.csv`: one row per interval of a fitted family.
-fn csv(run: &crate::input::Run, intervals: &[Interval], fits: &[Fit]) -> String {
+fn csv(run: &pavestrat::input::Run, intervals: &[Interval], fits: &[Fit]) -> String {
     let mut s = String::from(
         "section_id,family,year_from,year_to,iri_from,iri_to,observed_rise,predicted_scenario,predicted_fitted\n",
     );
@@ -212,7 +212,7 @@ fn esc(s: &str) -> String {
 
 /// `calibration.html`: per family, observed against predicted rise (one point per interval,
 /// the line of perfect prediction dashed), with the scenario's and the fitted coefficients.
-fn page(run: &crate::input::Run, intervals: &[Interval], fits: &[Fit], source: &str) -> String {
+fn page(run: &pavestrat::input::Run, intervals: &[Interval], fits: &[Fit], source: &str) -> String {
     let mut s = format!(
         "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>Calibration — {}</title>\
 <style>body{{font-family:sans-serif;margin:2em;max-width:60em}}svg{{background:#fff}}td,th{{padding:2px 8px;text-align:right}}</style></head><body>\
@@ -286,7 +286,7 @@ Points on the dashed line are predicted exactly.</p>",
     let _ = writeln!(
         s,
         "<p><small>{}</small></p></body></html>",
-        esc(crate::CAUTION)
+        esc(pavestrat::CAUTION)
     );
     s
 }

@@ -7,20 +7,20 @@
 //! `--budget` picks the set of greatest NPV whose PV of costs fits the budget, beside what
 //! ranking by NPV or by NPV per unit of cost would pick.
 //!
-//! Discounting follows [`crate::economics`]: base-year flows are not discounted (numpy-financial's
+//! Discounting follows [`pavestrat::economics`]: base-year flows are not discounted (numpy-financial's
 //! `npv`), so a spreadsheet's `NPV()` corresponds to `--base-year` one year before the first flow.
 
 use super::{parse_rate, Context, OutArg};
-use crate::diag::Diagnostics;
-use crate::economics::budget::{best_set, greedy, Portfolio, Project, Ranking};
-use crate::economics::incremental::{analyse, Analysis};
-use crate::economics::{appraise, Discounting, Indicators, Irr, Timing};
-use crate::error::{Error, Result};
-use crate::format::{csv_field, irr_text, num, opt, pct, rates};
-use crate::input::cashflow::{parse, Flows, SINGLE};
-use crate::io::{print_stdout, OutputSet};
-use crate::money::{grouped, Money};
-use crate::select::SelectError;
+use pavestrat::diag::Diagnostics;
+use pavestrat::economics::budget::{best_set, greedy, Portfolio, Project, Ranking};
+use pavestrat::economics::incremental::{analyse, Analysis};
+use pavestrat::economics::{appraise, Discounting, Indicators, Irr, Timing};
+use pavestrat::error::{Error, Result};
+use pavestrat::input::cashflow::{parse, Flows, SINGLE};
+use pavestrat::io::{print_stdout, OutputSet};
+use pavestrat::money::{grouped, Money};
+use pavestrat::output::format::{csv_field, irr_text, num, opt, pct, rates};
+use pavestrat::select::SelectError;
 use serde_json::{json, Value};
 use std::path::Path;
 
@@ -87,8 +87,12 @@ struct BudgetResult {
 /// Run `cashflow`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
     let mut diags = Diagnostics::new();
-    let read =
-        crate::input::read_text(&crate::input::Disk, Path::new(&args.file), None, &mut diags);
+    let read = pavestrat::input::read_text(
+        &pavestrat::input::Disk,
+        Path::new(&args.file),
+        None,
+        &mut diags,
+    );
     let Some((label, text)) = read else {
         return Err(Error::Input(diags));
     };
@@ -146,11 +150,11 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
         .unwrap_or(0);
     let base_year = args.base_year.unwrap_or(first_year);
     if (i64::from(base_year) - i64::from(first_year)).abs()
-        > i64::from(crate::input::cashflow::MAX_SPAN)
+        > i64::from(pavestrat::input::cashflow::MAX_SPAN)
     {
         return Err(Error::Usage(format!(
             "--base-year {base_year} is more than {} years from the stream's first year {first_year}",
-            crate::input::cashflow::MAX_SPAN
+            pavestrat::input::cashflow::MAX_SPAN
         )));
     }
     let timing = if args.mid_year {
@@ -160,7 +164,7 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
     };
     let discounting = Discounting::new(args.rate, base_year, timing)
         .map_err(|e| Error::Usage(format!("--rate: {e}")))?;
-    let streams: Vec<(String, crate::economics::Stream)> =
+    let streams: Vec<(String, pavestrat::economics::Stream)> =
         flows.iter().map(|f| (f.name.clone(), f.stream())).collect();
     let incremental =
         (flows.len() > 1 && !args.independent).then(|| analyse(&streams, &discounting));
@@ -269,7 +273,7 @@ fn table(a: &Appraisal) -> String {
         }
         if let Some(inc) = &a.incremental {
             s.push_str("\nIncremental analysis (ascending PV of cost; each challenger against the last one accepted):\n");
-            let steps: Vec<(String, &crate::economics::incremental::Step)> = inc
+            let steps: Vec<(String, &pavestrat::economics::incremental::Step)> = inc
                 .steps
                 .iter()
                 .map(|st| {
@@ -349,7 +353,7 @@ fn table(a: &Appraisal) -> String {
         }
     }
     s.push('\n');
-    s.push_str(crate::CAUTION);
+    s.push_str(pavestrat::CAUTION);
     s.push('\n');
     s
 }
@@ -481,6 +485,6 @@ fn to_json(a: &Appraisal) -> Value {
             }),
         );
     }
-    top.insert("caution".into(), json!(crate::CAUTION));
+    top.insert("caution".into(), json!(pavestrat::CAUTION));
     Value::Object(top)
 }

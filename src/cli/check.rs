@@ -5,8 +5,8 @@
 //! was read, so a user can see the tool read their files as they meant.
 
 use super::{load_scenario, Context};
-use crate::error::{Error, Result};
-use crate::money::{grouped, Money};
+use pavestrat::error::{Error, Result};
+use pavestrat::money::{grouped, Money};
 use std::path::PathBuf;
 
 /// Arguments of `check`.
@@ -26,8 +26,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     // What `plan` would refuse beyond the readers: commitments no strategy can keep (only the
     // committed sections are simulated), and lines whose totals could pass the supported range.
     let mut diags = diags;
-    crate::plan::commitment_problems(&run, &mut diags);
-    crate::plan::spending_bound_problems(&run, &mut diags);
+    pavestrat::plan::commitment_problems(&run, &mut diags);
+    pavestrat::plan::spending_bound_problems(&run, &mut diags);
     if diags.has_errors() {
         return Err(Error::Input(diags));
     }
@@ -90,7 +90,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         run.catalogue.treatments.len(),
         run.catalogue.file
     ));
-    let e = crate::enumerate::Enumerator::for_run(&run);
+    let e = pavestrat::enumerate::Enumerator::for_run(&run);
     let strategies: usize = net.sections.iter().map(|x| e.strategies(x).len()).sum();
     out.push_str(&format!(
         "  templates   {}, at most {} strategies per section before feasibility rules (base included); {} strategies in all after them\n",
@@ -99,12 +99,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         strategies
     ));
     let steps = strategies as f64 * f64::from(s.analysis_years);
-    let (seconds, bytes) = crate::resources::plan_cost(strategies as f64, s.analysis_years);
+    let (seconds, bytes) = pavestrat::resources::plan_cost(strategies as f64, s.analysis_years);
     out.push_str(&format!(
         "  work        `plan` simulates {steps:.0} section-years of strategies: about {} on {} threads and {} at its peak (estimates from measured rates)\n",
-        crate::resources::duration(seconds),
+        pavestrat::resources::duration(seconds),
         rayon::current_num_threads(),
-        crate::resources::bytes(bytes)
+        pavestrat::resources::bytes(bytes)
     ));
     if s.budget_lines.is_empty() {
         out.push_str("  budgets     none (selection will be unconstrained)\n");
@@ -131,7 +131,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         ));
     }
     if !ctx.quiet {
-        crate::io::print_stdout(&out)?;
+        pavestrat::io::print_stdout(&out)?;
     }
     Ok(())
 }

@@ -8,11 +8,11 @@
 //! is one of the few the budgets split (the whole-plan search placed it), and the report says so.
 
 use super::Context;
-use crate::diag::did_you_mean;
-use crate::error::{Error, Result};
-use crate::io::print_stdout;
-use crate::money::grouped;
-use crate::outputs::Table;
+use pavestrat::diag::did_you_mean;
+use pavestrat::error::{Error, Result};
+use pavestrat::io::print_stdout;
+use pavestrat::money::grouped;
+use pavestrat::output::readback::Table;
 use std::collections::HashMap;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
@@ -30,7 +30,7 @@ pub struct Args {
 }
 
 fn read_table(dir: &Path, name: &str, keep: impl Fn(&csv::StringRecord) -> bool) -> Result<Table> {
-    crate::outputs::read(dir, name, "pavestrat plan", keep)
+    pavestrat::output::readback::read(dir, name, "pavestrat plan", keep)
 }
 
 struct Candidate {
@@ -43,8 +43,8 @@ struct Candidate {
 /// Run `explain`.
 pub fn run(args: Args, _ctx: Context) -> Result<()> {
     let dir = &args.from;
-    if let Some(m) = crate::io::verify(dir)? {
-        crate::io::check_plan_set(
+    if let Some(m) = pavestrat::io::verify(dir)? {
+        pavestrat::io::check_plan_set(
             dir,
             &m,
             &[
@@ -213,6 +213,6 @@ fn render(
             grouped(o.npv, 0)
         );
     }
-    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    let _ = writeln!(s, "\n{}", pavestrat::CAUTION);
     s
 }

@@ -1,17 +1,17 @@
 //! `pavestrat frontier`: the best objective at several budget levels, from one simulation (see
-//! [`crate::frontier`]). Prints the frontier; with `--out DIR` writes `frontier.csv` there (into
+//! [`pavestrat::analysis::frontier`]). Prints the frontier; with `--out DIR` writes `frontier.csv` there (into
 //! a plan's directory, `pavestrat report` then shows it).
 
 use super::plan::{parse_gap, parse_seconds};
 use super::{load_scenario, Context, OutArg};
-use crate::diag::did_you_mean;
-use crate::error::{Error, Result};
-use crate::frontier::{Lines, DEFAULT_LEVELS};
-use crate::input::plan::Objective;
-use crate::io::{print_stdout, StreamSet};
-use crate::money::grouped;
-use crate::plan::Settings;
-use crate::select::network::{Method, Options};
+use pavestrat::analysis::frontier::{Lines, DEFAULT_LEVELS};
+use pavestrat::diag::did_you_mean;
+use pavestrat::error::{Error, Result};
+use pavestrat::input::plan::Objective;
+use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::money::grouped;
+use pavestrat::plan::Settings;
+use pavestrat::select::network::{Method, Options};
 use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::time::Duration;
@@ -104,16 +104,17 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let bar = ctx
         .progress
         .bar("simulate", run.network.sections.len() as u64, "sections");
-    let mut c = crate::plan::candidates_with(&run, &settings, &bar)?;
+    let mut c = pavestrat::plan::candidates_with(&run, &settings, &bar)?;
     bar.finish();
     let bar = ctx
         .progress
         .bar("frontier", levels.len() as u64 + 1, "levels");
-    let points = crate::frontier::frontier(&run, &mut c, &levels, &lines, &options, &bar)?;
+    let points =
+        pavestrat::analysis::frontier::frontier(&run, &mut c, &levels, &lines, &options, &bar)?;
     bar.finish();
     if let Some(dir) = &args.out.out {
         let mut set = StreamSet::create(dir, "frontier", &["frontier.csv"])?;
-        set.write(0, crate::frontier::csv(&points).as_bytes())?;
+        set.write(0, pavestrat::analysis::frontier::csv(&points).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
@@ -167,7 +168,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let _ = writeln!(
             s,
             "\n* the level at which no scaled line can bind.\n\n{}",
-            crate::CAUTION
+            pavestrat::CAUTION
         );
         print_stdout(&s)?;
     }

@@ -6,9 +6,9 @@
 //! none.
 
 use super::Context;
-use crate::demo::{self, synth};
-use crate::error::{Error, Result};
-use crate::io::OutputSet;
+use pavestrat::demo::{self, synth};
+use pavestrat::error::{Error, Result};
+use pavestrat::io::OutputSet;
 use std::path::PathBuf;
 
 /// Arguments of `init`.

@@ -2,10 +2,11 @@
 //! exit codes.
 //!
 //! Conventions every command keeps: `--out DIR` writes its files into DIR (created if missing;
-//! all or nothing, see [`crate::io::OutputSet`]); `--quiet` leaves only errors on stderr (data a
+//! all or nothing, see [`pavestrat::io::OutputSet`]); `--quiet` leaves only errors on stderr (data a
 //! command was asked to print on stdout still prints); `-` reads standard input.
 
 pub mod appraise;
+pub mod bars;
 pub mod calibrate;
 pub mod cashflow;
 pub mod check;
@@ -18,8 +19,8 @@ pub mod risk;
 pub mod select;
 pub mod sensitivity;
 
-use crate::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use clap::{Parser, Subcommand};
+use pavestrat::error::{Error, Result, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK};
 use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 
@@ -102,33 +103,33 @@ pub struct Context {
     pub quiet: bool,
     pub verbose: bool,
     /// Progress bars: drawn only on a terminal, never when quiet.
-    pub progress: crate::progress::Display,
+    pub progress: crate::cli::bars::Display,
 }
 
 impl Context {
     /// Print the findings of an accepted input (its notes) on stderr unless quiet.
-    pub fn notes(&self, d: &crate::diag::Diagnostics) {
+    pub fn notes(&self, d: &pavestrat::diag::Diagnostics) {
         if !self.quiet {
-            let (items, hidden) = d.shown(crate::diag::PRINTED, false);
+            let (items, hidden) = d.shown(pavestrat::diag::PRINTED, false);
             for item in items {
-                crate::err_line!("{item}");
+                pavestrat::err_line!("{item}");
             }
             if hidden > 0 {
-                crate::err_line!("… and {hidden} more notes, not shown");
+                pavestrat::err_line!("… and {hidden} more notes, not shown");
             }
         }
     }
 
     /// The note on model coefficients still at a default (and with `--verbose`, the list),
     /// on stderr unless quiet.
-    pub fn defaults_note(&self, m: &crate::input::models::Models) {
+    pub fn defaults_note(&self, m: &pavestrat::input::models::Models) {
         if self.quiet {
             return;
         }
-        if let Some(n) = crate::input::provenance::note(m) {
-            crate::err_line!("{n}");
+        if let Some(n) = pavestrat::input::provenance::note(m) {
+            pavestrat::err_line!("{n}");
             if self.verbose {
-                crate::err_text!("{}", crate::input::provenance::listing(m));
+                pavestrat::err_text!("{}", pavestrat::input::provenance::listing(m));
             }
         }
     }
@@ -136,7 +137,7 @@ impl Context {
     /// Print a line on stderr unless quiet.
     pub fn say(&self, text: &str) {
         if !self.quiet {
-            crate::err_line!("{text}");
+            pavestrat::err_line!("{text}");
         }
     }
 }
@@ -159,10 +160,12 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
     let ctx = Context {
         quiet: cli.quiet,
         verbose: cli.verbose,
-        progress: crate::progress::Display::for_terminal(cli.quiet),
+        progress: crate::cli::bars::Display::for_terminal(cli.quiet),
     };
+    // The selection's inner stages on stderr, for developers (DEVELOPERS.md, Testing).
+    pavestrat::debug::enable(std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some());
     // A signal while files are being written removes (or finishes) the staged set first.
-    crate::io::set::install_signal_cleanup();
+    pavestrat::io::set::install_signal_cleanup();
     let result = std::panic::catch_unwind(|| run(cli.command, ctx));
     match result {
         Ok(Ok(())) => EXIT_OK,
@@ -171,7 +174,7 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
             e.exit_code()
         }
         Err(_) => {
-            crate::err_line!(
+            pavestrat::err_line!(
                 "internal fault: pavestrat stopped unexpectedly (see the message above); \
                  please report it with the input that caused it"
             );
@@ -183,19 +186,19 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
 fn print_error(e: &Error, ctx: Context) {
     match e {
         Error::Input(d) => {
-            let (items, hidden) = d.shown(crate::diag::PRINTED, ctx.quiet);
+            let (items, hidden) = d.shown(pavestrat::diag::PRINTED, ctx.quiet);
             for item in items {
-                crate::err_line!("{item}");
+                pavestrat::err_line!("{item}");
             }
             if hidden > 0 {
-                crate::err_line!(
+                pavestrat::err_line!(
                     "… and {hidden} more, not shown (the first {} by file and line are listed)",
-                    crate::diag::PRINTED
+                    pavestrat::diag::PRINTED
                 );
             }
-            crate::err_line!("{}", d.problem_line());
+            pavestrat::err_line!("{}", d.problem_line());
         }
-        other => crate::err_line!("error: {other}"),
+        other => pavestrat::err_line!("error: {other}"),
     }
 }
 
@@ -220,12 +223,15 @@ fn run(command: Command, ctx: Context) -> Result<()> {
 pub fn load_scenario(
     scenario: Option<&Path>,
     ctx: Context,
-) -> (Option<crate::input::Run>, crate::diag::Diagnostics) {
+) -> (Option<pavestrat::input::Run>, pavestrat::diag::Diagnostics) {
     match scenario {
-        Some(p) => crate::input::load(&crate::input::Disk, p),
+        Some(p) => pavestrat::input::load(&pavestrat::input::Disk, p),
         None => {
             ctx.say("note: no --scenario given; using the built-in demo (Vellmark district, invented data)");
-            crate::input::load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO))
+            pavestrat::input::load(
+                &pavestrat::demo::SOURCE,
+                Path::new(pavestrat::demo::SCENARIO),
+            )
         }
     }
 }

@@ -28,16 +28,16 @@
 //! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
 
 use super::{load_scenario, parse_rate, Context, OutArg};
-use crate::enumerate::Enumerator;
-use crate::error::{Error, Result};
-use crate::format::{Amount, Field};
-use crate::input::plan::Objective;
-use crate::input::scenario::Category;
-use crate::input::Run;
-use crate::io::{print_stdout, StreamSet};
-use crate::money::grouped;
-use crate::plan::{Candidates, Plan, PlannedWork, RowKind, Settings};
-use crate::select::network::{Method, Options};
+use pavestrat::enumerate::Enumerator;
+use pavestrat::error::{Error, Result};
+use pavestrat::input::plan::Objective;
+use pavestrat::input::scenario::Category;
+use pavestrat::input::Run;
+use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::money::grouped;
+use pavestrat::output::format::{Amount, Field};
+use pavestrat::plan::{Candidates, Plan, PlannedWork, RowKind, Settings};
+use pavestrat::select::network::{Method, Options};
 use rayon::prelude::*;
 use std::fmt::Write as _;
 use std::path::PathBuf;
@@ -154,38 +154,39 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         },
     };
     if args.xlsx.is_some() {
-        crate::xlsx::available()?;
+        pavestrat::output::xlsx::available()?;
     }
-    let (strategies, secs, bytes) = crate::plan::estimate(&run);
-    let allowed = crate::resources::memory_allowance(f64::INFINITY);
+    let (strategies, secs, bytes) = pavestrat::plan::estimate(&run);
+    let allowed = pavestrat::resources::memory_allowance(f64::INFINITY);
     if bytes > allowed {
         let n = run.network.sections.len() as f64;
         return Err(Error::Usage(format!(
             "this network ({} sections, about {:.0} strategies) would need about {} to plan, more than this machine can give ({}); expected at most about {:.0} sections here: split the network (by region, say) and plan the parts with their share of each budget",
             run.network.sections.len(),
             strategies,
-            crate::resources::bytes(bytes),
-            crate::resources::bytes(allowed),
+            pavestrat::resources::bytes(bytes),
+            pavestrat::resources::bytes(allowed),
             (n * allowed / bytes).floor()
         )));
     }
-    if secs > crate::resources::ANNOUNCE_SECONDS || bytes > crate::resources::ANNOUNCE_BYTES {
+    if secs > pavestrat::resources::ANNOUNCE_SECONDS || bytes > pavestrat::resources::ANNOUNCE_BYTES
+    {
         ctx.say(&format!(
             "note: about {strategies:.0} strategies to simulate: about {} and {} (estimated from the measured simulation speed), then the selection",
-            crate::resources::duration(secs),
-            crate::resources::bytes(bytes)
+            pavestrat::resources::duration(secs),
+            pavestrat::resources::bytes(bytes)
         ));
     }
     let bar = ctx
         .progress
         .bar("simulate", run.network.sections.len() as u64, "sections");
-    let candidates = crate::plan::candidates_with(&run, &settings, &bar)?;
+    let candidates = pavestrat::plan::candidates_with(&run, &settings, &bar)?;
     bar.finish();
     let built = started.elapsed();
     let selecting = Instant::now();
     let clock = ctx.progress.clock("select", args.time_limit);
-    let plan = crate::progress::ticking(&clock, || {
-        crate::plan::select(&run, candidates, &settings.select)
+    let plan = crate::cli::bars::ticking(&clock, || {
+        pavestrat::plan::select(&run, candidates, &settings.select)
     })?;
     let selection_seconds = selecting.elapsed().as_secs_f64();
     let facts = Facts {
@@ -205,7 +206,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut small = write_files(&run, &plan, &facts, &mut set, args.report)?;
         if args.report {
             let mut c = plan.candidates.clone();
-            let levels = crate::frontier::DEFAULT_LEVELS;
+            let levels = pavestrat::analysis::frontier::DEFAULT_LEVELS;
             let bar = ctx
                 .progress
                 .bar("frontier", levels.len() as u64 + 1, "levels");
@@ -213,19 +214,21 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
                 time_limit: Duration::from_secs_f64(args.time_limit.min(REPORT_FRONTIER_SECONDS)),
                 ..settings.select
             };
-            let points = crate::frontier::frontier(
+            let points = pavestrat::analysis::frontier::frontier(
                 &run,
                 &mut c,
                 &levels,
-                &crate::frontier::Lines::All,
+                &pavestrat::analysis::frontier::Lines::All,
                 &options,
                 &bar,
             )?;
             bar.finish();
-            let text = crate::frontier::csv(&points);
+            let text = pavestrat::analysis::frontier::csv(&points);
             set.write(FILES.len(), text.as_bytes())?;
             small.insert("frontier.csv".into(), text);
-            let html = crate::report::render(&crate::report::Files::Memory(&small))?;
+            let html = pavestrat::output::report::render(
+                &pavestrat::output::report::Files::Memory(&small),
+            )?;
             set.write(FILES.len() + 1, html.as_bytes())?;
         }
         // The workbook is part of the same all-or-nothing set: staged beside its target and
@@ -240,7 +243,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             ctx.say(&format!("wrote {}", file.display()));
         }
     } else if let Some(file) = &args.xlsx {
-        crate::io::write_atomically(file, &workbook(&run, &plan)?)?;
+        pavestrat::io::write_atomically(file, &workbook(&run, &plan)?)?;
         ctx.say(&format!("wrote {}", file.display()));
     }
     if args.out.out.is_none() || !ctx.quiet {
@@ -250,12 +253,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
 }
 
 /// The workbook of `--xlsx`: the plan and every section's appraisal.
-fn workbook(run: &Run, plan: &crate::plan::Plan) -> Result<Vec<u8>> {
+fn workbook(run: &Run, plan: &pavestrat::plan::Plan) -> Result<Vec<u8>> {
     let appraisal = {
         let secs: Vec<_> = run.network.sections.iter().collect();
-        crate::appraise::network(run, &secs, false, crate::appraise::IrrScope::Every)
+        pavestrat::appraise::network(run, &secs, false, pavestrat::appraise::IrrScope::Every)
     };
-    crate::xlsx::plan_bytes(run, plan, &appraisal)
+    pavestrat::output::xlsx::plan_bytes(run, plan, &appraisal)
 }
 
 /// Facts about a run besides the plan.
@@ -466,7 +469,7 @@ fn write_files(
                     .iter()
                     .filter(|r| matches!(r.kind, RowKind::Target(_)))
                     .count();
-                let length = crate::plan::target_length(run, t);
+                let length = pavestrat::plan::target_length(run, t);
                 let _ = writeln!(
                     tu,
                     "{},{},{},{},{:.6},{},{},{}",
@@ -486,7 +489,7 @@ fn write_files(
     set.write(3, tu.as_bytes())?;
     let summary = summary_json(run, p, facts, set.run_id());
     set.write(5, summary.as_bytes())?;
-    let condition = condition_csv(&crate::plan::condition_series(run, c, plan));
+    let condition = condition_csv(&pavestrat::plan::condition_series(run, c, plan));
     set.write(6, condition.as_bytes())?;
     let widening = widening_csv(run, p);
     set.write(7, widening.as_bytes())?;
@@ -519,9 +522,9 @@ fn limits_csv(c: &Candidates) -> String {
 }
 
 /// `condition.csv` from the three cases' series.
-pub fn condition_csv(cs: &crate::plan::ConditionSeries) -> String {
+pub fn condition_csv(cs: &pavestrat::plan::ConditionSeries) -> String {
     let mut s = String::from("year,case,mean_iri,good_share,fair_share,poor_share\n");
-    for (case, name) in crate::plan::CASES.iter().enumerate() {
+    for (case, name) in pavestrat::plan::CASES.iter().enumerate() {
         for (y, iri) in cs.mean_iri[case].iter().enumerate() {
             let [g, f, p] = cs.shares[case][y];
             let _ = writeln!(
@@ -550,7 +553,8 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
             if best.is_empty() {
                 return String::new();
             }
-            let (by_fyrr, by_npv) = crate::appraise::timing_rules(best, &run.scenario.discounting);
+            let (by_fyrr, by_npv) =
+                pavestrat::appraise::timing_rules(best, &run.scenario.discounting);
             let planned = e
                 .strategy(c.strategy[c.chosen(&p.outcome.plan, g)])
                 .and_then(|chosen| chosen.widening_year(cat))
@@ -564,7 +568,7 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
                     wy.year,
                     Field(&e.name(wy.strategy)),
                     Amount(wy.npv),
-                    crate::format::Fixed(wy.fyrr, 6),
+                    pavestrat::output::format::Fixed(wy.fyrr, 6),
                     by_fyrr == Some(wy.year),
                     by_npv == Some(wy.year),
                     planned == Some(wy.year)
@@ -608,7 +612,8 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         .filter(|w| run.catalogue.treatments[w.treatment].category != Category::Routine)
         .map(|w| w.cost * d.factor(run.scenario.base_year + w.year as i32))
         .sum();
-    let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.plan.npv, pv_capital);
+    let (npv_per_capital, bcr_capital) =
+        pavestrat::appraise::capital_ratios(t.plan.npv, pv_capital);
     let v = serde_json::json!({
         "run_id": run_id,
         "objective": c.objective_of(o.value),
@@ -621,7 +626,7 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         "seconds": f.seconds,
         "objective_kind": c.objective.name(),
         "requested_gap": f.requested_gap,
-        "time_limit_reached": o.status == crate::select::network::Status::TimeLimit,
+        "time_limit_reached": o.status == pavestrat::select::network::Status::TimeLimit,
         "selection_seconds": f.selection_seconds,
         "candidate_seconds": f.candidate_seconds,
         "strategies_enumerated": c.enumerated.iter().map(|&x| x as u64).sum::<u64>(),
@@ -637,11 +642,11 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         "binding": binding,
         "money": run.scenario.money_label,
         "assumptions": assumptions(run),
-        "unverified_coefficients": crate::input::provenance::unverified(&run.scenario.models)
+        "unverified_coefficients": pavestrat::input::provenance::unverified(&run.scenario.models)
             .iter()
             .map(|u| serde_json::json!({ "key": u.key, "value": u.value, "standing": u.standing.name() }))
             .collect::<Vec<_>>(),
-        "caution": crate::CAUTION,
+        "caution": pavestrat::CAUTION,
     });
     let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
     s.push('\n');
@@ -650,9 +655,9 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
 
 /// The scenario's key assumptions, for summary.json and the report.
 pub fn assumptions(run: &Run) -> serde_json::Value {
-    use crate::input::scenario::VehicleClass;
+    use pavestrat::input::scenario::VehicleClass;
     let s = &run.scenario;
-    let per_class = |v: &crate::input::scenario::PerClass<crate::money::Money>| {
+    let per_class = |v: &pavestrat::input::scenario::PerClass<pavestrat::money::Money>| {
         let mut m = serde_json::Map::new();
         for c in VehicleClass::ALL {
             m.insert(c.key().to_owned(), serde_json::json!(v.get(c).to_f64()));
@@ -809,6 +814,6 @@ pub fn render(run: &Run, p: &Plan, f: &Facts) -> String {
         "{}",
         o.status.meaning(o.gap, f.requested_gap, f.time_limit)
     );
-    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    let _ = writeln!(s, "\n{}", pavestrat::CAUTION);
     s
 }

@@ -1,9 +1,9 @@
 //! `pavestrat report`: the decision-maker's HTML report, drawn from a plan's output directory
-//! (see [`crate::report`]). `plan --report` writes the same report as part of its run.
+//! (see [`pavestrat::output::report`]). `plan --report` writes the same report as part of its run.
 
 use super::Context;
-use crate::error::Result;
-use crate::report::{render, Files};
+use pavestrat::error::Result;
+use pavestrat::output::report::{render, Files};
 use std::path::PathBuf;
 
 /// Arguments of `report`.
@@ -23,19 +23,19 @@ pub struct Args {
 pub fn run(args: Args, ctx: Context) -> Result<()> {
     // One plan's files, and analyses made for that plan, or a refusal that says which file
     // and what to re-run.
-    let manifest = crate::io::verify(&args.from)?;
+    let manifest = pavestrat::io::verify(&args.from)?;
     if let Some(m) = &manifest {
-        crate::io::check_plan_set(&args.from, m, &crate::report::FILES_READ)?;
+        pavestrat::io::check_plan_set(&args.from, m, &pavestrat::output::report::FILES_READ)?;
     }
     let html = render(&Files::Dir(&args.from))?;
     match args.out {
         Some(out) => {
-            crate::io::write_atomically(&out, html.as_bytes())?;
+            pavestrat::io::write_atomically(&out, html.as_bytes())?;
             ctx.say(&format!("wrote {}", out.display()));
         }
         None => {
             // Into the plan's directory, as part of its manifest.
-            let mut set = crate::io::OutputSet::new();
+            let mut set = pavestrat::io::OutputSet::new();
             set.add("report.html", html.into_bytes());
             set.made_for(
                 manifest

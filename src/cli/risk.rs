@@ -1,4 +1,4 @@
-//! `pavestrat risk`: Monte Carlo over the scenario's uncertain inputs (see [`crate::risk`]).
+//! `pavestrat risk`: Monte Carlo over the scenario's uncertain inputs (see [`pavestrat::analysis::risk`]).
 //! Prints the network plan's NPV distribution and the budget lines most likely to be overspent;
 //! `--out DIR` writes `risk.csv`, `risk_draws.csv` and the raw `risk_slice.bin`. Slices of one
 //! run (`--first-draw K --draws N`) merge with `risk --merge DIR…` into exactly the files one
@@ -7,10 +7,10 @@
 use super::plan::parse_seconds;
 use super::sensitivity::held;
 use super::{load_scenario, Context, OutArg};
-use crate::error::{Error, Result};
-use crate::io::{print_stdout, StreamSet};
-use crate::money::grouped;
-use crate::risk::{merge, simulate, stats, Slice};
+use pavestrat::analysis::risk::{merge, simulate, stats, Slice};
+use pavestrat::error::{Error, Result};
+use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::money::grouped;
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
@@ -77,16 +77,22 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
         plan_run.clone_from(&held.plan_run);
-        let layout = crate::risk::layout(&run, &held)?;
-        let raw = crate::risk::check_size(&layout, args.draws)?;
-        let secs = crate::risk::estimated_seconds(&layout, args.draws, run.scenario.analysis_years);
-        if secs > crate::resources::ANNOUNCE_SECONDS || raw > crate::resources::ANNOUNCE_BYTES {
+        let layout = pavestrat::analysis::risk::layout(&run, &held)?;
+        let raw = pavestrat::analysis::risk::check_size(&layout, args.draws)?;
+        let secs = pavestrat::analysis::risk::estimated_seconds(
+            &layout,
+            args.draws,
+            run.scenario.analysis_years,
+        );
+        if secs > pavestrat::resources::ANNOUNCE_SECONDS
+            || raw > pavestrat::resources::ANNOUNCE_BYTES
+        {
             ctx.say(&format!(
                 "note: {} draws × {} strategies: about {} and {} of raw results (estimated from the measured simulation speed; fewer --draws, or slices with --first-draw, take less)",
                 args.draws,
                 layout.strategies.iter().map(Vec::len).sum::<usize>(),
-                crate::resources::duration(secs),
-                crate::resources::bytes(raw)
+                pavestrat::resources::duration(secs),
+                pavestrat::resources::bytes(raw)
             ));
         }
         let bar = ctx.progress.bar("risk", args.draws, "draws");
@@ -97,7 +103,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut parts = Vec::new();
         let mut plans = Vec::new();
         for dir in &args.merge {
-            let m = crate::io::verify(dir)?;
+            let m = pavestrat::io::verify(dir)?;
             plans.push(m.and_then(|m| {
                 m.files
                     .get("risk_slice.bin")
@@ -175,7 +181,7 @@ fn render(s: &Slice) -> String {
     let _ = writeln!(
         out,
         "\nPer section and strategy (mean, P10/P50/P90 of NPV, chance NPV > 0, chance of being best) in risk.csv (--out DIR).\n\n{}",
-        crate::CAUTION
+        pavestrat::CAUTION
     );
     out
 }

@@ -13,14 +13,14 @@
 
 use super::plan::{parse_gap, parse_seconds};
 use super::{Context, OutArg};
-use crate::diag::{Diagnostics, Place};
-use crate::error::{Error, Result};
-use crate::format::Field;
-use crate::input::candidates::{self, CandidateFile};
-use crate::io::{print_stdout, OutputSet};
-use crate::money::grouped;
-use crate::select::network::{self, Infeasible, Method, Options, Outcome};
-use crate::select::problem::{Offer, Problem, ProblemError};
+use pavestrat::diag::{Diagnostics, Place};
+use pavestrat::error::{Error, Result};
+use pavestrat::input::candidates::{self, CandidateFile};
+use pavestrat::io::{print_stdout, OutputSet};
+use pavestrat::money::grouped;
+use pavestrat::output::format::Field;
+use pavestrat::select::network::{self, Infeasible, Method, Options, Outcome};
+use pavestrat::select::problem::{Offer, Problem, ProblemError};
 use rust_decimal::Decimal;
 use std::fmt::Write as _;
 use std::path::Path;
@@ -83,13 +83,13 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         (None, None) => ("npv".to_owned(), 1.0),
     };
     let mut d = Diagnostics::new();
-    let src = crate::input::Disk;
-    let read = crate::input::read_text(&src, Path::new(&args.candidates), None, &mut d);
+    let src = pavestrat::input::Disk;
+    let read = pavestrat::input::read_text(&src, Path::new(&args.candidates), None, &mut d);
     let file = read.and_then(|(label, text)| candidates::parse(&label, &text, &column, &mut d));
     let Some(file) = file else {
         return Err(Error::Input(d));
     };
-    let read = crate::input::read_text(&src, Path::new(&args.limits), None, &mut d);
+    let read = pavestrat::input::read_text(&src, Path::new(&args.limits), None, &mut d);
     let limits = read.and_then(|(label, text)| {
         candidates::parse_limits(&label, &text, &file, &mut d).map(|l| (label, l))
     });
@@ -146,7 +146,7 @@ fn build(
                     format!("a limit of {l}, beyond the supported range at {} decimal places", decimals[j]),
                     format!(
                         "a limit whose magnitude, in units of the row's finest decimal place, is at most {}",
-                        crate::select::problem::MAX_ROW_TOTAL
+                        pavestrat::select::problem::MAX_ROW_TOTAL
                     ),
                 );
                 return None;
@@ -191,7 +191,7 @@ fn build(
                         format!("section `{}` with {n} candidates", s.id),
                         format!(
                             "at most {} candidates per section",
-                            crate::select::problem::MAX_CANDIDATES
+                            pavestrat::select::problem::MAX_CANDIDATES
                         ),
                     ),
                     other => (
@@ -365,7 +365,7 @@ fn summary_text(file: &CandidateFile, b: &Built, o: &Outcome, args: &Args, secon
         seconds
     );
     let _ = writeln!(s, "{}", o.status.meaning(o.gap, args.gap, args.time_limit));
-    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    let _ = writeln!(s, "\n{}", pavestrat::CAUTION);
     s
 }
 
@@ -395,7 +395,7 @@ fn summary_json(
         "candidates": file.sections.iter().map(|x| x.candidates.len()).sum::<usize>(),
         "candidates_kept": b.problem.candidate_count(),
         "rows": file.rows.len(),
-        "caution": crate::CAUTION,
+        "caution": pavestrat::CAUTION,
     });
     let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
     s.push('\n');

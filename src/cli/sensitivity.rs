@@ -1,17 +1,17 @@
 //! `pavestrat sensitivity`: how wrong the inputs can be before the decision changes — the usual
 //! tests and switching values for the network plan and each section's chosen strategy (see
-//! [`crate::sensitivity`]). Prints the network plan's results; `--out DIR` writes
+//! [`pavestrat::analysis::sensitivity`]). Prints the network plan's results; `--out DIR` writes
 //! `sensitivity.csv` (into a plan's directory, `pavestrat report` then draws the tornado chart).
 
 use super::plan::parse_seconds;
 use super::{load_scenario, parse_rate, Context, OutArg};
-use crate::error::{Error, Result};
-use crate::held::HeldPlan;
-use crate::io::{print_stdout, StreamSet};
-use crate::money::grouped;
-use crate::plan::Settings;
-use crate::select::network::{Method, Options};
-use crate::sensitivity::{analyse, csv, Tests, INPUTS};
+use pavestrat::analysis::held::HeldPlan;
+use pavestrat::analysis::sensitivity::{analyse, csv, Tests, INPUTS};
+use pavestrat::error::{Error, Result};
+use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::money::grouped;
+use pavestrat::plan::Settings;
+use pavestrat::select::network::{Method, Options};
 use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::time::Duration;
@@ -64,7 +64,7 @@ fn parse_change(s: &str) -> std::result::Result<f64, String> {
 
 /// The plan held fixed: read from `--from`, or selected afresh.
 pub(super) fn held(
-    run: &crate::input::Run,
+    run: &pavestrat::input::Run,
     from: Option<&std::path::Path>,
     time_limit: f64,
     ctx: Context,
@@ -165,7 +165,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let _ = writeln!(
             s,
             "\n{sections} section switching values where another strategy becomes best; every section's tests and switching values are in sensitivity.csv (--out DIR).\n\n{}",
-            crate::CAUTION
+            pavestrat::CAUTION
         );
         print_stdout(&s)?;
     }

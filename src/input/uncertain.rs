@@ -1,4 +1,4 @@
-//! `[[uncertain]]` entries of a scenario: an input (see [`crate::vary`]) and the distribution of
+//! `[[uncertain]]` entries of a scenario: an input (see [`crate::analysis::vary`]) and the distribution of
 //! its value, for `pavestrat risk`.
 //!
 //! ```toml
@@ -17,8 +17,8 @@
 
 use super::scenario::Scenario;
 use super::tomldoc::{Table, Value};
+use crate::analysis::distribution::Distribution;
 use crate::diag::{did_you_mean, Diagnostics, Place};
-use crate::distribution::Distribution;
 
 /// One uncertain input.
 #[derive(Debug, Clone, PartialEq)]
@@ -48,7 +48,7 @@ pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncerta
     let Some(items) = v.array(d) else {
         return Vec::new();
     };
-    let names = crate::vary::input_names(s);
+    let names = crate::analysis::vary::input_names(s);
     let mut out: Vec<Uncertain> = Vec::new();
     for item in items {
         let Some(mut t) = item.table(d) else { continue };
@@ -61,7 +61,7 @@ pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncerta
             )
             .and_then(|v| {
                 let name = v.string(d)?;
-                match crate::vary::input(s, name) {
+                match crate::analysis::vary::input(s, name) {
                     Some(i) => Some(i),
                     None => {
                         let refs: Vec<&str> = names.iter().map(String::as_str).collect();
@@ -337,7 +337,7 @@ max = 200000
             if let Some(s) = s {
                 let u = &s.uncertain[0];
                 for k in 0..40 {
-                    let x = u.distribution.sample(&mut crate::distribution::stream(5, k));
+                    let x = u.distribution.sample(&mut crate::analysis::distribution::stream(5, k));
                     prop_assert!(x.is_finite() && x >= lo && x <= hi, "{x} from {:?}", u.distribution);
                 }
             } else {

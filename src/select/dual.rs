@@ -181,7 +181,7 @@ pub fn minimise(p: &Problem, tolerance: f64, max_iter: usize, deadline: Instant)
     let mut cuts = vec![to_cut(first, &centre)];
     let mut f_low = f64::NEG_INFINITY;
     let mut iterations = 1;
-    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
+    let debug = crate::debug::enabled();
     let fits = best_eval.used.iter().zip(&p.limits).all(|(u, l)| u <= l);
     if !fits && rows > 0 {
         while iterations < max_iter && Instant::now() < deadline {

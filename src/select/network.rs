@@ -241,7 +241,7 @@ pub fn solve(p: &Problem, o: &Options) -> Result<Outcome, Infeasible> {
     }
 
     let dual_tol = (o.gap / 10.0).clamp(1e-7, 1e-5);
-    let debug = std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some();
+    let debug = crate::debug::enabled();
     let prices = dual::minimise(p, dual_tol, 3000, deadline);
     if debug {
         crate::err_line!("prices: {:.2} s", start.elapsed().as_secs_f64());

@@ -553,7 +553,7 @@ impl SectionSim {
         total
     }
 
-    /// The residual value of [`SectionSim::residual`] in two parts: of capital-category
+    /// The residual value a run credits (its last works, by group) in two parts: of capital-category
     /// treatments and of routine-category ones (what the cost factors scale apart).
     pub fn residual_split(&self, works: &[(u32, usize, f64)]) -> (f64, f64) {
         let (mut capital, mut routine) = (0.0, 0.0);

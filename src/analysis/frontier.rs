@@ -167,7 +167,7 @@ pub fn frontier(
 /// and gap empty and status `infeasible` where no plan meets the lines; `unlimited` is `true` on
 /// the level at which no scaled line can bind.
 pub fn csv(points: &[Point]) -> String {
-    use crate::format::Amount;
+    use crate::output::format::Amount;
     use std::fmt::Write as _;
     let mut s = String::from("level,total_budget,objective,bound,gap,status,unlimited\n");
     for p in points {

@@ -4,7 +4,7 @@
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
 use crate::error::Result;
 use crate::money::grouped;
-use crate::outputs::Table;
+use crate::output::readback::Table;
 use std::fmt::Write as _;
 
 fn axis_title(what: &str, m: &str, word: &str) -> String {

@@ -1,6 +1,6 @@
 //! Monte Carlo risk analysis over the scenario's uncertain inputs.
 //!
-//! Each draw takes its own random stream ([`crate::distribution::stream`]: the seed and the
+//! Each draw takes its own random stream ([`crate::analysis::distribution::stream`]: the seed and the
 //! draw's number, nothing else), samples every `[[uncertain]]` input in the scenario's order, and
 //! simulates every strategy of every section under those values: each strategy's NPV against the
 //! section's base, the network plan's NPV (the plan held fixed), and each budget line's spending
@@ -18,10 +18,10 @@
 //! highest NPV, the base counting as zero; ties to the earlier strategy), and that a budget line's
 //! spending is above its limit.
 
-use crate::distribution::stream;
+use crate::analysis::distribution::stream;
+use crate::analysis::held::HeldPlan;
 use crate::error::{Error, Result};
 use crate::evaluate::{Parts, Scales, Split};
-use crate::held::HeldPlan;
 use crate::input::Run;
 use crate::plan::{Row, RowKind, SectionRows};
 use crate::progress::Progress;
@@ -165,7 +165,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
 /// Compute one draw into `out` (length [`Layout::width`]).
 fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [f64]) {
     let values = sample(run, seed, k);
-    let v = crate::vary::apply(run, &values);
+    let v = crate::analysis::vary::apply(run, &values);
     let d = v.discounting();
     let y0 = run.scenario.base_year;
     let nstrat: usize = held.strategies.iter().map(Vec::len).sum();
@@ -283,7 +283,7 @@ impl<'a> Linear<'a> {
         values: &[(&str, f64)],
         out: &mut [f64],
     ) -> bool {
-        let v = crate::vary::apply(run, values);
+        let v = crate::analysis::vary::apply(run, values);
         let factor = |name: &str| -> f64 {
             values
                 .iter()
@@ -562,7 +562,7 @@ impl Slice {
     /// NPV; `in_plan` true for the plan's),
     /// one `plan` row (the network plan's NPV) and `budget` rows (each line's spending by the plan).
     pub fn csv(&self) -> String {
-        use crate::format::{Amount, Field};
+        use crate::output::format::{Amount, Field};
         use std::fmt::Write as _;
         let l = &self.layout;
         let w = l.width();
@@ -639,7 +639,7 @@ impl Slice {
 
     /// `risk_draws.csv`: `draw,plan_npv` and one `spend:<line>` column per budget line.
     pub fn draws_csv(&self) -> String {
-        use crate::format::{Amount, Field};
+        use crate::output::format::{Amount, Field};
         use std::fmt::Write as _;
         let l = &self.layout;
         let w = l.width();

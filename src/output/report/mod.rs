@@ -13,7 +13,7 @@ mod extra;
 
 use crate::error::{Error, Result};
 use crate::money::grouped;
-use crate::outputs::Table;
+use crate::output::readback::Table;
 use chart::{esc, Chart, Spec, Units, BLUE, GREEN, GREY, ORANGE, VERMILLION};
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -77,7 +77,7 @@ impl Files<'_> {
             self.get(name)?
         };
         got.map(|(label, text)| {
-            crate::outputs::parse(&label, text.as_bytes(), "pavestrat plan", |_| true)
+            crate::output::readback::parse(&label, text.as_bytes(), "pavestrat plan", |_| true)
         })
         .transpose()
     }

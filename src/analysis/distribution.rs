@@ -15,8 +15,8 @@
 //! A distribution with no spread (min = max, or a zero standard deviation) gives its central
 //! value exactly.
 
+use crate::analysis::stats::{normal_cdf, normal_quantile};
 use crate::demo::synth::SplitMix64;
-use crate::stats::{normal_cdf, normal_quantile};
 
 /// The random stream of draw `draw` of a run seeded `seed`.
 pub fn stream(seed: u64, draw: u64) -> SplitMix64 {

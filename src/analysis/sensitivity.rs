@@ -12,17 +12,17 @@
 //! happens within the input's search range: factors 0.01 to 11, growth ±10 points, rates 0 to
 //! 100 %.
 
+use crate::analysis::held::HeldPlan;
+use crate::analysis::vary::{apply, Varied};
 use crate::enumerate::Strategy;
 use crate::evaluate::{Parts, Scales, Split};
-use crate::held::HeldPlan;
 use crate::input::network::Section;
 use crate::input::Run;
 use crate::progress::Progress;
 use crate::simulate::{SectionSim, Trace};
-use crate::vary::{apply, Varied};
 use rayon::prelude::*;
 
-/// The inputs tested, as [`crate::vary`] names them, with how they are shown.
+/// The inputs tested, as [`crate::analysis::vary`] names them, with how they are shown.
 pub const INPUTS: [(&str, &str); 4] = [
     ("factor.capital_cost", "capital_cost"),
     ("factor.unit_values", "user_values"),
@@ -524,7 +524,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
 /// `sensitivity.csv`: `scope,section_id,strategy,input,test,direction,value,change,npv,
 /// other_strategy`.
 pub fn csv(run: &Run, rows: &[Row]) -> String {
-    use crate::format::{Amount, Field};
+    use crate::output::format::{Amount, Field};
     use std::fmt::Write as _;
     let mut s = String::from(
         "scope,section_id,strategy,input,test,direction,value,change,npv,other_strategy\n",

@@ -58,7 +58,7 @@ impl HeldPlan {
         let plan_run = manifest
             .as_ref()
             .and_then(|m| m.plan_run().map(str::to_owned));
-        let t = crate::outputs::read(dir, "section_plan.csv", "pavestrat plan", |_| true)?;
+        let t = crate::output::readback::read(dir, "section_plan.csv", "pavestrat plan", |_| true)?;
         let (cs, cst) = (t.column("section_id")?, t.column("strategy")?);
         let strategies = Self::enumerate(run);
         let index: HashMap<&str, usize> = run

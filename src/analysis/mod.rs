@@ -1,0 +1,13 @@
+//! Analyses of a plan held fixed, after selection: the varied inputs and their ranges
+//! ([`vary`]), the distributions of uncertain inputs ([`distribution`]), a plan held fixed
+//! ([`held`]), one-at-a-time tests and switching values ([`sensitivity`]), Monte Carlo draws
+//! ([`risk`], with [`stats`]), and budget levels re-selected on one set of candidates
+//! ([`frontier`]).
+
+pub mod distribution;
+pub mod frontier;
+pub mod held;
+pub mod risk;
+pub mod sensitivity;
+pub mod stats;
+pub mod vary;

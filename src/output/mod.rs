@@ -1,0 +1,8 @@
+//! What the tool writes and reads back: number and field formats shared by every output
+//! ([`format`](mod@format)), the tool's own CSVs read back with their places ([`readback`]), the workbook
+//! ([`xlsx`]) and the HTML report ([`report`]).
+
+pub mod format;
+pub mod readback;
+pub mod report;
+pub mod xlsx;
