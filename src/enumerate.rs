@@ -13,6 +13,30 @@ use crate::input::network::{Carriageway, Section};
 use crate::input::templates::{StepTiming, Template};
 use crate::input::treatments::{Action, Catalogue};
 use std::collections::HashSet;
+use std::hash::{BuildHasherDefault, Hasher};
+
+/// FNV-1a: a fast hash for the short names of one section's strategies (the set is local and
+/// its order never shows, so no defence against chosen collisions is needed).
+#[derive(Debug, Clone, Copy)]
+struct Fnv(u64);
+
+impl Default for Fnv {
+    fn default() -> Fnv {
+        Fnv(0xcbf2_9ce4_8422_2325)
+    }
+}
+
+impl Hasher for Fnv {
+    fn write(&mut self, bytes: &[u8]) {
+        for b in bytes {
+            self.0 = (self.0 ^ u64::from(*b)).wrapping_mul(0x0100_0000_01b3);
+        }
+    }
+
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
 
 /// The name of the routine-maintenance-only strategy in every output.
 pub const BASE: &str = "base";
@@ -200,7 +224,7 @@ impl<'a> Enumerator<'a> {
     /// Every strategy of `section`, the base first, then templates in order; names unique.
     pub fn strategies(&self, section: &Section) -> Vec<Strategy> {
         let mut out = vec![Strategy::base()];
-        let mut names: HashSet<String> = HashSet::new();
+        let mut names: HashSet<String, BuildHasherDefault<Fnv>> = HashSet::default();
         names.insert(BASE.to_owned());
         let mut name = String::new();
         for c in &self.compiled {

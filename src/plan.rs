@@ -481,8 +481,12 @@ fn section_candidates(
         widening: Vec::new(),
     };
     let mut widening: Vec<(usize, i32, f64)> = Vec::new();
-    // Every strategy's own flows, for the widening's return against the same works without it.
-    let mut owns: Vec<crate::simulate::Flows> = Vec::with_capacity(strategies.len());
+    // Every strategy's own flows, for the widening's return against the same works without it
+    // (kept only where some strategy widens).
+    let widens = strategies
+        .iter()
+        .any(|st| st.widening_year(&run.catalogue).is_some());
+    let mut owns: Vec<crate::simulate::Flows> = Vec::new();
     let mut best: Option<(f64, StrategyRef, f64, f64)> = None;
     let mut u = Vec::new();
     let reads = SectionRows::new(run, rows, sec);
@@ -499,7 +503,9 @@ fn section_candidates(
             widening.push((i, y0 + w as i32, npv));
         }
         let pv_agency = d.pv(y0, &own.agency);
-        owns.push(own);
+        if widens {
+            owns.push(own);
+        }
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
                 Held::Strategy(name) => *name == st.name,
