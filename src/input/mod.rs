@@ -18,6 +18,7 @@ pub mod templates;
 pub mod tomldoc;
 pub mod treatments;
 pub mod uncertain;
+pub mod varied;
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
 use crate::text::decode;

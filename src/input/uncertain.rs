@@ -1,4 +1,4 @@
-//! `[[uncertain]]` entries of a scenario: an input (see [`crate::analysis::vary`]) and the distribution of
+//! `[[uncertain]]` entries of a scenario: an input (see [`crate::input::varied`]) and the distribution of
 //! its value, for `pavestrat risk`.
 //!
 //! ```toml
@@ -48,7 +48,7 @@ pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncerta
     let Some(items) = v.array(d) else {
         return Vec::new();
     };
-    let names = crate::analysis::vary::input_names(s);
+    let names = crate::input::varied::input_names(s);
     let mut out: Vec<Uncertain> = Vec::new();
     for item in items {
         let Some(mut t) = item.table(d) else { continue };
@@ -61,7 +61,7 @@ pub fn read(v: &Value<'_, '_>, s: &Scenario, d: &mut Diagnostics) -> Vec<Uncerta
             )
             .and_then(|v| {
                 let name = v.string(d)?;
-                match crate::analysis::vary::input(s, name) {
+                match crate::input::varied::input(s, name) {
                     Some(i) => Some(i),
                     None => {
                         let refs: Vec<&str> = names.iter().map(String::as_str).collect();
