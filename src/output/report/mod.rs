@@ -93,6 +93,20 @@ fn money(x: f64, label: &str) -> String {
     format!("{} {}", grouped(x, 0), esc(label))
 }
 
+/// The numbers of `summary.json` the report reads (checked present before anything is drawn).
+const SUMMARY_NUMBERS: &[&[&str]] = &[
+    &["sections"],
+    &["npv", "plan"],
+    &["npv", "unconstrained"],
+    &["npv", "base"],
+    &["pv_agency_cost", "plan"],
+    &["pv_agency_cost", "unconstrained"],
+    &["pv_agency_cost", "base"],
+    &["pv_capital", "plan"],
+    &["assumptions", "discount_rate"],
+    &["price_updates"],
+];
+
 /// The summary's facts the report uses.
 struct Summary {
     v: serde_json::Value,
@@ -133,6 +147,25 @@ pub fn render(files: &Files<'_>) -> Result<String> {
         );
         Error::Input(d)
     })?;
+    // Every number the report reads must be there: a summary without one is not a plan's,
+    // and is refused by name rather than drawn as NaN.
+    let mut d = crate::diag::Diagnostics::new();
+    for path in SUMMARY_NUMBERS {
+        let mut x = &v;
+        for k in *path {
+            x = &x[*k];
+        }
+        if x.as_f64().is_none() {
+            d.error(
+                crate::diag::Place::file(label.clone()).with_field(path.join(".")),
+                format!("no number at `{}`", path.join(".")),
+                "summary.json as `pavestrat plan` writes it",
+            );
+        }
+    }
+    if d.has_errors() {
+        return Err(Error::Input(d));
+    }
     let sm = Summary {
         money: v["money"].as_str().unwrap_or("").to_owned(),
         v,
@@ -1014,4 +1047,30 @@ fn assumptions_section(sm: &Summary) -> String {
     }
     s.push_str("</section>");
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_summary_without_a_number_the_report_reads_is_refused_by_name() {
+        let mut files = BTreeMap::new();
+        files.insert(
+            "summary.json".to_owned(),
+            r#"{"money": "VCR", "sections": 3, "npv": {"plan": 1.0, "base": 0.0}}"#.to_owned(),
+        );
+        let Err(Error::Input(d)) = render(&Files::Memory(&files)) else {
+            panic!("a summary missing numbers must be refused");
+        };
+        let text = d.to_string();
+        for key in [
+            "npv.unconstrained",
+            "pv_agency_cost.plan",
+            "assumptions.discount_rate",
+        ] {
+            assert!(text.contains(key), "{key} in {text}");
+        }
+        assert!(!text.contains("`npv.plan`"), "{text}");
+    }
 }
