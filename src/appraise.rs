@@ -235,7 +235,7 @@ pub fn section(
         .collect();
     let widening = widening_timing(run, &sim, &strategies, &owns, &options, d);
     SectionResult {
-        section: sec.id.0.clone(),
+        section: sec.id.as_str().to_owned(),
         strategies: partial,
         incremental,
         best,

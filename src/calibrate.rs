@@ -74,7 +74,7 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
         .sections
         .iter()
         .enumerate()
-        .map(|(i, s)| (s.id.0.as_str(), i))
+        .map(|(i, s)| (s.id.as_str(), i))
         .collect();
     let mut seen = std::collections::HashMap::new();
     while let Some(line) = csv.next_row(d) {

@@ -689,7 +689,7 @@ pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {
     let e = Enumerator::for_run(run);
     let mut problems = Vec::new();
     for sec in &run.network.sections {
-        if let Some(h) = held.get(sec.id.0.as_str()) {
+        if let Some(h) = held.get(sec.id.as_str()) {
             section_candidates(run, &e, &[], Objective::Npv, sec, Some(h), &mut problems);
         }
     }
@@ -748,7 +748,7 @@ pub fn candidates_with(
                         &rows,
                         settings.objective,
                         sec,
-                        held.get(sec.id.0.as_str()),
+                        held.get(sec.id.as_str()),
                         &mut k.problems,
                     );
                     progress.inc(1);
@@ -769,7 +769,7 @@ pub fn candidates_with(
                             }
                         }
                         Err(err) => {
-                            k.fault.get_or_insert((sec.id.0.clone(), err));
+                            k.fault.get_or_insert((sec.id.as_str().to_owned(), err));
                         }
                     }
                 }

@@ -66,7 +66,7 @@ impl HeldPlan {
             .sections
             .iter()
             .enumerate()
-            .map(|(g, s)| (s.id.0.as_str(), g))
+            .map(|(g, s)| (s.id.as_str(), g))
             .collect();
         let mut chosen: Vec<Option<usize>> = vec![None; strategies.len()];
         let mut d = Diagnostics::new();
@@ -97,7 +97,7 @@ impl HeldPlan {
             .iter()
             .zip(&run.network.sections)
             .filter(|(c, _)| c.is_none())
-            .map(|(_, s)| s.id.0.as_str())
+            .map(|(_, s)| s.id.as_str())
             .take(5)
             .collect();
         if !missing.is_empty() && !d.has_errors() {

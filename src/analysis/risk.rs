@@ -142,7 +142,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
             .network
             .sections
             .iter()
-            .map(|s| s.id.0.clone())
+            .map(|s| s.id.as_str().to_owned())
             .collect(),
         strategies: held
             .strategies

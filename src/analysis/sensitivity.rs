@@ -541,7 +541,7 @@ pub fn csv(run: &Run, rows: &[Row]) -> String {
             },
             Field(
                 r.section
-                    .map(|g| run.network.sections[g].id.0.as_str())
+                    .map(|g| run.network.sections[g].id.as_str())
                     .unwrap_or("")
             ),
             Field(&r.strategy),

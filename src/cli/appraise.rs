@@ -119,10 +119,10 @@ fn pick_sections<'r>(
     if ids.is_empty() {
         return Ok(all.iter().collect());
     }
-    let names: Vec<&str> = all.iter().map(|s| s.id.0.as_str()).collect();
+    let names: Vec<&str> = all.iter().map(|s| s.id.as_str()).collect();
     let mut out = Vec::new();
     for id in ids {
-        match all.iter().find(|s| s.id.0 == *id) {
+        match all.iter().find(|s| s.id.as_str() == *id) {
             Some(s) => {
                 if !out
                     .iter()

@@ -190,7 +190,7 @@ fn csv(run: &pavestrat::input::Run, intervals: &[Interval], fits: &[Fit]) -> Str
         let _ = writeln!(
             s,
             "{},{},{},{},{:.3},{:.3},{:.4},{:.4},{:.4}",
-            Field(&run.network.sections[i.section].id.0),
+            Field(run.network.sections[i.section].id.as_str()),
             Field(&i.family),
             i.from,
             i.to,

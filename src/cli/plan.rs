@@ -335,7 +335,7 @@ fn write_files(
             text,
             "{},{},{},{},{},{}",
             s.base_year + y as i32,
-            Field(&secs[g].id.0),
+            Field(secs[g].id.as_str()),
             Field(&t.id),
             Amount(cost),
             Field(secs[g].region.as_deref().unwrap_or("")),
@@ -387,7 +387,7 @@ fn write_files(
                 let un_name = &e.name(u);
                 let sp = format!(
                     "{},{},{},{},{},{},{},{}\n",
-                    Field(&sec.id.0),
+                    Field(sec.id.as_str()),
                     Field(sec.region.as_deref().unwrap_or("")),
                     Field(chosen_name),
                     Amount(c.npv[k]),
@@ -407,7 +407,7 @@ fn write_files(
                     let _ = write!(
                         cs,
                         "{},{},{},{}",
-                        Field(&sec.id.0),
+                        Field(sec.id.as_str()),
                         Field(&e.name(c.strategy[cand])),
                         Amount(c.npv[cand]),
                         Amount(c.pv_agency[cand])
@@ -564,7 +564,7 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
                 let _ = writeln!(
                     s,
                     "{},{},{},{},{},{},{},{}",
-                    Field(&sec.id.0),
+                    Field(sec.id.as_str()),
                     wy.year,
                     Field(&e.name(wy.strategy)),
                     Amount(wy.npv),

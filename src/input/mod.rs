@@ -393,8 +393,7 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
             }
         }
     }
-    let ids: std::collections::HashSet<&str> =
-        net.sections.iter().map(|s| s.id.0.as_str()).collect();
+    let ids: std::collections::HashSet<&str> = net.sections.iter().map(|s| s.id.as_str()).collect();
     for c in &s.plan.commitments {
         if !ids.contains(c.section.as_str()) {
             d.error(

@@ -15,6 +15,13 @@ use std::fmt;
 #[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub struct SectionId(pub String);
 
+impl SectionId {
+    /// The identifier as written.
+    pub fn as_str(&self) -> &str {
+        &self.0
+    }
+}
+
 impl fmt::Display for SectionId {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(&self.0)
@@ -608,7 +615,7 @@ mod tests {
         let (n, d) = read(&format!(
             "{HEAD}\n\"A 1\",\"2.5\",2,single,3,3,100,0.1,0.02\n"
         ));
-        assert_eq!(n.unwrap().sections[0].id.0, "A 1");
+        assert_eq!(n.unwrap().sections[0].id.as_str(), "A 1");
         assert!(!d.has_errors());
         assert!(d.to_string().contains("quoted fields"));
     }

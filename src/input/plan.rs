@@ -25,6 +25,7 @@
 //! region = "north"           # optional: only sections of this region count
 //! ```
 
+use super::network::SectionId;
 use super::tomldoc::{Table, Value};
 use crate::diag::{Diagnostics, Place};
 
@@ -67,7 +68,7 @@ pub enum Held {
 /// Works already decided on one section.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Commitment {
-    pub section: String,
+    pub section: SectionId,
     pub held: Held,
     pub place: Place,
 }
@@ -207,7 +208,7 @@ fn read_commitments(
         let whole = |h: &Held| matches!(h, Held::Strategy(_));
         if let Some(prev) = out
             .iter()
-            .find(|c| c.section == section && (whole(&c.held) || whole(&held)))
+            .find(|c| c.section.as_str() == section && (whole(&c.held) || whole(&held)))
         {
             d.error(
                 place.clone().with_subfield("section"),
@@ -226,7 +227,7 @@ fn read_commitments(
                 Held::Treatment {
                     treatment: other,
                     year: y,
-                } if c.section == section && y == year => Some((c, other)),
+                } if c.section.as_str() == section && y == year => Some((c, other)),
                 _ => None,
             });
             if let Some((prev, other)) = earlier {
@@ -242,7 +243,7 @@ fn read_commitments(
             }
         }
         out.push(Commitment {
-            section,
+            section: SectionId(section),
             held,
             place,
         });

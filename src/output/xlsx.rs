@@ -158,7 +158,7 @@ mod imp {
             let sec = &secs[w.section];
             sh.line(&[
                 Cell::Number(f64::from(s.base_year + w.year as i32)),
-                Cell::Text(&sec.id.0),
+                Cell::Text(sec.id.as_str()),
                 Cell::Text(&t.id),
                 Cell::Money((w.cost * 100.0).round() / 100.0),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
@@ -184,7 +184,7 @@ mod imp {
             let chosen = &e.name(c.strategy[k]);
             let un = &e.name(u);
             sh.line(&[
-                Cell::Text(&sec.id.0),
+                Cell::Text(sec.id.as_str()),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
                 Cell::Text(chosen),
                 Cell::Money(c.npv[k]),

@@ -19,7 +19,7 @@ fn section(run: &Run, id: &str) -> Section {
     run.network
         .sections
         .iter()
-        .find(|s| s.id.0 == id)
+        .find(|s| s.id.as_str() == id)
         .unwrap()
         .clone()
 }
