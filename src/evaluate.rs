@@ -16,6 +16,7 @@
 //! [`npv_against`] is the same evaluation on whole flows, as planning uses it.
 
 use crate::economics::Discounting;
+use crate::enumerate::Strategy;
 use crate::input::Run;
 use crate::simulate::{Flows, SectionSim, Trace};
 
@@ -26,6 +27,34 @@ pub fn npv_against(d: &Discounting, first_year: i32, with: &Flows, against: &Flo
     let savings = against.users.iter().zip(&with.users).map(|(b, a)| b - a);
     let extra = with.agency.iter().zip(&against.agency).map(|(a, b)| a - b);
     d.pv_of(first_year, savings) - d.pv_of(first_year, extra)
+}
+
+/// Each strategy `strategies[k]` of one section for `k` in `which`, simulated once on `sim` (the
+/// base first, then each replaying from where its works part from the previous one's):
+/// `visit(k, its trace, its money split against the base, its NPV against the base on whole
+/// flows at `run`'s discounting)`. The base's split is zero and its NPV 0.
+pub fn each_split(
+    run: &Run,
+    sim: &SectionSim,
+    strategies: &[Strategy],
+    which: &[usize],
+    mut visit: impl FnMut(usize, &Trace, Split, f64),
+) {
+    let d = &run.scenario.discounting;
+    let y0 = run.scenario.base_year;
+    let (mut base, mut t) = (Trace::default(), Trace::default());
+    sim.run(&strategies[0], &mut base);
+    let base_flows = base.flows(d);
+    t.clone_from(&base);
+    for &k in which {
+        if k == 0 {
+            visit(0, &base, Split::of(sim, &base, &base), 0.0);
+            continue;
+        }
+        sim.run(&strategies[k], &mut t);
+        let npv = npv_against(d, y0, &t.flows(d), &base_flows);
+        visit(k, &t, Split::of(sim, &t, &base), npv);
+    }
 }
 
 /// A strategy's money less the base's, year by year from the base year, by what scales it.
@@ -180,6 +209,7 @@ pub fn scales_money_only(name: &str) -> bool {
 mod tests {
     use super::*;
     use crate::enumerate::Enumerator;
+    use crate::simulate::Trace;
     use std::path::Path;
 
     fn demo() -> Run {

@@ -21,7 +21,7 @@
 use crate::analysis::distribution::stream;
 use crate::analysis::held::HeldPlan;
 use crate::error::{Error, Result};
-use crate::evaluate::{Parts, Scales, Split};
+use crate::evaluate::{Parts, Scales};
 use crate::input::Run;
 use crate::plan::{Row, RowKind, SectionRows};
 use crate::progress::Progress;
@@ -237,24 +237,15 @@ impl<'a> Linear<'a> {
             .map(|(g, sec)| {
                 let sim = SectionSim::new(run, sec);
                 let strategies = &held.strategies[g];
-                let (mut base, mut t) = (Trace::default(), Trace::default());
-                sim.run(&strategies[0], &mut base);
-                t.clone_from(&base);
-                let mut spending = (base.capital.clone(), base.routine.clone());
-                let parts: Vec<Parts> = strategies
-                    .iter()
-                    .enumerate()
-                    .map(|(i, st)| {
-                        if i == 0 {
-                            return Parts::default();
-                        }
-                        sim.run(st, &mut t);
-                        if i == held.chosen[g] {
-                            spending = (t.capital.clone(), t.routine.clone());
-                        }
-                        Split::of(&sim, &t, &base).pv(d, y0)
-                    })
-                    .collect();
+                let all: Vec<usize> = (0..strategies.len()).collect();
+                let mut spending = (Vec::new(), Vec::new());
+                let mut parts: Vec<Parts> = Vec::with_capacity(all.len());
+                crate::evaluate::each_split(run, &sim, strategies, &all, |k, t, split, _| {
+                    if k == held.chosen[g] {
+                        spending = (t.capital.clone(), t.routine.clone());
+                    }
+                    parts.push(split.pv(d, y0));
+                });
                 (sim, parts, spending, SectionRows::new(run, rows, sec))
             })
             .collect();

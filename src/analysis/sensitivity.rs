@@ -157,6 +157,9 @@ struct Linear {
     which: Vec<usize>,
     splits: Vec<Split>,
     parts: Vec<Parts>,
+    /// Their NPVs at the scenario's values, on whole flows (the same numbers as [`npvs`] of the
+    /// scenario as written).
+    exact: Vec<f64>,
 }
 
 impl Linear {
@@ -165,22 +168,18 @@ impl Linear {
         let sim = SectionSim::new(run, sec);
         let d = &run.scenario.discounting;
         let y0 = run.scenario.base_year;
-        let (mut base, mut t) = (Trace::default(), Trace::default());
-        sim.run(&strategies[0], &mut base);
-        t.clone_from(&base);
-        let splits: Vec<Split> = which
-            .iter()
-            .map(|&k| {
-                sim.run(&strategies[k], &mut t);
-                Split::of(&sim, &t, &base)
-            })
-            .collect();
-        let parts = splits.iter().map(|s| s.pv(d, y0)).collect();
-        Linear {
+        let mut l = Linear {
             which: which.to_vec(),
-            splits,
-            parts,
-        }
+            splits: Vec::with_capacity(which.len()),
+            parts: Vec::with_capacity(which.len()),
+            exact: Vec::with_capacity(which.len()),
+        };
+        crate::evaluate::each_split(run, &sim, strategies, which, |_, _, split, npv| {
+            l.parts.push(split.pv(d, y0));
+            l.splits.push(split);
+            l.exact.push(npv);
+        });
+        l
     }
 
     /// The NPVs (in `which` order) with input `i` at `x` (`i` linear); the base's is 0.
@@ -245,27 +244,23 @@ fn value_of(run: &Run, i: usize, x: f64) -> Varied {
     apply(run, &[(INPUTS[i].0, x)])
 }
 
-/// The variations every section shares, built once: the scenario as written, and each input
-/// at its two tested values.
+/// The variations every section shares, built once: each input at its two tested values.
 struct Shared {
     central: [f64; 4],
-    plain: Varied,
-    /// Per input ([`INPUTS`] order): (test, value, the run with it).
-    tested: Vec<[(&'static str, f64, Varied); 2]>,
+    /// Per input ([`INPUTS`] order): (test, value, the run with it — only for inputs that
+    /// simulate again; the others are weighed from the split money).
+    tested: Vec<[(&'static str, f64, Option<Varied>); 2]>,
 }
 
 impl Shared {
     fn new(run: &Run, tests: &Tests) -> Shared {
         Shared {
             central: [1.0, 1.0, 0.0, run.scenario.discounting.rate()],
-            plain: apply(run, &[]),
             tested: (0..INPUTS.len())
                 .map(|i| {
                     let (lo, hi) = tests.values(i);
-                    [
-                        ("low", lo, value_of(run, i, lo)),
-                        ("high", hi, value_of(run, i, hi)),
-                    ]
+                    let at = |x: f64| (!is_linear(i)).then(|| value_of(run, i, x));
+                    [("low", lo, at(lo)), ("high", hi, at(hi))]
                 })
                 .collect(),
         }
@@ -277,12 +272,12 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     let sec = &run.network.sections[g];
     let strategies = &held.strategies[g];
     let chosen = held.chosen[g];
-    let at0 = npvs(&shared.plain, run, sec, strategies, None);
-    let best0 = argmax(&at0);
-    // Every strategy once more, its money split: the cost, unit-value and rate tests need no
-    // other simulation; growth simulates again at each value.
+    // Every strategy once, its money split: the scenario's NPVs, and the cost, unit-value and
+    // rate tests, need no other simulation; growth simulates again at each value.
     let all: Vec<usize> = (0..strategies.len()).collect();
     let lin = Linear::new(run, sec, strategies, &all);
+    let at0 = lin.exact.clone();
+    let best0 = argmax(&at0);
     let eval = |i: usize, x: f64, only: Option<usize>| -> Vec<f64> {
         if is_linear(i) {
             lin.npvs(run, i, x)
@@ -304,10 +299,9 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     for (i, &c) in shared.central.iter().enumerate() {
         for (test, x, v) in &shared.tested[i] {
             let (test, x) = (*test, *x);
-            let n = if is_linear(i) {
-                lin.npvs(run, i, x)[chosen]
-            } else {
-                npvs(v, run, sec, strategies, Some(chosen))[chosen]
+            let n = match v {
+                Some(v) => npvs(v, run, sec, strategies, Some(chosen))[chosen],
+                None => lin.npvs(run, i, x)[chosen],
             };
             rows.push(Row {
                 section: Some(g),
@@ -433,7 +427,6 @@ fn plan_npv_at(run: &Run, held: &HeldPlan, chosen: &[Option<Linear>], i: usize, 
 /// Every row: the network plan's first, then each section's.
 pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -> Vec<Row> {
     let shared = Shared::new(run, tests);
-    let n0 = plan_npv(run, held, &shared.plain);
     // Each section's chosen strategy, its money split (none for a section left at its base).
     let chosen: Vec<Option<Linear>> = run
         .network
@@ -445,6 +438,11 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
             (c != 0).then(|| Linear::new(run, sec, &held.strategies[g], &[c]))
         })
         .collect();
+    // The plan's NPV at the scenario's values, summed in network order.
+    let n0: f64 = chosen
+        .iter()
+        .map(|l| l.as_ref().map_or(0.0, |l| l.exact[0]))
+        .sum();
     let mut rows = vec![Row {
         section: None,
         strategy: String::new(),
@@ -467,10 +465,9 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
-                npv: Some(if is_linear(i) {
-                    plan_npv_at(run, held, &chosen, i, x)
-                } else {
-                    plan_npv(run, held, v)
+                npv: Some(match v {
+                    Some(v) => plan_npv(run, held, v),
+                    None => plan_npv_at(run, held, &chosen, i, x),
                 }),
                 other: String::new(),
             });

@@ -30,9 +30,10 @@ use crate::economics::Discounting;
 use crate::enumerate::Strategy;
 use crate::input::models::{CapacityParams, SpeedParams};
 use crate::input::network::{Carriageway, Section};
-use crate::input::scenario::VehicleClass;
+use crate::input::scenario::{PerClass, VehicleClass};
 use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::input::Run;
+use crate::money::Money;
 use condition::{Condition, SectionModel};
 
 /// Lane width (m) taken where the network gives none: a common rural lane (common practice,
@@ -93,6 +94,14 @@ struct YearState {
     per_cap: f64,
     lane_factor: f64,
     last_works: Option<i64>,
+}
+
+/// A per-class unit value weighted by the traffic's class shares.
+fn mix(shares: &[f64; 4], values: &PerClass<Money>) -> f64 {
+    VehicleClass::ALL
+        .iter()
+        .map(|c| shares[*c as usize] * values.get(*c).to_f64())
+        .sum()
 }
 
 /// A source of unique [`SectionSim`] ids (0 is never given).
@@ -250,10 +259,7 @@ impl SectionSim {
             .map(|b| (b.share, section.aadt * 365.0 * b.share / b.hours * pce_mix))
             .collect();
         let uv = &s.unit_values;
-        let vot: f64 = VehicleClass::ALL
-            .iter()
-            .map(|c| t.shares[*c as usize] * uv.time.get(*c).to_f64())
-            .sum();
+        let vot = mix(&t.shares, &uv.time);
         let v0 = capacity::free_speed_kmh(section.speed_kmh, section.carriageway, &m.speed);
         let mut voc_weight = [0.0; 4];
         for c in VehicleClass::ALL {
@@ -538,25 +544,28 @@ impl SectionSim {
     /// treatment (its share of the cost, its own life) valued on its own.
     fn residual(&self, works: &[(u32, usize, f64)]) -> f64 {
         let mut total = 0.0;
-        for widen in [false, true] {
-            let group =
-                |w: &&(u32, usize, f64)| (self.treatments[w.1].action == Action::Widen) == widen;
-            let Some(last) = works.iter().filter(group).map(|w| w.0).max() else {
-                continue;
-            };
-            for w in works.iter().filter(group).filter(|w| w.0 == last) {
-                for &(share, life) in &self.treatments[w.1].parts {
-                    total += costs::residual_value(w.2 * share, w.0, life, self.years as u32);
-                }
-            }
-        }
+        self.residual_parts(works, |_, v| total += v);
         total
     }
 
-    /// The residual value a run credits (its last works, by group) in two parts: of capital-category
-    /// treatments and of routine-category ones (what the cost factors scale apart).
+    /// The residual value of a run ([`SectionSim::run`] credits it: its last works, by group)
+    /// in two parts: of capital-category treatments and of routine-category ones (what the cost
+    /// factors scale apart).
     pub fn residual_split(&self, works: &[(u32, usize, f64)]) -> (f64, f64) {
         let (mut capital, mut routine) = (0.0, 0.0);
+        self.residual_parts(works, |is_capital, v| {
+            if is_capital {
+                capital += v;
+            } else {
+                routine += v;
+            }
+        });
+        (capital, routine)
+    }
+
+    /// Each part of the residual value, in a fixed order: `part(whether its treatment is of the
+    /// capital category, its value)`.
+    fn residual_parts(&self, works: &[(u32, usize, f64)], mut part: impl FnMut(bool, f64)) {
         for widen in [false, true] {
             let group =
                 |w: &&(u32, usize, f64)| (self.treatments[w.1].action == Action::Widen) == widen;
@@ -566,36 +575,25 @@ impl SectionSim {
             for w in works.iter().filter(group).filter(|w| w.0 == last) {
                 let tr = &self.treatments[w.1];
                 for &(share, life) in &tr.parts {
-                    let v = costs::residual_value(w.2 * share, w.0, life, self.years as u32);
-                    if tr.capital {
-                        capital += v;
-                    } else {
-                        routine += v;
-                    }
+                    part(
+                        tr.capital,
+                        costs::residual_value(w.2 * share, w.0, life, self.years as u32),
+                    );
                 }
             }
         }
-        (capital, routine)
     }
 
     /// The traffic's mix weighted by each class's unit value of time (per vehicle-hour), as
     /// the scenario `run` gives the unit values: what the travel-time and work-zone costs scale
     /// with.
     pub fn value_of_time(&self, run: &Run) -> f64 {
-        let uv = &run.scenario.unit_values;
-        VehicleClass::ALL
-            .iter()
-            .map(|c| self.shares[*c as usize] * uv.time.get(*c).to_f64())
-            .sum()
+        mix(&self.shares, &run.scenario.unit_values.time)
     }
 
     /// [`SectionSim::value_of_time`] for vehicle operating costs (per vehicle-km on a smooth
     /// road).
     pub fn value_of_operating(&self, run: &Run) -> f64 {
-        let uv = &run.scenario.unit_values;
-        VehicleClass::ALL
-            .iter()
-            .map(|c| self.shares[*c as usize] * uv.operating.get(*c).to_f64())
-            .sum()
+        mix(&self.shares, &run.scenario.unit_values.operating)
     }
 }
