@@ -79,7 +79,7 @@ fn listing(wd: &Workdir, dirs: &[&str]) -> String {
 fn outputs_are_unchanged() {
     let wd = Workdir::new();
     let runs: &[&[&str]] = &[
-        &["-q", "plan", "--out", "demo"],
+        &["-q", "plan", "--out", "demo", "--candidates"],
         &["-q", "appraise", "--out", "demo-appraise"],
         &["-q", "sensitivity", "--from", "demo", "--out", "demo-sens"],
         &[
@@ -112,6 +112,7 @@ fn outputs_are_unchanged() {
             "net/scenario.toml",
             "--out",
             "net-plan",
+            "--candidates",
         ],
         &[
             "-q",

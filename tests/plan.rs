@@ -32,7 +32,6 @@ fn plans_the_built_in_demo_within_every_line() {
         names,
         [
             "budget_use.csv",
-            "candidates.csv",
             "condition.csv",
             "limits.csv",
             "manifest.json",
@@ -116,8 +115,48 @@ fn plans_the_built_in_demo_within_every_line() {
         "{total} vs {v}"
     );
 
+    // explain values every candidate: without candidates.csv it says how to get it.
+    wd.run(&["explain", "OR-01", "--from", "res"])
+        .expect_code(2)
+        .stderr_has("--candidates");
+    // --candidates adds that one file and changes no other.
+    wd.run(&[
+        "plan",
+        "--out",
+        "res2",
+        "--time-limit",
+        "3",
+        "--candidates",
+        "-q",
+    ])
+    .expect_code(0);
+    assert!(!wd.join("res/candidates.csv").exists());
+    for name in [
+        "budget_use.csv",
+        "condition.csv",
+        "limits.csv",
+        "section_plan.csv",
+        "target_use.csv",
+        "widening_plan.csv",
+        "work_programme.csv",
+    ] {
+        assert_eq!(
+            wd.read(&format!("res/{name}")),
+            wd.read(&format!("res2/{name}")),
+            "{name}"
+        );
+    }
+    let plan_again = rows(&wd.read("res2/section_plan.csv"));
+    assert_eq!(plan_again.len(), plan.len());
+    let cands = rows(&wd.read("res2/candidates.csv"));
+    assert!(plan
+        .iter()
+        .all(|p| cands.iter().any(|c| c["section_id"] == p["section_id"]
+            && c["strategy"] == p["strategy"]
+            && c["npv"] == p["npv"])));
+
     // explain: the chosen strategy is marked, with the margin or the reason.
-    let out = wd.run(&["explain", "OR-01", "--from", "res"]);
+    let out = wd.run(&["explain", "OR-01", "--from", "res2"]);
     out.expect_code(0)
         .stdout_has("Section OR-01: the plan gives it");
     let chosen = &plan.iter().find(|r| r["section_id"] == "OR-01").unwrap()["strategy"];
@@ -126,7 +165,7 @@ fn plans_the_built_in_demo_within_every_line() {
         "{}",
         out.stdout
     );
-    wd.run(&["explain", "OR-1", "--from", "res"])
+    wd.run(&["explain", "OR-1", "--from", "res2"])
         .expect_code(2)
         .stderr_has("did you mean `OR-01`?");
     wd.run(&["explain", "OR-01", "--from", "nowhere"])
@@ -361,8 +400,15 @@ fn a_line_limited_to_exactly_one_candidates_cost_is_met_with_it() {
         "net/scenario.toml",
         with_budget(&original, &line("1000000000")),
     );
-    wd.run(&["plan", "--scenario", "net/scenario.toml", "--out", "wide"])
-        .expect_code(0);
+    wd.run(&[
+        "plan",
+        "--scenario",
+        "net/scenario.toml",
+        "--out",
+        "wide",
+        "--candidates",
+    ])
+    .expect_code(0);
     let cands = rows(&wd.read("wide/candidates.csv"));
     let best = cands
         .iter()
@@ -460,8 +506,15 @@ fn limits_equal_to_some_plans_spending_are_never_called_infeasible() {
         }
         let path = format!("{net}/scenario.toml");
         wd.write(&path, with_budget(&original, &lines));
-        wd.run(&["plan", "--scenario", &path, "--out", &format!("{net}/wide")])
-            .expect_code(0);
+        wd.run(&[
+            "plan",
+            "--scenario",
+            &path,
+            "--out",
+            &format!("{net}/wide"),
+            "--candidates",
+        ])
+        .expect_code(0);
         let cands = rows(&wd.read(&format!("{net}/wide/candidates.csv")));
         let mut by_section: Vec<Vec<&HashMap<String, String>>> = Vec::new();
         for c in &cands {
@@ -562,7 +615,8 @@ fn budget_prices_are_per_unit_of_money_and_bound_the_plan() {
     // prices are per unit of money as labelled, close to it: much closer than the NPV the network
     // would earn with no limits (prices mislabelled by a factor of 100 would give nearly that).
     let wd = Workdir::new();
-    wd.run(&["plan", "-q", "--out", "res"]).expect_code(0);
+    wd.run(&["plan", "-q", "--out", "res", "--candidates"])
+        .expect_code(0);
     let s = summary(&wd, "res");
     let objective = s["objective"].as_f64().unwrap();
     let mut price: HashMap<String, f64> = HashMap::new();

@@ -17,7 +17,8 @@ fn choices(text: &str) -> HashMap<String, String> {
 #[test]
 fn a_plans_own_files_reproduce_its_selection_and_objective() {
     let wd = Workdir::new();
-    wd.run(&["plan", "-q", "--out", "p"]).expect_code(0);
+    wd.run(&["plan", "-q", "--out", "p", "--candidates"])
+        .expect_code(0);
     wd.run(&[
         "select",
         "p/candidates.csv",
@@ -62,8 +63,16 @@ fn a_plans_own_files_reproduce_its_selection_and_objective() {
 #[test]
 fn a_least_cost_plan_is_reproduced_by_minimising_its_cost_column() {
     let wd = Workdir::new();
-    wd.run(&["plan", "-q", "--objective", "least-cost", "--out", "p"])
-        .expect_code(0);
+    wd.run(&[
+        "plan",
+        "-q",
+        "--objective",
+        "least-cost",
+        "--out",
+        "p",
+        "--candidates",
+    ])
+    .expect_code(0);
     wd.run(&[
         "select",
         "-q",

@@ -55,6 +55,13 @@ pub fn run(args: Args, _ctx: Context) -> Result<()> {
             ],
         )?;
     }
+    if dir.join("summary.json").is_file() && !dir.join("candidates.csv").is_file() {
+        return Err(Error::Usage(format!(
+            "{} holds a plan but no candidates.csv; expected a plan written with every candidate: `explain` values each candidate of the section at the plan's prices, and `plan` writes them only when asked (run `pavestrat plan --scenario FILE --out {} --candidates`)",
+            dir.display(),
+            dir.display()
+        )));
+    }
     let summary_path = dir.join("summary.json");
     let summary: serde_json::Value = std::fs::read_to_string(&summary_path)
         .ok()

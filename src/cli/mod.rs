@@ -92,7 +92,7 @@ pub enum Command {
     #[command(after_help = AFTER_HELP)]
     Cashflow(cashflow::Args),
     /// Choose one candidate per section within row limits, from candidates made anywhere (an
-    /// asset system's list, or a plan's candidates.csv and limits.csv).
+    /// asset system's list, or the candidates.csv and limits.csv of `plan --candidates`).
     #[command(after_help = AFTER_HELP)]
     Select(select::Args),
 }

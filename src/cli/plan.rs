@@ -12,9 +12,6 @@
 //!   line; `price` is the budget price, value per unit of money in that line;
 //! - `target_use.csv`: one row per condition-target line, with the length it counts (the row
 //!   is Σ use ≤ at_most × length_km);
-//! - `candidates.csv`: every candidate left after dominated ones are removed —
-//!   `section_id,strategy,npv,pv_agency_cost`, then `cost:<line>` per budget line and
-//!   `use:<line>` per target line (length-weighted), enough to re-solve the selection elsewhere;
 //! - `condition.csv`: `year,case,mean_iri,good_share,fair_share,poor_share` — the network's
 //!   length-weighted condition each year under the plan, the base and the unconstrained choice;
 //! - `widening_plan.csv`: for sections that can be widened, the best strategy widening in each
@@ -24,7 +21,11 @@
 //!   `pavestrat select candidates.csv --limits limits.csv` re-solves the same selection (with
 //!   `--minimise pv_agency_cost` for a least-cost plan).
 //!
-//! `--report` adds `frontier.csv` (see `pavestrat frontier`) and `report.html` (see
+//! `--candidates` adds `candidates.csv`: every candidate left after dominated ones are removed —
+//! `section_id,strategy,npv,pv_agency_cost`, then `cost:<line>` per budget line and `use:<line>`
+//! per target line (length-weighted), enough to re-solve the selection elsewhere and what
+//! `explain` reads. It is the largest file by far (about 3 KB a section), so it is written only
+//! when asked. `--report` adds `frontier.csv` (see `pavestrat frontier`) and `report.html` (see
 //! `pavestrat report`); `--xlsx FILE` writes a workbook beside them.
 
 use super::{load_scenario, parse_rate, Context, OutArg};
@@ -77,6 +78,11 @@ pub struct Args {
     #[arg(long, requires = "out")]
     pub report: bool,
 
+    /// Also write candidates.csv into --out DIR: every candidate of every section with its use
+    /// of every line (what `explain` and `select` read; about 3 KB a section).
+    #[arg(long, requires = "out")]
+    pub candidates: bool,
+
     /// Also write the work programme, section plan, budget use and appraisal into one
     /// spreadsheet workbook (.xlsx) at FILE.
     #[arg(long, value_name = "FILE")]
@@ -117,18 +123,20 @@ pub(super) fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
     }
 }
 
-/// The output files, in the order they are created.
-pub const FILES: [&str; 9] = [
+/// The output files every `plan --out` writes.
+pub const FILES: [&str; 8] = [
     "work_programme.csv",
     "section_plan.csv",
     "budget_use.csv",
     "target_use.csv",
-    "candidates.csv",
     "summary.json",
     "condition.csv",
     "widening_plan.csv",
     "limits.csv",
 ];
+
+/// Every candidate with its uses, written with `--candidates`.
+pub const CANDIDATES: &str = "candidates.csv";
 
 /// Run `plan`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
@@ -199,11 +207,18 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     };
     if let Some(dir) = &args.out.out {
         let mut names: Vec<&str> = FILES.to_vec();
+        if args.candidates {
+            names.push(CANDIDATES);
+        }
         if args.report {
             names.extend(["frontier.csv", "report.html"]);
         }
         let mut set = StreamSet::create(dir, "plan", &names)?;
-        let mut small = write_files(&run, &plan, &facts, &mut set, args.report)?;
+        let written = Written {
+            programme: args.report,
+            candidates: args.candidates,
+        };
+        let mut small = write_files(&run, &plan, &facts, &mut set, written)?;
         if args.report {
             let mut c = plan.candidates.clone();
             let levels = pavestrat::analysis::frontier::DEFAULT_LEVELS;
@@ -224,12 +239,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             )?;
             bar.finish();
             let text = pavestrat::analysis::frontier::csv(&points);
-            set.write(FILES.len(), text.as_bytes())?;
+            set.write_to("frontier.csv", text.as_bytes())?;
             small.insert("frontier.csv".into(), text);
             let html = pavestrat::output::report::render(
                 &pavestrat::output::report::Files::Memory(&small),
             )?;
-            set.write(FILES.len() + 1, html.as_bytes())?;
+            set.write_to("report.html", html.as_bytes())?;
         }
         // The workbook is part of the same all-or-nothing set: staged beside its target and
         // moved into place with the directory's files.
@@ -304,16 +319,26 @@ pub fn totals(c: &Candidates, plan: &[u16]) -> Totals {
     t
 }
 
-/// The files a report is drawn from, by name (the work programme only when `keep_programme`).
+/// The files a report is drawn from, by name (the work programme only when kept).
 pub type Small = std::collections::BTreeMap<String, String>;
+
+/// What [`write_files`] writes besides [`FILES`].
+#[derive(Debug, Clone, Copy)]
+struct Written {
+    /// Keep the work programme's text for the report.
+    programme: bool,
+    /// Write candidates.csv.
+    candidates: bool,
+}
 
 fn write_files(
     run: &Run,
     p: &Plan,
     facts: &Facts,
     set: &mut StreamSet,
-    keep_programme: bool,
+    written: Written,
 ) -> Result<Small> {
+    let keep_programme = written.programme;
     let mut small = Small::new();
     let mut programme = String::new();
     let c = &p.candidates;
@@ -342,23 +367,23 @@ fn write_files(
             t.category.name()
         );
         if text.len() > 1 << 20 {
-            set.write(0, text.as_bytes())?;
+            set.write_to("work_programme.csv", text.as_bytes())?;
             if keep_programme {
                 programme.push_str(&text);
             }
             text.clear();
         }
     }
-    set.write(0, text.as_bytes())?;
+    set.write_to("work_programme.csv", text.as_bytes())?;
     // The whole programme is kept only for the report (it can be large).
     if keep_programme {
         programme.push_str(&text);
         small.insert("work_programme.csv".into(), programme);
     }
 
-    // Section plan and candidates, chunk by chunk (names come from re-enumerating).
-    set.write(
-        1,
+    // Section plan and candidates, chunk by chunk (names rebuilt from the strategies' keys).
+    set.write_to(
+        "section_plan.csv",
         b"section_id,region,strategy,npv,pv_agency_cost,unconstrained_strategy,unconstrained_npv,same\n",
     )?;
     let mut head = String::from("section_id,strategy,npv,pv_agency_cost");
@@ -373,7 +398,9 @@ fn write_files(
         }
     }
     head.push('\n');
-    set.write(4, head.as_bytes())?;
+    if written.candidates {
+        set.write_to(CANDIDATES, head.as_bytes())?;
+    }
     const CHUNK: usize = 4096;
     for (ci, chunk) in secs.chunks(CHUNK).enumerate() {
         let texts: Vec<(String, String)> = chunk
@@ -397,6 +424,9 @@ fn write_files(
                     c.strategy[k] == u
                 );
                 let mut cs = String::new();
+                if !written.candidates {
+                    return (sp, cs);
+                }
                 let mut dense = vec![0i64; c.rows.len()];
                 for cand in c.problem.candidates(g) {
                     dense.iter_mut().for_each(|x| *x = 0);
@@ -435,8 +465,10 @@ fn write_files(
             a.push_str(&x);
             b.push_str(&y);
         }
-        set.write(1, a.as_bytes())?;
-        set.write(4, b.as_bytes())?;
+        set.write_to("section_plan.csv", a.as_bytes())?;
+        if written.candidates {
+            set.write_to(CANDIDATES, b.as_bytes())?;
+        }
     }
 
     // Budget and target use.
@@ -485,15 +517,15 @@ fn write_files(
             }
         }
     }
-    set.write(2, bu.as_bytes())?;
-    set.write(3, tu.as_bytes())?;
+    set.write_to("budget_use.csv", bu.as_bytes())?;
+    set.write_to("target_use.csv", tu.as_bytes())?;
     let summary = summary_json(run, p, facts, set.run_id());
-    set.write(5, summary.as_bytes())?;
+    set.write_to("summary.json", summary.as_bytes())?;
     let condition = condition_csv(&pavestrat::plan::condition_series(run, c, plan));
-    set.write(6, condition.as_bytes())?;
+    set.write_to("condition.csv", condition.as_bytes())?;
     let widening = widening_csv(run, p);
-    set.write(7, widening.as_bytes())?;
-    set.write(8, limits_csv(c).as_bytes())?;
+    set.write_to("widening_plan.csv", widening.as_bytes())?;
+    set.write_to("limits.csv", limits_csv(c).as_bytes())?;
     small.insert("budget_use.csv".into(), bu);
     small.insert("target_use.csv".into(), tu);
     small.insert("summary.json".into(), summary);

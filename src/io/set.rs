@@ -435,6 +435,16 @@ impl StreamSet {
         self.for_plan = plan;
     }
 
+    /// Append `bytes` to the file called `name` (one of the names the set was created with).
+    pub fn write_to(&mut self, name: &str, bytes: &[u8]) -> Result<()> {
+        let Some(i) = self.names.iter().position(|n| n == name) else {
+            return Err(Error::Internal(format!(
+                "`{name}` is not one of the files this set was opened for"
+            )));
+        };
+        self.write(i, bytes)
+    }
+
     /// Append `bytes` to file `i`.
     pub fn write(&mut self, i: usize, bytes: &[u8]) -> Result<()> {
         let (w, h, n) = &mut self.files[i];

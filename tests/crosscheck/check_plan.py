@@ -46,7 +46,7 @@ def check(exe, work, n, seed, time_limit, scipy_limit):
     out = os.path.join(work, f"plan-{n}-{seed}")
     subprocess.run([exe, "init", net, "--sections", str(n), "--seed", str(seed), "--quiet", "--force"], check=True)
     subprocess.run(
-        [exe, "plan", "--scenario", os.path.join(net, "scenario.toml"), "--out", out, "--quiet",
+        [exe, "plan", "--scenario", os.path.join(net, "scenario.toml"), "--out", out, "--candidates", "--quiet",
          "--time-limit", str(time_limit)],
         check=True,
     )
