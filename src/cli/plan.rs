@@ -523,14 +523,24 @@ fn write_files(
     set.write_to("summary.json", summary.as_bytes())?;
     let condition = condition_csv(&pavestrat::plan::condition_series(run, c, plan));
     set.write_to("condition.csv", condition.as_bytes())?;
-    let widening = widening_csv(run, p);
-    set.write_to("widening_plan.csv", widening.as_bytes())?;
+    // The widening table, chunk by chunk (it is kept whole only for the report).
+    let mut widening = String::from(WIDENING_HEAD);
+    set.write_to("widening_plan.csv", WIDENING_HEAD.as_bytes())?;
+    for from in (0..secs.len()).step_by(CHUNK) {
+        let text = widening_rows(run, p, from..(from + CHUNK).min(secs.len()));
+        set.write_to("widening_plan.csv", text.as_bytes())?;
+        if keep_programme {
+            widening.push_str(&text);
+        }
+    }
     set.write_to("limits.csv", limits_csv(c).as_bytes())?;
     small.insert("budget_use.csv".into(), bu);
     small.insert("target_use.csv".into(), tu);
     small.insert("summary.json".into(), summary);
     small.insert("condition.csv".into(), condition);
-    small.insert("widening_plan.csv".into(), widening);
+    if keep_programme {
+        small.insert("widening_plan.csv".into(), widening);
+    }
     Ok(small)
 }
 
@@ -570,17 +580,20 @@ pub fn condition_csv(cs: &pavestrat::plan::ConditionSeries) -> String {
 }
 
 /// `widening_plan.csv`: one row per section that can be widened and widening year.
-pub fn widening_csv(run: &Run, p: &Plan) -> String {
+const WIDENING_HEAD: &str = "section_id,year,strategy,npv,fyrr,by_fyrr,by_npv,planned\n";
+
+/// The rows of `widening_plan.csv` (after [`WIDENING_HEAD`]) of the sections `range`.
+fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>) -> String {
     let c = &p.candidates;
     let e = Enumerator::for_run(run);
     let cat = &run.catalogue;
     let y0 = run.scenario.base_year;
-    let rows: Vec<String> = run
-        .network
-        .sections
+    let first = range.start;
+    let rows: Vec<String> = run.network.sections[range]
         .par_iter()
         .enumerate()
-        .map(|(g, sec)| {
+        .map(|(i, sec)| {
+            let g = first + i;
             let best = c.widening_of(g);
             if best.is_empty() {
                 return String::new();
@@ -609,11 +622,7 @@ pub fn widening_csv(run: &Run, p: &Plan) -> String {
             s
         })
         .collect();
-    let mut s = String::from("section_id,year,strategy,npv,fyrr,by_fyrr,by_npv,planned\n");
-    for r in rows {
-        s.push_str(&r);
-    }
-    s
+    rows.concat()
 }
 
 /// A budget price for CSV: full precision, `0` when zero.
