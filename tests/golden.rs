@@ -79,7 +79,14 @@ fn listing(wd: &Workdir, dirs: &[&str]) -> String {
 fn outputs_are_unchanged() {
     let wd = Workdir::new();
     let runs: &[&[&str]] = &[
-        &["-q", "plan", "--out", "demo", "--candidates"],
+        &[
+            "-q",
+            "plan",
+            "--out",
+            "demo",
+            "--candidates",
+            "--every-widening-year",
+        ],
         &["-q", "appraise", "--out", "demo-appraise"],
         &["-q", "sensitivity", "--from", "demo", "--out", "demo-sens"],
         &[
@@ -113,6 +120,7 @@ fn outputs_are_unchanged() {
             "--out",
             "net-plan",
             "--candidates",
+            "--every-widening-year",
         ],
         &[
             "-q",

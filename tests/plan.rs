@@ -669,9 +669,32 @@ fn plan_widening_table_agrees_with_appraise() {
             plan.extend(["--scenario", s]);
             appraise.extend(["--scenario", s]);
         }
+        // By default only the picked years are written: exactly the rows of the full table
+        // that the plan or a timing rule picks, every section with one.
+        wd.run(&plan).expect_code(0);
+        let picked = rows(&wd.read(&format!("{p}/widening_plan.csv")));
+        plan.push("--every-widening-year");
         wd.run(&plan).expect_code(0);
         wd.run(&appraise).expect_code(0);
         let from_plan = rows(&wd.read(&format!("{p}/widening_plan.csv")));
+        let picks = |r: &HashMap<String, String>| {
+            ["by_fyrr", "by_npv", "planned"]
+                .iter()
+                .any(|k| r[*k] == "true")
+        };
+        let expected: Vec<_> = from_plan.iter().filter(|r| picks(r)).cloned().collect();
+        assert_eq!(picked, expected, "{tag}");
+        assert!(picked.len() < from_plan.len(), "{tag}: nothing left out");
+        let ids = |t: &[HashMap<String, String>]| {
+            t.iter()
+                .map(|r| r["section_id"].clone())
+                .collect::<std::collections::BTreeSet<_>>()
+        };
+        assert_eq!(ids(&picked), ids(&from_plan), "{tag}");
+        let summary = |dir: &str| -> serde_json::Value {
+            serde_json::from_str(&wd.read(&format!("{dir}/summary.json"))).unwrap()
+        };
+        assert_eq!(summary(&p)["widening_years"], "every", "{tag}");
         let from_appraise = rows(&wd.read(&format!("{a}/widening.csv")));
         assert!(!from_plan.is_empty(), "{tag}: no widening rows");
         assert_eq!(from_plan.len(), from_appraise.len(), "{tag}");

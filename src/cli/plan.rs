@@ -14,8 +14,10 @@
 //!   is Σ use ≤ at_most × length_km);
 //! - `condition.csv`: `year,case,mean_iri,good_share,fair_share,poor_share` — the network's
 //!   length-weighted condition each year under the plan, the base and the unconstrained choice;
-//! - `widening_plan.csv`: for sections that can be widened, the best strategy widening in each
-//!   year with its NPV and the widening's FYRR, each timing rule's year and the plan's year;
+//! - `widening_plan.csv`: for sections that can be widened, the best strategy widening in the
+//!   years that the plan and the two timing rules (first year of an FYRR at the discount rate,
+//!   best NPV) pick — in every possible year with `--every-widening-year` or `--report` (whose
+//!   charts draw them) — with its NPV and the widening's FYRR, and which of the three picks it;
 //! - `summary.json`: the certificate, the run's facts and the scenario's key assumptions;
 //! - `limits.csv`: `row,limit` for every `cost:`/`use:` column of `candidates.csv`, so that
 //!   `pavestrat select candidates.csv --limits limits.csv` re-solves the same selection (with
@@ -77,6 +79,12 @@ pub struct Args {
     /// Also write report.html (and the budget frontier it shows, frontier.csv) into --out DIR.
     #[arg(long, requires = "out")]
     pub report: bool,
+
+    /// Write every possible widening year of each section into widening_plan.csv, not only the
+    /// years the plan and the two timing rules pick (about 670 bytes a section that can be
+    /// widened; `--report` implies it, its charts draw them).
+    #[arg(long, requires = "out")]
+    pub every_widening_year: bool,
 
     /// Also write candidates.csv into --out DIR: every candidate of every section with its use
     /// of every line (what `explain` and `select` read; about 3 KB a section).
@@ -204,6 +212,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         budget_scale: args.budget_scale,
         requested_gap: args.gap,
         time_limit: args.time_limit,
+        every_widening_year: args.every_widening_year || args.report,
     };
     if let Some(dir) = &args.out.out {
         let mut names: Vec<&str> = FILES.to_vec();
@@ -217,6 +226,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let written = Written {
             programme: args.report,
             candidates: args.candidates,
+            every_widening_year: facts.every_widening_year,
         };
         let mut small = write_files(&run, &plan, &facts, &mut set, written)?;
         if args.report {
@@ -285,6 +295,8 @@ pub struct Facts {
     pub budget_scale: f64,
     pub requested_gap: f64,
     pub time_limit: f64,
+    /// widening_plan.csv holds every widening year, not only the picked ones.
+    pub every_widening_year: bool,
 }
 
 /// NPV against the base and PV agency cost of one way to treat the whole network.
@@ -329,6 +341,8 @@ struct Written {
     programme: bool,
     /// Write candidates.csv.
     candidates: bool,
+    /// Write every widening year, not only the picked ones.
+    every_widening_year: bool,
 }
 
 fn write_files(
@@ -527,7 +541,12 @@ fn write_files(
     let mut widening = String::from(WIDENING_HEAD);
     set.write_to("widening_plan.csv", WIDENING_HEAD.as_bytes())?;
     for from in (0..secs.len()).step_by(CHUNK) {
-        let text = widening_rows(run, p, from..(from + CHUNK).min(secs.len()));
+        let text = widening_rows(
+            run,
+            p,
+            from..(from + CHUNK).min(secs.len()),
+            written.every_widening_year,
+        );
         set.write_to("widening_plan.csv", text.as_bytes())?;
         if keep_programme {
             widening.push_str(&text);
@@ -579,11 +598,13 @@ pub fn condition_csv(cs: &pavestrat::plan::ConditionSeries) -> String {
     s
 }
 
-/// `widening_plan.csv`: one row per section that can be widened and widening year.
+/// `widening_plan.csv`: one row per section that can be widened and widening year (every
+/// year, or those the plan or a timing rule picks).
 const WIDENING_HEAD: &str = "section_id,year,strategy,npv,fyrr,by_fyrr,by_npv,planned\n";
 
-/// The rows of `widening_plan.csv` (after [`WIDENING_HEAD`]) of the sections `range`.
-fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>) -> String {
+/// The rows of `widening_plan.csv` (after [`WIDENING_HEAD`]) of the sections `range`: every
+/// widening year when `every`, else only the years the plan or a timing rule picks.
+fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>, every: bool) -> String {
     let c = &p.candidates;
     let e = Enumerator::for_run(run);
     let cat = &run.catalogue;
@@ -606,6 +627,10 @@ fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>) -> String {
                 .map(|x| y0 + x as i32);
             let mut s = String::new();
             for wy in best {
+                let picks = [by_fyrr, by_npv, planned].map(|y| y == Some(wy.year));
+                if !every && !picks.contains(&true) {
+                    continue;
+                }
                 let _ = writeln!(
                     s,
                     "{},{},{},{},{},{},{},{}",
@@ -614,9 +639,9 @@ fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>) -> String {
                     Field(&e.name(wy.strategy)),
                     Amount(wy.npv),
                     pavestrat::output::format::Fixed(wy.fyrr, 6),
-                    by_fyrr == Some(wy.year),
-                    by_npv == Some(wy.year),
-                    planned == Some(wy.year)
+                    picks[0],
+                    picks[1],
+                    picks[2]
                 );
             }
             s
@@ -674,6 +699,7 @@ pub fn summary_json(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> String {
         "price_updates": o.iterations,
         "contested_sections": o.contested,
         "budget_scale": f.budget_scale,
+        "widening_years": if f.every_widening_year { "every" } else { "picked" },
         "npv": { "plan": t.plan.npv, "unconstrained": t.unconstrained.npv, "base": t.base.npv },
         "pv_agency_cost": { "plan": t.plan.pv_agency, "unconstrained": t.unconstrained.pv_agency, "base": t.base.pv_agency },
         "pv_capital": { "plan": pv_capital },

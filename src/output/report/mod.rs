@@ -580,6 +580,7 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
         planned: bool,
     }
     let mut secs: Vec<(String, Vec<W>)> = Vec::new();
+    let mut at: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
     for (line, r) in &t.rows {
         let id = t.text(r, cs).to_owned();
         let w = W {
@@ -591,9 +592,12 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
             by_npv: t.flag(*line, r, cbn)?,
             planned: t.flag(*line, r, cpl)?,
         };
-        match secs.iter_mut().find(|x| x.0 == id) {
-            Some(x) => x.1.push(w),
-            None => secs.push((id, vec![w])),
+        match at.get(&id) {
+            Some(&i) => secs[i].1.push(w),
+            None => {
+                at.insert(id.clone(), secs.len());
+                secs.push((id, vec![w]));
+            }
         }
     }
     let best = |ws: &[W]| ws.iter().map(|w| w.npv).fold(f64::NEG_INFINITY, f64::max);
@@ -601,9 +605,17 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
     let rate = sm.num(&["assumptions", "discount_rate"]);
     let m = &sm.money;
     let mut s = String::from(r#"<section id="widening"><h2>Widening timing</h2>"#);
+    // A plan written without `--every-widening-year` lists only the years it and the timing
+    // rules pick (a summary from before the key existed listed every year).
+    let every = sm.text(&["widening_years"]) != "picked";
+    let years = if every {
+        "in each year"
+    } else {
+        "in each year the plan or a timing rule picks (the plan was written without --every-widening-year, so the other years are not listed)"
+    };
     let _ = write!(
         s,
-        "<p>For each section that can be widened: bars, the NPV of the best strategy that widens in each year (left axis, {}); points, the widening's own first-year rate of return (right axis), against the discount rate ({:.1} %, dashed). Outlined bar: the year the plan widens, if it does. Common practice widens in the first year the FYRR reaches the discount rate.</p>",
+        "<p>For each section that can be widened: bars, the NPV of the best strategy that widens {years} (left axis, {}); points, the widening's own first-year rate of return (right axis), against the discount rate ({:.1} %, dashed). Outlined bar: the year the plan widens, if it does. Common practice widens in the first year the FYRR reaches the discount rate.</p>",
         esc(m),
         rate * 100.0
     );
