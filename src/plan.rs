@@ -28,7 +28,7 @@ use crate::input::Run;
 use crate::money::Money;
 use crate::progress::Progress;
 use crate::select::network::{self, Infeasible, Options, Outcome};
-use crate::select::problem::{Offer, Problem, ProblemError};
+use crate::select::problem::{Offers, Problem, ProblemError};
 use crate::simulate::condition::{classify, ConditionClass};
 use crate::simulate::{SectionSim, Trace};
 use rayon::prelude::*;
@@ -393,8 +393,9 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
     Ok(rows)
 }
 
+#[derive(Default)]
 struct SectionCands {
-    offers: Vec<Offer>,
+    offers: Offers,
     strategy: Vec<StrategyRef>,
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
@@ -459,7 +460,8 @@ fn section_candidates(
     sec: &Section,
     held: Option<&Vec<&crate::input::plan::Commitment>>,
     problems: &mut Vec<(Place, String, String)>,
-) -> SectionCands {
+    out: &mut SectionCands,
+) {
     let s = &run.scenario;
     let d: &Discounting = &s.discounting;
     let y0 = s.base_year;
@@ -470,16 +472,15 @@ fn section_candidates(
     let base_flows = base.flows(d);
     // Each strategy replays only the years after its works part from the previous one's.
     let mut trace = base.clone();
-    let mut out = SectionCands {
-        offers: Vec::with_capacity(strategies.len()),
-        strategy: Vec::with_capacity(strategies.len()),
-        npv: Vec::with_capacity(strategies.len()),
-        pv_agency: Vec::with_capacity(strategies.len()),
-        enumerated: strategies.len() as u32,
-        unconstrained: Unconstrained::default(),
-        base_pv_agency: d.pv(y0, &base_flows.agency),
-        widening: Vec::new(),
-    };
+    // The buffers are the previous section's, emptied.
+    out.offers.clear();
+    out.strategy.clear();
+    out.npv.clear();
+    out.pv_agency.clear();
+    out.widening.clear();
+    out.enumerated = strategies.len() as u32;
+    out.unconstrained = Unconstrained::default();
+    out.base_pv_agency = d.pv(y0, &base_flows.agency);
     let mut widening: Vec<(usize, i32, f64)> = Vec::new();
     // Every strategy's own flows, for the widening's return against the same works without it
     // (kept only where some strategy widens).
@@ -489,6 +490,7 @@ fn section_candidates(
     let mut owns: Vec<crate::simulate::Flows> = Vec::new();
     let mut best: Option<(f64, StrategyRef, f64, f64)> = None;
     let mut u = Vec::new();
+    let mut own = crate::simulate::Flows::default();
     let reads = SectionRows::new(run, rows, sec);
     for (i, st) in strategies.iter().enumerate() {
         let t = if i == 0 {
@@ -497,14 +499,14 @@ fn section_candidates(
             sim.run(st, &mut trace);
             &trace
         };
-        let own = t.flows(d);
+        t.flows_into(d, &mut own);
         let npv = crate::evaluate::npv_against(d, y0, &own, &base_flows);
         if let Some(w) = st.widening_year(&run.catalogue) {
             widening.push((i, y0 + w as i32, npv));
         }
         let pv_agency = d.pv(y0, &own.agency);
         if widens {
-            owns.push(own);
+            owns.push(own.clone());
         }
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
@@ -525,25 +527,20 @@ fn section_candidates(
             best = Some((value, st.key, npv, pv_agency));
         }
         reads.uses(t, &mut u);
-        out.offers.push(Offer {
-            value,
-            uses: u.clone(),
-        });
+        out.offers.push(value, &u);
         out.strategy.push(st.key);
         out.npv.push(npv);
         out.pv_agency.push(pv_agency);
     }
     let mut widening = crate::appraise::best_by_widening_year(widening);
     crate::appraise::widening_returns(run, &sim, &strategies, &owns, &mut widening, d);
-    out.widening = widening
-        .into_iter()
-        .map(|w| WideningOption {
+    out.widening
+        .extend(widening.into_iter().map(|w| WideningOption {
             year: w.year,
             strategy: strategies[w.strategy].key,
             npv: w.npv,
             fyrr: w.fyrr,
-        })
-        .collect();
+        }));
     match best {
         Some((_, i, npv, pva)) => {
             out.unconstrained = Unconstrained {
@@ -580,7 +577,6 @@ fn section_candidates(
             }
         }
     }
-    out
 }
 
 /// What building a run's candidates will cost: (strategies, seconds, peak bytes), from the
@@ -690,7 +686,16 @@ pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {
     let mut problems = Vec::new();
     for sec in &run.network.sections {
         if let Some(h) = held.get(sec.id.as_str()) {
-            section_candidates(run, &e, &[], Objective::Npv, sec, Some(h), &mut problems);
+            section_candidates(
+                run,
+                &e,
+                &[],
+                Objective::Npv,
+                sec,
+                Some(h),
+                &mut problems,
+                &mut SectionCands::default(),
+            );
         }
     }
     for (place, found, expected) in problems {
@@ -741,8 +746,9 @@ pub fn candidates_with(
             .par_chunks(CHUNK)
             .map(|chunk| {
                 let mut k = Chunk::new(&limits);
+                let mut c = SectionCands::default();
                 for sec in chunk {
-                    let c = section_candidates(
+                    section_candidates(
                         run,
                         &e,
                         &rows,
@@ -750,6 +756,7 @@ pub fn candidates_with(
                         sec,
                         held.get(sec.id.as_str()),
                         &mut k.problems,
+                        &mut c,
                     );
                     progress.inc(1);
                     k.enumerated.push(c.enumerated);

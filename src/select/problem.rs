@@ -57,6 +57,78 @@ pub struct Offer {
     pub uses: Vec<(u16, i64)>,
 }
 
+/// A group's candidates as [`Problem::push_group`] reads them: each one's value and its (row,
+/// use) pairs.
+pub trait OfferList {
+    fn count(&self) -> usize;
+    fn value(&self, i: usize) -> f64;
+    fn uses(&self, i: usize) -> &[(u16, i64)];
+}
+
+impl OfferList for [Offer] {
+    fn count(&self) -> usize {
+        self.len()
+    }
+    fn value(&self, i: usize) -> f64 {
+        self[i].value
+    }
+    fn uses(&self, i: usize) -> &[(u16, i64)] {
+        &self[i].uses
+    }
+}
+
+impl OfferList for Vec<Offer> {
+    fn count(&self) -> usize {
+        self.len()
+    }
+    fn value(&self, i: usize) -> f64 {
+        self[i].value
+    }
+    fn uses(&self, i: usize) -> &[(u16, i64)] {
+        &self[i].uses
+    }
+}
+
+/// Offers kept in three flat buffers, refilled group after group without allocating.
+#[derive(Debug, Clone, Default)]
+pub struct Offers {
+    value: Vec<f64>,
+    start: Vec<usize>,
+    uses: Vec<(u16, i64)>,
+}
+
+impl Offers {
+    /// Empty, keeping the buffers.
+    pub fn clear(&mut self) {
+        self.value.clear();
+        self.start.clear();
+        self.uses.clear();
+    }
+
+    pub fn push(&mut self, value: f64, uses: &[(u16, i64)]) {
+        self.value.push(value);
+        self.start.push(self.uses.len());
+        self.uses.extend_from_slice(uses);
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.value.is_empty()
+    }
+}
+
+impl OfferList for Offers {
+    fn count(&self) -> usize {
+        self.value.len()
+    }
+    fn value(&self, i: usize) -> f64 {
+        self.value[i]
+    }
+    fn uses(&self, i: usize) -> &[(u16, i64)] {
+        let end = self.start.get(i + 1).copied().unwrap_or(self.uses.len());
+        &self.uses[self.start[i]..end]
+    }
+}
+
 impl Problem {
     /// A problem with these row limits and no groups yet. A limit whose magnitude passes
     /// [`MAX_ROW_TOTAL`] is refused when the first group is pushed (see [`Problem::check_limits`]).
@@ -147,19 +219,23 @@ impl Problem {
     /// value, no more use of any row, and better in one of them — or an exact duplicate of an
     /// earlier one) are dropped: no optimal plan needs them. Returns the positions, in `offers`,
     /// of the candidates kept, in their original order.
-    pub fn push_group(&mut self, offers: &[Offer]) -> Result<Vec<usize>, ProblemError> {
-        if offers.is_empty() {
+    pub fn push_group<L: OfferList + ?Sized>(
+        &mut self,
+        offers: &L,
+    ) -> Result<Vec<usize>, ProblemError> {
+        let n = offers.count();
+        if n == 0 {
             return Err(ProblemError::Empty);
         }
         let rows = self.rows();
         self.check_limits()?;
         // The group's own rows, densely, so that dominance is a comparison of short vectors.
         let mut touched: Vec<u16> = Vec::new();
-        for o in offers {
-            if !o.value.is_finite() {
+        for i in 0..n {
+            if !offers.value(i).is_finite() {
                 return Err(ProblemError::NotFinite);
             }
-            for &(r, u) in &o.uses {
+            for &(r, u) in offers.uses(i) {
                 if r as usize >= rows {
                     return Err(ProblemError::Row(r as usize));
                 }
@@ -173,9 +249,9 @@ impl Problem {
         }
         touched.sort_unstable();
         let w = touched.len();
-        let mut dense = vec![0i64; offers.len() * w];
-        for (i, o) in offers.iter().enumerate() {
-            for &(r, u) in &o.uses {
+        let mut dense = vec![0i64; n * w];
+        for i in 0..n {
+            for &(r, u) in offers.uses(i) {
                 let k = touched.binary_search(&r).unwrap_or(0);
                 let d = &mut dense[i * w + k];
                 *d = d
@@ -188,7 +264,7 @@ impl Problem {
         // anything is stored if a row would pass the supported total.
         let mut reach = Vec::with_capacity(w);
         for (k, &r) in touched.iter().enumerate() {
-            let most = (0..offers.len())
+            let most = (0..n)
                 .map(|i| dense[i * w + k].unsigned_abs())
                 .max()
                 .unwrap_or(0);
@@ -203,14 +279,14 @@ impl Problem {
         }
         // Highest value first (ties: original order), then each is kept unless an earlier kept
         // one dominates it.
-        let mut order: Vec<usize> = (0..offers.len()).collect();
-        order.sort_by(|&a, &b| offers[b].value.total_cmp(&offers[a].value).then(a.cmp(&b)));
+        let mut order: Vec<usize> = (0..n).collect();
+        order.sort_by(|&a, &b| offers.value(b).total_cmp(&offers.value(a)).then(a.cmp(&b)));
         let mut kept: Vec<usize> = Vec::new();
         for &i in &order {
             let row_i = &dense[i * w..(i + 1) * w];
             let dominated = kept.iter().any(|&k| {
                 let row_k = &dense[k * w..(k + 1) * w];
-                offers[k].value >= offers[i].value && row_k.iter().zip(row_i).all(|(a, b)| a <= b)
+                offers.value(k) >= offers.value(i) && row_k.iter().zip(row_i).all(|(a, b)| a <= b)
             });
             if !dominated {
                 kept.push(i);
@@ -221,7 +297,7 @@ impl Problem {
         }
         kept.sort_unstable();
         for &i in &kept {
-            self.value.push(offers[i].value);
+            self.value.push(offers.value(i));
             for (k, &r) in touched.iter().enumerate() {
                 let u = dense[i * w + k];
                 if u != 0 {

@@ -135,18 +135,23 @@ impl Trace {
     /// less, so the residual is entered there already discounted by that half year at `d`'s
     /// rate ([`Discounting::end_shift`]).
     pub fn flows(&self, d: &Discounting) -> Flows {
-        let mut agency: Vec<f64> = self
-            .capital
-            .iter()
-            .zip(&self.routine)
-            .map(|(a, b)| a + b)
-            .collect();
-        agency.push(-self.residual * d.end_shift());
-        let mut users: Vec<f64> = (0..self.capital.len())
-            .map(|i| self.operating[i] + self.time[i] + self.crashes[i] + self.delay[i])
-            .collect();
-        users.push(0.0);
-        Flows { agency, users }
+        let mut f = Flows::default();
+        self.flows_into(d, &mut f);
+        f
+    }
+
+    /// [`Trace::flows`] into `out`'s buffers.
+    pub fn flows_into(&self, d: &Discounting, out: &mut Flows) {
+        out.agency.clear();
+        out.agency
+            .extend(self.capital.iter().zip(&self.routine).map(|(a, b)| a + b));
+        out.agency.push(-self.residual * d.end_shift());
+        out.users.clear();
+        out.users.extend(
+            (0..self.capital.len())
+                .map(|i| self.operating[i] + self.time[i] + self.crashes[i] + self.delay[i]),
+        );
+        out.users.push(0.0);
     }
 }
 
