@@ -9,5 +9,6 @@ pub mod frontier;
 pub mod held;
 pub mod risk;
 pub mod sensitivity;
+pub mod sobol;
 pub mod stats;
 pub mod vary;

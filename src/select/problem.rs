@@ -77,6 +77,18 @@ impl OfferList for [Offer] {
     }
 }
 
+impl<const N: usize> OfferList for [Offer; N] {
+    fn count(&self) -> usize {
+        N
+    }
+    fn value(&self, i: usize) -> f64 {
+        self[i].value
+    }
+    fn uses(&self, i: usize) -> &[(u16, i64)] {
+        &self[i].uses
+    }
+}
+
 impl OfferList for Vec<Offer> {
     fn count(&self) -> usize {
         self.len()
