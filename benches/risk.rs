@@ -9,7 +9,7 @@
 //! network sizes (default `10000`); the demo is always measured. Best of three rounds.
 
 use pavestrat::analysis::held::HeldPlan;
-use pavestrat::analysis::risk::simulate;
+use pavestrat::analysis::risk::{simulate, Sampling};
 use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
 use pavestrat::input::{self, network, scenario, Run};
@@ -54,7 +54,16 @@ fn measure(label: &str, run: &Run, draws: u64) {
     let mut best = f64::INFINITY;
     for _ in 0..3 {
         let t = Instant::now();
-        let s = simulate(run, &held, 2027, 0, draws, &Progress::none()).expect("the demo's rows");
+        let s = simulate(
+            run,
+            &held,
+            2027,
+            Sampling::Random,
+            0,
+            draws,
+            &Progress::none(),
+        )
+        .expect("the demo's rows");
         best = best.min(t.elapsed().as_secs_f64());
         assert_eq!(s.draws, draws);
     }

@@ -193,6 +193,70 @@ fn same_seed_same_files_with_any_threads_and_as_merged_slices() {
 }
 
 #[test]
+fn sobol_draws_merge_exactly_and_measure_their_precision() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--time-limit", "1"])
+        .expect_code(0);
+    let risk = |dir: &str, extra: &[&str], threads: &str| {
+        let mut args = vec!["-q", "risk", "--from", "p", "--out", dir, "--seed", "7"];
+        args.extend_from_slice(extra);
+        wd.run_env(&args, &[("RAYON_NUM_THREADS", threads)])
+            .expect_code(0);
+    };
+    let sobol = ["--sampling", "sobol"];
+    risk("whole", &[&sobol[..], &["--draws", "24"]].concat(), "2");
+    risk("a", &[&sobol[..], &["--draws", "10"]].concat(), "1");
+    risk(
+        "b",
+        &[&sobol[..], &["--first-draw", "10", "--draws", "14"]].concat(),
+        "2",
+    );
+    wd.run(&["-q", "risk", "--merge", "b", "a", "--out", "merged"])
+        .expect_code(0);
+    for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
+        assert_eq!(
+            std::fs::read(wd.join(&format!("whole/{f}"))).unwrap(),
+            std::fs::read(wd.join(&format!("merged/{f}"))).unwrap(),
+            "{f}: a whole Sobol' run and its merged slices differ"
+        );
+    }
+    risk("r", &["--first-draw", "10", "--draws", "14"], "2");
+    wd.run(&["risk", "--merge", "a", "r"])
+        .expect_code(2)
+        .stderr_has("--sampling");
+    // 256 draws each way: the standard errors from the replicate groups. With independent
+    // draws the mean's is close to the classical sd/√n; Sobol' points estimate the mean more
+    // precisely on this smooth a quantity.
+    let plan_row = |dir: &str| {
+        rows(&wd.read(&format!("{dir}/risk.csv")))
+            .into_iter()
+            .find(|r| r["kind"] == "plan")
+            .unwrap()
+    };
+    risk("r256", &["--draws", "256"], "2");
+    risk("s256", &[&sobol[..], &["--draws", "256"]].concat(), "2");
+    let num =
+        |r: &std::collections::HashMap<String, String>, k: &str| -> f64 { r[k].parse().unwrap() };
+    let (r, q) = (plan_row("r256"), plan_row("s256"));
+    let classical = num(&r, "sd") / 16.0;
+    let batch = num(&r, "se_mean");
+    assert!(
+        batch > 0.4 * classical && batch < 2.0 * classical,
+        "random draws: batch SE {batch} against sd/√n {classical}"
+    );
+    assert!(
+        num(&q, "se_mean") < batch,
+        "Sobol' SE {} not below the random draws' {batch}",
+        num(&q, "se_mean")
+    );
+    for k in ["se_p10", "se_p50", "se_p90"] {
+        assert!(num(&q, k) > 0.0 && num(&r, k) > 0.0, "{k}");
+    }
+    // Below 16 draws there is no precision to report: the columns are empty.
+    assert_eq!(plan_row("a")["se_p50"], "");
+}
+
+#[test]
 fn risk_summaries_are_consistent_with_the_draws() {
     let wd = Workdir::new();
     wd.run(&["-q", "plan", "--out", "p", "--time-limit", "1"])

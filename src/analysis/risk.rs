@@ -12,6 +12,19 @@
 //! apart can be merged into exactly the results of one whole run: the statistics are computed
 //! from the draws in draw order, which merging restores.
 //!
+//! Sampling ([`Sampling`]): independent pseudo-random draws, or quasi-random ones — randomised
+//! Sobol' points ([`crate::analysis::sobol`]), each input drawn by its inverse distribution
+//! function from one coordinate. Quasi-random draws come in [`REPLICATES`] interleaved
+//! replicates (draw k belongs to replicate k mod 8 and is point ⌊k/8⌋ of it), each with its own
+//! random digital shift, so that the replicates are independent and their spread measures the
+//! precision; like pseudo-random draws, draw k depends on the seed and k alone.
+//!
+//! Precision: the standard errors of the mean and of P10/P50/P90 from the spread of the same
+//! statistic over the [`REPLICATES`] replicate groups (draw k in group k mod 8; for pseudo-random
+//! draws the groups are independent too): SE = sd of the group values / √8. With independent
+//! draws this is a batch estimate of the usual standard error; with quasi-random draws it is the
+//! honest one (the draws within a replicate are not independent).
+//!
 //! Statistics: mean, standard deviation, and the 10th, 50th and 90th percentiles by linear
 //! interpolation between order statistics (the definition numpy and most spreadsheets use by
 //! default); the probability that NPV is above zero, that a strategy is its section's best (the
@@ -82,10 +95,39 @@ impl Layout {
     }
 }
 
+/// How draws are made.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Sampling {
+    /// Independent pseudo-random draws (one SplitMix64 stream per draw).
+    #[default]
+    Random,
+    /// Randomised Sobol' points in [`REPLICATES`] interleaved replicates.
+    Sobol,
+}
+
+impl Sampling {
+    pub fn name(self) -> &'static str {
+        match self {
+            Sampling::Random => "random",
+            Sampling::Sobol => "sobol",
+        }
+    }
+
+    fn is_random(&self) -> bool {
+        *self == Sampling::Random
+    }
+}
+
+/// Replicate groups of the draws, for the precision of the statistics (and, with Sobol'
+/// sampling, the independently shifted sequences).
+pub const REPLICATES: u64 = 8;
+
 /// The raw results of draws `first .. first + draws` of a run seeded `seed`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Slice {
     pub seed: u64,
+    pub sampling: Sampling,
     pub first: u64,
     pub draws: u64,
     pub layout: Layout,
@@ -163,8 +205,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
 }
 
 /// Compute one draw into `out` (length [`Layout::width`]).
-fn draw(run: &Run, held: &HeldPlan, rows: &[Row], seed: u64, k: u64, out: &mut [f64]) {
-    let values = sample(run, seed, k);
+fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &mut [f64]) {
     let v = crate::analysis::vary::apply(run, &values);
     let d = v.discounting();
     let y0 = run.scenario.base_year;
@@ -317,13 +358,46 @@ impl<'a> Linear<'a> {
 }
 
 /// The sampled values of draw `k`.
-fn sample(run: &Run, seed: u64, k: u64) -> Vec<(&str, f64)> {
-    let mut rng = stream(seed, k);
-    run.scenario
-        .uncertain
-        .iter()
-        .map(|u| (u.input.as_str(), u.distribution.sample(&mut rng)))
-        .collect()
+fn sample(run: &Run, seed: u64, sampling: Sampling, k: u64) -> Vec<(&str, f64)> {
+    let inputs = &run.scenario.uncertain;
+    match sampling {
+        Sampling::Random => {
+            let mut rng = stream(seed, k);
+            inputs
+                .iter()
+                .map(|u| (u.input.as_str(), u.distribution.sample(&mut rng)))
+                .collect()
+        }
+        Sampling::Sobol => {
+            let (replicate, point) = (k % REPLICATES, k / REPLICATES);
+            // The replicate's random digital shift: one 32-bit word per input, from a stream
+            // of its own (numbered past every draw's).
+            let mut shift = stream(seed ^ 0x5EED_50B0_1000_0000, replicate);
+            inputs
+                .iter()
+                .enumerate()
+                .map(|(j, u)| {
+                    let bits = crate::analysis::sobol::coordinate(point, j)
+                        ^ (shift.next_u64() >> 32) as u32;
+                    let p = (f64::from(bits) + 0.5) / 4_294_967_296.0;
+                    (u.input.as_str(), u.distribution.quantile(p))
+                })
+                .collect()
+        }
+    }
+}
+
+/// Whether `sampling` can draw the scenario's uncertain inputs (Sobol' points have
+/// [`crate::analysis::sobol::MAX_DIMENSIONS`] coordinates).
+pub fn check_sampling(run: &Run, sampling: Sampling) -> Result<()> {
+    let n = run.scenario.uncertain.len();
+    let most = crate::analysis::sobol::MAX_DIMENSIONS;
+    if sampling == Sampling::Sobol && n > most {
+        return Err(Error::Usage(format!(
+            "--sampling sobol: the scenario has {n} uncertain inputs; expected at most {most} (one Sobol' coordinate each), or --sampling random"
+        )));
+    }
+    Ok(())
 }
 
 /// Run draws `first .. first + draws`. When every uncertain input only scales money (the cost
@@ -333,10 +407,12 @@ pub fn simulate(
     run: &Run,
     held: &HeldPlan,
     seed: u64,
+    sampling: Sampling,
     first: u64,
     draws: u64,
     progress: &Progress,
 ) -> Result<Slice, crate::error::Error> {
+    check_sampling(run, sampling)?;
     let layout = layout(run, held)?;
     let width = layout.width();
     let rows = budget_rows(run)?;
@@ -347,16 +423,18 @@ pub fn simulate(
         .enumerate()
         .for_each(|(i, out)| {
             let k = first + i as u64;
+            let values = sample(run, seed, sampling, k);
             let done = linear
                 .as_ref()
-                .is_some_and(|l| l.draw(run, held, &rows, &sample(run, seed, k), out));
+                .is_some_and(|l| l.draw(run, held, &rows, &values, out));
             if !done {
-                draw(run, held, &rows, seed, k, out);
+                draw(run, held, &rows, &values, out);
             }
             progress.inc(1);
         });
     Ok(Slice {
         seed,
+        sampling,
         first,
         draws,
         layout,
@@ -369,6 +447,9 @@ const MAGIC: &[u8] = b"PAVESTRAT-RISK-SLICE 1\n";
 #[derive(serde::Serialize, serde::Deserialize)]
 struct Header {
     seed: u64,
+    /// Left out for pseudo-random draws (the files from before quasi-random draws existed).
+    #[serde(default, skip_serializing_if = "Sampling::is_random")]
+    sampling: Sampling,
     first: u64,
     draws: u64,
     layout: Layout,
@@ -379,6 +460,7 @@ impl Slice {
     pub fn to_bytes(&self) -> Vec<u8> {
         let header = Header {
             seed: self.seed,
+            sampling: self.sampling,
             first: self.first,
             draws: self.draws,
             layout: self.layout.clone(),
@@ -439,6 +521,7 @@ impl Slice {
             .collect();
         Ok(Slice {
             seed: h.seed,
+            sampling: h.sampling,
             first: h.first,
             draws: h.draws,
             layout: h.layout,
@@ -462,6 +545,13 @@ pub fn merge(mut parts: Vec<(String, Slice)>) -> Result<Slice> {
                 s.seed, first.seed
             )));
         }
+        if s.sampling != first.sampling {
+            return Err(Error::Usage(format!(
+                "--merge: {name} was drawn with --sampling {} and {name0} with --sampling {}; expected slices of one run",
+                s.sampling.name(),
+                first.sampling.name()
+            )));
+        }
         if s.layout != first.layout {
             return Err(Error::Usage(format!(
                 "--merge: {name} and {name0} differ in their scenario, network, plan or uncertain inputs; expected slices of one run (give every slice the same --scenario and --from)"
@@ -483,6 +573,7 @@ pub fn merge(mut parts: Vec<(String, Slice)>) -> Result<Slice> {
     }
     Ok(Slice {
         seed: first.seed,
+        sampling: first.sampling,
         first: first.first,
         draws: next - first.first,
         layout: first.layout.clone(),
@@ -534,6 +625,48 @@ pub fn stats(values: &[f64]) -> Stats {
     }
 }
 
+/// Standard errors of [`Stats`]' mean and percentiles, from the [`REPLICATES`] groups of the
+/// draws (see the module's notes); NaN when a group has fewer than two draws.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Precision {
+    pub mean: f64,
+    pub p10: f64,
+    pub p50: f64,
+    pub p90: f64,
+}
+
+/// The precision of the statistics of `values`, the draws numbered from `first` in order: each
+/// statistic computed on every replicate group (draw k in group k mod [`REPLICATES`]), and the
+/// sample standard deviation of the group values over √[`REPLICATES`].
+pub fn precision(values: &[f64], first: u64) -> Precision {
+    let r = REPLICATES as usize;
+    let mut groups: Vec<Vec<f64>> = vec![Vec::with_capacity(values.len() / r + 1); r];
+    for (i, x) in values.iter().enumerate() {
+        groups[((first + i as u64) % REPLICATES) as usize].push(*x);
+    }
+    if groups.iter().any(|g| g.len() < 2) {
+        return Precision {
+            mean: f64::NAN,
+            p10: f64::NAN,
+            p50: f64::NAN,
+            p90: f64::NAN,
+        };
+    }
+    let st: Vec<Stats> = groups.iter().map(|g| stats(g)).collect();
+    let se = |f: fn(&Stats) -> f64| {
+        let xs: Vec<f64> = st.iter().map(f).collect();
+        let m = xs.iter().sum::<f64>() / r as f64;
+        let var = xs.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (r as f64 - 1.0);
+        (var / r as f64).sqrt()
+    };
+    Precision {
+        mean: se(|s| s.mean),
+        p10: se(|s| s.p10),
+        p50: se(|s| s.p50),
+        p90: se(|s| s.p90),
+    }
+}
+
 impl Slice {
     fn column(&self, j: usize) -> Vec<f64> {
         let w = self.layout.width();
@@ -549,9 +682,10 @@ impl Slice {
     }
 
     /// `risk.csv`: `kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,
-    /// prob_best,prob_over,draws,in_plan` — `strategy` rows (every strategy of every section: its
-    /// NPV; `in_plan` true for the plan's),
-    /// one `plan` row (the network plan's NPV) and `budget` rows (each line's spending by the plan).
+    /// prob_best,prob_over,draws,in_plan,se_mean,se_p10,se_p50,se_p90` — `strategy` rows (every
+    /// strategy of every section: its NPV; `in_plan` true for the plan's), one `plan` row (the
+    /// network plan's NPV) and `budget` rows (each line's spending by the plan); the `se_`
+    /// columns are the standard errors of [`precision`] (empty below 16 draws).
     pub fn csv(&self) -> String {
         use crate::output::format::{Amount, Field};
         use std::fmt::Write as _;
@@ -559,8 +693,22 @@ impl Slice {
         let w = l.width();
         let n = self.draws as usize;
         let mut s = String::from(
-            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws,in_plan\n",
+            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws,in_plan,se_mean,se_p10,se_p50,se_p90\n",
         );
+        // The standard errors, empty when there are too few draws for them.
+        let se = |col: &[f64]| {
+            let p = precision(col, self.first);
+            [p.mean, p.p10, p.p50, p.p90]
+                .iter()
+                .map(|x| {
+                    if x.is_finite() {
+                        format!(",{}", Amount(*x))
+                    } else {
+                        ",".to_owned()
+                    }
+                })
+                .collect::<String>()
+        };
         let frac = |c: usize| format!("{:.6}", c as f64 / n.max(1) as f64);
         // Each section's best strategy in each draw.
         let mut at = 0;
@@ -581,7 +729,7 @@ impl Slice {
                 let st = stats(&col);
                 let _ = writeln!(
                     s,
-                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n},{}",
+                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n},{}{}",
                     Field(&l.sections[g]),
                     Field(name),
                     Amount(st.mean),
@@ -591,7 +739,8 @@ impl Slice {
                     Amount(st.p90),
                     frac(col.iter().filter(|x| **x > 0.0).count()),
                     frac(best[i]),
-                    l.plan[g] == i
+                    l.plan[g] == i,
+                    se(&col)
                 );
             }
             at += names.len();
@@ -600,13 +749,14 @@ impl Slice {
         let st = stats(&net);
         let _ = writeln!(
             s,
-            "plan,,,,,{},{},{},{},{},{},,,{n},",
+            "plan,,,,,{},{},{},{},{},{},,,{n},{}",
             Amount(st.mean),
             Amount(st.sd),
             Amount(st.p10),
             Amount(st.p50),
             Amount(st.p90),
-            frac(net.iter().filter(|x| **x > 0.0).count())
+            frac(net.iter().filter(|x| **x > 0.0).count()),
+            se(&net)
         );
         for (j, line) in l.lines.iter().enumerate() {
             let col = self.column(at + 1 + j);
@@ -614,7 +764,7 @@ impl Slice {
             let limit = l.limits[j];
             let _ = writeln!(
                 s,
-                "budget,,,{},{},{},{},{},{},{},,,{},{n},",
+                "budget,,,{},{},{},{},{},{},{},,,{},{n},{}",
                 Field(line),
                 Amount(limit),
                 Amount(st.mean),
@@ -622,7 +772,8 @@ impl Slice {
                 Amount(st.p10),
                 Amount(st.p50),
                 Amount(st.p90),
-                frac(col.iter().filter(|x| **x > limit + 0.005).count())
+                frac(col.iter().filter(|x| **x > limit + 0.005).count()),
+                se(&col)
             );
         }
         s
@@ -683,8 +834,14 @@ mod tests {
         let width = layout(&run, &held).unwrap().width();
         let (mut a, mut b) = (vec![0.0; width], vec![0.0; width]);
         for k in 0..12 {
-            assert!(linear.draw(&run, &held, &rows, &sample(&run, 5, k), &mut a));
-            draw(&run, &held, &rows, 5, k, &mut b);
+            let sampling = if k % 2 == 0 {
+                Sampling::Random
+            } else {
+                Sampling::Sobol
+            };
+            let values = sample(&run, 5, sampling, k);
+            assert!(linear.draw(&run, &held, &rows, &values, &mut a));
+            draw(&run, &held, &rows, &values, &mut b);
             for (i, (x, y)) in a.iter().zip(&b).enumerate() {
                 assert!(
                     (x - y).abs() <= 1e-9 * (1.0 + y.abs()) + 0.011,
@@ -727,6 +884,7 @@ mod tests {
         assert!(layout.consistent().is_ok());
         let slice = Slice {
             seed: 1,
+            sampling: Sampling::Random,
             first: 0,
             draws: 1,
             values: vec![0.0; layout.width()],
