@@ -9,12 +9,16 @@ row of `risk.csv` from them:
 - `strategy` rows: mean, sd, P10/P50/P90 of NPV, the share of draws with NPV > 0, and the share in
   which the strategy is its section's best (numpy.argmax: the first of equal maxima);
 - the `plan` row: the same statistics of the plan's NPV;
-- `budget` rows: the statistics of each line's spending and the share of draws above the limit.
+- `budget` rows: the statistics of each line's spending and the share of draws above the limit;
+- on every row, the standard errors `se_mean,se_p10,se_p50,se_p90`: the draws split into 8
+  groups by draw number mod 8, the statistic on each group (numpy), and numpy.std(ddof=1) of the
+  8 values over √8 (empty when a group has fewer than two draws).
 Money in risk.csv is written to the cent, so amounts must agree within a cent (plus 1e-9
 relative); shares exactly to their 6 decimals. It also checks that `risk_draws.csv` holds the
 same plan NPVs to the cent.
 
-Usage: python3 check_risk.py PATH/TO/pavestrat WORKDIR DRAWS SEED [SECTIONS]
+Usage: python3 check_risk.py PATH/TO/pavestrat WORKDIR DRAWS SEED [SECTIONS] [SAMPLING]
+(SECTIONS 0 for the demo; SAMPLING random or sobol.)
 Prints what it checked and closes with "N passed, M failed"; exits 1 on any failure.
 """
 
@@ -42,15 +46,16 @@ def run(exe, *args, cwd):
 
 def main():
     exe, work, draws, seed = os.path.abspath(sys.argv[1]), sys.argv[2], sys.argv[3], sys.argv[4]
-    sections = sys.argv[5] if len(sys.argv) > 5 else None
+    sections = sys.argv[5] if len(sys.argv) > 5 and sys.argv[5] != "0" else None
+    sampling = sys.argv[6] if len(sys.argv) > 6 else "random"
     os.makedirs(work, exist_ok=True)
     scen = []
     if sections:
         run(exe, "init", "net", "--sections", sections, "--seed", seed, cwd=work)
         scen = ["--scenario", "net/scenario.toml"]
     run(exe, "plan", *scen, "--out", "res", "--time-limit", "3", cwd=work)
-    run(exe, "risk", *scen, "--from", "res", "--draws", draws, "--seed", seed, "--out", "res",
-        cwd=work)
+    run(exe, "risk", *scen, "--from", "res", "--draws", draws, "--seed", seed,
+        "--sampling", sampling, "--out", "res", cwd=work)
     out = os.path.join(work, "res")
     blob = open(os.path.join(out, "risk_slice.bin"), "rb").read()
     assert blob.startswith(MAGIC), "risk_slice.bin starts with its magic line"
@@ -59,6 +64,8 @@ def main():
     head = json.loads(rest[:nl])
     layout = head["layout"]
     n = head["draws"]
+    first = head["first"]
+    assert head.get("sampling", "random") == sampling, "the slice records its sampling"
     width = sum(len(s) for s in layout["strategies"]) + 1 + len(layout["lines"])
     values = np.frombuffer(rest[nl + 1:], dtype="<f8").reshape(n, width)
     rows = read_csv(os.path.join(out, "risk.csv"))
@@ -81,11 +88,27 @@ def main():
             failed += 1
             print(f"FAIL {what}: risk.csv {got}, numpy {want:.6f}")
 
+    group = (first + np.arange(n)) % 8
+
     def stats(row, col, what):
+        nonlocal passed, failed
         money(row["mean"], float(np.mean(col)), what + " mean")
         money(row["sd"], float(np.std(col, ddof=1)) if len(col) > 1 else 0.0, what + " sd")
         for q, key in [(10, "p10"), (50, "p50"), (90, "p90")]:
             money(row[key], float(np.percentile(col, q)), f"{what} {key}")
+        parts = [col[group == r] for r in range(8)]
+        for key, f in [("se_mean", np.mean), ("se_p10", lambda x: np.percentile(x, 10)),
+                       ("se_p50", lambda x: np.percentile(x, 50)),
+                       ("se_p90", lambda x: np.percentile(x, 90))]:
+            if min(len(p) for p in parts) < 2:
+                if row[key] == "":
+                    passed += 1
+                else:
+                    failed += 1
+                    print(f"FAIL {what} {key}: {row[key]} where too few draws leave it empty")
+                continue
+            vals = np.array([float(f(p)) for p in parts])
+            money(row[key], float(np.std(vals, ddof=1) / np.sqrt(8.0)), f"{what} {key}")
 
     strategy_rows = [r for r in rows if r["kind"] == "strategy"]
     at = 0
@@ -120,7 +143,7 @@ def main():
     draws_csv = read_csv(os.path.join(out, "risk_draws.csv"))
     for d, r in enumerate(draws_csv):
         money(r["plan_npv"], float(values[d, at]), f"draw {d} plan NPV")
-    print(f"risk cross-check: {n} draws, {len(strategy_rows)} strategies, "
+    print(f"risk cross-check ({sampling} sampling): {n} draws, {len(strategy_rows)} strategies, "
           f"{len(layout['lines'])} budget lines")
     print(f"{passed} passed, {failed} failed")
     sys.exit(1 if failed else 0)
