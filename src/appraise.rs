@@ -125,6 +125,9 @@ pub fn capital_ratios(npv: f64, capital: f64) -> (Option<f64>, Option<f64>) {
 pub enum IrrScope {
     /// Every strategy's and every incremental step's.
     Every,
+    /// Every strategy's own (against the base), not the incremental steps' (what the workbook
+    /// shows).
+    Own,
     /// The preferred strategy's only (what a summary shows).
     Preferred,
     /// None (`--no-irr`).
@@ -196,7 +199,12 @@ pub fn section(
         }
         owns.push(own);
     }
-    let incremental = analyse_with(&alternatives, d, irr == IrrScope::Every);
+    let incremental = analyse_with(
+        &alternatives,
+        d,
+        matches!(irr, IrrScope::Every | IrrScope::Own),
+        irr == IrrScope::Every,
+    );
     let position: HashMap<&str, usize> = partial
         .iter()
         .enumerate()

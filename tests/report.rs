@@ -583,6 +583,27 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
         .filter(|r| matches!(r[13], Data::Bool(true)))
         .count();
     assert_eq!(best, 40, "one best strategy per demo section");
+    // Each strategy's IRR and its status are appraise's (the workbook looks for each
+    // strategy's own IRR, not the incremental steps').
+    let wd = Workdir::new();
+    wd.run(&["-q", "appraise", "--out", "a"]).expect_code(0);
+    let appraisal = rows(&wd.read("a/appraisal.csv"));
+    let sheet: Vec<_> = ws.rows().skip(1).collect();
+    assert_eq!(sheet.len(), appraisal.len());
+    for (r, a) in sheet.iter().zip(&appraisal) {
+        assert_eq!(r[1].to_string(), a["strategy"]);
+        assert_eq!(r[10].to_string(), a["irr_status"], "{}", a["strategy"]);
+        match &r[9] {
+            Data::Float(x) => assert!(
+                (x - a["irr"].parse::<f64>().unwrap()).abs() < 5e-7,
+                "{} irr {x} against {}",
+                a["strategy"],
+                a["irr"]
+            ),
+            Data::Empty => assert_eq!(a["irr"], "", "{}", a["strategy"]),
+            other => panic!("irr is {other:?}"),
+        }
+    }
 }
 
 /// The report in a real browser (`PAVESTRAT_BROWSER=/usr/bin/chromium`, as `.ci/run` sets it):

@@ -281,7 +281,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
 fn workbook(run: &Run, plan: &pavestrat::plan::Plan) -> Result<Vec<u8>> {
     let appraisal = {
         let secs: Vec<_> = run.network.sections.iter().collect();
-        pavestrat::appraise::network(run, &secs, false, pavestrat::appraise::IrrScope::Every)
+        // The sheet shows each strategy's own IRR, not the incremental steps'.
+        pavestrat::appraise::network(run, &secs, false, pavestrat::appraise::IrrScope::Own)
     };
     pavestrat::output::xlsx::plan_bytes(run, plan, &appraisal)
 }

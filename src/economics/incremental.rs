@@ -49,14 +49,16 @@ const TIE: f64 = 1e-9;
 ///
 /// Ties in PV of cost are ordered by name, so the chain is the same on every run.
 pub fn analyse(alternatives: &[(String, Stream)], d: &Discounting) -> Analysis {
-    analyse_with(alternatives, d, true)
+    analyse_with(alternatives, d, true, true)
 }
 
-/// [`analyse`], with IRRs (each alternative's and each step's) looked for only when `with_irr`.
+/// [`analyse`], with each alternative's own IRR looked for only when `own_irr`, and each
+/// incremental step's only when `step_irr`.
 pub fn analyse_with(
     alternatives: &[(String, Stream)],
     d: &Discounting,
-    with_irr: bool,
+    own_irr: bool,
+    step_irr: bool,
 ) -> Analysis {
     let mut ranked: Vec<(Ranked, &Stream)> = alternatives
         .iter()
@@ -64,7 +66,7 @@ pub fn analyse_with(
             (
                 Ranked {
                     name: n.clone(),
-                    indicators: appraise_with(s, d, with_irr),
+                    indicators: appraise_with(s, d, own_irr),
                 },
                 s,
             )
@@ -107,7 +109,7 @@ pub fn analyse_with(
             d_pv_costs: dc,
             d_npv,
             d_bcr: bcr(db, dc),
-            d_irr: if with_irr {
+            d_irr: if step_irr {
                 irr(&inc.net())
             } else {
                 Irr::Skipped
