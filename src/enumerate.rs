@@ -12,7 +12,7 @@
 use crate::input::network::{Carriageway, Section};
 use crate::input::templates::{StepTiming, Template};
 use crate::input::treatments::{Action, Catalogue};
-use std::collections::HashSet;
+use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};
 
 /// FNV-1a: a fast hash for the short names of one section's strategies (the set is local and
@@ -224,8 +224,10 @@ impl<'a> Enumerator<'a> {
     /// Every strategy of `section`, the base first, then templates in order; names unique.
     pub fn strategies(&self, section: &Section) -> Vec<Strategy> {
         let mut out = vec![Strategy::base()];
-        let mut names: HashSet<String, BuildHasherDefault<Fnv>> = HashSet::default();
-        names.insert(BASE.to_owned());
+        // Each name's hash and the first strategy with it: a name is taken when a strategy
+        // with that hash has that name (hashes that collide are told apart by a scan).
+        let mut names: HashMap<u64, usize, BuildHasherDefault<Fnv>> = HashMap::default();
+        names.insert(name_hash(BASE), 0);
         let mut name = String::new();
         for c in &self.compiled {
             if !feasible(c.template, section) {
@@ -240,10 +242,15 @@ impl<'a> Enumerator<'a> {
             for works in &timed {
                 for (t, thr) in thresholds.iter().enumerate() {
                     self.name_into(c, works, *thr, &mut name);
-                    if names.contains(name.as_str()) {
-                        continue;
+                    let h = name_hash(&name);
+                    match names.get(&h) {
+                        Some(&i) if out[i].name == name => continue,
+                        Some(_) if out.iter().any(|s| s.name == name) => continue,
+                        Some(_) => {}
+                        None => {
+                            names.insert(h, out.len());
+                        }
                     }
-                    names.insert(name.clone());
                     let key = Self::key_of(c, works, thr.map(|_| t));
                     out.push(self.build(c, key, works.clone(), name.clone()));
                 }
@@ -396,7 +403,9 @@ impl<'a> Enumerator<'a> {
             if !out.is_empty() {
                 out.push('+');
             }
-            let _ = write!(out, "{tag}@{}", self.base_year + w.year as i32);
+            out.push_str(tag);
+            out.push('@');
+            push_year(out, i64::from(self.base_year) + i64::from(w.year));
         }
         if let (Some(thr), Some((_, tag, _))) = (threshold, c.trigger) {
             if !out.is_empty() {
@@ -404,6 +413,35 @@ impl<'a> Enumerator<'a> {
             }
             let _ = write!(out, "{tag}@iri{thr}");
         }
+    }
+}
+
+/// The hash [`Enumerator::strategies`] tells names apart by.
+fn name_hash(name: &str) -> u64 {
+    let mut h = Fnv::default();
+    h.write(name.as_bytes());
+    h.finish()
+}
+
+/// `y` in decimal, as `{}` writes it, without the formatting machinery (the enumeration's
+/// hottest text).
+fn push_year(out: &mut String, y: i64) {
+    if y < 0 {
+        out.push('-');
+    }
+    let mut digits = [0u8; 20];
+    let mut n = y.unsigned_abs();
+    let mut i = digits.len();
+    loop {
+        i -= 1;
+        digits[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    for &d in &digits[i..] {
+        out.push(char::from(d));
     }
 }
 
@@ -422,7 +460,28 @@ pub fn feasible(t: &Template, s: &Section) -> bool {
 mod tests {
     use super::*;
     use crate::diag::Diagnostics;
+    use std::collections::HashSet;
     use std::path::Path;
+
+    #[test]
+    fn years_are_written_as_format_writes_them() {
+        for y in [
+            -10_000i64,
+            -1,
+            0,
+            7,
+            10,
+            99,
+            2027,
+            12_345,
+            i64::from(i32::MAX),
+            i64::MIN + 1,
+        ] {
+            let mut s = String::from("x@");
+            push_year(&mut s, y);
+            assert_eq!(s, format!("x@{y}"));
+        }
+    }
 
     fn demo() -> crate::input::Run {
         let (run, d) = crate::input::load(&crate::demo::SOURCE, Path::new(crate::demo::SCENARIO));
