@@ -404,6 +404,8 @@ struct SectionCands {
     base_pv_agency: f64,
     /// Each widening year's best strategy, whatever the commitments (for the widening table).
     widening: Vec<WideningOption>,
+    /// Commitments no strategy keeps: (place, what was found, what was expected), added to.
+    problems: Vec<(Place, String, String)>,
 }
 
 /// The candidates of one parallel chunk of sections, in network order, before they join the
@@ -459,7 +461,6 @@ fn section_candidates(
     objective: Objective,
     sec: &Section,
     held: Option<&Vec<&crate::input::plan::Commitment>>,
-    problems: &mut Vec<(Place, String, String)>,
     out: &mut SectionCands,
 ) {
     let s = &run.scenario;
@@ -561,7 +562,7 @@ fn section_candidates(
                     ),
                 };
                 let names: Vec<&str> = strategies.iter().take(6).map(|s| s.name.as_str()).collect();
-                problems.push((
+                out.problems.push((
                     c.place.clone().with_subfield(field),
                     format!(
                         "{what}, which no strategy of section `{}` gives{}",
@@ -683,22 +684,13 @@ pub fn commitment_problems(run: &Run, d: &mut Diagnostics) {
         return;
     }
     let e = Enumerator::for_run(run);
-    let mut problems = Vec::new();
+    let mut c = SectionCands::default();
     for sec in &run.network.sections {
         if let Some(h) = held.get(sec.id.as_str()) {
-            section_candidates(
-                run,
-                &e,
-                &[],
-                Objective::Npv,
-                sec,
-                Some(h),
-                &mut problems,
-                &mut SectionCands::default(),
-            );
+            section_candidates(run, &e, &[], Objective::Npv, sec, Some(h), &mut c);
         }
     }
-    for (place, found, expected) in problems {
+    for (place, found, expected) in c.problems {
         d.error(place, found, expected);
     }
 }
@@ -755,9 +747,9 @@ pub fn candidates_with(
                         settings.objective,
                         sec,
                         held.get(sec.id.as_str()),
-                        &mut k.problems,
                         &mut c,
                     );
+                    k.problems.append(&mut c.problems);
                     progress.inc(1);
                     k.enumerated.push(c.enumerated);
                     k.unconstrained.push(c.unconstrained);

@@ -206,7 +206,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
 
 /// Compute one draw into `out` (length [`Layout::width`]).
 fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &mut [f64]) {
-    let v = crate::analysis::vary::apply(run, &values);
+    let v = crate::analysis::vary::apply(run, values);
     let d = v.discounting();
     let y0 = run.scenario.base_year;
     let nstrat: usize = held.strategies.iter().map(Vec::len).sum();
