@@ -51,6 +51,7 @@ pub mod progress;
 pub mod resources;
 pub mod select;
 pub mod simulate;
+pub mod stats;
 pub mod text;
 
 /// The caution printed by `--help`, by every report and in the README.

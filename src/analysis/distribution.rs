@@ -1,4 +1,5 @@
-//! Probability distributions of uncertain inputs, their closed-form moments, and the random
+//! Draws from the distributions of uncertain inputs ([`Distribution`], as `input::uncertain`
+//! reads them): sampling, the inverse distribution function, closed-form moments, and the random
 //! streams the draws come from.
 //!
 //! Streams: every Monte Carlo draw has its own generator, SplitMix64 (Steele, Lea & Flood,
@@ -15,8 +16,9 @@
 //! A distribution with no spread (min = max, or a zero standard deviation) gives its central
 //! value exactly.
 
-use crate::analysis::stats::{normal_cdf, normal_quantile};
 use crate::demo::synth::SplitMix64;
+use crate::input::uncertain::Distribution;
+use crate::stats::{normal_cdf, normal_quantile};
 
 /// The random stream of draw `draw` of a run seeded `seed`.
 pub fn stream(seed: u64, draw: u64) -> SplitMix64 {
@@ -182,80 +184,7 @@ fn beta_quantile(a: f64, b: f64, u: f64) -> f64 {
     0.5 * (lo + hi)
 }
 
-/// The distribution of one uncertain input.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Distribution {
-    Uniform {
-        min: f64,
-        max: f64,
-    },
-    Triangular {
-        min: f64,
-        mode: f64,
-        max: f64,
-    },
-    /// Normal with mean and standard deviation, truncated to [min, max] (infinite ends allowed).
-    Normal {
-        mean: f64,
-        sd: f64,
-        min: f64,
-        max: f64,
-    },
-    /// Lognormal: the median e^μ and the standard deviation σ of the logarithm, truncated to
-    /// [min, max] (min ≥ 0; infinite max allowed).
-    Lognormal {
-        median: f64,
-        sigma: f64,
-        min: f64,
-        max: f64,
-    },
-    /// PERT (beta) on [min, max] with the most likely value `mode`.
-    Pert {
-        min: f64,
-        mode: f64,
-        max: f64,
-    },
-}
-
 impl Distribution {
-    pub fn name(&self) -> &'static str {
-        match self {
-            Distribution::Uniform { .. } => "uniform",
-            Distribution::Triangular { .. } => "triangular",
-            Distribution::Normal { .. } => "normal",
-            Distribution::Lognormal { .. } => "lognormal",
-            Distribution::Pert { .. } => "pert",
-        }
-    }
-
-    /// The smallest and largest value a draw can take.
-    pub fn support(&self) -> (f64, f64) {
-        match *self {
-            Distribution::Uniform { min, max }
-            | Distribution::Triangular { min, max, .. }
-            | Distribution::Pert { min, max, .. } => (min, max),
-            Distribution::Normal { mean, sd, min, max } => {
-                if sd == 0.0 {
-                    (mean, mean)
-                } else {
-                    (min, max)
-                }
-            }
-            Distribution::Lognormal {
-                median,
-                sigma,
-                min,
-                max,
-            } => {
-                if sigma == 0.0 {
-                    (median, median)
-                } else {
-                    (min.max(0.0), max)
-                }
-            }
-        }
-    }
-
     /// One draw from `r`.
     #[allow(clippy::float_cmp)] // "no spread" is exactly equal ends, as written by the user
     pub fn sample(&self, r: &mut SplitMix64) -> f64 {

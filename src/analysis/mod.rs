@@ -1,7 +1,7 @@
 //! Analyses of a plan held fixed, after selection: the varied inputs and their ranges
 //! ([`vary`]), the distributions of uncertain inputs ([`distribution`]), a plan held fixed
 //! ([`held`]), one-at-a-time tests and switching values ([`sensitivity`]), Monte Carlo draws
-//! ([`risk`], with [`stats`]), and budget levels re-selected on one set of candidates
+//! ([`risk`]), and budget levels re-selected on one set of candidates
 //! ([`frontier`]).
 
 pub mod distribution;
@@ -10,5 +10,4 @@ pub mod held;
 pub mod risk;
 pub mod sensitivity;
 pub mod sobol;
-pub mod stats;
 pub mod vary;

@@ -401,7 +401,7 @@ impl Default for UserCostParams {
 /// The standard normal deviate of a design reliability, ZR = −Φ⁻¹(R) (AASHTO 1993, Table 4.1:
 /// 95 % → −1.645).
 pub fn zr_for_reliability(r: f64) -> f64 {
-    -crate::analysis::stats::normal_quantile(r)
+    -crate::stats::normal_quantile(r)
 }
 
 /// Set `*slot` from an optional number key within `lo..=hi`.

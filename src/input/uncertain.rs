@@ -17,7 +17,6 @@
 
 use super::scenario::Scenario;
 use super::tomldoc::{Table, Value};
-use crate::analysis::distribution::Distribution;
 use crate::diag::{did_you_mean, Diagnostics, Place};
 
 /// One uncertain input.
@@ -247,6 +246,82 @@ fn check_centre(
         return false;
     }
     true
+}
+
+/// The distribution of one uncertain input, as read (sampling and moments:
+/// `analysis::distribution`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Distribution {
+    Uniform {
+        min: f64,
+        max: f64,
+    },
+    Triangular {
+        min: f64,
+        mode: f64,
+        max: f64,
+    },
+    /// Normal with mean and standard deviation, truncated to [min, max] (infinite ends allowed).
+    Normal {
+        mean: f64,
+        sd: f64,
+        min: f64,
+        max: f64,
+    },
+    /// Lognormal: the median e^μ and the standard deviation σ of the logarithm, truncated to
+    /// [min, max] (min ≥ 0; infinite max allowed).
+    Lognormal {
+        median: f64,
+        sigma: f64,
+        min: f64,
+        max: f64,
+    },
+    /// PERT (beta) on [min, max] with the most likely value `mode`.
+    Pert {
+        min: f64,
+        mode: f64,
+        max: f64,
+    },
+}
+
+impl Distribution {
+    pub fn name(&self) -> &'static str {
+        match self {
+            Distribution::Uniform { .. } => "uniform",
+            Distribution::Triangular { .. } => "triangular",
+            Distribution::Normal { .. } => "normal",
+            Distribution::Lognormal { .. } => "lognormal",
+            Distribution::Pert { .. } => "pert",
+        }
+    }
+
+    /// The smallest and largest value a draw can take.
+    pub fn support(&self) -> (f64, f64) {
+        match *self {
+            Distribution::Uniform { min, max }
+            | Distribution::Triangular { min, max, .. }
+            | Distribution::Pert { min, max, .. } => (min, max),
+            Distribution::Normal { mean, sd, min, max } => {
+                if sd == 0.0 {
+                    (mean, mean)
+                } else {
+                    (min, max)
+                }
+            }
+            Distribution::Lognormal {
+                median,
+                sigma,
+                min,
+                max,
+            } => {
+                if sigma == 0.0 {
+                    (median, median)
+                } else {
+                    (min.max(0.0), max)
+                }
+            }
+        }
+    }
 }
 
 #[cfg(test)]
