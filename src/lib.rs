@@ -45,6 +45,7 @@ pub mod evaluate;
 pub mod input;
 pub mod io;
 pub mod money;
+pub mod notice;
 pub mod output;
 pub mod plan;
 pub mod progress;

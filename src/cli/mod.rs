@@ -164,6 +164,12 @@ pub fn main(args: impl IntoIterator<Item = OsString>) -> u8 {
     };
     // The selection's inner stages on stderr, for developers (DEVELOPERS.md, Testing).
     pavestrat::debug::enable(std::env::var_os("PAVESTRAT_DEBUG_SELECT").is_some());
+    // The library's notes while it works (a directory's lock awaited) go to stderr unless quiet.
+    pavestrat::notice::set_sink(if cli.quiet {
+        None
+    } else {
+        Some(|text| pavestrat::err_line!("{text}"))
+    });
     // A signal while files are being written removes (or finishes) the staged set first.
     pavestrat::io::set::install_signal_cleanup();
     let result = std::panic::catch_unwind(|| run(cli.command, ctx));

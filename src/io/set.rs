@@ -198,8 +198,8 @@ pub struct DirLock {
 }
 
 impl DirLock {
-    /// Lock `dir` (which must exist), waiting for another run that holds it — and saying so on
-    /// stderr unless `quiet`.
+    /// Lock `dir` (which must exist), waiting for another run that holds it — and saying so
+    /// through [`crate::notice`].
     pub fn acquire(dir: &Path) -> Result<DirLock> {
         let path = dir.join(LOCK);
         let file = std::fs::OpenOptions::new()
@@ -211,19 +211,19 @@ impl DirLock {
         match file.try_lock() {
             Ok(()) => {}
             Err(std::fs::TryLockError::WouldBlock) => {
-                crate::err_line!(
+                crate::notice::say(&format!(
                     "waiting: another pavestrat run is writing {}",
                     dir.display()
-                );
+                ));
                 file.lock().map_err(werr(&path))?;
             }
             // A file system without locks (some network mounts): go on unlocked rather than
             // refuse to write at all.
             Err(std::fs::TryLockError::Error(e)) if e.kind() == std::io::ErrorKind::Unsupported => {
-                crate::err_line!(
+                crate::notice::say(&format!(
                     "note: {} cannot be locked ({e}); do not run two commands into it at once",
                     dir.display()
-                );
+                ));
             }
             Err(std::fs::TryLockError::Error(e)) => return Err(werr(&path)(e)),
         }
