@@ -71,10 +71,7 @@ fn gamma(a: f64, r: &mut SplitMix64) -> f64 {
 
 /// A standard normal truncated to [a, b] (either end may be infinite), by inversion.
 fn truncated_std_normal(a: f64, b: f64, r: &mut SplitMix64) -> f64 {
-    let (pa, pb) = (normal_cdf(a), normal_cdf(b));
-    let u = open_unit(r);
-    let p = (pa + u * (pb - pa)).clamp(1e-300, 1.0 - 1e-16);
-    normal_quantile(p).clamp(a, b)
+    truncated_std_normal_at(a, b, open_unit(r))
 }
 
 /// The standard normal truncated to [a, b] at cumulative probability `u` (inversion).

@@ -544,6 +544,7 @@ fn write_files(
     for from in (0..secs.len()).step_by(CHUNK) {
         let text = widening_rows(
             run,
+            &e,
             p,
             from..(from + CHUNK).min(secs.len()),
             written.every_widening_year,
@@ -605,9 +606,14 @@ const WIDENING_HEAD: &str = "section_id,year,strategy,npv,fyrr,by_fyrr,by_npv,pl
 
 /// The rows of `widening_plan.csv` (after [`WIDENING_HEAD`]) of the sections `range`: every
 /// widening year when `every`, else only the years the plan or a timing rule picks.
-fn widening_rows(run: &Run, p: &Plan, range: std::ops::Range<usize>, every: bool) -> String {
+fn widening_rows(
+    run: &Run,
+    e: &Enumerator<'_>,
+    p: &Plan,
+    range: std::ops::Range<usize>,
+    every: bool,
+) -> String {
     let c = &p.candidates;
-    let e = Enumerator::for_run(run);
     let cat = &run.catalogue;
     let y0 = run.scenario.base_year;
     let first = range.start;

@@ -65,39 +65,16 @@ pub trait OfferList {
     fn uses(&self, i: usize) -> &[(u16, i64)];
 }
 
-impl OfferList for [Offer] {
+/// Offers as a list of [`Offer`]s: a slice, an array or a vector.
+impl<T: AsRef<[Offer]> + ?Sized> OfferList for T {
     fn count(&self) -> usize {
-        self.len()
+        self.as_ref().len()
     }
     fn value(&self, i: usize) -> f64 {
-        self[i].value
+        self.as_ref()[i].value
     }
     fn uses(&self, i: usize) -> &[(u16, i64)] {
-        &self[i].uses
-    }
-}
-
-impl<const N: usize> OfferList for [Offer; N] {
-    fn count(&self) -> usize {
-        N
-    }
-    fn value(&self, i: usize) -> f64 {
-        self[i].value
-    }
-    fn uses(&self, i: usize) -> &[(u16, i64)] {
-        &self[i].uses
-    }
-}
-
-impl OfferList for Vec<Offer> {
-    fn count(&self) -> usize {
-        self.len()
-    }
-    fn value(&self, i: usize) -> f64 {
-        self[i].value
-    }
-    fn uses(&self, i: usize) -> &[(u16, i64)] {
-        &self[i].uses
+        &self.as_ref()[i].uses
     }
 }
 
