@@ -53,15 +53,17 @@ fn main() {
             .sections
             .par_iter()
             .zip(&strategies)
-            .map_init(Trace::default, |trace, (sec, sts)| {
-                let sim = SectionSim::new(&run, sec);
-                let mut acc = 0.0;
-                for st in sts {
-                    sim.run(st, trace);
-                    acc += trace.iri[trace.iri.len() - 1] + trace.residual;
-                }
-                acc
-            })
+            .map_init(
+                || std::array::from_fn(|_| Trace::default()),
+                |traces, (sec, sts)| {
+                    let sim = SectionSim::new(&run, sec);
+                    let mut acc = 0.0;
+                    sim.run_each(sts, traces, |_, trace| {
+                        acc += trace.iri[trace.iri.len() - 1] + trace.residual;
+                    });
+                    acc
+                },
+            )
             .collect();
         black_box(check);
         t.elapsed().as_secs_f64()

@@ -151,20 +151,15 @@ pub fn section(
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    // Each strategy replays only the years after its works part from the previous one's.
-    let mut trace = base.clone();
+    // Each strategy replays only the years after its works part from an earlier one's.
+    let mut runs = [base.clone(), base.clone()];
     let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
     let mut traces = Vec::new();
     // Every strategy's own flows, for the widening's return against the same works without it.
     let mut owns: Vec<Flows> = Vec::with_capacity(strategies.len());
-    for st in &strategies {
-        let t = if st.is_base() {
-            &base
-        } else {
-            sim.run(st, &mut trace);
-            &trace
-        };
+    sim.run_each(&strategies, &mut runs, |i, t| {
+        let st = &strategies[i];
         let pv_capital = d.pv(y0, &t.capital);
         let pv_routine = d.pv(y0, &t.routine);
         let pv_residual = t.residual * d.end_factor(n);
@@ -198,7 +193,7 @@ pub fn section(
             traces.push((st.name.clone(), t.clone()));
         }
         owns.push(own);
-    }
+    });
     let incremental = analyse_with(
         &alternatives,
         d,

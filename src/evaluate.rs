@@ -42,19 +42,20 @@ pub fn each_split(
 ) {
     let d = &run.scenario.discounting;
     let y0 = run.scenario.base_year;
-    let (mut base, mut t) = (Trace::default(), Trace::default());
+    let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    t.clone_from(&base);
-    for &k in which {
+    let mut traces = [base.clone(), base.clone()];
+    let mut own = Flows::default();
+    sim.run_each_of(strategies, which.iter().copied(), &mut traces, |k, t| {
         if k == 0 {
             visit(0, &base, Split::of(sim, &base, &base), 0.0);
-            continue;
+            return;
         }
-        sim.run(&strategies[k], &mut t);
-        let npv = npv_against(d, y0, &t.flows(d), &base_flows);
-        visit(k, &t, Split::of(sim, &t, &base), npv);
-    }
+        t.flows_into(d, &mut own);
+        let npv = npv_against(d, y0, &own, &base_flows);
+        visit(k, t, Split::of(sim, t, &base), npv);
+    });
 }
 
 /// A strategy's money less the base's, year by year from the base year, by what scales it.

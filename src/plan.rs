@@ -471,8 +471,8 @@ fn section_candidates(
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    // Each strategy replays only the years after its works part from the previous one's.
-    let mut trace = base.clone();
+    // Each strategy replays only the years after its works part from an earlier one's.
+    let mut traces = [base.clone(), base.clone()];
     // The buffers are the previous section's, emptied.
     out.offers.clear();
     out.strategy.clear();
@@ -493,13 +493,8 @@ fn section_candidates(
     let mut u = Vec::new();
     let mut own = crate::simulate::Flows::default();
     let reads = SectionRows::new(run, rows, sec);
-    for (i, st) in strategies.iter().enumerate() {
-        let t = if i == 0 {
-            &base
-        } else {
-            sim.run(st, &mut trace);
-            &trace
-        };
+    sim.run_each(&strategies, &mut traces, |i, t| {
+        let st = &strategies[i];
         t.flows_into(d, &mut own);
         let npv = crate::evaluate::npv_against(d, y0, &own, &base_flows);
         if let Some(w) = st.widening_year(&run.catalogue) {
@@ -517,7 +512,7 @@ fn section_candidates(
                 }),
             });
             if !ok {
-                continue;
+                return;
             }
         }
         let value = match objective {
@@ -532,7 +527,7 @@ fn section_candidates(
         out.strategy.push(st.key);
         out.npv.push(npv);
         out.pv_agency.push(pv_agency);
-    }
+    });
     let mut widening = crate::appraise::best_by_widening_year(widening);
     crate::appraise::widening_returns(run, &sim, &strategies, &owns, &mut widening, d);
     out.widening

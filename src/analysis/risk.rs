@@ -214,7 +214,9 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &
     let (network, spend) = rest.split_at_mut(1);
     network[0] = 0.0;
     spend.iter_mut().for_each(|x| *x = 0.0);
-    let (mut base, mut t) = (Trace::default(), Trace::default());
+    let mut base = Trace::default();
+    let mut traces = [Trace::default(), Trace::default()];
+    let mut own = crate::simulate::Flows::default();
     let mut u = Vec::new();
     let mut at = 0;
     for (g, sec) in run.network.sections.iter().enumerate() {
@@ -222,25 +224,26 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &
         let sim = SectionSim::new(&v.run, &s2);
         let strategies = &held.strategies[g];
         sim.run(&strategies[0], &mut base);
-        t.clone_from(&base);
+        for t in &mut traces {
+            t.clone_from(&base);
+        }
         let base_flows = base.flows(d);
-        for (i, st) in strategies.iter().enumerate() {
+        sim.run_each(strategies, &mut traces, |i, t| {
             let npv = if i == 0 {
                 0.0
             } else {
-                sim.run(st, &mut t);
-                crate::evaluate::npv_against(d, y0, &t.flows(d), &base_flows)
+                t.flows_into(d, &mut own);
+                crate::evaluate::npv_against(d, y0, &own, &base_flows)
             };
             npvs[at + i] = npv;
             if i == held.chosen[g] {
                 network[0] += npv;
-                let tr = if i == 0 { &base } else { &t };
-                crate::plan::uses(run, rows, &s2, tr, &mut u);
+                crate::plan::uses(run, rows, &s2, t, &mut u);
                 for &(j, x) in &u {
                     spend[j as usize] += rows[j as usize].measure(x);
                 }
             }
-        }
+        });
         at += strategies.len();
     }
 }

@@ -125,23 +125,20 @@ fn npvs(
 ) -> Vec<f64> {
     let s2 = v.section(sec);
     let sim = SectionSim::new(&v.run, &s2);
-    let (mut base, mut t) = (Trace::default(), Trace::default());
+    let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
-    t.clone_from(&base);
+    let mut traces = [base.clone(), base.clone()];
     let d = v.discounting();
     let bf = base.flows(d);
     let y0 = run.scenario.base_year;
-    strategies
-        .iter()
-        .enumerate()
-        .map(|(i, st)| {
-            if i == 0 || only.is_some_and(|o| o != i) {
-                return 0.0;
-            }
-            sim.run(st, &mut t);
-            crate::evaluate::npv_against(d, y0, &t.flows(d), &bf)
-        })
-        .collect()
+    let mut npvs = vec![0.0; strategies.len()];
+    let mut own = crate::simulate::Flows::default();
+    let which = (1..strategies.len()).filter(|&i| only.is_none_or(|o| o == i));
+    sim.run_each_of(strategies, which, &mut traces, |i, t| {
+        t.flows_into(d, &mut own);
+        npvs[i] = crate::evaluate::npv_against(d, y0, &own, &bf);
+    });
+    npvs
 }
 
 /// Whether input `i` ([`INPUTS`] order) only scales money or discounts it (everything but

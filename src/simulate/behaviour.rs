@@ -447,3 +447,67 @@ fn a_resumed_run_is_the_run_from_the_base_year() {
     // Most pairs share a first year or more: the check covers resumed runs, not only fresh ones.
     assert!(pairs > 2_000 && resumed * 2 > pairs, "{resumed} of {pairs}");
 }
+
+/// Strategies played two at a time ([`SectionSim::run_each`], [`SectionSim::run_pair`]) give each
+/// strategy the trace a run of it alone from the base year gives, bit for bit: every strategy of
+/// a spread of the demo's and a synthetic network's sections in order, and pairs whose runs start
+/// in different years (one trace fresh, one holding another strategy's run, or a strategy beside
+/// itself).
+#[test]
+fn strategies_played_side_by_side_are_played_alone() {
+    let run = demo();
+    let text = crate::demo::synth::network_csv(40, 11);
+    let mut d = crate::diag::Diagnostics::new();
+    let synth = crate::input::network::parse("synth.csv", &text, &mut d).unwrap();
+    let e = Enumerator::for_run(&run);
+    let bits = |t: &Trace| -> Vec<u64> {
+        [
+            &t.capital,
+            &t.routine,
+            &t.operating,
+            &t.time,
+            &t.crashes,
+            &t.delay,
+            &t.iri,
+            &t.sn,
+        ]
+        .iter()
+        .flat_map(|v| v.iter().map(|x| x.to_bits()))
+        .chain([t.residual.to_bits()])
+        .collect()
+    };
+    let mut checked = 0;
+    for sec in run
+        .network
+        .sections
+        .iter()
+        .chain(&synth.sections)
+        .step_by(2)
+    {
+        let sim = SectionSim::new(&run, sec);
+        let all = e.strategies(sec);
+        let fresh: Vec<Trace> = all.iter().map(|st| trace(&run, sec, st)).collect();
+        let mut traces = [Trace::default(), Trace::default()];
+        let mut seen = 0;
+        sim.run_each(&all, &mut traces, |i, t| {
+            assert_eq!(i, seen, "{}: strategies in order", sec.id);
+            assert_eq!(bits(t), bits(&fresh[i]), "{}: {}", sec.id, all[i].name);
+            assert_eq!(t.works, fresh[i].works);
+            seen += 1;
+        });
+        assert_eq!(seen, all.len());
+        for (k, a) in all.iter().enumerate().step_by(7) {
+            let b = &all[(k * 5 + 3) % all.len()];
+            let (mut ta, mut tb) = (Trace::default(), Trace::default());
+            sim.run(&all[all.len() - 1 - k % all.len()], &mut tb);
+            sim.run_pair(a, &mut ta, b, &mut tb);
+            let want_b = &fresh[(k * 5 + 3) % all.len()];
+            assert_eq!(bits(&ta), bits(&fresh[k]), "{}: {}", sec.id, a.name);
+            assert_eq!(bits(&tb), bits(want_b), "{}: {}", sec.id, b.name);
+            sim.run_pair(a, &mut ta, a, &mut tb);
+            assert_eq!(bits(&ta), bits(&tb));
+            checked += 1;
+        }
+    }
+    assert!(checked > 100, "{checked}");
+}

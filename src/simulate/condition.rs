@@ -267,16 +267,65 @@ impl Progression for Aashto93 {
 
     #[inline]
     fn parts(&self, c: &Condition, esals: f64) -> (f64, f64) {
-        let m = self.p.ageing;
-        let esals = esals.max(0.0);
-        let psr = psr_floor(psr_from_iri(c.iri), self.p.terminal_psr);
-        let aashto = c.psi_per_esal * esals / (0.26 * psr);
-        let paterson = c.per_esal * (m * c.age).exp() * esals;
-        (m * c.iri, soft_min(aashto, paterson))
+        self.parts_aged(c, esals, (self.p.ageing * c.age).exp())
     }
 
     fn environment(&self) -> f64 {
         self.p.ageing
+    }
+}
+
+impl Aashto93 {
+    /// [`Progression::parts`] given Paterson's age factor e^(m·age) of `c`'s surface age (the
+    /// yearly loop looks it up in a table of whole ages instead of taking the exponential).
+    #[inline]
+    fn parts_aged(&self, c: &Condition, esals: f64, age_factor: f64) -> (f64, f64) {
+        let m = self.p.ageing;
+        let esals = esals.max(0.0);
+        let psr = psr_floor(psr_from_iri(c.iri), self.p.terminal_psr);
+        let aashto = c.psi_per_esal * esals / (0.26 * psr);
+        let paterson = c.per_esal * age_factor * esals;
+        (m * c.iri, soft_min(aashto, paterson))
+    }
+}
+
+/// Paterson's age factor e^(m·age) of every whole surface age a section's runs can reach, taken
+/// once per section: a surface's age is always a whole number of years (placed from whole years,
+/// then one a year, or reset to 0 by works), so the yearly loop reads the factor from here with
+/// the very bits `exp` gives. Any other age (none arises in a run) falls back to `exp`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct AgeFactors {
+    m: f64,
+    by_age: Vec<f64>,
+}
+
+impl AgeFactors {
+    /// The factors of ages 0 to `max_age` for `model`'s family (none for a family without an
+    /// age term).
+    pub fn new(model: &SectionModel, max_age: usize) -> AgeFactors {
+        match &model.family {
+            Family::Aashto93(a) => {
+                let m = a.p.ageing;
+                AgeFactors {
+                    m,
+                    by_age: (0..=max_age).map(|k| (m * k as f64).exp()).collect(),
+                }
+            }
+            Family::Calibrated(_) => AgeFactors::default(),
+        }
+    }
+
+    /// e^(m·age).
+    #[inline]
+    fn at(&self, age: f64) -> f64 {
+        let k = age as usize;
+        #[allow(clippy::float_cmp)] // only a whole age, exactly, reads the table
+        if k as f64 == age {
+            if let Some(&f) = self.by_age.get(k) {
+                return f;
+            }
+        }
+        (self.m * age).exp()
     }
 }
 
@@ -469,6 +518,12 @@ impl SectionModel {
             Family::Aashto93(m) => m.raw_rise(c, esals),
             Family::Calibrated(m) => m.raw_rise(c, esals),
         };
+        self.bound(c, raw, slow)
+    }
+
+    /// The shared bound, holding repairs and headroom applied to a family's raw rise.
+    #[inline]
+    fn bound(&self, c: &Condition, raw: f64, slow: f64) -> f64 {
         let headroom = (1.0 - (c.iri / self.iri_max).powi(4)).max(0.0);
         bounded_rise(raw, self.max_rise) * (1.0 - slow.clamp(0.0, 1.0)) * headroom
     }
@@ -483,6 +538,26 @@ impl SectionModel {
     #[inline]
     pub fn age(&self, c: &mut Condition, esals: f64, slow: f64) {
         let rise = self.rise(c, esals, slow);
+        self.step(c, esals, rise);
+    }
+
+    /// [`SectionModel::age`] with the age factors of this model taken once ([`AgeFactors`]):
+    /// the same result to the bit.
+    #[inline(always)]
+    pub fn age_with(&self, c: &mut Condition, esals: f64, slow: f64, f: &AgeFactors) {
+        let raw = match &self.family {
+            Family::Aashto93(m) => {
+                let (a, b) = m.parts_aged(c, esals, f.at(c.age));
+                a + b
+            }
+            Family::Calibrated(m) => m.raw_rise(c, esals),
+        };
+        let rise = self.bound(c, raw, slow);
+        self.step(c, esals, rise);
+    }
+
+    #[inline]
+    fn step(&self, c: &mut Condition, esals: f64, rise: f64) {
         c.iri = (c.iri + rise).min(self.iri_max).max(c.iri);
         c.age += 1.0;
         c.esals += esals.max(0.0);

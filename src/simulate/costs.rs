@@ -54,6 +54,13 @@ impl Upkeep {
         x * x * (3.0 - 2.0 * x)
     }
 
+    /// The share holding repairs take off a year's rise in roughness at `iri`, as
+    /// [`Upkeep::year`] gives it.
+    #[inline]
+    pub fn slows(&self, iri: f64) -> f64 {
+        self.holding(iri) * self.holding_slows
+    }
+
     /// A year at roughness `iri` on `lane_km`: the cost of routine maintenance and holding
     /// repairs, and the share the holding repairs take off the year's rise in roughness.
     #[inline]

@@ -34,7 +34,7 @@ use crate::input::scenario::{PerClass, VehicleClass};
 use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::input::Run;
 use crate::money::Money;
-use condition::{Condition, SectionModel};
+use condition::{AgeFactors, Condition, SectionModel};
 
 /// Lane width (m) taken where the network gives none: a common rural lane (common practice,
 /// 3.5 m). Used only for treatments costed per m².
@@ -92,9 +92,24 @@ struct YearState {
     cw: Carriageway,
     crash_factor: f64,
     per_cap: f64,
+    /// Which of [`SectionSim::congestion`]'s series holds this capacity's years (`NO_SERIES`:
+    /// none, worked out year by year).
+    series: u8,
     lane_factor: f64,
     last_works: Option<i64>,
 }
+
+/// Where a run stands: the year it started from, the state at the start of the next year, and
+/// the next of its timed works.
+#[derive(Debug, Clone, Copy)]
+struct Cursor {
+    from: usize,
+    state: YearState,
+    next: usize,
+}
+
+/// [`YearState::series`] of a capacity no series was taken for.
+const NO_SERIES: u8 = u8::MAX;
 
 /// A per-class unit value weighted by the traffic's class shares.
 fn mix(shares: &[f64; 4], values: &PerClass<Money>) -> f64 {
@@ -218,6 +233,13 @@ pub struct SectionSim {
     lane_factor: [f64; 4],
     /// Each vehicle class's share of the traffic.
     shares: [f64; 4],
+    /// Paterson's age factor of every whole surface age a run can reach.
+    age_factors: AgeFactors,
+    /// The volume-delay factor of each year (the flow bands' weighted BPR factor) at the
+    /// capacities a run is likely to have — as built, and after each widening of the catalogue
+    /// — each with its per-capacity reciprocal's bits. They depend on the year and the capacity
+    /// alone, so every strategy shares them; a run reads them with the bits it would compute.
+    congestion: Vec<(u64, Vec<f64>)>,
 }
 
 impl SectionSim {
@@ -295,7 +317,9 @@ impl SectionSim {
                 work_zone_days: tr.work_zone_days,
             })
             .collect();
-        SectionSim {
+        let age_factors =
+            AgeFactors::new(&model, (start.age.max(0.0) as usize).min(400) + years + 1);
+        let mut sim = SectionSim {
             id: NEXT_SIM_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
             years,
             length_km: length,
@@ -323,7 +347,55 @@ impl SectionSim {
             direction_factor: m.traffic.direction_factor,
             lane_factor: m.traffic.lane_factor,
             shares: t.shares,
+            age_factors,
+            congestion: Vec::new(),
+        };
+        sim.congestion = sim.congestion_series();
+        sim
+    }
+
+    /// The capacities a run is likely to meet (as built, and after each widening treatment of
+    /// the catalogue), each with its volume-delay factor year by year ([`SectionSim::congestion`]).
+    fn congestion_series(&self) -> Vec<(u64, Vec<f64>)> {
+        let mut caps = vec![self.initial_state().per_cap];
+        for w in &self.treatments {
+            if w.action == Action::Widen {
+                let lanes = self.lanes.saturating_add(w.lanes_added).min(12);
+                let cw = w.carriageway_after.unwrap_or(self.carriageway);
+                caps.push(1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity));
+            }
         }
+        let mut out: Vec<(u64, Vec<f64>)> = Vec::new();
+        for per_cap in caps {
+            if out.len() < usize::from(NO_SERIES) && !out.iter().any(|c| c.0 == per_cap.to_bits()) {
+                let series = (0..self.years)
+                    .map(|y| self.congestion_at(y, per_cap))
+                    .collect();
+                out.push((per_cap.to_bits(), series));
+            }
+        }
+        out
+    }
+
+    /// The flow bands' weighted volume-delay factor in year `y` at `per_cap`, the reciprocal of
+    /// the road's capacity.
+    #[inline]
+    fn congestion_at(&self, y: usize, per_cap: f64) -> f64 {
+        let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
+        let growth = self.aadt[y] / aadt0 * per_cap;
+        let mut congestion = 0.0;
+        for &(share, pc_h) in &self.bands {
+            congestion += share * capacity::bpr_factor(pc_h * growth, &self.capacity);
+        }
+        congestion
+    }
+
+    /// The series of [`SectionSim::congestion`] taken at `per_cap`, or [`NO_SERIES`].
+    fn series_of(&self, per_cap: f64) -> u8 {
+        self.congestion
+            .iter()
+            .position(|c| c.0 == per_cap.to_bits())
+            .map_or(NO_SERIES, |i| i as u8)
     }
 
     /// Years simulated (the analysis period).
@@ -337,12 +409,130 @@ impl SectionSim {
     /// the bit as a run from the base year.
     pub fn run(&self, strategy: &Strategy, out: &mut Trace) {
         let n = self.years;
+        let Some(mut c) = self.begin(strategy, out) else {
+            return;
+        };
+        for y in c.from..n {
+            self.year(strategy, out, y, &mut c);
+        }
+        self.finish(out, c.from);
+    }
+
+    /// Play two strategies at once, `a` into `ta` and `b` into `tb`, each as [`SectionSim::run`]
+    /// would (the same bits). A year's roughness depends on the year before through a chain of
+    /// roots and divisions that keeps one run waiting on itself; two runs side by side give the
+    /// processor two independent chains to work on.
+    pub fn run_pair(&self, a: &Strategy, ta: &mut Trace, b: &Strategy, tb: &mut Trace) {
+        let n = self.years;
+        match (self.begin(a, ta), self.begin(b, tb)) {
+            (None, None) => {}
+            (Some(mut c), None) => {
+                for y in c.from..n {
+                    self.year(a, ta, y, &mut c);
+                }
+                self.finish(ta, c.from);
+            }
+            (None, Some(mut c)) => {
+                for y in c.from..n {
+                    self.year(b, tb, y, &mut c);
+                }
+                self.finish(tb, c.from);
+            }
+            (Some(mut ca), Some(mut cb)) => {
+                // The later starter's years before the other's start alone, then both in step.
+                let (fa, fb) = (ca.from, cb.from);
+                for y in fa..fb {
+                    self.year(a, ta, y, &mut ca);
+                }
+                for y in fb..fa {
+                    self.year(b, tb, y, &mut cb);
+                }
+                for y in fa.max(fb)..n {
+                    self.year(a, ta, y, &mut ca);
+                    self.year(b, tb, y, &mut cb);
+                }
+                self.finish(ta, fa);
+                self.finish(tb, fb);
+            }
+        }
+    }
+
+    /// Play every strategy of `strategies` in order, calling `each(i, trace)` with strategy
+    /// i's run: two at a time ([`SectionSim::run_pair`]), each into its own trace, which
+    /// replays from the run it held. The traces are `traces`' (reused across sections).
+    pub fn run_each(
+        &self,
+        strategies: &[Strategy],
+        traces: &mut [Trace; 2],
+        each: impl FnMut(usize, &Trace),
+    ) {
+        self.run_each_of(strategies, 0..strategies.len(), traces, each);
+    }
+
+    /// [`SectionSim::run_each`] for the strategies `which` names (positions in `strategies`),
+    /// in that order.
+    pub fn run_each_of(
+        &self,
+        strategies: &[Strategy],
+        which: impl IntoIterator<Item = usize>,
+        traces: &mut [Trace; 2],
+        mut each: impl FnMut(usize, &Trace),
+    ) {
+        let [ta, tb] = traces;
+        let mut which = which.into_iter();
+        while let Some(i) = which.next() {
+            match which.next() {
+                Some(j) => {
+                    self.run_pair(&strategies[i], ta, &strategies[j], tb);
+                    each(i, ta);
+                    each(j, tb);
+                }
+                None => {
+                    self.run(&strategies[i], ta);
+                    each(i, ta);
+                }
+            }
+        }
+    }
+
+    /// The costs of years `from` on that the state at the start of each year gives (routine
+    /// upkeep at its roughness, travel time, operating cost, crashes) and the residual value:
+    /// the part of a year that no later year waits for, counted once the chain of states is
+    /// known.
+    #[inline]
+    fn finish(&self, out: &mut Trace, from: usize) {
+        for y in from..self.years {
+            let st = &out.resume.states[y];
+            let iri = st.cond.iri;
+            let lane_km = self.length_km * f64::from(st.lanes);
+            let (upkeep, _) = self.upkeep.year(iri, lane_km);
+            out.routine[y] += upkeep;
+            let congestion = match self.congestion.get(usize::from(st.series)) {
+                Some((_, by_year)) => by_year[y],
+                None => self.congestion_at(y, st.per_cap),
+            };
+            let vkm = self.vkm[y];
+            let speed = capacity::roughness_speed_factor(iri, &self.speed);
+            out.time[y] = vkm * self.time_per_vkm * congestion / speed;
+            out.operating[y] = vkm * self.operating.per_vkm(iri);
+            out.crashes[y] = vkm * self.crash_per_vkm * st.crash_factor;
+            out.iri[y] = iri;
+            out.sn[y] = st.cond.sn;
+        }
+        out.residual = self.residual(&out.works);
+    }
+
+    /// Make `out` ready to play `strategy`: the year to start from and the state there, or
+    /// `None` when `out` already is this strategy's run.
+    #[inline]
+    fn begin(&self, strategy: &Strategy, out: &mut Trace) -> Option<Cursor> {
+        let n = self.years;
         let from = self.replay_from(strategy, out);
         if from == n {
             // The same works every year: the trace already is this strategy's.
-            return;
+            return None;
         }
-        let mut s = if from == 0 {
+        let s = if from == 0 {
             out.reset(n);
             out.resume.owner = self.id;
             out.resume.states.clear();
@@ -365,136 +555,134 @@ impl SectionSim {
             out.works.truncate(keep);
             out.resume.states[from]
         };
-        let mut next = strategy.works.partition_point(|w| (w.year as usize) < from);
-        let aadt0 = self.aadt[0].max(f64::MIN_POSITIVE);
+        Some(Cursor {
+            from,
+            state: s,
+            next: strategy.works.partition_point(|w| (w.year as usize) < from),
+        })
+    }
+
+    /// Year `y` of `strategy`'s run into `out`, from the state `c` holds (which it advances).
+    #[inline(always)]
+    fn year(&self, strategy: &Strategy, out: &mut Trace, y: usize, c: &mut Cursor) {
+        out.resume.states[y] = c.state;
+        let YearState {
+            mut cond,
+            mut lanes,
+            mut cw,
+            mut crash_factor,
+            mut per_cap,
+            mut series,
+            mut lane_factor,
+            mut last_works,
+        } = c.state;
         let mut done = [0usize; crate::input::MAX_STEPS];
-        for y in from..n {
-            out.resume.states[y] = s;
-            let YearState {
-                mut cond,
-                mut lanes,
-                mut cw,
-                mut crash_factor,
-                mut per_cap,
-                mut lane_factor,
-                mut last_works,
-            } = s;
-            // 1. Works due this year.
-            let first = next;
-            while next < strategy.works.len() && strategy.works[next].year as usize == y {
-                next += 1;
+        // 1. Works due this year.
+        let first = c.next;
+        while c.next < strategy.works.len() && strategy.works[c.next].year as usize == y {
+            c.next += 1;
+        }
+        let mut count = 0;
+        for w in &strategy.works[first..c.next] {
+            if count < done.len() {
+                done[count] = w.treatment;
+                count += 1;
             }
-            let mut count = 0;
-            for w in &strategy.works[first..next] {
-                if count < done.len() {
-                    done[count] = w.treatment;
-                    count += 1;
+        }
+        if count == 0 {
+            if let Some(tr) = &strategy.trigger {
+                let gap_ok = last_works.is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
+                if cond.iri >= tr.iri && gap_ok {
+                    done[0] = tr.treatment;
+                    count = 1;
                 }
             }
-            if count == 0 {
-                if let Some(tr) = &strategy.trigger {
-                    let gap_ok =
-                        last_works.is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
-                    if cond.iri >= tr.iri && gap_ok {
-                        done[0] = tr.treatment;
-                        count = 1;
-                    }
-                }
+        }
+        // 2. The year's costs.
+        let mut zone_days = 0u32;
+        for &ti in &done[..count] {
+            let w = &self.treatments[ti];
+            let lanes_worked = if w.action == Action::Widen {
+                w.lanes_added
+            } else {
+                lanes
+            };
+            let q = costs::quantity(w.cost_per, self.length_km, lanes_worked, self.lane_width_m);
+            let cost = w.unit_cost * q;
+            if w.capital {
+                out.capital[y] += cost;
+            } else {
+                out.routine[y] += cost;
             }
-            // 2. The year's costs.
-            let mut zone_days = 0u32;
+            zone_days += w.work_zone_days;
+            out.works.push((y as u32, ti, cost));
+        }
+        out.delay[y] =
+            f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
+        // The rest of the year's costs are the state's alone: `finish` counts them.
+        let slow = self.upkeep.slows(cond.iri);
+        // 3. Ageing under the year's traffic, slowed by any holding repairs.
+        self.model.age_with(
+            &mut cond,
+            self.esal_two_way[y] * lane_factor,
+            slow,
+            &self.age_factors,
+        );
+        // 4. The works take effect.
+        if count > 0 {
+            last_works = Some(y as i64);
             for &ti in &done[..count] {
                 let w = &self.treatments[ti];
-                let lanes_worked = if w.action == Action::Widen {
-                    w.lanes_added
-                } else {
-                    lanes
-                };
-                let q =
-                    costs::quantity(w.cost_per, self.length_km, lanes_worked, self.lane_width_m);
-                let cost = w.unit_cost * q;
-                if w.capital {
-                    out.capital[y] += cost;
-                } else {
-                    out.routine[y] += cost;
+                match w.structure {
+                    StructuralEffect::None => {}
+                    StructuralEffect::SetTo(sn) => self.model.rebuild(&mut cond, sn),
+                    layer @ StructuralEffect::Layer { .. } => {
+                        self.model
+                            .strengthen(&mut cond, layer.added_sn().unwrap_or(0.0));
+                    }
                 }
-                zone_days += w.work_zone_days;
-                out.works.push((y as u32, ti, cost));
-            }
-            let iri = cond.iri;
-            let lane_km = self.length_km * f64::from(lanes);
-            let (upkeep, slow) = self.upkeep.year(iri, lane_km);
-            out.routine[y] += upkeep;
-            let growth = self.aadt[y] / aadt0 * per_cap;
-            let mut congestion = 0.0;
-            for &(share, pc_h) in &self.bands {
-                congestion += share * capacity::bpr_factor(pc_h * growth, &self.capacity);
-            }
-            let vkm = self.vkm[y];
-            let speed = capacity::roughness_speed_factor(iri, &self.speed);
-            out.time[y] = vkm * self.time_per_vkm * congestion / speed;
-            out.operating[y] = vkm * self.operating.per_vkm(iri);
-            out.crashes[y] = vkm * self.crash_per_vkm * crash_factor;
-            out.delay[y] =
-                f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
-            out.iri[y] = iri;
-            out.sn[y] = cond.sn;
-            // 3. Ageing under the year's traffic, slowed by any holding repairs.
-            self.model
-                .age(&mut cond, self.esal_two_way[y] * lane_factor, slow);
-            // 4. The works take effect.
-            if count > 0 {
-                last_works = Some(y as i64);
-                for &ti in &done[..count] {
-                    let w = &self.treatments[ti];
-                    match w.structure {
-                        StructuralEffect::None => {}
-                        StructuralEffect::SetTo(sn) => self.model.rebuild(&mut cond, sn),
-                        layer @ StructuralEffect::Layer { .. } => {
-                            self.model
-                                .strengthen(&mut cond, layer.added_sn().unwrap_or(0.0));
-                        }
+                match w.iri {
+                    IriEffect::ResetTo(x) => self.model.resurface(&mut cond, x, w.carry),
+                    IriEffect::Reduce(r) => {
+                        let to = (cond.iri - r).max(self.iri_floor);
+                        self.model.lower(&mut cond, to);
                     }
-                    match w.iri {
-                        IriEffect::ResetTo(x) => self.model.resurface(&mut cond, x, w.carry),
-                        IriEffect::Reduce(r) => {
-                            let to = (cond.iri - r).max(self.iri_floor);
-                            self.model.lower(&mut cond, to);
-                        }
-                    }
-                    if w.action == Action::Widen {
-                        lanes = lanes.saturating_add(w.lanes_added).min(12);
-                        if let Some(after) = w.carriageway_after {
-                            cw = after;
-                        }
-                        per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
-                        lane_factor =
-                            traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
-                    }
-                    crash_factor *= w.crash_factor;
                 }
+                if w.action == Action::Widen {
+                    lanes = lanes.saturating_add(w.lanes_added).min(12);
+                    if let Some(after) = w.carriageway_after {
+                        cw = after;
+                    }
+                    per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
+                    series = self.series_of(per_cap);
+                    lane_factor =
+                        traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
+                }
+                crash_factor *= w.crash_factor;
             }
-            s = YearState {
-                cond,
-                lanes,
-                cw,
-                crash_factor,
-                per_cap,
-                lane_factor,
-                last_works,
-            };
         }
-        out.residual = self.residual(&out.works);
+        c.state = YearState {
+            cond,
+            lanes,
+            cw,
+            crash_factor,
+            per_cap,
+            series,
+            lane_factor,
+            last_works,
+        };
     }
 
     /// The state at the start of the base year.
     fn initial_state(&self) -> YearState {
+        let per_cap = 1.0 / capacity::capacity_pc_h(self.lanes, self.carriageway, &self.capacity);
         YearState {
             cond: self.start,
             lanes: self.lanes,
             cw: self.carriageway,
             crash_factor: 1.0,
-            per_cap: 1.0 / capacity::capacity_pc_h(self.lanes, self.carriageway, &self.capacity),
+            per_cap,
+            series: self.series_of(per_cap),
             lane_factor: traffic::lane_share(self.lanes, self.direction_factor, &self.lane_factor),
             last_works: self.last_works,
         }
