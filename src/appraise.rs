@@ -19,7 +19,7 @@ use crate::economics::{appraise, appraise_with, fyrr, Discounting, Indicators, S
 use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::input::network::Section;
 use crate::input::Run;
-use crate::simulate::{Flows, SectionSim, Trace};
+use crate::simulate::{FlowStore, Flows, SectionSim, Trace};
 use rayon::prelude::*;
 use std::collections::HashMap;
 
@@ -157,7 +157,7 @@ pub fn section(
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
     let mut traces = Vec::new();
     // Every strategy's own flows, for the widening's return against the same works without it.
-    let mut owns: Vec<Flows> = Vec::with_capacity(strategies.len());
+    let mut owns = FlowStore::default();
     sim.run_each(&strategies, &mut runs, |i, t| {
         let st = &strategies[i];
         let pv_capital = d.pv(y0, &t.capital);
@@ -192,7 +192,7 @@ pub fn section(
         if keep_traces {
             traces.push((st.name.clone(), t.clone()));
         }
-        owns.push(own);
+        owns.push(&own);
     });
     let incremental = analyse_with(
         &alternatives,
@@ -295,7 +295,7 @@ pub fn widening_returns(
     run: &Run,
     sim: &SectionSim,
     strategies: &[Strategy],
-    own: &[Flows],
+    own: &FlowStore,
     options: &mut [WideningOption<usize>],
     d: &Discounting,
 ) {
@@ -308,10 +308,10 @@ pub fn widening_returns(
             .iter()
             .position(|x| x.works == without.works && x.trigger == without.trigger);
         let flows = match known {
-            Some(j) => increment(&own[o.strategy], &own[j], y0),
+            Some(j) => increment(&own.get(o.strategy), &own.get(j), y0),
             None => {
                 sim.run(&without, &mut t);
-                increment(&own[o.strategy], &t.flows(d), y0)
+                increment(&own.get(o.strategy), &t.flows(d), y0)
             }
         };
         o.fyrr = fyrr(&flows.net());
@@ -342,7 +342,7 @@ fn widening_timing(
     run: &Run,
     sim: &SectionSim,
     strategies: &[Strategy],
-    own: &[Flows],
+    own: &FlowStore,
     npv: &[(Option<i32>, f64)],
     d: &Discounting,
 ) -> Option<WideningTiming> {

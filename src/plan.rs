@@ -396,6 +396,8 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
 #[derive(Default)]
 struct SectionCands {
     offers: Offers,
+    /// Every strategy's own flows where some strategy widens (reused buffers).
+    owns: crate::simulate::FlowStore,
     strategy: Vec<StrategyRef>,
     npv: Vec<f64>,
     pv_agency: Vec<f64>,
@@ -488,7 +490,7 @@ fn section_candidates(
     let widens = strategies
         .iter()
         .any(|st| st.widening_year(&run.catalogue).is_some());
-    let mut owns: Vec<crate::simulate::Flows> = Vec::new();
+    out.owns.clear();
     let mut best: Option<(f64, StrategyRef, f64, f64)> = None;
     let mut u = Vec::new();
     let mut own = crate::simulate::Flows::default();
@@ -502,7 +504,7 @@ fn section_candidates(
         }
         let pv_agency = d.pv(y0, &own.agency);
         if widens {
-            owns.push(own.clone());
+            out.owns.push(&own);
         }
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
@@ -529,7 +531,7 @@ fn section_candidates(
         out.pv_agency.push(pv_agency);
     });
     let mut widening = crate::appraise::best_by_widening_year(widening);
-    crate::appraise::widening_returns(run, &sim, &strategies, &owns, &mut widening, d);
+    crate::appraise::widening_returns(run, &sim, &strategies, &out.owns, &mut widening, d);
     out.widening
         .extend(widening.into_iter().map(|w| WideningOption {
             year: w.year,

@@ -178,6 +178,42 @@ pub struct Flows {
     pub users: Vec<f64>,
 }
 
+/// The flows of many strategies of one section in two flat buffers (no allocation per
+/// strategy): what the widening's return needs of every strategy until the options are known.
+#[derive(Debug, Clone, Default)]
+pub struct FlowStore {
+    len: usize,
+    agency: Vec<f64>,
+    users: Vec<f64>,
+}
+
+impl FlowStore {
+    /// Forget every flow, keeping the buffers.
+    pub fn clear(&mut self) {
+        self.len = 0;
+        self.agency.clear();
+        self.users.clear();
+    }
+
+    /// Keep `f` (every flow kept has the same length) as the next strategy's.
+    pub fn push(&mut self, f: &Flows) {
+        debug_assert!(self.len == 0 || self.agency.len() / self.len == f.agency.len());
+        self.agency.extend_from_slice(&f.agency);
+        self.users.extend_from_slice(&f.users);
+        self.len += 1;
+    }
+
+    /// The flows kept `i`th.
+    pub fn get(&self, i: usize) -> Flows {
+        let n = self.agency.len() / self.len.max(1);
+        let m = self.users.len() / self.len.max(1);
+        Flows {
+            agency: self.agency[i * n..(i + 1) * n].to_vec(),
+            users: self.users[i * m..(i + 1) * m].to_vec(),
+        }
+    }
+}
+
 /// A treatment as the simulation needs it: money as f64, effects resolved.
 #[derive(Debug, Clone)]
 struct Effect {
@@ -483,9 +519,19 @@ impl SectionSim {
         while let Some(i) = which.next() {
             match which.next() {
                 Some(j) => {
-                    self.run_pair(&strategies[i], ta, &strategies[j], tb);
-                    each(i, ta);
-                    each(j, tb);
+                    let (si, sj) = (&strategies[i], &strategies[j]);
+                    // Each to the trace it shares more years with (fewer years played).
+                    let kept = self.replay_from(si, ta) + self.replay_from(sj, tb);
+                    let swapped = self.replay_from(si, tb) + self.replay_from(sj, ta);
+                    if swapped > kept {
+                        self.run_pair(si, tb, sj, ta);
+                        each(i, tb);
+                        each(j, ta);
+                    } else {
+                        self.run_pair(si, ta, sj, tb);
+                        each(i, ta);
+                        each(j, tb);
+                    }
                 }
                 None => {
                     self.run(&strategies[i], ta);
