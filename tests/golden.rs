@@ -1,7 +1,8 @@
 //! Every output file, byte for byte, against a recorded list of sizes and FNV-1a 64 hashes
-//! (`tests/golden/outputs.txt`), so a restructure can show it changed nothing. Runs `plan`,
-//! `appraise`, `sensitivity`, `risk`, `select` and `report` on the built-in demo and on a
-//! synthetic network whose selection is proven optimal (nothing here depends on a time limit).
+//! (`tests/golden/outputs.txt`), so a restructure can show it changed nothing. Runs `plan` (with
+//! and without `--report`), `appraise`, `sensitivity`, `risk`, `select` and `report` on the
+//! built-in demo and on a synthetic network whose selection is proven optimal (nothing here
+//! depends on a time limit: the frontier's levels are solved to their gap or shown infeasible).
 //!
 //! JSON files are compared after removing what differs between runs by design: the run id and
 //! every key ending in `seconds`. `manifest.json` is left out (it holds run ids and the hashes of
@@ -111,6 +112,7 @@ fn outputs_are_unchanged() {
             "demo-select",
         ],
         &["-q", "report", "--from", "demo", "--out", "demo.html"],
+        &["-q", "plan", "--out", "demo-report", "--report"],
         &["-q", "init", "net", "--sections", "60", "--seed", "3"],
         &[
             "-q",
@@ -130,12 +132,13 @@ fn outputs_are_unchanged() {
             "--out",
             "net-appraise",
         ],
+        &["-q", "report", "--from", "net-plan", "--out", "net.html"],
     ];
     for args in runs {
         wd.run(args).expect_code(0);
     }
     // Both selections are proven: their files cannot depend on how fast the machine is.
-    for dir in ["demo", "net-plan", "demo-select"] {
+    for dir in ["demo", "net-plan", "demo-select", "demo-report"] {
         let s: serde_json::Value =
             serde_json::from_str(&wd.read(&format!("{dir}/summary.json"))).unwrap();
         assert_eq!(s["status"], "optimal", "{dir}: the selection is not proven");
@@ -149,9 +152,11 @@ fn outputs_are_unchanged() {
             "demo-risk",
             "demo-select",
             "demo.html",
+            "demo-report",
             "net",
             "net-plan",
             "net-appraise",
+            "net.html",
         ],
     );
     let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(LIST);
