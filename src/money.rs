@@ -7,7 +7,7 @@
 //! becomes money again, rounded half-to-even to the cent.
 
 use rust_decimal::prelude::ToPrimitive;
-use rust_decimal::{Decimal, RoundingStrategy};
+use rust_decimal::Decimal;
 use std::fmt;
 use std::ops::{Add, AddAssign, Mul, Neg, Sub};
 use std::str::FromStr;
@@ -83,14 +83,11 @@ impl Money {
         self.0.to_f64().unwrap_or(f64::NAN)
     }
 
-    /// A computed amount rounded half-to-even to two decimal places; `None` if not finite or out
+    /// A computed amount rounded to the cent by [`units_half_even`]; `None` if not finite or out
     /// of the decimal range.
     pub fn from_f64_rounded(x: f64) -> Option<Money> {
-        if !x.is_finite() {
-            return None;
-        }
-        Decimal::from_f64_retain(x)
-            .map(|d| Money(d.round_dp_with_strategy(2, RoundingStrategy::MidpointNearestEven)))
+        let cents = units_half_even(x, 2)?;
+        (cents.unsigned_abs() < 1u128 << 96).then(|| Money(Decimal::from_i128_with_scale(cents, 2)))
     }
 
     pub fn is_negative(self) -> bool {
@@ -146,6 +143,54 @@ impl fmt::Display for Money {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(f, "{}", self.0.normalize())
     }
+}
+
+/// `x` in whole units of 10^−`places` (cents for 2), rounded half-to-even on its exact binary
+/// value: the one rule by which a computed float becomes money or any other amount the tool
+/// counts or writes with a fixed number of decimals. It is the rule of Rust's `{:.N}`
+/// formatting too, so a file's text and the units agree. `None` when `x` is not finite, when
+/// `places` is above 18, or when the units pass ±2¹²⁰.
+pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
+    if !x.is_finite() || places > 18 {
+        return None;
+    }
+    let bits = x.to_bits();
+    let negative = bits >> 63 == 1;
+    let exp = ((bits >> 52) & 0x7ff) as i32;
+    let frac = bits & ((1u64 << 52) - 1);
+    // x = m · 2^e exactly.
+    let (m, e) = if exp == 0 {
+        (frac, -1074)
+    } else {
+        (frac | 1 << 52, exp - 1075)
+    };
+    // m · 10^places < 2^53 · 10^18 < 2^113.
+    let scaled = u128::from(m) * 10u128.pow(places);
+    let units: u128 = if e >= 0 {
+        if e > 120 || scaled.leading_zeros() <= e as u32 + 7 {
+            return None;
+        }
+        scaled << e
+    } else {
+        let s = (-e) as u32;
+        if s > 120 {
+            0 // below half a unit: scaled < 2^113 ≤ 2^(s−1)
+        } else {
+            let q = scaled >> s;
+            let r = scaled & ((1u128 << s) - 1);
+            let half = 1u128 << (s - 1);
+            if r > half || (r == half && q & 1 == 1) {
+                q + 1
+            } else {
+                q
+            }
+        }
+    };
+    if units >= 1 << 120 {
+        return None;
+    }
+    let units = units as i128;
+    Some(if negative { -units } else { units })
 }
 
 /// Format a float with thousands separators and `decimals` decimal places: `1234567.891` →
@@ -237,6 +282,60 @@ mod tests {
         assert_eq!(Money::from_f64_rounded(2.675).unwrap().to_string(), "2.67"); // 2.67499.. in binary
         assert_eq!(Money::from_f64_rounded(0.125).unwrap().to_string(), "0.12");
         assert!(Money::from_f64_rounded(f64::NAN).is_none());
+    }
+
+    /// The rule is Rust's own `{:.N}` formatting, digit for digit: exact midpoints in binary
+    /// (0.125, 2.5), values just either side of a decimal midpoint (2.675 is 2.67499… in
+    /// binary), negatives, subnormals, and random values over thirty orders of magnitude.
+    #[test]
+    fn units_are_the_formatted_digits() {
+        let text = |u: i128, places: u32| -> String {
+            let p = 10u128.pow(places);
+            let a = u.unsigned_abs();
+            let sign = if u < 0 { "-" } else { "" };
+            if places == 0 {
+                format!("{sign}{a}")
+            } else {
+                format!("{sign}{}.{:0w$}", a / p, a % p, w = places as usize)
+            }
+        };
+        let mut rng = crate::demo::synth::SplitMix64::new(7);
+        let mut xs = vec![
+            0.125,
+            0.375,
+            2.5,
+            3.5,
+            2.675,
+            1.005,
+            -0.125,
+            -2.5,
+            0.5,
+            1e-310,
+            123456789.125,
+            0.0,
+            1e15,
+            -1e-3,
+        ];
+        for _ in 0..20_000 {
+            let x = 10f64.powf(rng.range(-8.0, 14.0));
+            xs.push(if rng.range(0.0, 1.0) < 0.5 { -x } else { x });
+            // Values on a decimal midpoint as computed money often is.
+            xs.push((rng.range(0.0, 1e6) * 200.0).round() / 200.0 + 0.005);
+        }
+        for &x in &xs {
+            for places in [0u32, 2, 6] {
+                let u = units_half_even(x, places).unwrap();
+                let want = format!("{x:.p$}", p = places as usize);
+                // `{:.N}` keeps the sign of a negative that rounds to zero.
+                let want = want
+                    .strip_prefix('-')
+                    .filter(|w| w.chars().all(|c| c == '0' || c == '.'))
+                    .map_or(want.clone(), str::to_owned);
+                assert_eq!(text(u, places), want, "{x} at {places}");
+            }
+        }
+        assert_eq!(units_half_even(f64::NAN, 2), None);
+        assert_eq!(units_half_even(1e300, 2), None);
     }
 
     #[test]

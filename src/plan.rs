@@ -51,9 +51,13 @@ pub enum RowKind {
 
 /// Row units per money unit: budget lines count cents.
 pub const MONEY_UNITS: f64 = 100.0;
+/// Decimal places of [`MONEY_UNITS`].
+const MONEY_PLACES: u32 = 2;
 /// Row units per km (poor share) or per km·m/km (mean IRI): target rows count millionths, fine
 /// enough that rounding each section's amount moves a network's mean IRI by less than 10⁻⁶ m/km.
 pub const TARGET_UNITS: f64 = 1e6;
+/// Decimal places of [`TARGET_UNITS`].
+const TARGET_PLACES: u32 = 6;
 
 /// One row of the selection.
 #[derive(Debug, Clone, PartialEq)]
@@ -87,16 +91,15 @@ impl Row {
     }
 }
 
-/// `x` (in a row's measure) in whole row units, rounded to the nearest. A value that is not
-/// finite or is beyond the supported range becomes `i64::MAX` (or `MIN`), which the selection
-/// refuses with the row's name rather than wrapping.
-fn to_units(x: f64, per: f64) -> i64 {
-    let v = (x * per).round();
-    if v.is_nan() {
-        i64::MAX
-    } else {
-        // `as` saturates at the ends of the range.
-        v as i64
+/// `x` (in a row's measure) in whole row units of 10^−`places`, rounded by the tool's one rule
+/// ([`crate::money::units_half_even`]). A value that is not finite or is beyond the supported
+/// range becomes `i64::MAX` (or `MIN`), which the selection refuses with the row's name rather
+/// than wrapping.
+fn to_units(x: f64, places: u32) -> i64 {
+    match crate::money::units_half_even(x, places) {
+        Some(u) => u.clamp(i128::from(i64::MIN), i128::from(i64::MAX)) as i64,
+        None if x < 0.0 => i64::MIN,
+        None => i64::MAX,
     }
 }
 
@@ -273,7 +276,7 @@ impl<'a> SectionRows<'a> {
                 Category::Routine => r,
                 Category::All => c + r,
             };
-            let u = to_units(x, MONEY_UNITS);
+            let u = to_units(x, MONEY_PLACES);
             if u != 0 {
                 out.push((j, u));
             }
@@ -291,12 +294,12 @@ impl<'a> SectionRows<'a> {
                         Category::Routine => t.routine[i],
                         Category::All => t.capital[i] + t.routine[i],
                     };
-                    to_units(x, MONEY_UNITS)
+                    to_units(x, MONEY_PLACES)
                 }
-                Read::MeanIri(i) => to_units(self.length_km * t.iri[i], TARGET_UNITS),
+                Read::MeanIri(i) => to_units(self.length_km * t.iri[i], TARGET_PLACES),
                 Read::PoorShare(i) => {
                     if classify(t.iri[i], self.classes) == ConditionClass::Poor {
-                        to_units(self.length_km, TARGET_UNITS)
+                        to_units(self.length_km, TARGET_PLACES)
                     } else {
                         0
                     }

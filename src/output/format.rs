@@ -56,18 +56,23 @@ pub fn irr_text(irr: &Irr) -> String {
     }
 }
 
-/// Money for CSV: two decimals, empty when not finite (written without allocating).
+/// Money for CSV: two decimals, rounded by the tool's one rule
+/// ([`crate::money::units_half_even`]), empty when not finite (written without allocating). A
+/// value that rounds to zero prints as `0.00`, never `-0.00`.
 #[derive(Debug, Clone, Copy)]
 pub struct Amount(pub f64);
 
 impl std::fmt::Display for Amount {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        if !self.0.is_finite() {
-            return Ok(());
+        match crate::money::units_half_even(self.0, 2) {
+            Some(c) => {
+                let a = c.unsigned_abs();
+                let sign = if c < 0 { "-" } else { "" };
+                write!(f, "{sign}{}.{:02}", a / 100, a % 100)
+            }
+            None if self.0.is_finite() => write!(f, "{:.2}", self.0),
+            None => Ok(()),
         }
-        // No "-0.00": a value that rounds to zero prints as zero.
-        let x = if self.0.abs() < 0.005 { 0.0 } else { self.0 };
-        write!(f, "{x:.2}")
     }
 }
 

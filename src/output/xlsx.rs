@@ -165,7 +165,9 @@ mod imp {
                 Cell::Number(f64::from(s.base_year + w.year as i32)),
                 Cell::Text(sec.id.as_str()),
                 Cell::Text(&t.id),
-                Cell::Money((w.cost * 100.0).round() / 100.0),
+                Cell::Money(
+                    crate::money::Money::from_f64_rounded(w.cost).map_or(f64::NAN, |m| m.to_f64()),
+                ),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
                 Cell::Text(t.category.name()),
             ])?;
