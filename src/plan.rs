@@ -155,6 +155,39 @@ pub struct Plan {
     pub works: Vec<PlannedWork>,
 }
 
+/// NPV against the base and PV agency cost of one way to treat the whole network.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Total {
+    pub npv: f64,
+    pub pv_agency: f64,
+}
+
+/// The plan's totals beside every section at its best with no limits and the base (whose NPV
+/// against itself is 0), summed in network order.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Totals {
+    pub plan: Total,
+    pub unconstrained: Total,
+    pub base: Total,
+}
+
+impl Plan {
+    /// The plan's totals beside the unconstrained choice and the base.
+    pub fn totals(&self) -> Totals {
+        let c = &self.candidates;
+        let mut t = Totals::default();
+        for g in 0..c.sections() {
+            let k = c.chosen(&self.outcome.plan, g);
+            t.plan.npv += c.npv[k];
+            t.plan.pv_agency += c.pv_agency[k];
+            t.unconstrained.npv += c.unconstrained[g].npv;
+            t.unconstrained.pv_agency += c.unconstrained[g].pv_agency;
+            t.base.pv_agency += c.base_pv_agency[g];
+        }
+        t
+    }
+}
+
 /// One treatment of the plan.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PlannedWork {

@@ -15,6 +15,8 @@
 
 use crate::error::{Error, Result};
 use crate::input::Run;
+use crate::output::schema::analysis::FrontierLevel;
+use crate::output::schema::value::{Cents, Real, Sci6};
 use crate::plan::{solve_checked, Candidates, Row, RowKind};
 use crate::progress::Progress;
 use crate::select::network::{relative_gap, Options, Status};
@@ -163,27 +165,22 @@ pub fn frontier(
         .collect())
 }
 
-/// `frontier.csv`: `level,total_budget,objective,bound,gap,status,unlimited` — objective, bound
-/// and gap empty and status `infeasible` where no plan meets the lines; `unlimited` is `true` on
-/// the level at which no scaled line can bind.
-pub fn csv(points: &[Point]) -> String {
-    use crate::output::format::Amount;
-    use std::fmt::Write as _;
-    let mut s = String::from("level,total_budget,objective,bound,gap,status,unlimited\n");
-    for p in points {
-        let _ = write!(s, "{},{},", p.level, Amount(p.total_budget));
-        let _ = match &p.solved {
-            Some(v) => write!(
-                s,
-                "{},{},{:.6e},{}",
-                Amount(v.objective),
-                Amount(v.bound),
-                v.gap,
-                v.status
-            ),
-            None => write!(s, ",,,infeasible"),
-        };
-        let _ = writeln!(s, ",{}", p.unlimited);
-    }
-    s
+/// `frontier.csv`'s rows: each level's total budget, and the best plan's objective, bound, gap
+/// and status (empty but for `infeasible` when no plan fits).
+pub fn rows(points: &[Point]) -> Vec<FrontierLevel> {
+    points
+        .iter()
+        .map(|p| FrontierLevel {
+            level: Real(p.level),
+            total_budget: Cents::of(p.total_budget),
+            objective: p.solved.as_ref().and_then(|v| Cents::of_f64(v.objective)),
+            bound: p.solved.as_ref().and_then(|v| Cents::of_f64(v.bound)),
+            gap: p.solved.as_ref().map(|v| Sci6::of(v.gap)),
+            status: p
+                .solved
+                .as_ref()
+                .map_or("infeasible".to_owned(), |v| v.status.to_string()),
+            unlimited: p.unlimited,
+        })
+        .collect()
 }

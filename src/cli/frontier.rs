@@ -114,7 +114,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     bar.finish();
     if let Some(dir) = &args.out.out {
         let mut set = StreamSet::create(dir, "frontier", &["frontier.csv"])?;
-        set.write(0, pavestrat::analysis::frontier::csv(&points).as_bytes())?;
+        let rows = pavestrat::analysis::frontier::rows(&points);
+        set.write(0, pavestrat::output::schema::text(&rows).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }

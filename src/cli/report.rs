@@ -3,7 +3,7 @@
 
 use super::Context;
 use pavestrat::error::Result;
-use pavestrat::output::report::{render, Files};
+use pavestrat::output::report::{render, Inputs};
 use std::path::PathBuf;
 
 /// Arguments of `report`.
@@ -27,7 +27,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if let Some(m) = &manifest {
         pavestrat::io::check_plan_set(&args.from, m, &pavestrat::output::report::FILES_READ)?;
     }
-    let html = render(&Files::Dir(&args.from))?;
+    let html = render(&Inputs::read(&args.from)?)?;
     match args.out {
         Some(out) => {
             pavestrat::io::write_atomically(&out, html.as_bytes())?;

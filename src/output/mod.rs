@@ -2,7 +2,10 @@
 //! ([`format`](mod@format)), the tool's own CSVs read back with their places ([`readback`]), the workbook
 //! ([`xlsx`]) and the HTML report ([`report`]).
 
+pub mod files;
 pub mod format;
 pub mod readback;
 pub mod report;
+pub mod schema;
+pub mod terminal;
 pub mod xlsx;

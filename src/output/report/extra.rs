@@ -2,9 +2,8 @@
 //! `risk_draws.csv` when they are in the plan's directory.
 
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
-use crate::error::Result;
 use crate::money::grouped;
-use crate::output::readback::Table;
+use crate::output::schema::analysis::{Risk, RiskDraw, Sensitivity};
 use std::fmt::Write as _;
 
 fn axis_title(what: &str, m: &str, word: &str) -> String {
@@ -28,50 +27,38 @@ fn show(input: &str, value: f64) -> String {
 type Change = (String, String, f64, String, String);
 
 /// The tornado chart of the network plan's NPV, and its switching values.
-pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
-    let (cs, ci, ct, cd, cv, cn) = (
-        t.column("scope")?,
-        t.column("input")?,
-        t.column("test")?,
-        t.column("direction")?,
-        t.column("value")?,
-        t.column("npv")?,
-    );
+pub fn sensitivity_section(rows: &[Sensitivity], m: &str) -> String {
     let mut base = None;
     // input → (low value, low NPV, high value, high NPV)
     let mut bars: Vec<(String, f64, f64, f64, f64)> = Vec::new();
     let mut switching: Vec<(String, String, Option<f64>)> = Vec::new();
     let mut sections_switch = 0usize;
-    let (csec, cstr, co) = (
-        t.column("section_id")?,
-        t.column("strategy")?,
-        t.column("other_strategy")?,
-    );
     let mut changes: Vec<Change> = Vec::new();
-    for (line, r) in &t.rows {
-        let scope = t.text(r, cs);
-        let input = t.text(r, ci).to_owned();
-        let test = t.text(r, ct);
-        if scope != "network" {
+    for r in rows {
+        let input = r.input.clone();
+        let test = r.test.as_str();
+        let value = r.value.map(|v| v.0);
+        let npv = r.npv.map(|x| x.to_f64());
+        if r.scope != "network" {
             if test == "best-changes" {
-                if let Some(v) = t.optional(*line, r, cv)? {
+                if let Some(v) = value {
                     sections_switch += 1;
                     changes.push((
-                        t.text(r, csec).to_owned(),
+                        r.section_id.clone(),
                         input,
                         v,
-                        t.text(r, cstr).to_owned(),
-                        t.text(r, co).to_owned(),
+                        r.strategy.clone(),
+                        r.other_strategy.clone(),
                     ));
                 }
             }
             continue;
         }
         match test {
-            "scenario" => base = t.optional(*line, r, cn)?,
+            "scenario" => base = npv,
             "low" | "high" => {
-                let v = t.number(*line, r, cv)?;
-                let n = t.number(*line, r, cn)?;
+                let v = value.unwrap_or(f64::NAN);
+                let n = npv.unwrap_or(f64::NAN);
                 let slot = match bars.iter_mut().position(|b| b.0 == input) {
                     Some(i) => i,
                     None => {
@@ -87,9 +74,7 @@ pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
                     bars[slot].4 = n;
                 }
             }
-            "npv-zero" => {
-                switching.push((input, t.text(r, cd).to_owned(), t.optional(*line, r, cv)?))
-            }
+            "npv-zero" => switching.push((input, r.direction.clone(), value)),
             _ => {}
         }
     }
@@ -219,72 +204,52 @@ pub fn sensitivity_section(t: &Table, m: &str) -> Result<String> {
         }
     }
     s.push_str("</section>");
-    Ok(s)
+    s
 }
 
 /// The histogram of the plan's NPV over the draws, and spending against each line.
-pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String> {
-    let (ck, cl, cli, cm, c10, c50, c90, cp, co, cn) = (
-        t.column("kind")?,
-        t.column("line")?,
-        t.column("limit")?,
-        t.column("mean")?,
-        t.column("p10")?,
-        t.column("p50")?,
-        t.column("p90")?,
-        t.column("prob_positive")?,
-        t.column("prob_over")?,
-        t.column("draws")?,
-    );
+pub fn risk_section(rows: &[Risk], draws: Option<&[RiskDraw]>, m: &str) -> String {
     let mut s = String::from(r#"<section id="risk"><h2>Risk</h2>"#);
-    let (cs, cst, cb, cin) = (
-        t.column("section_id")?,
-        t.column("strategy")?,
-        t.column("prob_best")?,
-        t.column("in_plan")?,
-    );
+    let share =
+        |x: Option<crate::output::schema::value::Fixed<6>>| x.map_or(f64::NAN, |x| x.to_f64());
     let mut budget = Vec::new();
     // The plan's strategy of each section: (section, strategy, P(NPV > 0), P(best), P50).
     let mut planned: Vec<(String, String, f64, f64, f64)> = Vec::new();
-    for (line, r) in &t.rows {
-        match t.text(r, ck) {
-            "strategy" if t.flag(*line, r, cin)? => planned.push((
-                t.text(r, cs).to_owned(),
-                t.text(r, cst).to_owned(),
-                t.number(*line, r, cp)?,
-                t.number(*line, r, cb)?,
-                t.number(*line, r, c50)?,
+    for r in rows {
+        match r.kind.as_str() {
+            "strategy" if r.in_plan == Some(true) => planned.push((
+                r.section_id.clone(),
+                r.strategy.clone(),
+                share(r.prob_positive),
+                share(r.prob_best),
+                r.p50.to_f64(),
             )),
             "plan" => {
                 let _ = write!(
                     s,
                     "<p>Over {} draws of the scenario's uncertain inputs, the network plan's NPV has mean {}, P10 {}, P50 {} and P90 {} ({}); it is above zero in {:.1} % of draws.</p>",
-                    grouped(t.number(*line, r, cn)?, 0),
-                    grouped(t.number(*line, r, cm)?, 0),
-                    grouped(t.number(*line, r, c10)?, 0),
-                    grouped(t.number(*line, r, c50)?, 0),
-                    grouped(t.number(*line, r, c90)?, 0),
+                    grouped(r.draws as f64, 0),
+                    grouped(r.mean.to_f64(), 0),
+                    grouped(r.p10.to_f64(), 0),
+                    grouped(r.p50.to_f64(), 0),
+                    grouped(r.p90.to_f64(), 0),
                     esc(m),
-                    100.0 * t.number(*line, r, cp)?
+                    100.0 * share(r.prob_positive)
                 );
             }
             "budget" => budget.push((
-                t.text(r, cl).to_owned(),
-                t.number(*line, r, cli)?,
-                t.number(*line, r, c10)?,
-                t.number(*line, r, c50)?,
-                t.number(*line, r, c90)?,
-                t.number(*line, r, co)?,
+                r.line.clone(),
+                r.limit.map_or(f64::NAN, |x| x.to_f64()),
+                r.p10.to_f64(),
+                r.p50.to_f64(),
+                r.p90.to_f64(),
+                share(r.prob_over),
             )),
             _ => {}
         }
     }
     if let Some(d) = draws {
-        let cv = d.column("plan_npv")?;
-        let mut xs = Vec::with_capacity(d.rows.len());
-        for (line, r) in &d.rows {
-            xs.push(d.number(*line, r, cv)?);
-        }
+        let xs: Vec<f64> = d.iter().map(|r| r.plan_npv.to_f64()).collect();
         if !xs.is_empty() {
             let (lo, hi) = (
                 xs.iter().copied().fold(f64::INFINITY, f64::min),
@@ -442,5 +407,5 @@ pub fn risk_section(t: &Table, draws: Option<&Table>, m: &str) -> Result<String>
         s.push_str("</tbody></table>");
     }
     s.push_str("<p class=\"small\">Every section's strategies (mean, P10, P50, P90 of NPV, chance of NPV above zero and of being the section's best) are in risk.csv; every draw's plan NPV and spending in risk_draws.csv.</p></section>");
-    Ok(s)
+    s
 }

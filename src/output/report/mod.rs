@@ -11,9 +11,12 @@
 pub mod chart;
 mod extra;
 
-use crate::error::{Error, Result};
+use crate::error::Result;
 use crate::money::grouped;
-use crate::output::readback::Table;
+use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
+use crate::output::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMARY};
+use crate::output::schema::summary::Summary;
+use crate::output::schema::{self, Record};
 use chart::{esc, Chart, Spec, Units, BLUE, GREEN, GREY, ORANGE, VERMILLION};
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -21,65 +24,59 @@ use std::path::Path;
 
 /// Every file the report reads from a plan's directory.
 pub const FILES_READ: [&str; 10] = [
-    "summary.json",
-    "condition.csv",
-    "budget_use.csv",
-    "work_programme.csv",
-    "target_use.csv",
-    "widening_plan.csv",
-    "frontier.csv",
-    "sensitivity.csv",
-    "risk.csv",
-    "risk_draws.csv",
+    SUMMARY,
+    Condition::FILE.name,
+    BudgetUse::FILE.name,
+    Work::FILE.name,
+    TargetUse::FILE.name,
+    Widening::FILE.name,
+    FrontierLevel::FILE.name,
+    Sensitivity::FILE.name,
+    Risk::FILE.name,
+    RiskDraw::FILE.name,
 ];
 
-/// Where the report's input files are.
-pub enum Files<'a> {
-    /// Texts by file name (a run that has just made them).
-    Memory(&'a BTreeMap<String, String>),
-    /// A directory written by `plan --out DIR`.
-    Dir(&'a Path),
+/// What a report is drawn from: a plan's summary and tables as typed rows — made in memory by
+/// the run that writes them (`plan --report`), or read from the directory it wrote
+/// ([`Inputs::read`]); the rows are the same either way ([`crate::output::schema`]).
+#[derive(Debug, Clone, Default)]
+pub struct Inputs {
+    pub summary: Summary,
+    pub condition: Vec<Condition>,
+    pub budget: Vec<BudgetUse>,
+    pub programme: Vec<Work>,
+    pub targets: Option<Vec<TargetUse>>,
+    pub widening: Option<Vec<Widening>>,
+    pub frontier: Option<Vec<FrontierLevel>>,
+    pub sensitivity: Option<Vec<Sensitivity>>,
+    pub risk: Option<Vec<Risk>>,
+    pub risk_draws: Option<Vec<RiskDraw>>,
 }
 
-impl Files<'_> {
-    /// A file's label and text, `None` when it is not there.
-    fn get(&self, name: &str) -> Result<Option<(String, String)>> {
-        match self {
-            Files::Memory(m) => Ok(m.get(name).map(|t| (name.to_owned(), t.clone()))),
-            Files::Dir(d) => {
-                let p = d.join(name);
-                match std::fs::read_to_string(&p) {
-                    Ok(t) => Ok(Some((p.display().to_string(), t))),
-                    Err(e) if e.kind() == std::io::ErrorKind::NotFound => Ok(None),
-                    Err(e) => Err(Error::Usage(format!("cannot read {}: {e}", p.display()))),
-                }
-            }
-        }
-    }
-
-    fn required(&self, name: &str) -> Result<(String, String)> {
-        self.get(name)?.ok_or_else(|| {
-            let place = match self {
-                Files::Dir(d) => d.join(name).display().to_string(),
-                Files::Memory(_) => name.to_owned(),
-            };
-            Error::Usage(format!(
-                "cannot read {place}; expected the output directory of `pavestrat plan --out DIR` \
-                 (give it with --from DIR)"
+impl Inputs {
+    /// The files of the directory `plan --out DIR` wrote (with those of `frontier`,
+    /// `sensitivity` and `risk` when there): the summary, condition, budget use and work
+    /// programme must be there.
+    pub fn read(dir: &Path) -> Result<Inputs> {
+        let path = dir.join(SUMMARY);
+        let label = path.display().to_string();
+        let text = std::fs::read_to_string(&path).map_err(|e| {
+            crate::error::Error::Usage(format!(
+                "cannot read {label}: {e}; expected the output directory of `pavestrat plan --out DIR` (give it with --from DIR)"
             ))
+        })?;
+        Ok(Inputs {
+            summary: Summary::parse(&label, &text)?,
+            condition: schema::read(dir)?,
+            budget: schema::read(dir)?,
+            programme: schema::read(dir)?,
+            targets: schema::read_if_there(dir)?,
+            widening: schema::read_if_there(dir)?,
+            frontier: schema::read_if_there(dir)?,
+            sensitivity: schema::read_if_there(dir)?,
+            risk: schema::read_if_there(dir)?,
+            risk_draws: schema::read_if_there(dir)?,
         })
-    }
-
-    fn table(&self, name: &str, required: bool) -> Result<Option<Table>> {
-        let got = if required {
-            Some(self.required(name)?)
-        } else {
-            self.get(name)?
-        };
-        got.map(|(label, text)| {
-            crate::output::readback::parse(&label, text.as_bytes(), "pavestrat plan", |_| true)
-        })
-        .transpose()
     }
 }
 
@@ -93,102 +90,13 @@ fn money(x: f64, label: &str) -> String {
     format!("{} {}", grouped(x, 0), esc(label))
 }
 
-/// The numbers of `summary.json` the report reads (checked present before anything is drawn).
-const SUMMARY_NUMBERS: &[&[&str]] = &[
-    &["sections"],
-    &["npv", "plan"],
-    &["npv", "unconstrained"],
-    &["npv", "base"],
-    &["pv_agency_cost", "plan"],
-    &["pv_agency_cost", "unconstrained"],
-    &["pv_agency_cost", "base"],
-    &["pv_capital", "plan"],
-    &["assumptions", "discount_rate"],
-    &["price_updates"],
-];
-
-/// The summary's facts the report uses.
-struct Summary {
-    v: serde_json::Value,
-    money: String,
-}
-
-impl Summary {
-    fn num(&self, path: &[&str]) -> f64 {
-        let mut v = &self.v;
-        for k in path {
-            v = &v[*k];
-        }
-        v.as_f64().unwrap_or(f64::NAN)
-    }
-
-    fn text(&self, path: &[&str]) -> String {
-        let mut v = &self.v;
-        for k in path {
-            v = &v[*k];
-        }
-        match v {
-            serde_json::Value::String(s) => s.clone(),
-            serde_json::Value::Null => String::new(),
-            other => other.to_string(),
-        }
-    }
-}
-
-/// Render the report from the files.
-pub fn render(files: &Files<'_>) -> Result<String> {
-    let (label, text) = files.required("summary.json")?;
-    let v: serde_json::Value = serde_json::from_str(&text).map_err(|e| {
-        let mut d = crate::diag::Diagnostics::new();
-        d.error(
-            crate::diag::Place::line(label.clone(), e.line()),
-            format!("unreadable JSON ({e})"),
-            "summary.json as `pavestrat plan` writes it",
-        );
-        Error::Input(d)
-    })?;
-    // Every number the report reads must be there: a summary without one is not a plan's,
-    // and is refused by name rather than drawn as NaN.
-    let mut d = crate::diag::Diagnostics::new();
-    for path in SUMMARY_NUMBERS {
-        let mut x = &v;
-        for k in *path {
-            x = &x[*k];
-        }
-        if x.as_f64().is_none() {
-            d.error(
-                crate::diag::Place::file(label.clone()).with_field(path.join(".")),
-                format!("no number at `{}`", path.join(".")),
-                "summary.json as `pavestrat plan` writes it",
-            );
-        }
-    }
-    if d.has_errors() {
-        return Err(Error::Input(d));
-    }
-    let sm = Summary {
-        money: v["money"].as_str().unwrap_or("").to_owned(),
-        v,
-    };
-    let condition = files.table("condition.csv", true)?.unwrap_or_else(empty);
-    let budget = files.table("budget_use.csv", true)?.unwrap_or_else(empty);
-    let programme = files
-        .table("work_programme.csv", true)?
-        .unwrap_or_else(empty);
-    let targets = files.table("target_use.csv", false)?;
-    let widening = files.table("widening_plan.csv", false)?;
-    let frontier = files.table("frontier.csv", false)?;
-    let sensitivity = files.table("sensitivity.csv", false)?;
-    let risk = files.table("risk.csv", false)?;
-    let risk_draws = files.table("risk_draws.csv", false)?;
-
-    let title = {
-        let t = sm.text(&["assumptions", "title"]);
-        if t.is_empty() {
-            "Road work programme".to_owned()
-        } else {
-            t
-        }
+/// Render the report.
+pub fn render(inputs: &Inputs) -> Result<String> {
+    let sm = &inputs.summary;
+    let title = if sm.assumptions.title.is_empty() {
+        "Road work programme".to_owned()
+    } else {
+        sm.assumptions.title.clone()
     };
     let mut body = String::new();
     let mut nav: Vec<(&str, &str)> = Vec::new();
@@ -197,36 +105,40 @@ pub fn render(files: &Files<'_>) -> Result<String> {
         body,
         r#"<header><h1>{}</h1><p class="sub">Work programme and appraisal report · {} sections · money in {}</p><p class="caution"><strong>Caution.</strong> {caution}</p></header>"#,
         esc(&title),
-        grouped(sm.num(&["sections"]), 0),
+        grouped(sm.sections as f64, 0),
         esc(&sm.money)
     );
     nav.push(("numbers", "The plan in numbers"));
     let numbers_at = body.len();
-    body.push_str(&numbers(&sm, targets.as_ref())?);
+    body.push_str(&numbers(sm, inputs.targets.as_deref()));
     nav.push(("condition", "Network condition"));
-    body.push_str(&condition_section(&condition)?);
+    body.push_str(&condition_section(&inputs.condition));
     nav.push(("spending", "Spending and budget lines"));
-    body.push_str(&spending_section(&budget, &sm)?);
-    if let Some(w) = &widening {
-        if !w.rows.is_empty() {
+    body.push_str(&spending_section(&inputs.budget, sm));
+    if let Some(w) = &inputs.widening {
+        if !w.is_empty() {
             nav.push(("widening", "Widening timing"));
-            body.push_str(&widening_section(w, &sm)?);
+            body.push_str(&widening_section(w, sm));
         }
     }
     nav.push(("frontier", "Budget frontier"));
-    body.push_str(&frontier_section(frontier.as_ref(), &sm)?);
-    if let Some(t) = &sensitivity {
+    body.push_str(&frontier_section(inputs.frontier.as_deref(), sm));
+    if let Some(t) = &inputs.sensitivity {
         nav.push(("sensitivity", "Sensitivity"));
-        body.push_str(&extra::sensitivity_section(t, &sm.money)?);
+        body.push_str(&extra::sensitivity_section(t, &sm.money));
     }
-    if let Some(t) = &risk {
+    if let Some(t) = &inputs.risk {
         nav.push(("risk", "Risk"));
-        body.push_str(&extra::risk_section(t, risk_draws.as_ref(), &sm.money)?);
+        body.push_str(&extra::risk_section(
+            t,
+            inputs.risk_draws.as_deref(),
+            &sm.money,
+        ));
     }
     nav.push(("programme", "Work programme"));
-    body.push_str(&programme_section(&programme, &sm)?);
+    body.push_str(&programme_section(&inputs.programme, sm));
     nav.push(("assumptions", "Assumptions"));
-    body.push_str(&assumptions_section(&sm));
+    body.push_str(&assumptions_section(sm));
     let _ = write!(
         body,
         r#"<footer><p class="caution">{caution}</p><p class="small">Made by pavestrat {}. Every chart is drawn from the CSV files beside this report.</p></footer>"#,
@@ -244,14 +156,6 @@ pub fn render(files: &Files<'_>) -> Result<String> {
     ))
 }
 
-fn empty() -> Table {
-    Table {
-        label: String::new(),
-        head: Vec::new(),
-        rows: Vec::new(),
-    }
-}
-
 const CSS: &str = "\
 body{font-family:system-ui,-apple-system,'Segoe UI',Roboto,'Liberation Sans',Arial,sans-serif;color:#1a1a1a;background:#fff;max-width:1080px;margin:1.5em auto;padding:0 1em;line-height:1.45}\
 h1{font-size:1.7em;margin:.2em 0}h2{font-size:1.3em;border-bottom:2px solid #1a1a1a;padding-bottom:.15em;margin-top:2em}h3{font-size:1.05em;margin:1.2em 0 .3em}\
@@ -267,10 +171,10 @@ svg rect.planned{stroke:#1a1a1a;stroke-width:2}\
 .charts{display:flex;flex-wrap:wrap;gap:.5em 1.2em}.charts figure{margin:0}.charts svg.chart{margin:.2em 0}\
 @media print{body{max-width:none;margin:0}nav{display:none}section{break-inside:avoid-page}svg.chart{break-inside:avoid}}";
 
-fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
+fn numbers(sm: &Summary, targets: Option<&[TargetUse]>) -> String {
     let m = &sm.money;
     let mut s = String::from(r#"<section id="numbers"><h2>The plan in numbers</h2>"#);
-    let least = sm.text(&["objective_kind"]) == "least-cost";
+    let least = sm.objective_kind == "least-cost";
     let _ = write!(
         s,
         "<p>Objective: {}. Status <strong>{}</strong>: the plan is within {:.4} % of the best any plan could reach (bound {}).</p>",
@@ -279,27 +183,31 @@ fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
         } else {
             "largest total NPV against the base (routine maintenance only)"
         },
-        esc(&sm.text(&["status"])),
-        sm.num(&["gap"]) * 100.0,
-        money(sm.num(&["bound"]), m)
+        esc(&sm.status),
+        sm.gap * 100.0,
+        money(sm.bound, m)
     );
     s.push_str(r#"<table class="numbers"><thead><tr><th></th><th class="num">NPV</th><th class="num">PV agency cost</th></tr></thead><tbody>"#);
-    for (label, key) in [
-        ("This plan", "plan"),
-        ("No budget limits", "unconstrained"),
-        ("Base (routine only)", "base"),
+    for (label, npv, pv) in [
+        ("This plan", sm.npv.plan, sm.pv_agency_cost.plan),
+        (
+            "No budget limits",
+            sm.npv.unconstrained,
+            sm.pv_agency_cost.unconstrained,
+        ),
+        ("Base (routine only)", sm.npv.base, sm.pv_agency_cost.base),
     ] {
         let _ = write!(
             s,
             r#"<tr><td>{label}</td><td class="num">{}</td><td class="num">{}</td></tr>"#,
-            money(sm.num(&["npv", key]), m),
-            money(sm.num(&["pv_agency_cost", key]), m)
+            money(npv, m),
+            money(pv, m)
         );
     }
     s.push_str("</tbody></table>");
-    let cap = sm.num(&["pv_capital", "plan"]);
+    let cap = sm.pv_capital.plan;
     if cap > 0.0 && !least {
-        let npv = sm.num(&["npv", "plan"]);
+        let npv = sm.npv.plan;
         let _ = write!(
             s,
             "<p>Headline ratio: <strong>NPV per unit of present capital cost, {:.2}</strong> (PV capital {}), the ratio that ranks works when money binds. The same as a benefit-cost ratio on capital alone, {:.2}: every benefit and saving other than capital over the PV of capital. Appraisal files also give the benefit-cost ratio of road-user savings over the net agency cost (capital less routine savings and residual value), which runs high where that difference is small; NPV decides.</p>",
@@ -308,7 +216,7 @@ fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
             1.0 + npv / cap
         );
     }
-    let (p, u) = (sm.num(&["npv", "plan"]), sm.num(&["npv", "unconstrained"]));
+    let (p, u) = (sm.npv.plan, sm.npv.unconstrained);
     if u.abs() > 0.0 && !least {
         let _ = write!(
             s,
@@ -317,29 +225,23 @@ fn numbers(sm: &Summary, targets: Option<&Table>) -> Result<String> {
         );
     }
     if let Some(t) = targets {
-        if !t.rows.is_empty() {
-            let (cl, cm, ca, cv) = (
-                t.column("line")?,
-                t.column("measure")?,
-                t.column("at_most")?,
-                t.column("achieved")?,
-            );
+        if !t.is_empty() {
             s.push_str(r#"<h3>Condition targets</h3><table><thead><tr><th>target</th><th>measure</th><th class="num">at most</th><th class="num">plan</th></tr></thead><tbody>"#);
-            for (line, r) in &t.rows {
+            for r in t {
                 let _ = write!(
                     s,
                     r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td class="num">{:.4}</td></tr>"#,
-                    esc(t.text(r, cl)),
-                    esc(t.text(r, cm)),
-                    esc(t.text(r, ca)),
-                    t.number(*line, r, cv)?
+                    esc(&r.line),
+                    esc(&r.measure),
+                    r.at_most.0,
+                    r.achieved.to_f64()
                 );
             }
             s.push_str("</tbody></table>");
         }
     }
     s.push_str("</section>");
-    Ok(s)
+    s
 }
 
 /// The three cases with their colour and dash.
@@ -349,26 +251,21 @@ const CASE_STYLE: [(&str, &str, &str, &str); 3] = [
     ("unconstrained", "no budget limits", GREEN, "2 3"),
 ];
 
-fn condition_section(t: &Table) -> Result<String> {
-    let (cy, cc, ci) = (t.column("year")?, t.column("case")?, t.column("mean_iri")?);
-    let shares = [
-        t.column("good_share")?,
-        t.column("fair_share")?,
-        t.column("poor_share")?,
-    ];
+fn condition_section(rows: &[Condition]) -> String {
     // case → [(year, mean iri, [good, fair, poor])]
-    let mut by_case: BTreeMap<String, Vec<(f64, f64, [f64; 3])>> = BTreeMap::new();
-    for (line, r) in &t.rows {
-        let y = t.number(*line, r, cy)?;
-        let iri = t.number(*line, r, ci)?;
-        let mut sh = [0.0; 3];
-        for (k, &c) in shares.iter().enumerate() {
-            sh[k] = t.number(*line, r, c)?;
-        }
-        by_case
-            .entry(t.text(r, cc).to_owned())
-            .or_default()
-            .push((y, iri, sh));
+    type Point = (f64, f64, [f64; 3]);
+    let mut by_case: BTreeMap<&str, Vec<Point>> = BTreeMap::new();
+    for r in rows {
+        let sh = [
+            r.good_share.to_f64(),
+            r.fair_share.to_f64(),
+            r.poor_share.to_f64(),
+        ];
+        by_case.entry(r.case.as_str()).or_default().push((
+            f64::from(r.year),
+            r.mean_iri.to_f64(),
+            sh,
+        ));
     }
     let all: Vec<&(f64, f64, [f64; 3])> = by_case.values().flatten().collect();
     let (ymin, ymax) = all
@@ -438,40 +335,24 @@ fn condition_section(t: &Table) -> Result<String> {
         s.push_str(&c.finish(&legend));
     }
     s.push_str("</div></section>");
-    Ok(s)
+    s
 }
 
-fn spending_section(t: &Table, sm: &Summary) -> Result<String> {
-    let (cl, cy, cli, cu, cp, cg, ccat, creg) = (
-        t.column("line")?,
-        t.column("year")?,
-        t.column("limit")?,
-        t.column("used")?,
-        t.column("price")?,
-        t.column("group")?,
-        t.column("category")?,
-        t.column("region")?,
-    );
+fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
     // group → (category, region, [(year, limit, used, price, line)])
-    type Line = (f64, f64, f64, f64, String);
-    let mut groups: Vec<(String, String, String, Vec<Line>)> = Vec::new();
-    for (line, r) in &t.rows {
-        let g = t.text(r, cg).to_owned();
+    type Line<'r> = (f64, f64, f64, f64, &'r str);
+    let mut groups: Vec<(&str, &str, &str, Vec<Line<'_>>)> = Vec::new();
+    for r in rows {
         let entry = (
-            t.number(*line, r, cy)?,
-            t.number(*line, r, cli)?,
-            t.number(*line, r, cu)?,
-            t.number(*line, r, cp)?,
-            t.text(r, cl).to_owned(),
+            f64::from(r.year),
+            r.limit.to_f64(),
+            r.used.to_f64(),
+            r.price.0,
+            r.line.as_str(),
         );
-        match groups.iter_mut().find(|x| x.0 == g) {
+        match groups.iter_mut().find(|x| x.0 == r.group) {
             Some(x) => x.3.push(entry),
-            None => groups.push((
-                g,
-                t.text(r, ccat).to_owned(),
-                t.text(r, creg).to_owned(),
-                vec![entry],
-            )),
+            None => groups.push((&r.group, &r.category, &r.region, vec![entry])),
         }
     }
     let m = &sm.money;
@@ -556,22 +437,12 @@ fn spending_section(t: &Table, sm: &Summary) -> Result<String> {
         }
     }
     s.push_str("</tbody></table></section>");
-    Ok(s)
+    s
 }
 
-fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
-    let (cs, cy, cst, cn, cf, cbf, cbn, cpl) = (
-        t.column("section_id")?,
-        t.column("year")?,
-        t.column("strategy")?,
-        t.column("npv")?,
-        t.column("fyrr")?,
-        t.column("by_fyrr")?,
-        t.column("by_npv")?,
-        t.column("planned")?,
-    );
-    struct W {
-        strategy: String,
+fn widening_section(rows: &[Widening], sm: &Summary) -> String {
+    struct W<'r> {
+        strategy: &'r str,
         year: f64,
         npv: f64,
         fyrr: Option<f64>,
@@ -579,35 +450,35 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
         by_npv: bool,
         planned: bool,
     }
-    let mut secs: Vec<(String, Vec<W>)> = Vec::new();
-    let mut at: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
-    for (line, r) in &t.rows {
-        let id = t.text(r, cs).to_owned();
+    let mut secs: Vec<(&str, Vec<W<'_>>)> = Vec::new();
+    let mut at: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
+    for r in rows {
+        let id = r.section_id.as_str();
         let w = W {
-            strategy: t.text(r, cst).to_owned(),
-            year: t.number(*line, r, cy)?,
-            npv: t.number(*line, r, cn)?,
-            fyrr: t.optional(*line, r, cf)?,
-            by_fyrr: t.flag(*line, r, cbf)?,
-            by_npv: t.flag(*line, r, cbn)?,
-            planned: t.flag(*line, r, cpl)?,
+            strategy: &r.strategy,
+            year: f64::from(r.year),
+            npv: r.npv.to_f64(),
+            fyrr: r.fyrr.map(|f| f.to_f64()),
+            by_fyrr: r.by_fyrr,
+            by_npv: r.by_npv,
+            planned: r.planned,
         };
-        match at.get(&id) {
+        match at.get(id) {
             Some(&i) => secs[i].1.push(w),
             None => {
-                at.insert(id.clone(), secs.len());
+                at.insert(id, secs.len());
                 secs.push((id, vec![w]));
             }
         }
     }
     let best = |ws: &[W]| ws.iter().map(|w| w.npv).fold(f64::NEG_INFINITY, f64::max);
-    secs.sort_by(|a, b| best(&b.1).total_cmp(&best(&a.1)).then(a.0.cmp(&b.0)));
-    let rate = sm.num(&["assumptions", "discount_rate"]);
+    secs.sort_by(|a, b| best(&b.1).total_cmp(&best(&a.1)).then(a.0.cmp(b.0)));
+    let rate = sm.assumptions.discount_rate;
     let m = &sm.money;
     let mut s = String::from(r#"<section id="widening"><h2>Widening timing</h2>"#);
     // A plan written without `--every-widening-year` lists only the years it and the timing
     // rules pick (a summary from before the key existed listed every year).
-    let every = sm.text(&["widening_years"]) != "picked";
+    let every = sm.widening_years != "picked";
     let years = if every {
         "in each year"
     } else {
@@ -706,46 +577,37 @@ fn widening_section(t: &Table, sm: &Summary) -> Result<String> {
         );
     }
     s.push_str("</div></section>");
-    Ok(s)
+    s
 }
 
-fn frontier_section(t: Option<&Table>, sm: &Summary) -> Result<String> {
+fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
     let m = &sm.money;
     let mut s = String::from(r#"<section id="frontier"><h2>Budget frontier</h2>"#);
-    let Some(t) = t else {
+    let Some(levels) = levels else {
         s.push_str("<p>No frontier was computed for this plan: run <code>pavestrat frontier --out DIR</code> into the plan's directory, then <code>pavestrat report --from DIR</code>.</p></section>");
-        return Ok(s);
+        return s;
     };
-    let (cl, ct, co, cb, cg, cs, cu) = (
-        t.column("level")?,
-        t.column("total_budget")?,
-        t.column("objective")?,
-        t.column("bound")?,
-        t.column("gap")?,
-        t.column("status")?,
-        t.column("unlimited")?,
-    );
-    struct P {
+    struct P<'r> {
         level: f64,
         total: f64,
         objective: Option<f64>,
         bound: Option<f64>,
         gap: Option<f64>,
-        status: String,
+        status: &'r str,
         unlimited: bool,
     }
-    let mut pts = Vec::new();
-    for (line, r) in &t.rows {
-        pts.push(P {
-            level: t.number(*line, r, cl)?,
-            total: t.number(*line, r, ct)?,
-            objective: t.optional(*line, r, co)?,
-            bound: t.optional(*line, r, cb)?,
-            gap: t.optional(*line, r, cg)?,
-            status: t.text(r, cs).to_owned(),
-            unlimited: t.flag(*line, r, cu)?,
-        });
-    }
+    let pts: Vec<P<'_>> = levels
+        .iter()
+        .map(|r| P {
+            level: r.level.0,
+            total: r.total_budget.to_f64(),
+            objective: r.objective.map(|x| x.to_f64()),
+            bound: r.bound.map(|x| x.to_f64()),
+            gap: r.gap.map(|x| x.to_f64()),
+            status: &r.status,
+            unlimited: r.unlimited,
+        })
+        .collect();
     // Levels drawn as points; the level at which no line binds is drawn as the ceiling line
     // (its total budget is usually far to the right of the others).
     let solved: Vec<&P> = pts
@@ -786,7 +648,7 @@ fn frontier_section(t: Option<&Table>, sm: &Summary) -> Result<String> {
         } else {
             format!("Total budget over all lines ({m}, {xw})")
         };
-        let kind = if sm.text(&["objective_kind"]) == "least-cost" {
+        let kind = if sm.objective_kind == "least-cost" {
             "PV agency cost"
         } else {
             "Total NPV"
@@ -865,11 +727,11 @@ fn frontier_section(t: Option<&Table>, sm: &Summary) -> Result<String> {
             p.gap
                 .map(|g| format!("{:.4} %", g * 100.0))
                 .unwrap_or_else(|| "—".into()),
-            esc(&p.status)
+            esc(p.status)
         );
     }
     s.push_str("</tbody></table></section>");
-    Ok(s)
+    s
 }
 
 /// A level without trailing zeros.
@@ -878,21 +740,12 @@ fn trim(x: f64) -> String {
     s.trim_end_matches('0').trim_end_matches('.').to_owned()
 }
 
-fn programme_section(t: &Table, sm: &Summary) -> Result<String> {
-    let (cy, cs, ct, cc, cr, ccat) = (
-        t.column("year")?,
-        t.column("section_id")?,
-        t.column("treatment")?,
-        t.column("cost")?,
-        t.column("region")?,
-        t.column("category")?,
-    );
+fn programme_section(rows: &[Work], sm: &Summary) -> String {
     let m = &sm.money;
     let mut years: BTreeMap<i64, (f64, usize)> = BTreeMap::new();
-    for (line, r) in &t.rows {
-        let y = t.number(*line, r, cy)? as i64;
-        let e = years.entry(y).or_default();
-        e.0 += t.number(*line, r, cc)?;
+    for r in rows {
+        let e = years.entry(i64::from(r.year)).or_default();
+        e.0 += r.cost.to_f64();
         e.1 += 1;
     }
     let mut s = String::from(r#"<section id="programme"><h2>Work programme by year</h2>"#);
@@ -905,16 +758,16 @@ fn programme_section(t: &Table, sm: &Summary) -> Result<String> {
         );
     }
     s.push_str("</tbody></table>");
-    if t.rows.len() > PROGRAMME_ROWS {
+    if rows.len() > PROGRAMME_ROWS {
         let _ = write!(
             s,
             "<p class=\"small\">The first {PROGRAMME_ROWS} of {} treatments are listed; all are in work_programme.csv.</p>",
-            t.rows.len()
+            rows.len()
         );
     }
     let mut current = None;
-    for (line, r) in t.rows.iter().take(PROGRAMME_ROWS) {
-        let y = t.number(*line, r, cy)? as i64;
+    for r in rows.iter().take(PROGRAMME_ROWS) {
+        let y = i64::from(r.year);
         if current != Some(y) {
             if current.is_some() {
                 s.push_str("</tbody></table>");
@@ -928,24 +781,23 @@ fn programme_section(t: &Table, sm: &Summary) -> Result<String> {
         let _ = write!(
             s,
             r#"<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class="num">{}</td></tr>"#,
-            esc(t.text(r, cs)),
-            esc(t.text(r, ct)),
-            esc(t.text(r, cr)),
-            esc(t.text(r, ccat)),
-            money(t.number(*line, r, cc)?, m)
+            esc(&r.section_id),
+            esc(&r.treatment),
+            esc(&r.region),
+            esc(&r.category),
+            money(r.cost.to_f64(), m)
         );
     }
     if current.is_some() {
         s.push_str("</tbody></table>");
     }
     s.push_str("</section>");
-    Ok(s)
+    s
 }
 
 fn assumptions_section(sm: &Summary) -> String {
-    let a = &sm.v["assumptions"];
+    let a = &sm.assumptions;
     let m = &sm.money;
-    let n = |v: &serde_json::Value| v.as_f64().unwrap_or(f64::NAN);
     let mut s = String::from(
         r#"<section id="assumptions"><h2>Key assumptions</h2><table class="assumptions"><tbody>"#,
     );
@@ -956,11 +808,11 @@ fn assumptions_section(sm: &Summary) -> String {
         "Discount rate",
         format!(
             "{:.2} % a year ({} discounting)",
-            n(&a["discount_rate"]) * 100.0,
-            esc(a["discounting"].as_str().unwrap_or(""))
+            a.discount_rate * 100.0,
+            esc(&a.discounting)
         ),
     );
-    let (y0, years) = (n(&a["base_year"]), n(&a["analysis_years"]));
+    let (y0, years) = (f64::from(a.base_year), f64::from(a.analysis_years));
     row(
         "Analysis period",
         format!(
@@ -973,89 +825,81 @@ fn assumptions_section(sm: &Summary) -> String {
         "Network",
         format!(
             "{} sections, {} km",
-            grouped(n(&a["sections"]), 0),
-            grouped(n(&a["length_km"]), 1)
+            grouped(a.sections as f64, 0),
+            grouped(a.length_km, 1)
         ),
     );
-    for (key, label, decimals) in [
+    for (values, label, decimals) in [
         (
-            "time_per_vehicle_hour",
+            &a.unit_values.time_per_vehicle_hour,
             "Value of travel time (per vehicle-hour)",
             2,
         ),
         (
-            "operating_per_vehicle_km",
+            &a.unit_values.operating_per_vehicle_km,
             "Vehicle operating cost on a smooth road (per vehicle-km)",
             3,
         ),
     ] {
-        let v = &a["unit_values"][key];
-        let parts: Vec<String> = ["car", "bus", "light_truck", "heavy_truck"]
+        let parts: Vec<String> = values
+            .by_class()
             .iter()
-            .map(|c| format!("{} {}", c.replace('_', " "), grouped(n(&v[*c]), decimals)))
+            .map(|(c, v)| format!("{} {}", c.replace('_', " "), grouped(*v, decimals)))
             .collect();
         row(label, format!("{} ({})", parts.join(", "), esc(m)));
     }
-    row(
-        "Cost of an injury crash",
-        money(n(&a["unit_values"]["crash"]), m),
-    );
-    let fams: Vec<String> = a["families"]
-        .as_array()
-        .map(|v| {
-            v.iter()
-                .map(|f| {
-                    format!(
-                        "{} ({})",
-                        esc(f["name"].as_str().unwrap_or("")),
-                        esc(match f["model"].as_str().unwrap_or("") {
-                            "aashto93" => "AASHTO 1993 serviceability loss beside Paterson's structural term, converted to IRI",
-                            "calibrated" => "calibrated roughness progression",
-                            other => other,
-                        })
-                    )
+    row("Cost of an injury crash", money(a.unit_values.crash, m));
+    let fams: Vec<String> = a
+        .families
+        .iter()
+        .map(|f| {
+            format!(
+                "{} ({})",
+                esc(&f.name),
+                esc(match f.model.as_str() {
+                    "aashto93" => "AASHTO 1993 serviceability loss beside Paterson's structural term, converted to IRI",
+                    "calibrated" => "calibrated roughness progression",
+                    other => other,
                 })
-                .collect()
+            )
         })
-        .unwrap_or_default();
+        .collect();
     row("Pavement model families", fams.join("; "));
     row(
         "Condition classes",
         format!(
             "good below IRI {:.2} m/km, poor above {:.2} m/km",
-            n(&a["condition_classes_iri"]["good_below"]),
-            n(&a["condition_classes_iri"]["poor_above"])
+            a.condition_classes_iri.good_below, a.condition_classes_iri.poor_above
         ),
     );
     row(
         "Selection",
         format!(
             "{} path, {} price updates; {} treatments in the catalogue, {} strategy templates",
-            esc(&sm.text(&["method"])),
-            grouped(sm.num(&["price_updates"]), 0),
-            grouped(n(&a["treatments"]), 0),
-            grouped(n(&a["templates"]), 0)
+            esc(&sm.method),
+            grouped(sm.price_updates as f64, 0),
+            grouped(a.treatments as f64, 0),
+            grouped(a.templates as f64, 0)
         ),
     );
     s.push_str("</tbody></table>");
-    if let Some(list) = sm.v["unverified_coefficients"].as_array() {
-        if !list.is_empty() {
+    let list = &sm.unverified_coefficients;
+    if !list.is_empty() {
+        let _ = write!(
+            s,
+            "<h3>Coefficients not yet backed by local evidence</h3><p>{} model coefficients still stand at a calibration default (no published value fits every place) or at a published value quoted from memory. Replace them with local values; the roughness families can be fitted to the agency's surveys with <code>pavestrat calibrate</code>.</p><table class=\"assumptions\"><thead><tr><th>coefficient</th><th>value</th><th>standing</th></tr></thead><tbody>",
+            list.len()
+        );
+        for u in list {
             let _ = write!(
                 s,
-                "<h3>Coefficients not yet backed by local evidence</h3><p>{} model coefficients still stand at a calibration default (no published value fits every place) or at a published value quoted from memory. Replace them with local values; the roughness families can be fitted to the agency's surveys with <code>pavestrat calibrate</code>.</p><table class=\"assumptions\"><thead><tr><th>coefficient</th><th>value</th><th>standing</th></tr></thead><tbody>",
-                list.len()
+                "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>",
+                esc(&u.key),
+                esc(&u.value),
+                esc(&u.standing)
             );
-            for u in list {
-                let _ = write!(
-                    s,
-                    "<tr><td><code>{}</code></td><td>{}</td><td>{}</td></tr>",
-                    esc(u["key"].as_str().unwrap_or("")),
-                    esc(u["value"].as_str().unwrap_or("")),
-                    esc(u["standing"].as_str().unwrap_or(""))
-                );
-            }
-            s.push_str("</tbody></table>");
         }
+        s.push_str("</tbody></table>");
     }
     s.push_str("</section>");
     s
@@ -1064,15 +908,12 @@ fn assumptions_section(sm: &Summary) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::error::Error;
 
     #[test]
     fn a_summary_without_a_number_the_report_reads_is_refused_by_name() {
-        let mut files = BTreeMap::new();
-        files.insert(
-            "summary.json".to_owned(),
-            r#"{"money": "VCR", "sections": 3, "npv": {"plan": 1.0, "base": 0.0}}"#.to_owned(),
-        );
-        let Err(Error::Input(d)) = render(&Files::Memory(&files)) else {
+        let text = r#"{"money": "VCR", "sections": 3, "npv": {"plan": 1.0, "base": 0.0}}"#;
+        let Err(Error::Input(d)) = Summary::parse("summary.json", text) else {
             panic!("a summary missing numbers must be refused");
         };
         let text = d.to_string();
