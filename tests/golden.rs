@@ -133,6 +133,14 @@ fn outputs_are_unchanged() {
             "net-appraise",
         ],
         &["-q", "report", "--from", "net-plan", "--out", "net.html"],
+        // A plan directory holding every analysis, and its report with every section.
+        &["-q", "plan", "--out", "full"],
+        &["-q", "sensitivity", "--from", "full", "--out", "full"],
+        &[
+            "-q", "risk", "--from", "full", "--draws", "24", "--seed", "5", "--out", "full",
+        ],
+        &["-q", "frontier", "--out", "full"],
+        &["-q", "report", "--from", "full", "--out", "full.html"],
     ];
     for args in runs {
         wd.run(args).expect_code(0);
@@ -157,6 +165,7 @@ fn outputs_are_unchanged() {
             "net-plan",
             "net-appraise",
             "net.html",
+            "full.html",
         ],
     );
     let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(LIST);

@@ -5,6 +5,8 @@ use crate::diag::{Diagnostics, Place};
 use crate::enumerate::{Enumerator, Strategy};
 use crate::error::{Error, Result};
 use crate::input::Run;
+use crate::output::schema::plan::SectionPlan;
+use crate::output::schema::Record as _;
 use crate::plan::Settings;
 use rayon::prelude::*;
 use std::collections::HashMap;
@@ -58,8 +60,8 @@ impl HeldPlan {
         let plan_run = manifest
             .as_ref()
             .and_then(|m| m.plan_run().map(str::to_owned));
-        let t = crate::output::readback::read(dir, "section_plan.csv", "pavestrat plan", |_| true)?;
-        let (cs, cst) = (t.column("section_id")?, t.column("strategy")?);
+        let t = SectionPlan::FILE.read(dir)?;
+        let rows: Vec<(usize, SectionPlan)> = crate::output::schema::lines_of(&t)?;
         let strategies = Self::enumerate(run);
         let index: HashMap<&str, usize> = run
             .network
@@ -70,9 +72,8 @@ impl HeldPlan {
             .collect();
         let mut chosen: Vec<Option<usize>> = vec![None; strategies.len()];
         let mut d = Diagnostics::new();
-        for (line, r) in &t.rows {
-            let id = t.text(r, cs);
-            let name = t.text(r, cst);
+        for (line, r) in &rows {
+            let (id, name) = (r.section_id.as_str(), r.strategy.as_str());
             let place = Place::line(t.label.clone(), *line);
             let Some(&g) = index.get(id) else {
                 d.error(

@@ -684,35 +684,44 @@ impl Slice {
         self.column(n)
     }
 
-    /// `risk.csv`: `kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,
-    /// prob_best,prob_over,draws,in_plan,se_mean,se_p10,se_p50,se_p90` — `strategy` rows (every
-    /// strategy of every section: its NPV; `in_plan` true for the plan's), one `plan` row (the
-    /// network plan's NPV) and `budget` rows (each line's spending by the plan); the `se_`
-    /// columns are the standard errors of [`precision`] (empty below 16 draws).
-    pub fn csv(&self) -> String {
-        use crate::output::format::{Amount, Field};
-        use std::fmt::Write as _;
+    /// `risk.csv`'s rows: `strategy` rows (every strategy of every section: its NPV; `in_plan`
+    /// true for the plan's), one `plan` row (the network plan's NPV) and `budget` rows (each
+    /// line's spending by the plan); the standard errors are [`precision`]'s (empty below 16
+    /// draws).
+    pub fn rows(&self) -> Vec<crate::output::schema::analysis::Risk> {
+        use crate::output::schema::analysis::Risk;
+        use crate::output::schema::value::{Cents, Fixed};
         let l = &self.layout;
         let w = l.width();
         let n = self.draws as usize;
-        let mut s = String::from(
-            "kind,section_id,strategy,line,limit,mean,sd,p10,p50,p90,prob_positive,prob_best,prob_over,draws,in_plan,se_mean,se_p10,se_p50,se_p90\n",
-        );
-        // The standard errors, empty when there are too few draws for them.
-        let se = |col: &[f64]| {
+        let frac = |c: usize| Some(Fixed::<6>::of(c as f64 / n.max(1) as f64));
+        // A row's statistics and their standard errors.
+        let row = |kind: &str, col: &[f64]| -> Risk {
+            let st = stats(col);
             let p = precision(col, self.first);
-            [p.mean, p.p10, p.p50, p.p90]
-                .iter()
-                .map(|x| {
-                    if x.is_finite() {
-                        format!(",{}", Amount(*x))
-                    } else {
-                        ",".to_owned()
-                    }
-                })
-                .collect::<String>()
+            Risk {
+                kind: kind.to_owned(),
+                section_id: String::new(),
+                strategy: String::new(),
+                line: String::new(),
+                limit: None,
+                mean: Cents::of_f64(st.mean),
+                sd: Cents::of_f64(st.sd),
+                p10: Cents::of_f64(st.p10),
+                p50: Cents::of_f64(st.p50),
+                p90: Cents::of_f64(st.p90),
+                prob_positive: None,
+                prob_best: None,
+                prob_over: None,
+                draws: n as u64,
+                in_plan: None,
+                se_mean: Cents::of_f64(p.mean),
+                se_p10: Cents::of_f64(p.p10),
+                se_p50: Cents::of_f64(p.p50),
+                se_p90: Cents::of_f64(p.p90),
+            }
         };
-        let frac = |c: usize| format!("{:.6}", c as f64 / n.max(1) as f64);
+        let mut out = Vec::new();
         // Each section's best strategy in each draw.
         let mut at = 0;
         for (g, names) in l.strategies.iter().enumerate() {
@@ -729,78 +738,50 @@ impl Slice {
             }
             for (i, name) in names.iter().enumerate() {
                 let col = self.column(at + i);
-                let st = stats(&col);
-                let _ = writeln!(
-                    s,
-                    "strategy,{},{},,,{},{},{},{},{},{},{},,{n},{}{}",
-                    Field(&l.sections[g]),
-                    Field(name),
-                    Amount(st.mean),
-                    Amount(st.sd),
-                    Amount(st.p10),
-                    Amount(st.p50),
-                    Amount(st.p90),
-                    frac(col.iter().filter(|x| **x > 0.0).count()),
-                    frac(best[i]),
-                    l.plan[g] == i,
-                    se(&col)
-                );
+                out.push(Risk {
+                    section_id: l.sections[g].clone(),
+                    strategy: name.clone(),
+                    prob_positive: frac(col.iter().filter(|x| **x > 0.0).count()),
+                    prob_best: frac(best[i]),
+                    in_plan: Some(l.plan[g] == i),
+                    ..row("strategy", &col)
+                });
             }
             at += names.len();
         }
         let net = self.network();
-        let st = stats(&net);
-        let _ = writeln!(
-            s,
-            "plan,,,,,{},{},{},{},{},{},,,{n},{}",
-            Amount(st.mean),
-            Amount(st.sd),
-            Amount(st.p10),
-            Amount(st.p50),
-            Amount(st.p90),
-            frac(net.iter().filter(|x| **x > 0.0).count()),
-            se(&net)
-        );
+        out.push(Risk {
+            prob_positive: frac(net.iter().filter(|x| **x > 0.0).count()),
+            ..row("plan", &net)
+        });
         for (j, line) in l.lines.iter().enumerate() {
             let col = self.column(at + 1 + j);
-            let st = stats(&col);
             let limit = l.limits[j];
-            let _ = writeln!(
-                s,
-                "budget,,,{},{},{},{},{},{},{},,,{},{n},{}",
-                Field(line),
-                Amount(limit),
-                Amount(st.mean),
-                Amount(st.sd),
-                Amount(st.p10),
-                Amount(st.p50),
-                Amount(st.p90),
-                frac(col.iter().filter(|x| **x > limit + 0.005).count()),
-                se(&col)
-            );
+            out.push(Risk {
+                line: line.clone(),
+                limit: Cents::of_f64(limit),
+                prob_over: frac(col.iter().filter(|x| **x > limit + 0.005).count()),
+                ..row("budget", &col)
+            });
         }
-        s
+        out
     }
 
     /// `risk_draws.csv`: `draw,plan_npv` and one `spend:<line>` column per budget line.
     pub fn draws_csv(&self) -> String {
-        use crate::output::format::{Amount, Field};
-        use std::fmt::Write as _;
+        use crate::output::schema::analysis::RiskDraw;
+        use crate::output::schema::value::Cents;
         let l = &self.layout;
         let w = l.width();
         let n: usize = l.strategies.iter().map(Vec::len).sum();
-        let mut s = String::from("draw,plan_npv");
-        for line in &l.lines {
-            let _ = write!(s, ",{}", Field(&format!("spend:{line}")));
-        }
-        s.push('\n');
+        let mut s = RiskDraw::head(l.lines.iter().map(String::as_str));
         for k in 0..self.draws as usize {
             let row = &self.values[k * w..(k + 1) * w];
-            let _ = write!(s, "{},{}", self.first + k as u64, Amount(row[n]));
-            for x in &row[n + 1..] {
-                let _ = write!(s, ",{}", Amount(*x));
-            }
-            s.push('\n');
+            let draw = RiskDraw {
+                draw: self.first + k as u64,
+                plan_npv: Cents::of_f64(row[n]),
+            };
+            draw.write_with(row[n + 1..].iter().map(|x| Cents::of_f64(*x)), &mut s);
         }
         s
     }

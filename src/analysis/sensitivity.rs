@@ -515,40 +515,32 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
     rows
 }
 
-/// `sensitivity.csv`: `scope,section_id,strategy,input,test,direction,value,change,npv,
-/// other_strategy`.
-pub fn csv(run: &Run, rows: &[Row]) -> String {
-    use crate::output::format::{Amount, Field};
-    use std::fmt::Write as _;
-    let mut s = String::from(
-        "scope,section_id,strategy,input,test,direction,value,change,npv,other_strategy\n",
-    );
-    let num = |x: Option<f64>| x.map(|v| format!("{v}")).unwrap_or_default();
-    for r in rows {
-        let _ = writeln!(
-            s,
-            "{},{},{},{},{},{},{},{},{},{}",
-            if r.section.is_some() {
+/// `sensitivity.csv`'s rows: the network plan's first, then each section's.
+pub fn rows(run: &Run, rows: &[Row]) -> Vec<crate::output::schema::analysis::Sensitivity> {
+    use crate::output::schema::value::{Cents, Real};
+    rows.iter()
+        .map(|r| crate::output::schema::analysis::Sensitivity {
+            scope: if r.section.is_some() {
                 "section"
             } else {
                 "network"
-            },
-            Field(
-                r.section
-                    .map(|g| run.network.sections[g].id.as_str())
-                    .unwrap_or("")
-            ),
-            Field(&r.strategy),
-            r.input.map(|i| INPUTS[i].1).unwrap_or(""),
-            r.test,
-            r.direction,
-            num(r.value),
-            num(r.change),
-            r.npv.map(|x| Amount(x).to_string()).unwrap_or_default(),
-            Field(&r.other)
-        );
-    }
-    s
+            }
+            .to_owned(),
+            section_id: r
+                .section
+                .map(|g| run.network.sections[g].id.as_str())
+                .unwrap_or("")
+                .to_owned(),
+            strategy: r.strategy.clone(),
+            input: r.input.map(|i| INPUTS[i].1).unwrap_or("").to_owned(),
+            test: r.test.to_owned(),
+            direction: r.direction.to_owned(),
+            value: r.value.map(Real),
+            change: r.change.map(Real),
+            npv: r.npv.and_then(Cents::of_f64),
+            other_strategy: r.other.clone(),
+        })
+        .collect()
 }
 
 #[cfg(test)]

@@ -17,6 +17,7 @@ use pavestrat::input::Run;
 use pavestrat::io::{print_stdout, StreamSet};
 use pavestrat::money::grouped;
 use pavestrat::output::format::{irr_text, pct, Amount, Field, Fixed, Rates};
+use pavestrat::output::schema::others::appraise::{APPRAISAL, INCREMENTAL, WIDENING, YEARLY};
 use pavestrat::simulate::condition::{classify, ConditionClass};
 use std::fmt::Write as _;
 use std::path::PathBuf;
@@ -58,17 +59,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let keep = !args.section.is_empty() && args.out.out.is_some();
     let mut files = match &args.out.out {
         Some(dir) => {
-            let mut names = vec!["appraisal.csv", "incremental.csv", "widening.csv"];
-            if keep {
-                names.push("yearly.csv");
-            }
+            let specs = [APPRAISAL, INCREMENTAL, WIDENING, YEARLY];
+            let specs = &specs[..if keep { 4 } else { 3 }];
+            let names: Vec<&str> = specs.iter().map(|f| f.name).collect();
             let mut set = StreamSet::create(dir, "appraise", &names)?;
-            for (i, head) in [APPRAISAL_HEAD, INCREMENTAL_HEAD, WIDENING_HEAD, YEARLY_HEAD]
-                .iter()
-                .take(names.len())
-                .enumerate()
-            {
-                set.write(i, head.as_bytes())?;
+            for (i, spec) in specs.iter().enumerate() {
+                set.write(i, spec.head().as_bytes())?;
             }
             Some(set)
         }
@@ -144,20 +140,6 @@ fn pick_sections<'r>(
     }
     Ok(out)
 }
-
-/// Header of `appraisal.csv` (one row per section × strategy).
-pub const APPRAISAL_HEAD: &str = "section_id,strategy,template,pv_agency_cost,pv_capital,\
-pv_routine,pv_residual,pv_user_cost,npv,bcr,bcr_capital,npv_per_capital,irr,irr_status,fyrr,\
-mean_iri,final_iri,preferred\n";
-/// Header of `incremental.csv` (one row per comparison).
-pub const INCREMENTAL_HEAD: &str = "section_id,step,challenger,defender,d_pv_benefits,d_pv_costs,\
-d_npv,d_bcr,d_irr,d_irr_status,accepted\n";
-/// Header of `widening.csv` (one row per section × widening year).
-pub const WIDENING_HEAD: &str =
-    "section_id,widen_year,strategy,npv,fyrr,best_by_fyrr,best_by_npv\n";
-/// Header of `yearly.csv` (one row per section × strategy × year).
-pub const YEARLY_HEAD: &str = "section_id,strategy,year,iri,condition,structural_number,capital,\
-routine,operating,time,crashes,work_zone_delay,residual\n";
 
 /// Rows of `appraisal.csv`.
 pub fn appraisal_rows(results: &[SectionResult]) -> String {

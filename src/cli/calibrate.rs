@@ -110,8 +110,14 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         .join("\n");
     if let Some(dir) = &args.out {
         let mut set = OutputSet::new();
-        set.add("calibration.toml", toml.clone().into_bytes());
-        set.add("calibration.csv", csv(&run, &intervals, &fits).into_bytes());
+        set.add(
+            pavestrat::output::schema::others::calibrate::TOML,
+            toml.clone().into_bytes(),
+        );
+        set.add(
+            pavestrat::output::schema::others::calibrate::INTERVALS.name,
+            csv(&run, &intervals, &fits).into_bytes(),
+        );
         set.add(
             "calibration.html",
             page(&run, &intervals, &fits, &label).into_bytes(),
@@ -179,9 +185,7 @@ fn scenario_model(
 
 /// `calibration.csv`: one row per interval of a fitted family.
 fn csv(run: &pavestrat::input::Run, intervals: &[Interval], fits: &[Fit]) -> String {
-    let mut s = String::from(
-        "section_id,family,year_from,year_to,iri_from,iri_to,observed_rise,predicted_scenario,predicted_fitted\n",
-    );
+    let mut s = pavestrat::output::schema::others::calibrate::INTERVALS.head();
     for i in intervals {
         let (Some(fit), Some(before)) = (model_of(fits, &i.family), scenario_model(run, &i.family))
         else {

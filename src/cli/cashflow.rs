@@ -20,6 +20,7 @@ use pavestrat::input::cashflow::{parse, Flows, SINGLE};
 use pavestrat::io::{print_stdout, OutputSet};
 use pavestrat::money::{grouped, Money};
 use pavestrat::output::format::{csv_field, irr_text, num, opt, pct, rates};
+use pavestrat::output::schema::others::cashflow;
 use pavestrat::select::SelectError;
 use serde_json::{json, Value};
 use std::path::Path;
@@ -125,11 +126,14 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     };
     if let Some(dir) = &args.out.out {
         let mut set = OutputSet::new();
-        set.add("cashflow.csv", csv.into_bytes());
+        set.add(cashflow::CASHFLOW.name, csv.into_bytes());
         if result.incremental.is_some() {
-            set.add("incremental.csv", incremental_csv(&result).into_bytes());
+            set.add(
+                cashflow::INCREMENTAL.name,
+                incremental_csv(&result).into_bytes(),
+            );
         }
-        set.add("cashflow.json", json.into_bytes());
+        set.add(cashflow::JSON, json.into_bytes());
         let written = set.commit(dir, "cashflow")?;
         for p in written {
             ctx.say(&format!("wrote {}", p.display()));
@@ -359,7 +363,7 @@ fn table(a: &Appraisal) -> String {
 }
 
 fn alternatives_csv(a: &Appraisal) -> String {
-    let mut s = String::from("alternative,npv,pv_benefits,pv_costs,bcr,irr,irr_status,mirr,fyrr\n");
+    let mut s = cashflow::CASHFLOW.head();
     for (n, i) in &a.alternatives {
         s.push_str(&format!(
             "{},{},{},{},{},{},{},{},{}\n",
@@ -378,7 +382,7 @@ fn alternatives_csv(a: &Appraisal) -> String {
 }
 
 fn incremental_csv(a: &Appraisal) -> String {
-    let mut s = String::from("step,challenger,defender,d_pv_benefits,d_pv_costs,d_npv,d_bcr,d_irr,d_irr_status,accepted\n");
+    let mut s = cashflow::INCREMENTAL.head();
     if let Some(inc) = &a.incremental {
         for (k, st) in inc.steps.iter().enumerate() {
             s.push_str(&format!(

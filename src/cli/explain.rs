@@ -12,10 +12,14 @@ use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
 use pavestrat::io::print_stdout;
 use pavestrat::money::grouped;
-use pavestrat::output::readback::Table;
+use pavestrat::output::schema::plan::{
+    read_candidates, row_column, BudgetUse, SectionPlan, TargetUse, CANDIDATES, SUMMARY,
+};
+use pavestrat::output::schema::summary::Summary;
+use pavestrat::output::schema::{self, Record as _};
 use std::collections::HashMap;
 use std::fmt::Write as _;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// Arguments of `explain`.
 #[derive(Debug, clap::Args)]
@@ -27,10 +31,6 @@ pub struct Args {
     /// The directory `pavestrat plan --out DIR` wrote.
     #[arg(long, value_name = "DIR", default_value = ".")]
     pub from: PathBuf,
-}
-
-fn read_table(dir: &Path, name: &str, keep: impl Fn(&csv::StringRecord) -> bool) -> Result<Table> {
-    pavestrat::output::readback::read(dir, name, "pavestrat plan", keep)
 }
 
 struct Candidate {
@@ -48,22 +48,22 @@ pub fn run(args: Args, _ctx: Context) -> Result<()> {
             dir,
             &m,
             &[
-                "summary.json",
-                "section_plan.csv",
-                "candidates.csv",
-                "budget_use.csv",
+                SUMMARY,
+                SectionPlan::FILE.name,
+                CANDIDATES,
+                BudgetUse::FILE.name,
             ],
         )?;
     }
-    if dir.join("summary.json").is_file() && !dir.join("candidates.csv").is_file() {
+    if dir.join(SUMMARY).is_file() && !dir.join(CANDIDATES).is_file() {
         return Err(Error::Usage(format!(
             "{} holds a plan but no candidates.csv; expected a plan written with every candidate: `explain` values each candidate of the section at the plan's prices, and `plan` writes them only when asked (run `pavestrat plan --scenario FILE --out {} --candidates`)",
             dir.display(),
             dir.display()
         )));
     }
-    let summary_path = dir.join("summary.json");
-    let summary: serde_json::Value = std::fs::read_to_string(&summary_path)
+    let summary_path = dir.join(SUMMARY);
+    let summary: Summary = std::fs::read_to_string(&summary_path)
         .ok()
         .and_then(|t| serde_json::from_str(&t).ok())
         .ok_or_else(|| {
@@ -72,62 +72,44 @@ pub fn run(args: Args, _ctx: Context) -> Result<()> {
                 summary_path.display()
             ))
         })?;
-    let least_cost = summary["objective_kind"].as_str() == Some("least-cost");
-    let money = summary["money"].as_str().unwrap_or("").to_owned();
+    let least_cost = summary.objective_kind == "least-cost";
+    let money = summary.money;
 
+    // Each selection row's price, by its column in candidates.csv.
     let mut prices: HashMap<String, f64> = HashMap::new();
-    for (file, prefix) in [("budget_use.csv", "cost:"), ("target_use.csv", "use:")] {
-        let t = read_table(dir, file, |_| true)?;
-        let (cl, cp) = (t.column("line")?, t.column("price")?);
-        for (line, rec) in &t.rows {
-            let p = t.number(*line, rec, cp)?;
-            prices.insert(format!("{prefix}{}", rec.get(cl).unwrap_or("")), p);
-        }
+    for r in schema::read::<BudgetUse>(dir)? {
+        prices.insert(row_column(true, &r.line), r.price.0);
+    }
+    for r in schema::read::<TargetUse>(dir)? {
+        prices.insert(row_column(false, &r.line), r.price.0);
     }
     let id = args.section.as_str();
-    let plan = read_table(dir, "section_plan.csv", |_| true)?;
-    let (ps, pst, pu) = (
-        plan.column("section_id")?,
-        plan.column("strategy")?,
-        plan.column("unconstrained_strategy")?,
-    );
-    let Some((_, row)) = plan.rows.iter().find(|(_, r)| r.get(ps) == Some(id)) else {
-        let names: Vec<&str> = plan.rows.iter().filter_map(|(_, r)| r.get(ps)).collect();
+    let plan: Vec<SectionPlan> = schema::read(dir)?;
+    let Some(row) = plan.iter().find(|r| r.section_id == id) else {
+        let names: Vec<&str> = plan.iter().map(|r| r.section_id.as_str()).collect();
         let hint = did_you_mean(id, &names)
             .map(|m| format!(" (did you mean `{m}`?)"))
             .unwrap_or_default();
         return Err(Error::Usage(format!(
             "no section `{id}` in {}{hint}; expected a section_id of the plan",
-            plan.label
+            dir.join(SectionPlan::FILE.name).display()
         )));
     };
-    let chosen = row.get(pst).unwrap_or("").to_owned();
-    let unconstrained = row.get(pu).unwrap_or("").to_owned();
+    let chosen = row.strategy.clone();
+    let unconstrained = row.unconstrained_strategy.clone();
 
-    let cands = read_table(dir, "candidates.csv", |r| r.get(0) == Some(id))?;
-    let (cs, cn, ca) = (
-        cands.column("strategy")?,
-        cands.column("npv")?,
-        cands.column("pv_agency_cost")?,
-    );
-    let priced_cols: Vec<(usize, f64)> = cands
-        .head
-        .iter()
-        .enumerate()
-        .filter_map(|(i, h)| prices.get(h).map(|p| (i, *p)))
-        .collect();
     let mut opts: Vec<Candidate> = Vec::new();
-    for (line, rec) in &cands.rows {
-        let npv = cands.number(*line, rec, cn)?;
-        let pva = cands.number(*line, rec, ca)?;
+    for c in read_candidates(dir, |s| s == id)? {
+        let (npv, pva) = (c.npv.to_f64(), c.pv_agency_cost.to_f64());
         let mut priced = 0.0;
-        for &(col, price) in &priced_cols {
-            if price != 0.0 {
-                priced += price * cands.number(*line, rec, col)?;
+        for (column, used) in &c.uses {
+            match prices.get(column) {
+                Some(&price) if price != 0.0 => priced += price * used,
+                _ => {}
             }
         }
         opts.push(Candidate {
-            strategy: rec.get(cs).unwrap_or("").to_owned(),
+            strategy: c.strategy,
             value: if least_cost { -pva } else { npv },
             npv,
             priced,

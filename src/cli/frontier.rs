@@ -113,7 +113,11 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         pavestrat::analysis::frontier::frontier(&run, &mut c, &levels, &lines, &options, &bar)?;
     bar.finish();
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, "frontier", &["frontier.csv"])?;
+        let mut set = StreamSet::create(
+            dir,
+            "frontier",
+            &[pavestrat::output::schema::analysis::FRONTIER],
+        )?;
         let rows = pavestrat::analysis::frontier::rows(&points);
         set.write(0, pavestrat::output::schema::text(&rows).as_bytes())?;
         for p in set.commit()? {

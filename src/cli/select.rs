@@ -19,6 +19,7 @@ use pavestrat::input::candidates::{self, CandidateFile};
 use pavestrat::io::{print_stdout, OutputSet};
 use pavestrat::money::grouped;
 use pavestrat::output::format::Field;
+use pavestrat::output::schema::others::select::{ROW_USE, SELECTION};
 use pavestrat::select::network::{self, Infeasible, Method, Options, Outcome};
 use pavestrat::select::problem::{Offer, Problem, ProblemError};
 use rust_decimal::Decimal;
@@ -111,12 +112,15 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if let Some(dir) = &args.out.out {
         let mut set = OutputSet::new();
         set.add(
-            "selection.csv",
+            SELECTION.name,
             selection_csv(&file, &built, &o).into_bytes(),
         );
-        set.add("row_use.csv", row_use_csv(&file, &built, &o).into_bytes());
+        set.add(ROW_USE.name, row_use_csv(&file, &built, &o).into_bytes());
         let json = summary_json(&file, &built, &o, &args, seconds, started);
-        set.add("summary.json", json.into_bytes());
+        set.add(
+            pavestrat::output::schema::others::select::SUMMARY,
+            json.into_bytes(),
+        );
         for p in set.commit(dir, "select")? {
             ctx.say(&format!("wrote {}", p.display()));
         }
@@ -271,7 +275,7 @@ fn chosen<'a>(
 }
 
 fn selection_csv(file: &CandidateFile, b: &Built, o: &Outcome) -> String {
-    let mut s = String::from("section_id,strategy,value");
+    let mut s = SELECTION.columns.join(",");
     for c in &file.carried {
         let _ = write!(s, ",{}", Field(c));
     }
@@ -299,7 +303,7 @@ fn price(b: &Built, o: &Outcome, j: usize) -> f64 {
 }
 
 fn row_use_csv(file: &CandidateFile, b: &Built, o: &Outcome) -> String {
-    let mut s = String::from("row,limit,used,price\n");
+    let mut s = ROW_USE.head();
     for (j, name) in file.rows.iter().enumerate() {
         let _ = writeln!(
             s,

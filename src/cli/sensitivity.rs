@@ -6,7 +6,7 @@
 use super::plan::parse_seconds;
 use super::{load_scenario, parse_rate, Context, OutArg};
 use pavestrat::analysis::held::HeldPlan;
-use pavestrat::analysis::sensitivity::{analyse, csv, Tests, INPUTS};
+use pavestrat::analysis::sensitivity::{analyse, rows as sensitivity_rows, Tests, INPUTS};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
 use pavestrat::money::grouped;
@@ -108,9 +108,14 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     let rows = analyse(&run, &held, &tests, &bar);
     bar.finish();
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, "sensitivity", &["sensitivity.csv"])?;
+        let mut set = StreamSet::create(
+            dir,
+            "sensitivity",
+            &[pavestrat::output::schema::analysis::SENSITIVITY],
+        )?;
         set.made_for(held.plan_run.clone());
-        set.write(0, csv(&run, &rows).as_bytes())?;
+        let table = sensitivity_rows(&run, &rows);
+        set.write(0, pavestrat::output::schema::text(&table).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }

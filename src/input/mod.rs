@@ -599,13 +599,6 @@ mod robustness {
             let _ = scenario::parse("s.toml", &text, Path::new("."), &mut d);
             let _ = treatments::parse("t.toml", &text, &mut d);
             let _ = templates::parse("p.toml", &text, &mut d);
-            let dir = tempfile::tempdir().unwrap();
-            std::fs::write(dir.path().join("risk_slice.bin"), &bytes).unwrap();
-            let _ = crate::analysis::risk::Slice::read(&dir.path().join("risk_slice.bin"));
-            std::fs::write(dir.path().join("manifest.json"), &bytes).unwrap();
-            let _ = crate::io::verify(dir.path());
-            std::fs::write(dir.path().join("section_plan.csv"), &bytes).unwrap();
-            let _ = crate::output::readback::read(dir.path(), "section_plan.csv", "pavestrat plan", |_| true);
         }
     }
 }

@@ -26,13 +26,12 @@ pub fn rates(irr: &Irr) -> String {
         .join(";")
 }
 
-/// A text field for CSV, quoted when it holds a comma, quote or line break.
+/// A text field for CSV, quoted when it holds a comma, quote or line break (the schema's one
+/// rule, [`crate::output::schema::value::write_text`]).
 pub fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_owned()
-    }
+    let mut out = String::new();
+    crate::output::schema::value::write_text(s, &mut out);
+    out
 }
 
 /// A rate as a percentage with two decimals, `n/a` when undefined.
@@ -111,8 +110,8 @@ pub struct Field<'a>(pub &'a str);
 
 impl std::fmt::Display for Field<'_> {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        if self.0.contains([',', '"', '\n', '\r']) {
-            write!(f, "\"{}\"", self.0.replace('"', "\"\""))
+        if crate::output::schema::value::needs_quotes(self.0) {
+            f.write_str(&csv_field(self.0))
         } else {
             f.write_str(self.0)
         }

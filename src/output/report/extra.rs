@@ -4,6 +4,7 @@
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
 use crate::money::grouped;
 use crate::output::schema::analysis::{Risk, RiskDraw, Sensitivity};
+use crate::output::schema::value::{Cents, Fixed};
 use std::fmt::Write as _;
 
 fn axis_title(what: &str, m: &str, word: &str) -> String {
@@ -210,8 +211,8 @@ pub fn sensitivity_section(rows: &[Sensitivity], m: &str) -> String {
 /// The histogram of the plan's NPV over the draws, and spending against each line.
 pub fn risk_section(rows: &[Risk], draws: Option<&[RiskDraw]>, m: &str) -> String {
     let mut s = String::from(r#"<section id="risk"><h2>Risk</h2>"#);
-    let share =
-        |x: Option<crate::output::schema::value::Fixed<6>>| x.map_or(f64::NAN, |x| x.to_f64());
+    let share = |x: Option<Fixed<6>>| x.map_or(f64::NAN, |x| x.to_f64());
+    let amount = |x: Option<Cents>| x.map_or(f64::NAN, |x| x.to_f64());
     let mut budget = Vec::new();
     // The plan's strategy of each section: (section, strategy, P(NPV > 0), P(best), P50).
     let mut planned: Vec<(String, String, f64, f64, f64)> = Vec::new();
@@ -222,34 +223,34 @@ pub fn risk_section(rows: &[Risk], draws: Option<&[RiskDraw]>, m: &str) -> Strin
                 r.strategy.clone(),
                 share(r.prob_positive),
                 share(r.prob_best),
-                r.p50.to_f64(),
+                amount(r.p50),
             )),
             "plan" => {
                 let _ = write!(
                     s,
                     "<p>Over {} draws of the scenario's uncertain inputs, the network plan's NPV has mean {}, P10 {}, P50 {} and P90 {} ({}); it is above zero in {:.1} % of draws.</p>",
                     grouped(r.draws as f64, 0),
-                    grouped(r.mean.to_f64(), 0),
-                    grouped(r.p10.to_f64(), 0),
-                    grouped(r.p50.to_f64(), 0),
-                    grouped(r.p90.to_f64(), 0),
+                    grouped(amount(r.mean), 0),
+                    grouped(amount(r.p10), 0),
+                    grouped(amount(r.p50), 0),
+                    grouped(amount(r.p90), 0),
                     esc(m),
                     100.0 * share(r.prob_positive)
                 );
             }
             "budget" => budget.push((
                 r.line.clone(),
-                r.limit.map_or(f64::NAN, |x| x.to_f64()),
-                r.p10.to_f64(),
-                r.p50.to_f64(),
-                r.p90.to_f64(),
+                amount(r.limit),
+                amount(r.p10),
+                amount(r.p50),
+                amount(r.p90),
                 share(r.prob_over),
             )),
             _ => {}
         }
     }
     if let Some(d) = draws {
-        let xs: Vec<f64> = d.iter().map(|r| r.plan_npv.to_f64()).collect();
+        let xs: Vec<f64> = d.iter().map(|r| amount(r.plan_npv)).collect();
         if !xs.is_empty() {
             let (lo, hi) = (
                 xs.iter().copied().fold(f64::INFINITY, f64::min),

@@ -51,11 +51,11 @@ record! {
         strategy: String = "strategy",
         line: String = "line",
         limit: Option<Cents> = "limit",
-        mean: Cents = "mean",
-        sd: Cents = "sd",
-        p10: Cents = "p10",
-        p50: Cents = "p50",
-        p90: Cents = "p90",
+        mean: Option<Cents> = "mean",
+        sd: Option<Cents> = "sd",
+        p10: Option<Cents> = "p10",
+        p50: Option<Cents> = "p50",
+        p90: Option<Cents> = "p90",
         prob_positive: Option<Fixed<6>> = "prob_positive",
         prob_best: Option<Fixed<6>> = "prob_best",
         prob_over: Option<Fixed<6>> = "prob_over",
@@ -74,7 +74,7 @@ record! {
     /// ([`RiskDraw::head`], [`RiskDraw::write_with`]).
     RiskDraw in "risk_draws.csv" by "pavestrat risk" {
         draw: u64 = "draw",
-        plan_npv: Cents = "plan_npv",
+        plan_npv: Option<Cents> = "plan_npv",
     }
 }
 
@@ -91,7 +91,7 @@ impl RiskDraw {
     }
 
     /// The row with the plan's spending in each budget line after it.
-    pub fn write_with(&self, spend: impl IntoIterator<Item = Cents>, out: &mut String) {
+    pub fn write_with(&self, spend: impl IntoIterator<Item = Option<Cents>>, out: &mut String) {
         use super::Value;
         self.draw.write(out);
         out.push(',');

@@ -74,7 +74,23 @@ pub struct Cells<'t> {
     next: usize,
 }
 
-impl Cells<'_> {
+impl<'t> Cells<'t> {
+    /// The cells of `rec` (line `line` of `table`) at `positions`, in order.
+    pub fn new(
+        table: &'t Table,
+        positions: &'t [usize],
+        line: usize,
+        rec: &'t csv::StringRecord,
+    ) -> Cells<'t> {
+        Cells {
+            table,
+            positions,
+            line,
+            rec,
+            next: 0,
+        }
+    }
+
     /// The next cell as a `T`, or an error naming file, line and column.
     pub fn take<T: Value>(&mut self) -> Result<T> {
         let col = self.positions[self.next];
@@ -98,14 +114,20 @@ pub fn rows_of<R: Record>(t: &Table) -> Result<Vec<R>> {
     let positions = R::FILE.positions(t)?;
     t.rows
         .iter()
+        .map(|(line, rec)| R::from_cells(&mut Cells::new(t, &positions, *line, rec)))
+        .collect()
+}
+
+/// Every row of a table as `R`s, each with its line in the file (for messages about it).
+pub fn lines_of<R: Record>(t: &Table) -> Result<Vec<(usize, R)>> {
+    let positions = R::FILE.positions(t)?;
+    t.rows
+        .iter()
         .map(|(line, rec)| {
-            R::from_cells(&mut Cells {
-                table: t,
-                positions: &positions,
-                line: *line,
-                rec,
-                next: 0,
-            })
+            Ok((
+                *line,
+                R::from_cells(&mut Cells::new(t, &positions, *line, rec))?,
+            ))
         })
         .collect()
 }
@@ -233,6 +255,35 @@ mod tests {
         let back: Vec<Probe> = rows_of(&t).unwrap();
         assert_eq!(back, rows);
         assert_eq!(super::text(&back), text);
+    }
+
+    proptest::proptest! {
+        /// Every reader of the tool's own files on arbitrary bytes (each file of a plan's
+        /// directory, the summary, the manifest, a risk slice): never a panic.
+        #[test]
+        fn own_files_survive_arbitrary_bytes(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..3000)) {
+            use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
+            use crate::output::schema::plan::*;
+            let dir = tempfile::tempdir().unwrap();
+            let d = dir.path();
+            for name in crate::output::report::FILES_READ
+                .iter()
+                .chain(&[CANDIDATES, SectionPlan::FILE.name, Limit::FILE.name, "manifest.json", "risk_slice.bin"])
+            {
+                std::fs::write(d.join(name), &bytes).unwrap();
+            }
+            let _ = read::<SectionPlan>(d);
+            let _ = read::<Limit>(d);
+            let _ = read::<FrontierLevel>(d);
+            let _ = read::<Sensitivity>(d);
+            let _ = read::<Risk>(d);
+            let _ = read::<RiskDraw>(d);
+            let _ = read_candidates(d, |_| true);
+            let _ = summary::Summary::parse("summary.json", &String::from_utf8_lossy(&bytes));
+            let _ = crate::output::report::Inputs::read(d);
+            let _ = crate::analysis::risk::Slice::read(&d.join("risk_slice.bin"));
+            let _ = crate::io::verify(d);
+        }
     }
 
     /// A bad cell is refused with its file, line and column, and what was expected.

@@ -184,3 +184,44 @@ pub fn write_candidate(
     }
     out.push('\n');
 }
+
+/// A row of `candidates.csv` as read back: its fixed cells, and its use of each selection row
+/// by the row's column name (`cost:<line>`, `use:<line>`), in the row's measure.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Candidate {
+    pub section_id: String,
+    pub strategy: String,
+    pub npv: Cents,
+    pub pv_agency_cost: Cents,
+    pub uses: Vec<(String, f64)>,
+}
+
+/// The rows of `dir/candidates.csv` whose section_id `keep` accepts.
+pub fn read_candidates(
+    dir: &std::path::Path,
+    keep: impl Fn(&str) -> bool,
+) -> crate::error::Result<Vec<Candidate>> {
+    let t =
+        crate::output::readback::read(dir, CANDIDATES, MAKER, |r| keep(r.get(0).unwrap_or("")))?;
+    let fixed = CANDIDATES_FILE.positions(&t)?;
+    let rows: Vec<usize> = (0..t.head.len()).filter(|i| !fixed.contains(i)).collect();
+    t.rows
+        .iter()
+        .map(|(line, rec)| {
+            let mut cells = super::Cells::new(&t, &fixed, *line, rec);
+            let (section_id, strategy, npv, pv_agency_cost) =
+                (cells.take()?, cells.take()?, cells.take()?, cells.take()?);
+            let uses = rows
+                .iter()
+                .map(|&col| Ok((t.head[col].clone(), t.number(*line, rec, col)?)))
+                .collect::<crate::error::Result<_>>()?;
+            Ok(Candidate {
+                section_id,
+                strategy,
+                npv,
+                pv_agency_cost,
+                uses,
+            })
+        })
+        .collect()
+}

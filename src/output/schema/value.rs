@@ -20,9 +20,14 @@ pub trait Value: Sized {
     fn parse(text: &str) -> Option<Self>;
 }
 
+/// Whether `text` must be quoted as a CSV cell: it holds a comma, quote or line break.
+pub fn needs_quotes(text: &str) -> bool {
+    text.contains([',', '"', '\n', '\r'])
+}
+
 /// `text` as a CSV cell: quoted when it holds a comma, quote or line break.
 pub fn write_text(text: &str, out: &mut String) {
-    if text.contains([',', '"', '\n', '\r']) {
+    if needs_quotes(text) {
         out.push('"');
         out.push_str(&text.replace('"', "\"\""));
         out.push('"');
