@@ -153,6 +153,9 @@ pub struct Plan {
     pub achieved: Vec<f64>,
     /// Every treatment of the plan, by year then network order.
     pub works: Vec<PlannedWork>,
+    /// The network's condition year by year under the plan, the base and the unconstrained
+    /// choice, from the same simulation as the re-check.
+    pub condition: ConditionSeries,
 }
 
 /// NPV against the base and PV agency cost of one way to treat the whole network.
@@ -200,12 +203,15 @@ pub struct PlannedWork {
     pub cost: f64,
 }
 
-/// What the exact re-check found: spending per budget line, each target's measure, the works.
+/// What the exact re-check found: spending per budget line, each target's measure, the works,
+/// and (when asked) the network's condition under the plan, the base and the unconstrained
+/// choice.
 #[derive(Debug, Clone)]
 pub struct Checked {
     pub spent: Vec<Money>,
     pub achieved: Vec<f64>,
     pub works: Vec<PlannedWork>,
+    pub condition: Option<ConditionSeries>,
 }
 
 impl Candidates {
@@ -876,14 +882,25 @@ pub fn select(
     candidates: Candidates,
     options: &Options,
 ) -> Result<Plan, crate::error::Error> {
-    let (outcome, checked) = solve_checked(run, &candidates, options)?;
+    let (outcome, checked) = solve_checked(run, &candidates, options, Series::Condition)?;
     Ok(Plan {
         candidates,
         outcome,
         spent: checked.spent,
         achieved: checked.achieved,
         works: checked.works,
+        condition: checked
+            .condition
+            .unwrap_or_else(|| ConditionSeries::empty(run)),
     })
+}
+
+/// Whether a re-check also sums the network's condition (which simulates the base and the
+/// unconstrained choice of every section beside the plan's).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Series {
+    Condition,
+    None,
 }
 
 /// Select on built candidates (their current limits) and re-check the plan exactly.
@@ -891,6 +908,7 @@ pub fn solve_checked(
     run: &Run,
     candidates: &Candidates,
     options: &Options,
+    series: Series,
 ) -> Result<(Outcome, Checked), crate::error::Error> {
     let mut outcome = match network::solve(&candidates.problem, options) {
         Ok(o) => o,
@@ -901,7 +919,7 @@ pub fn solve_checked(
     for (p, row) in outcome.prices.iter_mut().zip(&candidates.rows) {
         *p *= row.units();
     }
-    let checked = recheck(run, candidates, &outcome.plan)?;
+    let checked = recheck(run, candidates, &outcome.plan, series)?;
     Ok((outcome, checked))
 }
 
@@ -988,79 +1006,78 @@ pub struct ConditionSeries {
 /// section's best strategy with no budget limits.
 pub const CASES: [&str; 3] = ["plan", "base", "unconstrained"];
 
-/// Simulate the plan, the base and the unconstrained choice of every section and sum the
-/// network's condition year by year (weighted by length).
-pub fn condition_series(run: &Run, c: &Candidates, plan: &[u16]) -> ConditionSeries {
-    let s = &run.scenario;
-    let n = s.analysis_years as usize;
-    let e = Enumerator::for_run(run);
-    let secs = &run.network.sections;
-    type Part = ([Vec<f64>; 3], [Vec<[f64; 3]>; 3], f64);
-    let empty = || -> Part {
-        (
-            [vec![0.0; n], vec![0.0; n], vec![0.0; n]],
-            [vec![[0.0; 3]; n], vec![[0.0; 3]; n], vec![[0.0; 3]; n]],
-            0.0,
-        )
-    };
-    let parts: Vec<Part> = secs
-        .par_chunks(CHUNK)
-        .enumerate()
-        .map(|(ci, chunk)| {
-            let mut part = empty();
-            let mut t = Trace::default();
-            for (i, sec) in chunk.iter().enumerate() {
-                let g = ci * CHUNK + i;
-                let sim = SectionSim::new(run, sec);
-                let picks = [
-                    c.strategy[c.chosen(plan, g)],
-                    StrategyRef::BASE,
-                    c.unconstrained[g].strategy,
-                ];
-                for (case, &k) in picks.iter().enumerate() {
-                    let st = e.strategy(k).unwrap_or_else(Strategy::base);
-                    sim.run(&st, &mut t);
-                    for y in 0..n {
-                        let iri = t.iri[y];
-                        part.0[case][y] += sec.length_km * iri;
-                        let class = match classify(iri, &s.models.condition) {
-                            ConditionClass::Good => 0,
-                            ConditionClass::Fair => 1,
-                            ConditionClass::Poor => 2,
-                        };
-                        part.1[case][y][class] += sec.length_km;
-                    }
-                }
-                part.2 += sec.length_km;
-            }
-            part
-        })
-        .collect();
-    let mut total = empty();
-    for p in parts {
+impl ConditionSeries {
+    /// No years (a plan re-checked without its series).
+    pub fn empty(run: &Run) -> ConditionSeries {
+        ConditionSeries {
+            first_year: run.scenario.base_year,
+            mean_iri: Default::default(),
+            shares: Default::default(),
+        }
+    }
+}
+
+/// The condition sums of some sections: per case, length × IRI and length per class each year,
+/// and their length.
+struct ConditionSums {
+    iri: [Vec<f64>; 3],
+    classes: [Vec<[f64; 3]>; 3],
+    length: f64,
+}
+
+impl ConditionSums {
+    fn new(n: usize) -> ConditionSums {
+        ConditionSums {
+            iri: [vec![0.0; n], vec![0.0; n], vec![0.0; n]],
+            classes: [vec![[0.0; 3]; n], vec![[0.0; 3]; n], vec![[0.0; 3]; n]],
+            length: 0.0,
+        }
+    }
+
+    /// Section `sec`'s roughness under case `case`, year by year.
+    fn add(&mut self, run: &Run, sec: &Section, case: usize, iri: &[f64]) {
+        for (y, &x) in iri.iter().enumerate() {
+            self.iri[case][y] += sec.length_km * x;
+            let class = match classify(x, &run.scenario.models.condition) {
+                ConditionClass::Good => 0,
+                ConditionClass::Fair => 1,
+                ConditionClass::Poor => 2,
+            };
+            self.classes[case][y][class] += sec.length_km;
+        }
+    }
+
+    /// Another chunk's sums, added after these.
+    fn absorb(&mut self, o: &ConditionSums) {
         for case in 0..3 {
-            for y in 0..n {
-                total.0[case][y] += p.0[case][y];
+            for (a, b) in self.iri[case].iter_mut().zip(&o.iri[case]) {
+                *a += b;
+            }
+            for (a, b) in self.classes[case].iter_mut().zip(&o.classes[case]) {
                 for k in 0..3 {
-                    total.1[case][y][k] += p.1[case][y][k];
+                    a[k] += b[k];
                 }
             }
         }
-        total.2 += p.2;
+        self.length += o.length;
     }
-    let length = total.2.max(f64::MIN_POSITIVE);
-    for case in 0..3 {
-        for y in 0..n {
-            total.0[case][y] /= length;
-            for k in 0..3 {
-                total.1[case][y][k] /= length;
+
+    /// The length-weighted series.
+    fn series(mut self, run: &Run) -> ConditionSeries {
+        let length = self.length.max(f64::MIN_POSITIVE);
+        for case in 0..3 {
+            self.iri[case].iter_mut().for_each(|x| *x /= length);
+            for c in &mut self.classes[case] {
+                for k in c {
+                    *k /= length;
+                }
             }
         }
-    }
-    ConditionSeries {
-        first_year: s.base_year,
-        mean_iri: total.0,
-        shares: total.1,
+        ConditionSeries {
+            first_year: run.scenario.base_year,
+            mean_iri: self.iri,
+            shares: self.classes,
+        }
     }
 }
 
@@ -1135,13 +1152,19 @@ fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error
 /// Re-simulate the chosen strategies and sum every budget line's spending in exact decimal
 /// arithmetic (each section-year amount to the cent); fail if any line is exceeded. Also returns
 /// each target's achieved measure and the plan's works, from the same simulation.
-pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate::error::Error> {
+pub fn recheck(
+    run: &Run,
+    c: &Candidates,
+    plan: &[u16],
+    series: Series,
+) -> Result<Checked, crate::error::Error> {
     let s = &run.scenario;
     let e = Enumerator::for_run(run);
     let secs = &run.network.sections;
     let nb = s.budget_lines.len();
     let nt = s.plan.targets.len();
-    type Part = (Vec<Decimal>, Vec<f64>, Vec<PlannedWork>);
+    let n = s.analysis_years as usize;
+    type Part = (Vec<Decimal>, Vec<f64>, Vec<PlannedWork>, ConditionSums);
     let parts: Vec<Part> = secs
         .par_chunks(CHUNK)
         .enumerate()
@@ -1149,14 +1172,29 @@ pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate
             let mut spent = vec![Decimal::ZERO; nb];
             let mut target = vec![0.0; nt];
             let mut works = Vec::new();
+            let mut sums = ConditionSums::new(if series == Series::Condition { n } else { 0 });
             let mut t = Trace::default();
+            let mut others = [Trace::default(), Trace::default()];
             let mut u = Vec::new();
             for (i, sec) in chunk.iter().enumerate() {
                 let g = ci * CHUNK + i;
                 let st = e
                     .strategy(c.strategy[c.chosen(plan, g)])
                     .unwrap_or_else(Strategy::base);
-                SectionSim::new(run, sec).run(&st, &mut t);
+                let sim = SectionSim::new(run, sec);
+                sim.run(&st, &mut t);
+                if series == Series::Condition {
+                    // The plan's roughness, then the base's and the unconstrained choice's.
+                    sums.add(run, sec, 0, &t.iri);
+                    let un = e
+                        .strategy(c.unconstrained[g].strategy)
+                        .unwrap_or_else(Strategy::base);
+                    let [tb, tu] = &mut others;
+                    sim.run_pair(&Strategy::base(), tb, &un, tu);
+                    sums.add(run, sec, 1, &tb.iri);
+                    sums.add(run, sec, 2, &tu.iri);
+                    sums.length += sec.length_km;
+                }
                 works.extend(t.works.iter().map(|&(year, treatment, cost)| PlannedWork {
                     year,
                     section: g,
@@ -1174,14 +1212,16 @@ pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate
                     }
                 }
             }
-            (spent, target, works)
+            (spent, target, works, sums)
         })
         .collect();
     let mut spent = vec![Decimal::ZERO; nb];
     let mut target = vec![0.0; nt];
     let mut works = Vec::new();
-    for (sp, tg, wk) in parts {
+    let mut sums = ConditionSums::new(if series == Series::Condition { n } else { 0 });
+    for (sp, tg, wk, cs) in parts {
         works.extend(wk);
+        sums.absorb(&cs);
         for (a, b) in spent.iter_mut().zip(sp) {
             *a = a.saturating_add(b);
         }
@@ -1223,5 +1263,6 @@ pub fn recheck(run: &Run, c: &Candidates, plan: &[u16]) -> Result<Checked, crate
         spent: spent.into_iter().map(Money).collect(),
         achieved,
         works,
+        condition: (series == Series::Condition).then(|| sums.series(run)),
     })
 }

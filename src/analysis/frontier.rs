@@ -106,7 +106,7 @@ pub fn frontier(
             .filter_map(|r| r.money)
             .map(|m| m.to_f64())
             .sum();
-        let solved = match solve_checked(run, c, options) {
+        let solved = match solve_checked(run, c, options, crate::plan::Series::None) {
             Ok((o, _)) => {
                 let (plan, value, kept) = match &carried {
                     Some((p, v)) if *v > o.value => (p.clone(), *v, true),

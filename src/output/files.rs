@@ -122,7 +122,7 @@ pub fn write(
     set.write_to(TargetUse::FILE.name, schema::text(&targets).as_bytes())?;
     let summary = summary(run, p, facts, set.run_id());
     set.write_to(SUMMARY, summary.text().as_bytes())?;
-    let condition = condition(&crate::plan::condition_series(run, c, &p.outcome.plan));
+    let condition = condition(&p.condition);
     set.write_to(Condition::FILE.name, schema::text(&condition).as_bytes())?;
 
     // The widening table, chunk by chunk (kept whole only for the report).
