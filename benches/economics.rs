@@ -7,6 +7,7 @@
 
 use pavestrat::demo::synth::SplitMix64;
 use pavestrat::economics::{appraise, irr, Discounting, Stream, Timing};
+use pavestrat::model::Year;
 use std::hint::black_box;
 use std::time::Instant;
 
@@ -23,7 +24,7 @@ fn streams(n: usize, conventional: bool) -> Vec<Stream> {
     let mut g = Mix(SplitMix64::new(42));
     (0..n)
         .map(|_| {
-            let mut rows = vec![(2027, 0.0, 1e6 * (0.5 + g.next()))];
+            let mut rows = vec![(Year(2027), 0.0, 1e6 * (0.5 + g.next()))];
             for y in 2028..2057 {
                 let b = 1.2e5 * (0.5 + g.next());
                 let c = if !conventional && (y == 2039 || y == 2048) {
@@ -31,7 +32,7 @@ fn streams(n: usize, conventional: bool) -> Vec<Stream> {
                 } else {
                     0.0
                 };
-                rows.push((y, b, c));
+                rows.push((Year(y), b, c));
             }
             Stream::from_rows(&rows)
         })
@@ -52,7 +53,7 @@ fn time<F: FnMut() -> usize>(name: &str, mut f: F) {
 }
 
 fn main() {
-    let d = Discounting::new(0.06, 2027, Timing::EndOfYear).unwrap();
+    let d = Discounting::new(0.06, Year(2027), Timing::EndOfYear).unwrap();
     let conv = streams(1000, true);
     let nonconv = streams(1000, false);
     let nets: Vec<Vec<f64>> = nonconv.iter().map(Stream::net).collect();

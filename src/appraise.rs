@@ -19,6 +19,7 @@ use crate::economics::{appraise, appraise_with, fyrr, Discounting, Indicators, S
 use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::input::network::Section;
 use crate::input::Run;
+use crate::model::Year;
 use crate::simulate::{FlowStore, Flows, SectionSim, Trace};
 use rayon::prelude::*;
 use std::collections::HashMap;
@@ -46,13 +47,13 @@ pub struct StrategyResult {
     pub mean_iri: f64,
     pub final_iri: f64,
     /// Calendar year of its widening works, if any.
-    pub widening_year: Option<i32>,
+    pub widening_year: Option<Year>,
 }
 
 /// The best strategy that widens in one year.
 #[derive(Debug, Clone, PartialEq)]
 pub struct WideningYear {
-    pub year: i32,
+    pub year: Year,
     pub strategy: String,
     pub npv: f64,
     /// The widening's own first-year rate of return.
@@ -64,9 +65,9 @@ pub struct WideningYear {
 pub struct WideningTiming {
     pub years: Vec<WideningYear>,
     /// The first year whose FYRR reaches the discount rate.
-    pub by_fyrr: Option<i32>,
+    pub by_fyrr: Option<Year>,
     /// The year of highest NPV.
-    pub by_npv: Option<i32>,
+    pub by_npv: Option<Year>,
 }
 
 /// Everything appraised for one section.
@@ -90,7 +91,7 @@ impl SectionResult {
 }
 
 /// The flows of a strategy against another (benefits: user cost saved; costs: agency cost added).
-pub fn increment(with: &Flows, against: &Flows, first_year: i32) -> Stream {
+pub fn increment(with: &Flows, against: &Flows, first_year: Year) -> Stream {
     Stream {
         first_year,
         benefits: against
@@ -184,7 +185,7 @@ pub fn section(
             bcr_capital: None,
             mean_iri: t.iri.iter().sum::<f64>() / t.iri.len().max(1) as f64,
             final_iri: t.iri.last().copied().unwrap_or(sec.iri),
-            widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w as i32),
+            widening_year: st.widening_year(&run.catalogue).map(|w| y0 + w),
         });
         if !st.is_base() {
             alternatives.push((st.name.clone(), flows));
@@ -232,7 +233,7 @@ pub fn section(
             r.indicators.irr = crate::economics::irr(&stream.net());
         }
     }
-    let options: Vec<(Option<i32>, f64)> = partial
+    let options: Vec<(Option<Year>, f64)> = partial
         .iter()
         .map(|r| (r.widening_year, r.indicators.npv))
         .collect();
@@ -250,7 +251,7 @@ pub fn section(
 /// The best widening strategy of one calendar widening year (`K`: how the strategy is named).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct WideningOption<K = StrategyRef> {
-    pub year: i32,
+    pub year: Year,
     /// The strategy.
     pub strategy: K,
     /// Its NPV against the base.
@@ -264,7 +265,7 @@ pub struct WideningOption<K = StrategyRef> {
 /// against the base)` of every widening strategy in enumeration order; of equal NPVs the first
 /// is kept. Their FYRRs are left for [`widening_returns`].
 pub fn best_by_widening_year<K: Copy>(
-    options: impl IntoIterator<Item = (K, i32, f64)>,
+    options: impl IntoIterator<Item = (K, Year, f64)>,
 ) -> Vec<WideningOption<K>> {
     let mut best: Vec<WideningOption<K>> = Vec::new();
     for (strategy, year, npv) in options {
@@ -323,7 +324,7 @@ pub fn widening_returns(
 pub fn timing_rules<K>(
     options: &[WideningOption<K>],
     d: &Discounting,
-) -> (Option<i32>, Option<i32>) {
+) -> (Option<Year>, Option<Year>) {
     let by_fyrr = options
         .iter()
         .find(|w| w.fyrr.is_some_and(|f| f >= d.rate()))
@@ -343,7 +344,7 @@ fn widening_timing(
     sim: &SectionSim,
     strategies: &[Strategy],
     own: &FlowStore,
-    npv: &[(Option<i32>, f64)],
+    npv: &[(Option<Year>, f64)],
     d: &Discounting,
 ) -> Option<WideningTiming> {
     let mut best = best_by_widening_year(
@@ -392,11 +393,11 @@ mod tests {
     #[test]
     fn each_widening_year_keeps_its_best_strategy_and_the_first_of_equals() {
         let best = best_by_widening_year([
-            (1, 2030, 5.0),
-            (2, 2028, 1.0),
-            (3, 2030, 7.0),
-            (4, 2030, 7.0),
-            (5, 2028, -2.0),
+            (1, Year(2030), 5.0),
+            (2, Year(2028), 1.0),
+            (3, Year(2030), 7.0),
+            (4, Year(2030), 7.0),
+            (5, Year(2028), -2.0),
         ]);
         let o = |year, strategy, npv| WideningOption {
             year,
@@ -404,7 +405,7 @@ mod tests {
             npv,
             fyrr: None,
         };
-        assert_eq!(best, vec![o(2028, 2, 1.0), o(2030, 3, 7.0)]);
+        assert_eq!(best, vec![o(Year(2028), 2, 1.0), o(Year(2030), 3, 7.0)]);
         assert!(best_by_widening_year::<u32>([]).is_empty());
     }
 }

@@ -188,7 +188,7 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
         .network
         .sections
         .iter()
-        .map(|s| s.last_works_year.into_iter().collect())
+        .map(|s| s.last_works_year.map(|y| y.0).into_iter().collect())
         .collect();
     for s in surveys {
         works[s.section].extend(s.works_year);
@@ -220,7 +220,7 @@ pub fn intervals(run: &Run, surveys: &[Survey]) -> Vec<Interval> {
         };
         let model = SectionModel::new(&unit, mr, &m.condition);
         let e0 = traffic::design_lane_esals(sec, &m.traffic);
-        let esals_in = |y: i32| e0 * (1.0 + sec.growth_rate).max(0.01).powi(y - y0);
+        let esals_in = |y: i32| e0 * (1.0 + sec.growth_rate).max(0.01).powi(y - y0.0);
         let age = works
             .iter()
             .filter(|&&w| w < a.year)
@@ -690,7 +690,7 @@ mod tests {
                     works_year: None,
                     line: 0,
                 });
-                let e = e0 * (1.0 + sec.growth_rate).powi(y - run.scenario.base_year);
+                let e = e0 * (1.0 + sec.growth_rate).powi(y - run.scenario.base_year.0);
                 let x = Calibrated::load_weight(
                     &CalibratedParams {
                         rise_per_mesa: 1.0,
@@ -711,7 +711,7 @@ mod tests {
     fn all_calibrated(mut run: Run) -> Run {
         for s in &mut run.network.sections {
             s.surface = Some("surface_treatment".into());
-            s.last_works_year = Some(1990);
+            s.last_works_year = Some(crate::model::Year(1990));
         }
         run
     }
@@ -779,7 +779,7 @@ mod tests {
     #[test]
     fn intervals_across_works_are_left_out_and_thin_data_is_refused() {
         let mut run = all_calibrated(demo());
-        run.network.sections[0].last_works_year = Some(2012);
+        run.network.sections[0].last_works_year = Some(crate::model::Year(2012));
         let s = |year, iri, works_year| Survey {
             section: 0,
             year,

@@ -12,6 +12,7 @@
 use crate::input::network::{Carriageway, Section};
 use crate::input::templates::{StepTiming, Template};
 use crate::input::treatments::{Action, Catalogue};
+use crate::model::{Year, YearOffset};
 use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};
 
@@ -44,8 +45,8 @@ pub const BASE: &str = "base";
 /// Works of a strategy in one year: a treatment of the catalogue (by index).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct Works {
-    /// Years after the base year.
-    pub year: u32,
+    /// When, after the base year.
+    pub year: YearOffset,
     /// Index into [`Catalogue::treatments`].
     pub treatment: usize,
 }
@@ -120,7 +121,7 @@ impl Strategy {
     }
 
     /// The year of its first widening works, if any.
-    pub fn widening_year(&self, cat: &Catalogue) -> Option<u32> {
+    pub fn widening_year(&self, cat: &Catalogue) -> Option<YearOffset> {
         self.works
             .iter()
             .find(|w| cat.treatments[w.treatment].action == Action::Widen)
@@ -162,7 +163,7 @@ pub struct Enumerator<'a> {
     /// none).
     by_template: Vec<Option<usize>>,
     catalogue: &'a Catalogue,
-    base_year: i32,
+    base_year: Year,
     period: u32,
 }
 
@@ -172,7 +173,7 @@ impl<'a> Enumerator<'a> {
     pub fn new(
         templates: &'a [Template],
         catalogue: &'a Catalogue,
-        base_year: i32,
+        base_year: Year,
         period: u32,
     ) -> Enumerator<'a> {
         let idx = |name: &str| catalogue.treatments.iter().position(|t| t.id == name);
@@ -264,7 +265,7 @@ impl<'a> Enumerator<'a> {
         let mut years = [0u8; crate::input::MAX_STEPS];
         for (slot, w) in years.iter_mut().zip(works) {
             // Years are below the period, at most 100 (checked when the scenario is read).
-            *slot = w.year.min(u32::from(u8::MAX)) as u8;
+            *slot = w.year.0.min(u32::from(u8::MAX)) as u8;
         }
         StrategyRef {
             // `load` refuses more templates than a u16 holds, and more thresholds too.
@@ -310,7 +311,7 @@ impl<'a> Enumerator<'a> {
             .iter()
             .zip(&c.steps)
             .map(|(&y, &(treatment, _, _))| Works {
-                year: u32::from(y),
+                year: YearOffset(u32::from(y)),
                 treatment,
             })
             .collect();
@@ -346,7 +347,7 @@ impl<'a> Enumerator<'a> {
         let (lo, hi, every) = match timing {
             StepTiming::Window { first, last, every } => (first, last, every),
             StepTiming::After { min, max, every } => {
-                let prev = so_far.last().map_or(0, |w| w.year);
+                let prev = so_far.last().map_or(0, |w| w.year.0);
                 (prev + min, prev + max, every)
             }
         };
@@ -355,13 +356,19 @@ impl<'a> Enumerator<'a> {
         while y <= hi && y < self.period {
             let gap_ok = match so_far.last() {
                 // Steps are in time order: a window before the previous step's year is skipped.
-                Some(prev) => y == prev.year || (y > prev.year && y - prev.year >= gap),
-                None => section.last_works_year.is_none_or(|lw| {
-                    i64::from(self.base_year) + i64::from(y) - i64::from(lw) >= i64::from(gap)
-                }),
+                Some(prev) => {
+                    let p = prev.year.0;
+                    y == p || (y > p && y - p >= gap)
+                }
+                None => section
+                    .last_works_year
+                    .is_none_or(|lw| (self.base_year + YearOffset(y)) - lw >= i64::from(gap)),
             };
             if gap_ok {
-                so_far.push(Works { year: y, treatment });
+                so_far.push(Works {
+                    year: YearOffset(y),
+                    treatment,
+                });
                 self.expand(c, section, k + 1, so_far, out);
                 so_far.pop();
             }
@@ -405,7 +412,7 @@ impl<'a> Enumerator<'a> {
             }
             out.push_str(tag);
             out.push('@');
-            push_year(out, i64::from(self.base_year) + i64::from(w.year));
+            push_year(out, i64::from((self.base_year + w.year).0));
         }
         if let (Some(thr), Some((_, tag, _))) = (threshold, c.trigger) {
             if !out.is_empty() {
@@ -495,7 +502,7 @@ mod tests {
         let mut d = Diagnostics::new();
         let templates = crate::input::templates::parse("t.toml", text, &mut d).unwrap();
         let run = demo();
-        let e = Enumerator::new(&templates, &run.catalogue, 2027, 30);
+        let e = Enumerator::new(&templates, &run.catalogue, Year(2027), 30);
         let mut sec = run.network.sections[0].clone();
         sec.last_works_year = None;
         e.strategies(&sec).into_iter().map(|s| s.name).collect()
@@ -566,7 +573,7 @@ steps = [
         let run = demo();
         let e = Enumerator::for_run(&run);
         let mut sec = run.network.sections[0].clone();
-        sec.last_works_year = Some(2026);
+        sec.last_works_year = Some(Year(2026));
         let tpl = run
             .templates
             .iter()
@@ -580,7 +587,7 @@ steps = [
             .filter(|s| s.template == Some(tpl))
         {
             assert!(
-                2027 + s.works[0].year as i32 - 2026 >= gap as i32,
+                2027 + s.works[0].year.0 as i32 - 2026 >= gap as i32,
                 "{}",
                 s.name
             );
@@ -600,7 +607,10 @@ steps = [
             names.dedup();
             assert_eq!(names.len(), st.len());
             for x in &st {
-                assert!(x.works.iter().all(|w| w.year < run.scenario.analysis_years));
+                assert!(x
+                    .works
+                    .iter()
+                    .all(|w| w.year.0 < run.scenario.analysis_years));
             }
         }
     }

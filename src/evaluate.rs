@@ -18,12 +18,13 @@
 use crate::economics::Discounting;
 use crate::enumerate::Strategy;
 use crate::input::Run;
+use crate::model::Year;
 use crate::simulate::{Flows, SectionSim, Trace};
 
 /// NPV of a strategy's own flows `with` against the base's `against`: PV of the road-user
 /// savings less PV of the extra agency cost; the same arithmetic, in the same order, as
 /// [`crate::appraise::increment`] followed by two PVs, without building the incremental stream.
-pub fn npv_against(d: &Discounting, first_year: i32, with: &Flows, against: &Flows) -> f64 {
+pub fn npv_against(d: &Discounting, first_year: Year, with: &Flows, against: &Flows) -> f64 {
     let savings = against.users.iter().zip(&with.users).map(|(b, a)| b - a);
     let extra = with.agency.iter().zip(&against.agency).map(|(a, b)| a - b);
     d.pv_of(first_year, savings) - d.pv_of(first_year, extra)
@@ -94,7 +95,7 @@ impl Split {
 
     /// The parts' present values at `d`, from `first_year`. The residual is credited at the
     /// period's end as in [`Trace::flows`].
-    pub fn pv(&self, d: &Discounting, first_year: i32) -> Parts {
+    pub fn pv(&self, d: &Discounting, first_year: Year) -> Parts {
         let n = self.capital.len();
         let end = d.factor(first_year) * (1.0 / (1.0 + d.rate())).powi(n as i32) * d.end_shift();
         Parts {

@@ -44,7 +44,7 @@ pub mod error;
 pub mod evaluate;
 pub mod input;
 pub mod io;
-pub mod money;
+pub mod model;
 pub mod notice;
 pub mod output;
 pub mod plan;

@@ -25,7 +25,8 @@ use crate::input::network::Section;
 use crate::input::plan::{Held, Measure, Objective};
 use crate::input::scenario::Category;
 use crate::input::Run;
-use crate::money::Money;
+use crate::model::money::Money;
+use crate::model::{Year, YearOffset};
 use crate::progress::Progress;
 use crate::select::network::{self, Infeasible, Options, Outcome};
 use crate::select::problem::{Offers, Problem, ProblemError};
@@ -92,11 +93,11 @@ impl Row {
 }
 
 /// `x` (in a row's measure) in whole row units of 10^−`places`, rounded by the tool's one rule
-/// ([`crate::money::units_half_even`]). A value that is not finite or is beyond the supported
+/// ([`crate::model::money::units_half_even`]). A value that is not finite or is beyond the supported
 /// range becomes `i64::MAX` (or `MIN`), which the selection refuses with the row's name rather
 /// than wrapping.
 fn to_units(x: f64, places: u32) -> i64 {
-    match crate::money::units_half_even(x, places) {
+    match crate::model::money::units_half_even(x, places) {
         Some(u) => u.clamp(i128::from(i64::MIN), i128::from(i64::MAX)) as i64,
         None if x < 0.0 => i64::MIN,
         None => i64::MAX,
@@ -194,8 +195,8 @@ impl Plan {
 /// One treatment of the plan.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PlannedWork {
-    /// Year index from the base year.
-    pub year: u32,
+    /// When, after the base year.
+    pub year: YearOffset,
     /// Section index in network order.
     pub section: usize,
     /// Treatment index in the catalogue.
@@ -393,7 +394,7 @@ pub fn rows(run: &Run, budget_scale: f64) -> Result<Vec<Row>, crate::error::Erro
                 ),
                 format!(
                     "a limit of at most {} money units (after the budget scale)",
-                    crate::money::grouped(crate::select::problem::MAX_ROW_TOTAL as f64 / 100.0, 0)
+                    crate::model::money::grouped(crate::select::problem::MAX_ROW_TOTAL as f64 / 100.0, 0)
                 ),
             );
             continue;
@@ -526,7 +527,7 @@ fn section_candidates(
     out.enumerated = strategies.len() as u32;
     out.unconstrained = Unconstrained::default();
     out.base_pv_agency = d.pv(y0, &base_flows.agency);
-    let mut widening: Vec<(usize, i32, f64)> = Vec::new();
+    let mut widening: Vec<(usize, Year, f64)> = Vec::new();
     // Every strategy's own flows, for the widening's return against the same works without it
     // (kept only where some strategy widens).
     let widens = strategies
@@ -542,7 +543,7 @@ fn section_candidates(
         t.flows_into(d, &mut own);
         let npv = crate::evaluate::npv_against(d, y0, &own, &base_flows);
         if let Some(w) = st.widening_year(&run.catalogue) {
-            widening.push((i, y0 + w as i32, npv));
+            widening.push((i, y0 + w, npv));
         }
         let pv_agency = d.pv(y0, &own.agency);
         if widens {
@@ -551,8 +552,8 @@ fn section_candidates(
         if let Some(cs) = held {
             let ok = cs.iter().all(|c| match &c.held {
                 Held::Strategy(name) => *name == st.name,
-                Held::Treatment { treatment, year } => t.works.iter().any(|(wy, wt, _)| {
-                    y0 + *wy as i32 == *year && run.catalogue.treatments[*wt].id == *treatment
+                Held::Treatment { treatment, year } => t.works.iter().any(|w| {
+                    y0 + w.year == *year && run.catalogue.treatments[w.treatment].id == *treatment
                 }),
             });
             if !ok {
@@ -704,11 +705,11 @@ pub fn spending_bound_problems(run: &Run, d: &mut Diagnostics) {
                 format!(
                     "`{}`: the sections could put up to {} on this line, beyond the largest supported total",
                     line.name,
-                    crate::money::grouped(total, 0)
+                    crate::model::money::grouped(total, 0)
                 ),
                 format!(
                     "costs whose totals over the network stay below {} — check the treatment costs and the routine costs for a misplaced decimal point",
-                    crate::money::grouped(most, 0)
+                    crate::model::money::grouped(most, 0)
                 ),
             );
         }
@@ -864,7 +865,7 @@ fn too_large(run: &Run, rows: &[Row], section: &str, err: ProblemError) -> crate
         ),
         format!(
             "costs and limits whose totals over the network stay below {} — check the treatment costs and unit values for a misplaced decimal point",
-            crate::money::grouped(most, 0)
+            crate::model::money::grouped(most, 0)
         ),
     );
     crate::error::Error::Input(d)
@@ -995,7 +996,7 @@ impl Candidates {
 #[derive(Debug, Clone, PartialEq)]
 pub struct ConditionSeries {
     /// Calendar year of index 0.
-    pub first_year: i32,
+    pub first_year: Year,
     /// Per case ([`CASES`] order): length-weighted mean IRI of each year.
     pub mean_iri: [Vec<f64>; 3],
     /// Per case: share of length good, fair and poor in each year.
@@ -1089,8 +1090,8 @@ fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error
             RowKind::Budget(_) => format!(
                 "{}: limit {} {money}, {verb} {} {money}",
                 row.name,
-                crate::money::grouped(row.measure(row.limit_units), 2),
-                crate::money::grouped(row.measure(amount), 2)
+                crate::model::money::grouped(row.measure(row.limit_units), 2),
+                crate::model::money::grouped(row.measure(amount), 2)
             ),
             RowKind::Target(k) => {
                 let t = &run.scenario.plan.targets[k];
@@ -1195,11 +1196,11 @@ pub fn recheck(
                     sums.add(run, sec, 2, &tu.iri);
                     sums.length += sec.length_km;
                 }
-                works.extend(t.works.iter().map(|&(year, treatment, cost)| PlannedWork {
-                    year,
+                works.extend(t.works.iter().map(|w| PlannedWork {
+                    year: w.year,
                     section: g,
-                    treatment,
-                    cost,
+                    treatment: w.treatment,
+                    cost: w.cost,
                 }));
                 uses(run, &c.rows, sec, &t, &mut u);
                 for &(j, x) in &u {

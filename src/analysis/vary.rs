@@ -23,7 +23,7 @@ use crate::economics::Discounting;
 use crate::input::network::Section;
 use crate::input::varied::{slot, Slot};
 use crate::input::Run;
-use crate::money::Money;
+use crate::model::money::Money;
 use rust_decimal::Decimal;
 
 pub use crate::input::varied::{input, input_names, Input, RUN_INPUTS};

@@ -15,7 +15,7 @@ use pavestrat::input::models::ConditionParams;
 use pavestrat::input::network::Section;
 use pavestrat::input::Run;
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use pavestrat::output::format::{irr_text, pct, Amount, Field, Fixed, Rates};
 use pavestrat::output::schema::others::appraise::{APPRAISAL, INCREMENTAL, WIDENING, YEARLY};
 use pavestrat::simulate::condition::{classify, ConditionClass};
@@ -231,7 +231,7 @@ fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
                     "{},{},{},{},{},{},{},{},{},{},{},{},0.00",
                     Field(&r.section),
                     Field(name),
-                    y0 + i as i32,
+                    y0 + pavestrat::model::YearOffset::at(i),
                     Fixed(Some(t.iri[i]), 3),
                     classify(t.iri[i], cp).name(),
                     Fixed(Some(t.sn[i]), 3),
@@ -249,7 +249,7 @@ fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
                 "{},{},{},,,,0.00,0.00,0.00,0.00,0.00,0.00,{}",
                 Field(&r.section),
                 Field(name),
-                y0 + t.iri.len() as i32,
+                y0 + pavestrat::model::YearOffset::at(t.iri.len()),
                 Amount(t.residual)
             );
         }
@@ -319,7 +319,7 @@ impl Summary {
             if self.widening_sections > SHOWN {
                 continue;
             }
-            let at = |y: Option<i32>| {
+            let at = |y: Option<pavestrat::model::Year>| {
                 let f = y.and_then(|y| w.years.iter().find(|x| x.year == y));
                 match (y, f) {
                     (Some(y), Some(f)) => {

@@ -18,7 +18,7 @@ use pavestrat::economics::{appraise, Discounting, Indicators, Irr, Timing};
 use pavestrat::error::{Error, Result};
 use pavestrat::input::cashflow::{parse, Flows, SINGLE};
 use pavestrat::io::{print_stdout, OutputSet};
-use pavestrat::money::{grouped, Money};
+use pavestrat::model::money::{grouped, Money};
 use pavestrat::output::format::{csv_field, irr_text, num, opt, pct, rates};
 use pavestrat::output::schema::others::cashflow;
 use pavestrat::select::SelectError;
@@ -166,7 +166,7 @@ fn compute(label: &str, flows: &[Flows], args: &Args, budget: Option<f64>) -> Re
     } else {
         Timing::EndOfYear
     };
-    let discounting = Discounting::new(args.rate, base_year, timing)
+    let discounting = Discounting::new(args.rate, pavestrat::model::Year(base_year), timing)
         .map_err(|e| Error::Usage(format!("--rate: {e}")))?;
     let streams: Vec<(String, pavestrat::economics::Stream)> =
         flows.iter().map(|f| (f.name.clone(), f.stream())).collect();

@@ -6,7 +6,7 @@
 
 use super::{load_scenario, Context};
 use pavestrat::error::{Error, Result};
-use pavestrat::money::{grouped, Money};
+use pavestrat::model::money::{grouped, Money};
 use std::path::PathBuf;
 
 /// Arguments of `check`.

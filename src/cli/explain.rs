@@ -11,7 +11,7 @@ use super::Context;
 use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
 use pavestrat::io::print_stdout;
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use pavestrat::output::schema::plan::{
     read_candidates, row_column, BudgetUse, SectionPlan, TargetUse, CANDIDATES, SUMMARY,
 };

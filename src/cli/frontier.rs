@@ -9,7 +9,7 @@ use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
 use pavestrat::input::plan::Objective;
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use pavestrat::plan::Settings;
 use pavestrat::select::network::{Method, Options};
 use std::fmt::Write as _;

@@ -10,7 +10,7 @@ use super::{load_scenario, Context, OutArg};
 use pavestrat::analysis::risk::{merge, precision, simulate, stats, Sampling, Slice};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use std::fmt::Write as _;
 use std::path::PathBuf;
 

@@ -17,7 +17,7 @@ use pavestrat::diag::{Diagnostics, Place};
 use pavestrat::error::{Error, Result};
 use pavestrat::input::candidates::{self, CandidateFile};
 use pavestrat::io::{print_stdout, OutputSet};
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use pavestrat::output::format::Field;
 use pavestrat::output::schema::others::select::{ROW_USE, SELECTION};
 use pavestrat::select::network::{self, Infeasible, Method, Options, Outcome};

@@ -9,7 +9,7 @@ use pavestrat::analysis::held::HeldPlan;
 use pavestrat::analysis::sensitivity::{analyse, rows as sensitivity_rows, Tests, INPUTS};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::money::grouped;
+use pavestrat::model::money::grouped;
 use pavestrat::plan::Settings;
 use pavestrat::select::network::{Method, Options};
 use std::fmt::Write as _;

@@ -131,11 +131,12 @@ pub fn analyse_with(
 mod tests {
     use super::*;
     use crate::economics::Timing;
+    use crate::model::Year;
     use approx::assert_abs_diff_eq;
 
     fn project(cost: f64, benefit: f64, years: i32) -> Stream {
-        let mut rows = vec![(0, 0.0, cost)];
-        rows.extend((1..=years).map(|y| (y, benefit, 0.0)));
+        let mut rows = vec![(Year(0), 0.0, cost)];
+        rows.extend((1..=years).map(|y| (Year(y), benefit, 0.0)));
         Stream::from_rows(&rows)
     }
 
@@ -145,7 +146,7 @@ mod tests {
     // IRR 12.87 % > 10 %, so B is preferred although its own BCR and IRR are lower.
     #[test]
     fn ranking_reversal_reference_case() {
-        let d = Discounting::new(0.10, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.10, Year(0), Timing::EndOfYear).unwrap();
         let alts = vec![
             ("B".to_owned(), project(1600.0, 360.0, 10)),
             ("A".to_owned(), project(1000.0, 250.0, 10)),
@@ -176,7 +177,7 @@ mod tests {
 
     #[test]
     fn doing_nothing_wins_when_nothing_pays() {
-        let d = Discounting::new(0.10, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.10, Year(0), Timing::EndOfYear).unwrap();
         let alts = vec![("X".to_owned(), project(1000.0, 100.0, 10))];
         let a = analyse(&alts, &d);
         assert!(!a.steps[0].accepted);
@@ -185,7 +186,7 @@ mod tests {
 
     #[test]
     fn a_rejected_challenger_does_not_become_defender() {
-        let d = Discounting::new(0.10, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.10, Year(0), Timing::EndOfYear).unwrap();
         // A good, B worse than A at higher cost, C best.
         let alts = vec![
             ("A".to_owned(), project(1000.0, 250.0, 10)),

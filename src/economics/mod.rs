@@ -9,7 +9,7 @@
 //!   discounts its first value one period. A year before the base year is compounded forward.
 //! - Under the **mid-year** convention each year's flows fall half-way through the year, half a
 //!   year earlier than under end-of-year: the factor is (1+r)^−(y−y0−½).
-//! - Money arrives as exact decimals ([`crate::money::Money`]) and is turned into `f64` before
+//! - Money arrives as exact decimals ([`crate::model::money::Money`]) and is turned into `f64` before
 //!   discounting; sums run in a fixed order so that a result never depends on thread count.
 //! - BCR = PV(benefits) / PV(costs), undefined when PV(costs) ≤ 0.
 //! - FYRR = the first full year's net benefit ÷ the capital cost, both undiscounted (common
@@ -23,6 +23,7 @@ mod properties;
 
 pub use irr::{irr, Irr};
 
+use crate::model::Year;
 use std::fmt;
 
 /// When within a year its flows are taken to occur.
@@ -65,7 +66,7 @@ impl fmt::Display for Timing {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Discounting {
     rate: f64,
-    base_year: i32,
+    base_year: Year,
     timing: Timing,
 }
 
@@ -80,7 +81,7 @@ pub enum RateError {
 
 impl Discounting {
     /// A discounting rule; the rate is a fraction (0.06 for 6 %) above −1.
-    pub fn new(rate: f64, base_year: i32, timing: Timing) -> Result<Discounting, RateError> {
+    pub fn new(rate: f64, base_year: Year, timing: Timing) -> Result<Discounting, RateError> {
         if !rate.is_finite() {
             return Err(RateError::NotFinite(rate));
         }
@@ -98,7 +99,7 @@ impl Discounting {
         self.rate
     }
 
-    pub fn base_year(&self) -> i32 {
+    pub fn base_year(&self) -> Year {
         self.base_year
     }
 
@@ -112,8 +113,8 @@ impl Discounting {
     }
 
     /// The discount factor of a flow in `year`: (1+r)^−(year − base_year [− ½ mid-year]).
-    pub fn factor(&self, year: i32) -> f64 {
-        let t = f64::from(year - self.base_year);
+    pub fn factor(&self, year: Year) -> f64 {
+        let t = (year - self.base_year) as f64;
         let t = match self.timing {
             Timing::EndOfYear => t,
             Timing::MidYear => t - 0.5,
@@ -138,13 +139,13 @@ impl Discounting {
     }
 
     /// Present value of `values`, one a year starting in `first_year`, summed in year order.
-    pub fn pv(&self, first_year: i32, values: &[f64]) -> f64 {
+    pub fn pv(&self, first_year: Year, values: &[f64]) -> f64 {
         self.pv_of(first_year, values.iter().copied())
     }
 
     /// [`Discounting::pv`] of values computed as they are summed (no stream is built): the
     /// same arithmetic in the same order.
-    pub fn pv_of(&self, first_year: i32, values: impl IntoIterator<Item = f64>) -> f64 {
+    pub fn pv_of(&self, first_year: Year, values: impl IntoIterator<Item = f64>) -> f64 {
         // Factors by repeated division keep the sum cheap; one powf for the first year.
         let step = 1.0 / (1.0 + self.rate);
         let mut f = self.factor(first_year);
@@ -178,19 +179,19 @@ pub fn capital_recovery_factor(i: f64, n: u32) -> f64 {
 /// Yearly benefit and cost flows, one entry a year from `first_year` (years without a flow hold 0).
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Stream {
-    pub first_year: i32,
+    pub first_year: Year,
     pub benefits: Vec<f64>,
     pub costs: Vec<f64>,
 }
 
 impl Stream {
     /// A stream from (year, benefit, cost) rows in any order; rows of the same year add up.
-    pub fn from_rows(rows: &[(i32, f64, f64)]) -> Stream {
+    pub fn from_rows(rows: &[(Year, f64, f64)]) -> Stream {
         let Some(first) = rows.iter().map(|r| r.0).min() else {
             return Stream::default();
         };
         let last = rows.iter().map(|r| r.0).max().unwrap_or(first);
-        let n = usize::try_from(i64::from(last) - i64::from(first) + 1).unwrap_or(0);
+        let n = usize::try_from(last - first + 1).unwrap_or(0);
         let mut s = Stream {
             first_year: first,
             benefits: vec![0.0; n],
@@ -214,8 +215,8 @@ impl Stream {
     }
 
     /// The last year covered.
-    pub fn last_year(&self) -> i32 {
-        self.first_year + self.len() as i32 - 1
+    pub fn last_year(&self) -> Year {
+        Year(self.first_year.0 + self.len() as i32 - 1)
     }
 
     /// Net flow (benefit − cost) of each year.
@@ -228,7 +229,7 @@ impl Stream {
     }
 
     /// The same stream stretched to cover `first..=last` (zeros added); years outside are kept.
-    pub fn padded(&self, first: i32, last: i32) -> Stream {
+    pub fn padded(&self, first: Year, last: Year) -> Stream {
         let lo = first.min(self.first_year);
         let hi = if self.is_empty() {
             last
@@ -390,28 +391,28 @@ mod tests {
     // Source: common practice, A/(1+r)^(y−y0); 5.0 at 6 % four years on → 3.9605 (computed).
     #[test]
     fn present_value_to_a_base_year() {
-        let d = Discounting::new(0.06, 2026, Timing::EndOfYear).unwrap();
-        assert_abs_diff_eq!(5.0 * d.factor(2030), 3.9605, epsilon = 5e-5);
+        let d = Discounting::new(0.06, Year(2026), Timing::EndOfYear).unwrap();
+        assert_abs_diff_eq!(5.0 * d.factor(Year(2030)), 3.9605, epsilon = 5e-5);
         // A year before the base year is compounded forward.
-        assert_abs_diff_eq!(d.factor(2025), 1.06, epsilon = 1e-15);
+        assert_abs_diff_eq!(d.factor(Year(2025)), 1.06, epsilon = 1e-15);
         // Mid-year: half a year earlier.
-        let m = Discounting::new(0.06, 2026, Timing::MidYear).unwrap();
-        assert_abs_diff_eq!(m.factor(2027), 1.06f64.powf(-0.5), epsilon = 1e-15);
+        let m = Discounting::new(0.06, Year(2026), Timing::MidYear).unwrap();
+        assert_abs_diff_eq!(m.factor(Year(2027)), 1.06f64.powf(-0.5), epsilon = 1e-15);
     }
 
     // Source: numpy-financial 1.0.0 documentation, npv(0.281, [-100,39,59,55,20]) = -0.0084786
     // and npv(0.08, [-40000,5000,8000,12000,30000]) = 3065.22267 (first value undiscounted).
     #[test]
     fn npv_matches_numpy_financial_convention() {
-        let d = Discounting::new(0.281, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.281, Year(0), Timing::EndOfYear).unwrap();
         assert_abs_diff_eq!(
-            d.pv(0, &[-100.0, 39.0, 59.0, 55.0, 20.0]),
+            d.pv(Year(0), &[-100.0, 39.0, 59.0, 55.0, 20.0]),
             -0.0084786,
             epsilon = 5e-8
         );
-        let d = Discounting::new(0.08, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.08, Year(0), Timing::EndOfYear).unwrap();
         assert_abs_diff_eq!(
-            d.pv(0, &[-40000.0, 5000.0, 8000.0, 12000.0, 30000.0]),
+            d.pv(Year(0), &[-40000.0, 5000.0, 8000.0, 12000.0, 30000.0]),
             3065.22267,
             epsilon = 5e-6
         );
@@ -421,9 +422,9 @@ mod tests {
     // spreadsheet discounts its first value one period, i.e. a base year one before the first flow.
     #[test]
     fn spreadsheet_npv_is_a_base_year_shift() {
-        let d = Discounting::new(0.10, 2025, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.10, Year(2025), Timing::EndOfYear).unwrap();
         assert_abs_diff_eq!(
-            d.pv(2026, &[-10000.0, 3000.0, 4200.0, 6800.0]),
+            d.pv(Year(2026), &[-10000.0, 3000.0, 4200.0, 6800.0]),
             1188.44,
             epsilon = 5e-3
         );
@@ -433,10 +434,10 @@ mod tests {
     // NPV 536.14, BCR 1.5361, IRR 21.41 % (computed with numpy-financial).
     #[test]
     fn appraisal_of_a_simple_project() {
-        let mut rows = vec![(0, 0.0, 1000.0)];
-        rows.extend((1..=10).map(|y| (y, 250.0, 0.0)));
+        let mut rows = vec![(Year(0), 0.0, 1000.0)];
+        rows.extend((1..=10).map(|y| (Year(y), 250.0, 0.0)));
         let s = Stream::from_rows(&rows);
-        let d = Discounting::new(0.10, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.10, Year(0), Timing::EndOfYear).unwrap();
         let a = appraise(&s, &d);
         assert_abs_diff_eq!(a.npv, 536.14, epsilon = 5e-3);
         assert_abs_diff_eq!(a.bcr.unwrap(), 1.5361, epsilon = 5e-5);
@@ -476,19 +477,23 @@ mod tests {
 
     #[test]
     fn rates_are_checked() {
-        assert!(Discounting::new(f64::NAN, 0, Timing::EndOfYear).is_err());
-        assert!(Discounting::new(-1.0, 0, Timing::EndOfYear).is_err());
+        assert!(Discounting::new(f64::NAN, Year(0), Timing::EndOfYear).is_err());
+        assert!(Discounting::new(-1.0, Year(0), Timing::EndOfYear).is_err());
     }
 
     #[test]
     fn stream_arithmetic() {
-        let a = Stream::from_rows(&[(2030, 5.0, 1.0), (2028, 0.0, 3.0), (2030, 1.0, 0.0)]);
-        assert_eq!(a.first_year, 2028);
+        let a = Stream::from_rows(&[
+            (Year(2030), 5.0, 1.0),
+            (Year(2028), 0.0, 3.0),
+            (Year(2030), 1.0, 0.0),
+        ]);
+        assert_eq!(a.first_year, Year(2028));
         assert_eq!(a.benefits, vec![0.0, 0.0, 6.0]);
         assert_eq!(a.net(), vec![-3.0, 0.0, 5.0]);
-        let b = Stream::from_rows(&[(2027, 1.0, 0.0)]);
+        let b = Stream::from_rows(&[(Year(2027), 1.0, 0.0)]);
         let d = a.minus(&b);
-        assert_eq!(d.first_year, 2027);
+        assert_eq!(d.first_year, Year(2027));
         assert_eq!(d.net(), vec![-1.0, -3.0, 0.0, 5.0]);
     }
 }

@@ -5,6 +5,7 @@ use super::budget::{best_set, greedy, Project, Ranking};
 use super::incremental::analyse;
 use super::irr::{irr, MAX_RATE, MIN_RATE};
 use super::{Discounting, Stream, Timing};
+use crate::model::Year;
 use proptest::prelude::*;
 
 fn npv_at(values: &[f64], r: f64) -> (f64, f64) {
@@ -92,12 +93,12 @@ proptest! {
     fn pv_is_linear(x in prop::collection::vec(-1e6..1e6f64, 1..40), k in -10.0..10.0f64,
                     rate in -0.05..0.3f64, base in 1990..2060i32, first in 1990..2060i32, mid in any::<bool>()) {
         let y: Vec<f64> = x.iter().enumerate().map(|(i, v)| v * 0.5 + i as f64).collect();
-        let d = Discounting::new(rate, base, if mid { Timing::MidYear } else { Timing::EndOfYear }).unwrap();
+        let d = Discounting::new(rate, Year(base), if mid { Timing::MidYear } else { Timing::EndOfYear }).unwrap();
         let combo: Vec<f64> = x.iter().zip(&y).map(|(a, b)| k * a + b).collect();
-        let lhs = d.pv(first, &combo);
-        let rhs = k * d.pv(first, &x) + d.pv(first, &y);
+        let lhs = d.pv(Year(first), &combo);
+        let rhs = k * d.pv(Year(first), &x) + d.pv(Year(first), &y);
         let scale: f64 = combo.iter().zip(&x).map(|(c, a)| c.abs() + (k * a).abs()).sum::<f64>()
-            * d.factor(first).max(d.factor(first + x.len() as i32));
+            * d.factor(Year(first)).max(d.factor(Year(first + x.len() as i32)));
         prop_assert!((lhs - rhs).abs() <= 1e-12 * scale.max(1.0));
     }
 
@@ -108,10 +109,10 @@ proptest! {
         alts in prop::collection::vec((0.0..5000.0f64, 0.0..900.0f64, 1usize..25), 1..7),
         rate in 0.0..0.15f64,
     ) {
-        let d = Discounting::new(rate, 0, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(rate, Year(0), Timing::EndOfYear).unwrap();
         let named: Vec<(String, Stream)> = alts.iter().enumerate().map(|(i, (c, b, n))| {
-            let mut rows = vec![(0, 0.0, *c)];
-            rows.extend((1..=*n as i32).map(|y| (y, *b, 0.0)));
+            let mut rows = vec![(Year(0), 0.0, *c)];
+            rows.extend((1..=*n as i32).map(|y| (Year(y), *b, 0.0)));
             (format!("alt{i}"), Stream::from_rows(&rows))
         }).collect();
         let a = analyse(&named, &d);

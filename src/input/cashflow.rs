@@ -5,7 +5,7 @@
 //! note); years without a row count as zero. Columns starting `x_` are ignored as notes.
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
-use crate::money::Money;
+use crate::model::money::Money;
 use std::collections::BTreeMap;
 
 /// One alternative's flows, by year.
@@ -19,10 +19,10 @@ pub struct Flows {
 impl Flows {
     /// The flows as an f64 stream for the economics core (the one place money becomes float).
     pub fn stream(&self) -> crate::economics::Stream {
-        let rows: Vec<(i32, f64, f64)> = self
+        let rows: Vec<(crate::model::Year, f64, f64)> = self
             .years
             .iter()
-            .map(|(y, (b, c))| (*y, b.to_f64(), c.to_f64()))
+            .map(|(y, (b, c))| (crate::model::Year(*y), b.to_f64(), c.to_f64()))
             .collect();
         crate::economics::Stream::from_rows(&rows)
     }
@@ -215,7 +215,7 @@ mod tests {
         assert_eq!(f[0].name, SINGLE);
         assert_eq!(f[0].years[&2029].0.to_string(), "250.3");
         let s = f[0].stream();
-        assert_eq!(s.first_year, 2027);
+        assert_eq!(s.first_year, crate::model::Year(2027));
         assert_eq!(s.net().len(), 3);
         assert!(d.to_string().contains("a second row for year 2029"));
         assert!(!d.has_errors());

@@ -8,25 +8,10 @@
 //! type-guessed. All problems of all rows are reported, each with its line and column name.
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::model::Year;
 use std::collections::HashMap;
-use std::fmt;
 
-/// A section's identifier, as written in the network file.
-#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Hash)]
-pub struct SectionId(pub String);
-
-impl SectionId {
-    /// The identifier as written.
-    pub fn as_str(&self) -> &str {
-        &self.0
-    }
-}
-
-impl fmt::Display for SectionId {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.0)
-    }
-}
+use crate::model::SectionId;
 
 /// Single carriageway (two-way, undivided) or divided (dual carriageway).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -75,7 +60,7 @@ pub struct Section {
     pub lane_width_m: Option<f64>,
     pub surface: Option<String>,
     pub subgrade_mr_mpa: Option<f64>,
-    pub last_works_year: Option<i32>,
+    pub last_works_year: Option<Year>,
     pub speed_kmh: Option<f64>,
     /// The `x_` columns' values, in the order of [`Network::note_columns`].
     pub notes: Vec<String>,
@@ -510,7 +495,7 @@ impl<'a> Row<'a> {
             lane_width_m,
             surface,
             subgrade_mr_mpa: subgrade,
-            last_works_year,
+            last_works_year: last_works_year.map(Year),
             speed_kmh: speed,
             notes,
         })

@@ -25,9 +25,10 @@
 //! region = "north"           # optional: only sections of this region count
 //! ```
 
-use super::network::SectionId;
 use super::tomldoc::{Table, Value};
 use crate::diag::{Diagnostics, Place};
+use crate::model::SectionId;
+use crate::model::Year;
 
 /// What the selection optimises.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -62,7 +63,7 @@ pub enum Held {
     /// This strategy, by name.
     Strategy(String),
     /// Any strategy that applies this treatment (catalogue name) in this calendar year.
-    Treatment { treatment: String, year: i32 },
+    Treatment { treatment: String, year: Year },
 }
 
 /// Works already decided on one section.
@@ -97,7 +98,7 @@ pub struct TargetLine {
     /// `{group}-{year}`, as budget lines are named.
     pub name: String,
     pub group: String,
-    pub year: i32,
+    pub year: Year,
     pub measure: Measure,
     pub at_most: f64,
     pub region: Option<String>,
@@ -174,7 +175,7 @@ fn read_commitments(
             (Some(s), None, None) => Some(Held::Strategy(s)),
             (None, Some(tr), Some(y)) => Some(Held::Treatment {
                 treatment: tr,
-                year: y as i32,
+                year: Year(y as i32),
             }),
             (None, Some(_), None) if !had_year => {
                 d.error(
@@ -307,7 +308,7 @@ fn read_targets(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostics) -
             out.push(TargetLine {
                 name: format!("{name}-{y}"),
                 group: name.clone(),
-                year: y as i32,
+                year: Year(y as i32),
                 measure,
                 at_most,
                 region: region.clone(),

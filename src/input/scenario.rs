@@ -33,7 +33,8 @@
 use super::tomldoc::{Doc, Table, Value};
 use crate::diag::{Diagnostics, Place};
 use crate::economics::{Discounting, Timing};
-use crate::money::Money;
+use crate::model::money::Money;
+use crate::model::{Year, YearOffset};
 use std::path::{Path, PathBuf};
 
 /// The vehicle classes every unit value and traffic share is given for.
@@ -111,7 +112,7 @@ pub struct BudgetLine {
     pub name: String,
     /// The `[[budget]]` entry it came from.
     pub group: String,
-    pub year: i32,
+    pub year: Year,
     pub limit: Money,
     pub category: Category,
     pub region: Option<String>,
@@ -154,7 +155,7 @@ pub struct ScenarioFiles {
 pub struct Scenario {
     pub file: String,
     pub title: String,
-    pub base_year: i32,
+    pub base_year: Year,
     pub analysis_years: u32,
     pub discounting: Discounting,
     pub money_label: String,
@@ -171,8 +172,8 @@ pub struct Scenario {
 
 impl Scenario {
     /// The last year of the analysis period.
-    pub fn last_year(&self) -> i32 {
-        self.base_year + self.analysis_years as i32 - 1
+    pub fn last_year(&self) -> Year {
+        self.base_year + YearOffset(self.analysis_years.saturating_sub(1))
     }
 }
 
@@ -295,7 +296,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
 
 struct Frame {
     title: String,
-    base_year: i32,
+    base_year: Year,
     analysis_years: u32,
     discounting: Discounting,
     money: String,
@@ -385,7 +386,7 @@ fn read_frame(mut t: Table<'_, '_>, d: &mut Diagnostics) -> (Option<Frame>, Opti
     let frame = (|| {
         let (base_year, analysis_years, rate, timing, money) =
             (base_year?, analysis_years?, rate?, timing?, money?);
-        let base_year = base_year as i32;
+        let base_year = Year(base_year as i32);
         let discounting = Discounting::new(rate, base_year, timing).ok()?;
         Some(Frame {
             title,
@@ -639,7 +640,7 @@ fn read_budgets(
             lines.push(BudgetLine {
                 name: format!("{name}-{y}"),
                 group: name.clone(),
-                year: y as i32,
+                year: Year(y as i32),
                 limit,
                 category,
                 region: region.clone(),
@@ -686,7 +687,7 @@ years = { 2028 = "6500000.50" }
         let mut d = Diagnostics::new();
         let s = parse("s.toml", GOOD, Path::new("/data"), &mut d).expect("parses");
         assert!(d.is_empty(), "{d}");
-        assert_eq!(s.last_year(), 2056);
+        assert_eq!(s.last_year(), Year(2056));
         assert_eq!(s.files.network.path, PathBuf::from("/data/net.csv"));
         assert_eq!(s.files.strategies.len(), 2);
         assert_eq!(s.unit_values.time.get(VehicleClass::Bus).to_string(), "36");

@@ -8,7 +8,7 @@
 //! source text, so money written as a TOML number is still read exactly.
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
-use crate::money::Money;
+use crate::model::money::Money;
 use crate::text::LineIndex;
 use std::ops::Range;
 use toml::de::{DeTable, DeValue};

@@ -35,7 +35,7 @@ use super::scenario::Category;
 use super::tomldoc::{is_identifier, Doc, Table};
 use crate::diag::{Diagnostics, Place};
 use crate::input::network::Carriageway;
-use crate::money::Money;
+use crate::model::money::Money;
 
 /// What kind of work a treatment is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]

@@ -24,7 +24,7 @@
 
 use crate::input::models::FamilyModel;
 use crate::input::scenario::{Scenario, VehicleClass};
-use crate::money::Money;
+use crate::model::money::Money;
 
 /// Whole-run inputs (not key paths of the scenario).
 pub const RUN_INPUTS: [(&str, f64, f64); 5] = [

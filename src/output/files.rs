@@ -12,6 +12,7 @@ use crate::error::Result;
 use crate::input::scenario::{Category, VehicleClass};
 use crate::input::Run;
 use crate::io::StreamSet;
+use crate::model::YearOffset;
 use crate::output::report::Inputs;
 use crate::output::schema::plan::{
     candidate_head, row_column, write_candidate, BudgetUse, Condition, Limit, SectionPlan,
@@ -168,7 +169,7 @@ pub fn work_programme<'a>(run: &'a Run, p: &'a Plan) -> impl Iterator<Item = Wor
         let t = &run.catalogue.treatments[w.treatment];
         let sec = &secs[w.section];
         Work {
-            year: y0 + w.year as i32,
+            year: y0 + w.year,
             section_id: sec.id.as_str().to_owned(),
             treatment: t.id.clone(),
             cost: Cents::of(w.cost),
@@ -286,7 +287,7 @@ pub fn condition(cs: &ConditionSeries) -> Vec<Condition> {
         for (y, iri) in cs.mean_iri[case].iter().enumerate() {
             let [g, f, p] = cs.shares[case][y];
             out.push(Condition {
-                year: cs.first_year + y as i32,
+                year: cs.first_year + YearOffset::at(y),
                 case: (*name).to_owned(),
                 mean_iri: Fixed::of(*iri),
                 good_share: Fixed::of(g),
@@ -322,7 +323,7 @@ pub fn widening_rows(
             let planned = e
                 .strategy(c.strategy[c.chosen(&p.outcome.plan, g)])
                 .and_then(|chosen| chosen.widening_year(cat))
-                .map(|x| y0 + x as i32);
+                .map(|x| y0 + x);
             best.iter()
                 .filter_map(|wy| {
                     let picks = [by_fyrr, by_npv, planned].map(|y| y == Some(wy.year));
@@ -372,7 +373,7 @@ pub fn summary(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> Summary {
         .works
         .iter()
         .filter(|w| run.catalogue.treatments[w.treatment].category != Category::Routine)
-        .map(|w| w.cost * d.factor(run.scenario.base_year + w.year as i32))
+        .map(|w| w.cost * d.factor(run.scenario.base_year + w.year))
         .sum();
     let (npv_per_capital, bcr_capital) = crate::appraise::capital_ratios(t.plan.npv, pv_capital);
     Summary {
@@ -441,12 +442,13 @@ pub fn summary(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> Summary {
 /// The scenario's key assumptions, for summary.json and the report.
 pub fn assumptions(run: &Run) -> summary::Assumptions {
     let s = &run.scenario;
-    let per_class = |v: &crate::input::scenario::PerClass<crate::money::Money>| summary::PerClass {
-        bus: v.get(VehicleClass::Bus).to_f64(),
-        car: v.get(VehicleClass::Car).to_f64(),
-        heavy_truck: v.get(VehicleClass::HeavyTruck).to_f64(),
-        light_truck: v.get(VehicleClass::LightTruck).to_f64(),
-    };
+    let per_class =
+        |v: &crate::input::scenario::PerClass<crate::model::money::Money>| summary::PerClass {
+            bus: v.get(VehicleClass::Bus).to_f64(),
+            car: v.get(VehicleClass::Car).to_f64(),
+            heavy_truck: v.get(VehicleClass::HeavyTruck).to_f64(),
+            light_truck: v.get(VehicleClass::LightTruck).to_f64(),
+        };
     let cond = &s.models.condition;
     summary::Assumptions {
         analysis_years: s.analysis_years,

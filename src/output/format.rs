@@ -56,14 +56,14 @@ pub fn irr_text(irr: &Irr) -> String {
 }
 
 /// Money for CSV: two decimals, rounded by the tool's one rule
-/// ([`crate::money::units_half_even`]), empty when not finite (written without allocating). A
+/// ([`crate::model::money::units_half_even`]), empty when not finite (written without allocating). A
 /// value that rounds to zero prints as `0.00`, never `-0.00`.
 #[derive(Debug, Clone, Copy)]
 pub struct Amount(pub f64);
 
 impl std::fmt::Display for Amount {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match crate::money::units_half_even(self.0, 2) {
+        match crate::model::money::units_half_even(self.0, 2) {
             Some(c) => {
                 let a = c.unsigned_abs();
                 let sign = if c < 0 { "-" } else { "" };

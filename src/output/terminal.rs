@@ -4,7 +4,7 @@
 
 use crate::input::plan::Objective;
 use crate::input::Run;
-use crate::money::grouped;
+use crate::model::money::grouped;
 use crate::output::files::Facts;
 use crate::plan::{Plan, RowKind};
 use std::fmt::Write as _;

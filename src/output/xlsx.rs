@@ -162,11 +162,12 @@ mod imp {
             let t = &run.catalogue.treatments[w.treatment];
             let sec = &secs[w.section];
             sh.line(&[
-                Cell::Number(f64::from(s.base_year + w.year as i32)),
+                Cell::Number(f64::from((s.base_year + w.year).0)),
                 Cell::Text(sec.id.as_str()),
                 Cell::Text(&t.id),
                 Cell::Money(
-                    crate::money::Money::from_f64_rounded(w.cost).map_or(f64::NAN, |m| m.to_f64()),
+                    crate::model::money::Money::from_f64_rounded(w.cost)
+                        .map_or(f64::NAN, |m| m.to_f64()),
                 ),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
                 Cell::Text(t.category.name()),
@@ -213,7 +214,7 @@ mod imp {
                 let used = p.spent[b].to_f64();
                 sh.line(&[
                     Cell::Text(&row.name),
-                    Cell::Number(f64::from(line.year)),
+                    Cell::Number(f64::from(line.year.0)),
                     Cell::Money(limit),
                     Cell::Money(used),
                     Cell::Number(p.outcome.prices[j]),
@@ -277,7 +278,7 @@ mod imp {
         let facts = [
             ("scenario", Cell::Text(title)),
             ("money", Cell::Text(&s.money_label)),
-            ("base year", Cell::Number(f64::from(s.base_year))),
+            ("base year", Cell::Number(f64::from(s.base_year.0))),
             ("analysis years", Cell::Number(f64::from(s.analysis_years))),
             ("discount rate", Cell::Rate(Some(s.discounting.rate()))),
             ("objective", Cell::Money(c.objective_of(p.outcome.value))),

@@ -36,7 +36,7 @@ fn one_works(run: &Run, treatment: &str, year: u32) -> Strategy {
         key: Default::default(),
         template: Some(0),
         works: vec![Works {
-            year,
+            year: crate::model::YearOffset(year),
             treatment: run
                 .catalogue
                 .treatments
@@ -192,7 +192,7 @@ fn a_higher_discount_rate_delays_widening_or_removes_it() {
     low.scenario.discounting = low.scenario.discounting.with_rate(0.04).unwrap();
     high.scenario.discounting = high.scenario.discounting.with_rate(0.12).unwrap();
     let (wl, wh) = (widening(&low, &sec), widening(&high, &sec));
-    let later = |a: Option<i32>, b: Option<i32>| match (a, b) {
+    let later = |a: Option<crate::model::Year>, b: Option<crate::model::Year>| match (a, b) {
         (Some(l), Some(h)) => h >= l,
         (_, None) => true,
         (None, Some(_)) => false,
@@ -364,7 +364,7 @@ proptest! {
         sec.growth_rate = growth;
         sec.subgrade_mr_mpa = Some(mr);
         sec.lanes = lanes;
-        sec.last_works_year = age.map(|a| run.scenario.base_year - a);
+        sec.last_works_year = age.map(|a| crate::model::Year(run.scenario.base_year.0 - a));
         let t = trace(&run, &sec, &Strategy::base());
         for w in t.iri.windows(2) {
             prop_assert!(w[1] >= w[0], "{:?}", t.iri);

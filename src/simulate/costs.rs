@@ -161,6 +161,7 @@ pub fn residual_value(cost: f64, works_year: u32, life_years: u32, period_years:
 mod tests {
     use super::*;
     use crate::economics::{Discounting, Timing};
+    use crate::model::Year;
     use approx::assert_abs_diff_eq;
 
     #[test]
@@ -200,17 +201,17 @@ mod tests {
         // in service from index 32), 12-year life → 750, PV at 4 % = 190.06.
         let rv = residual_value(1000.0, 31, 12, 35);
         assert_abs_diff_eq!(rv, 750.0, epsilon = 1e-9);
-        let d = Discounting::new(0.04, 2000, Timing::EndOfYear).unwrap();
+        let d = Discounting::new(0.04, Year(2000), Timing::EndOfYear).unwrap();
         // Credited at the end of the period: year 0 + 35.
-        assert_abs_diff_eq!(rv * d.factor(2035), 190.06, epsilon = 0.005);
+        assert_abs_diff_eq!(rv * d.factor(Year(2035)), 190.06, epsilon = 0.005);
         // Works that end within the period leave nothing; works in the last year leave all.
         assert_abs_diff_eq!(residual_value(1000.0, 10, 12, 35), 0.0, epsilon = 1e-12);
         assert_abs_diff_eq!(residual_value(1000.0, 34, 12, 35), 1000.0, epsilon = 1e-12);
         // A mid-year rule credits it at the same point, the period's end.
-        let m = Discounting::new(0.04, 2000, Timing::MidYear).unwrap();
+        let m = Discounting::new(0.04, Year(2000), Timing::MidYear).unwrap();
         assert_abs_diff_eq!(rv * m.end_factor(35), 190.06, epsilon = 0.005);
         assert_abs_diff_eq!(
-            rv * m.end_shift() * m.factor(2035),
+            rv * m.end_shift() * m.factor(Year(2035)),
             rv * m.end_factor(35),
             epsilon = 1e-9
         );

@@ -33,7 +33,8 @@ use crate::input::network::{Carriageway, Section};
 use crate::input::scenario::{PerClass, VehicleClass};
 use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::input::Run;
-use crate::money::Money;
+use crate::model::money::Money;
+use crate::model::YearOffset;
 use condition::{AgeFactors, Condition, SectionModel};
 
 /// Lane width (m) taken where the network gives none: a common rural lane (common practice,
@@ -59,13 +60,21 @@ pub struct Trace {
     pub iri: Vec<f64>,
     /// Structural number during the year.
     pub sn: Vec<f64>,
-    /// Works done: (year index, treatment index, cost).
-    pub works: Vec<(u32, usize, f64)>,
+    /// Works done, in year order.
+    pub works: Vec<Done>,
     /// Residual value of the last works, credited the year after the period ends.
     pub residual: f64,
     /// The state at the start of each year, so that the next strategy run into this trace
     /// replays only the years after the two strategies' works first differ.
     resume: Resume,
+}
+
+/// One treatment a run did: when, which (its index in the catalogue) and what it cost.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Done {
+    pub year: YearOffset,
+    pub treatment: usize,
+    pub cost: f64,
 }
 
 /// The state of a run at the start of each year, and the section simulation it belongs to.
@@ -301,7 +310,7 @@ impl SectionSim {
         let iri0 = section.iri.min(m.condition.iri_max);
         let age = section
             .last_works_year
-            .map(|y| f64::from(s.base_year - y).max(0.0));
+            .map(|y| ((s.base_year - y) as f64).max(0.0));
         let placement = model.place(
             iri0,
             section.structural_number,
@@ -362,9 +371,7 @@ impl SectionSim {
             lanes: section.lanes,
             carriageway: section.carriageway,
             lane_width_m: section.lane_width_m.unwrap_or(DEFAULT_LANE_WIDTH_M),
-            last_works: section
-                .last_works_year
-                .map(|y| i64::from(y) - i64::from(s.base_year)),
+            last_works: section.last_works_year.map(|y| y - s.base_year),
             model,
             start,
             vkm: t.aadt.iter().map(|a| a * 365.0 * length).collect(),
@@ -597,14 +604,14 @@ impl SectionSim {
             ] {
                 v[from..].fill(0.0);
             }
-            let keep = out.works.partition_point(|w| (w.0 as usize) < from);
+            let keep = out.works.partition_point(|w| w.year.index() < from);
             out.works.truncate(keep);
             out.resume.states[from]
         };
         Some(Cursor {
             from,
             state: s,
-            next: strategy.works.partition_point(|w| (w.year as usize) < from),
+            next: strategy.works.partition_point(|w| w.year.index() < from),
         })
     }
 
@@ -625,7 +632,7 @@ impl SectionSim {
         let mut done = [0usize; crate::input::MAX_STEPS];
         // 1. Works due this year.
         let first = c.next;
-        while c.next < strategy.works.len() && strategy.works[c.next].year as usize == y {
+        while c.next < strategy.works.len() && strategy.works[c.next].year.index() == y {
             c.next += 1;
         }
         let mut count = 0;
@@ -661,7 +668,11 @@ impl SectionSim {
                 out.routine[y] += cost;
             }
             zone_days += w.work_zone_days;
-            out.works.push((y as u32, ti, cost));
+            out.works.push(Done {
+                year: YearOffset::at(y),
+                treatment: ti,
+                cost,
+            });
         }
         out.delay[y] =
             f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
@@ -745,11 +756,11 @@ impl SectionSim {
         let (mut mine, mut theirs) = (0usize, 0usize);
         for y in 0..n {
             let first = mine;
-            while mine < strategy.works.len() && strategy.works[mine].year as usize == y {
+            while mine < strategy.works.len() && strategy.works[mine].year.index() == y {
                 mine += 1;
             }
             let their_first = theirs;
-            while theirs < out.works.len() && out.works[theirs].0 as usize == y {
+            while theirs < out.works.len() && out.works[theirs].year.index() == y {
                 theirs += 1;
             }
             let done = &out.works[their_first..theirs];
@@ -757,14 +768,18 @@ impl SectionSim {
                 // Timed works, as many as a year takes (see `run`).
                 let timed = &strategy.works[first..mine];
                 let taken = timed.len().min(crate::input::MAX_STEPS);
-                taken == done.len() && timed.iter().zip(done).all(|(w, d)| w.treatment == d.1)
+                taken == done.len()
+                    && timed
+                        .iter()
+                        .zip(done)
+                        .all(|(w, d)| w.treatment == d.treatment)
             } else if let Some(tr) = &strategy.trigger {
                 let st = &out.resume.states[y];
                 let gap_ok = st
                     .last_works
                     .is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
                 if st.cond.iri >= tr.iri && gap_ok {
-                    done.len() == 1 && done[0].1 == tr.treatment
+                    done.len() == 1 && done[0].treatment == tr.treatment
                 } else {
                     done.is_empty()
                 }
@@ -781,7 +796,7 @@ impl SectionSim {
     /// Residual value of the last pavement works and of the last widening (each group's last
     /// year of works), FHWA-SA-98-079's remaining-service-life method, each part of a
     /// treatment (its share of the cost, its own life) valued on its own.
-    fn residual(&self, works: &[(u32, usize, f64)]) -> f64 {
+    fn residual(&self, works: &[Done]) -> f64 {
         let mut total = 0.0;
         self.residual_parts(works, |_, v| total += v);
         total
@@ -790,7 +805,7 @@ impl SectionSim {
     /// The residual value of a run ([`SectionSim::run`] credits it: its last works, by group)
     /// in two parts: of capital-category treatments and of routine-category ones (what the cost
     /// factors scale apart).
-    pub fn residual_split(&self, works: &[(u32, usize, f64)]) -> (f64, f64) {
+    pub fn residual_split(&self, works: &[Done]) -> (f64, f64) {
         let (mut capital, mut routine) = (0.0, 0.0);
         self.residual_parts(works, |is_capital, v| {
             if is_capital {
@@ -804,19 +819,18 @@ impl SectionSim {
 
     /// Each part of the residual value, in a fixed order: `part(whether its treatment is of the
     /// capital category, its value)`.
-    fn residual_parts(&self, works: &[(u32, usize, f64)], mut part: impl FnMut(bool, f64)) {
+    fn residual_parts(&self, works: &[Done], mut part: impl FnMut(bool, f64)) {
         for widen in [false, true] {
-            let group =
-                |w: &&(u32, usize, f64)| (self.treatments[w.1].action == Action::Widen) == widen;
-            let Some(last) = works.iter().filter(group).map(|w| w.0).max() else {
+            let group = |w: &&Done| (self.treatments[w.treatment].action == Action::Widen) == widen;
+            let Some(last) = works.iter().filter(group).map(|w| w.year).max() else {
                 continue;
             };
-            for w in works.iter().filter(group).filter(|w| w.0 == last) {
-                let tr = &self.treatments[w.1];
+            for w in works.iter().filter(group).filter(|w| w.year == last) {
+                let tr = &self.treatments[w.treatment];
                 for &(share, life) in &tr.parts {
                     part(
                         tr.capital,
-                        costs::residual_value(w.2 * share, w.0, life, self.years as u32),
+                        costs::residual_value(w.cost * share, w.year.0, life, self.years as u32),
                     );
                 }
             }

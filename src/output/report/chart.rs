@@ -153,7 +153,7 @@ impl Units {
                 (k - k.round()).abs() < 1e-6 * k.abs().max(1.0)
             })
             .unwrap_or(self.decimals + 2);
-        let t = crate::money::grouped(x, decimals);
+        let t = crate::model::money::grouped(x, decimals);
         if self.percent {
             format!("{t}%")
         } else {

@@ -2,7 +2,7 @@
 //! `risk_draws.csv` when they are in the plan's directory.
 
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
-use crate::money::grouped;
+use crate::model::money::grouped;
 use crate::output::schema::analysis::{Risk, RiskDraw, Sensitivity};
 use crate::output::schema::value::{Cents, Fixed};
 use std::fmt::Write as _;

@@ -12,7 +12,7 @@ pub mod chart;
 mod extra;
 
 use crate::error::Result;
-use crate::money::grouped;
+use crate::model::money::grouped;
 use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
 use crate::output::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMARY};
 use crate::output::schema::summary::Summary;
@@ -262,7 +262,7 @@ fn condition_section(rows: &[Condition]) -> String {
             r.poor_share.to_f64(),
         ];
         by_case.entry(r.case.as_str()).or_default().push((
-            f64::from(r.year),
+            f64::from(r.year.0),
             r.mean_iri.to_f64(),
             sh,
         ));
@@ -344,7 +344,7 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
     let mut groups: Vec<(&str, &str, &str, Vec<Line<'_>>)> = Vec::new();
     for r in rows {
         let entry = (
-            f64::from(r.year),
+            f64::from(r.year.0),
             r.limit.to_f64(),
             r.used.to_f64(),
             r.price.0,
@@ -456,7 +456,7 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
         let id = r.section_id.as_str();
         let w = W {
             strategy: &r.strategy,
-            year: f64::from(r.year),
+            year: f64::from(r.year.0),
             npv: r.npv.to_f64(),
             fyrr: r.fyrr.map(|f| f.to_f64()),
             by_fyrr: r.by_fyrr,
@@ -744,7 +744,7 @@ fn programme_section(rows: &[Work], sm: &Summary) -> String {
     let m = &sm.money;
     let mut years: BTreeMap<i64, (f64, usize)> = BTreeMap::new();
     for r in rows {
-        let e = years.entry(i64::from(r.year)).or_default();
+        let e = years.entry(i64::from(r.year.0)).or_default();
         e.0 += r.cost.to_f64();
         e.1 += 1;
     }
@@ -767,7 +767,7 @@ fn programme_section(rows: &[Work], sm: &Summary) -> String {
     }
     let mut current = None;
     for r in rows.iter().take(PROGRAMME_ROWS) {
-        let y = i64::from(r.year);
+        let y = i64::from(r.year.0);
         if current != Some(y) {
             if current.is_some() {
                 s.push_str("</tbody></table>");
@@ -812,7 +812,7 @@ fn assumptions_section(sm: &Summary) -> String {
             esc(&a.discounting)
         ),
     );
-    let (y0, years) = (f64::from(a.base_year), f64::from(a.analysis_years));
+    let (y0, years) = (f64::from(a.base_year.0), f64::from(a.analysis_years));
     row(
         "Analysis period",
         format!(

@@ -6,6 +6,7 @@
 
 use super::value::{Cents, Dec, Fixed, Price, Real};
 use super::{record, FileSpec, Record};
+use crate::model::Year;
 
 /// Who writes these files, for messages.
 pub const MAKER: &str = "pavestrat plan";
@@ -13,7 +14,7 @@ pub const MAKER: &str = "pavestrat plan";
 record! {
     /// `work_programme.csv`: every treatment of the plan, by year.
     Work in "work_programme.csv" by "pavestrat plan" {
-        year: i32 = "year",
+        year: Year = "year",
         section_id: String = "section_id",
         treatment: String = "treatment",
         cost: Cents = "cost",
@@ -42,7 +43,7 @@ record! {
     /// exact decimals, and its budget price (value per unit of money added to the line).
     BudgetUse in "budget_use.csv" by "pavestrat plan" {
         line: String = "line",
-        year: i32 = "year",
+        year: Year = "year",
         limit: Dec = "limit",
         used: Dec = "used",
         price: Price = "price",
@@ -58,7 +59,7 @@ record! {
     /// row is Σ use ≤ at_most × length_km).
     TargetUse in "target_use.csv" by "pavestrat plan" {
         line: String = "line",
-        year: i32 = "year",
+        year: Year = "year",
         measure: String = "measure",
         at_most: Real = "at_most",
         achieved: Fixed<6> = "achieved",
@@ -72,7 +73,7 @@ record! {
     /// `condition.csv`: the network's length-weighted condition each year under the plan, the
     /// base and the unconstrained choice.
     Condition in "condition.csv" by "pavestrat plan" {
-        year: i32 = "year",
+        year: Year = "year",
         case: String = "case",
         mean_iri: Fixed<6> = "mean_iri",
         good_share: Fixed<6> = "good_share",
@@ -87,7 +88,7 @@ record! {
     /// rules pick that year.
     Widening in "widening_plan.csv" by "pavestrat plan" {
         section_id: String = "section_id",
-        year: i32 = "year",
+        year: Year = "year",
         strategy: String = "strategy",
         npv: Cents = "npv",
         fyrr: Option<Fixed<6>> = "fyrr",

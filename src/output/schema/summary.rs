@@ -99,7 +99,7 @@ pub struct Unverified {
 #[serde(default)]
 pub struct Assumptions {
     pub analysis_years: u32,
-    pub base_year: i32,
+    pub base_year: crate::model::Year,
     pub condition_classes_iri: Classes,
     pub default_family: String,
     #[serde(deserialize_with = "nan_if_null")]

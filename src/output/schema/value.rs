@@ -2,7 +2,7 @@
 //! writes it, and reads it back to the same value.
 //!
 //! Numbers with a fixed number of decimals are whole units ([`Fixed`], [`Cents`]), made from a
-//! float by the tool's one rounding rule ([`crate::money::units_half_even`]); a float wanted
+//! float by the tool's one rounding rule ([`crate::model::money::units_half_even`]); a float wanted
 //! in full is written in its shortest exact form ([`Real`], [`Price`]), which reads back to the
 //! same bits. [`Value::to_f64`]-style conversions give the float that parsing the written text
 //! gives, so a chart drawn from a row in memory is the chart drawn from the file.
@@ -56,6 +56,17 @@ impl Value for i32 {
     }
     fn parse(text: &str) -> Option<Self> {
         text.trim().parse().ok()
+    }
+}
+
+/// A calendar year.
+impl Value for crate::model::Year {
+    const EXPECTED: &'static str = "a year";
+    fn write(&self, out: &mut String) {
+        self.0.write(out);
+    }
+    fn parse(text: &str) -> Option<Self> {
+        i32::parse(text).map(crate::model::Year)
     }
 }
 
@@ -138,7 +149,7 @@ impl<const P: u32> Fixed<P> {
     /// `x` rounded to `P` decimals by the tool's one rule; `None` (an empty cell when written
     /// as an option) when it is not finite or out of range.
     pub fn of_f64(x: f64) -> Option<Fixed<P>> {
-        crate::money::units_half_even(x, P).map(Fixed)
+        crate::model::money::units_half_even(x, P).map(Fixed)
     }
 
     /// [`Fixed::of_f64`] for a value known to be finite and in range (zero otherwise).
