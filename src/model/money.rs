@@ -154,6 +154,21 @@ pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
     if !x.is_finite() || places > 18 {
         return None;
     }
+    // The product x·10^places is within half an ulp of the exact one; unless it lies within an
+    // ulp of a midpoint, rounding it rounds the exact value the same way (the common case, and
+    // far cheaper than the exact path below).
+    let y = x * 10f64.powi(places as i32);
+    if y.abs() < 4.0e15 {
+        let r = y.round();
+        let margin = (0.5 - (y - r).abs()).abs();
+        if margin > y.abs() * f64::EPSILON * 2.0 + f64::MIN_POSITIVE {
+            // |y − r| is below 1/2 by more than the product's error: `r` is the nearest
+            // integer to the exact value, and not a tie.
+            if (y - r).abs() < 0.5 {
+                return Some(r as i128);
+            }
+        }
+    }
     let bits = x.to_bits();
     let negative = bits >> 63 == 1;
     let exp = ((bits >> 52) & 0x7ff) as i32;

@@ -452,7 +452,8 @@ impl SectionSim {
     /// the bit as a run from the base year.
     pub fn run(&self, strategy: &Strategy, out: &mut Trace) {
         let n = self.years;
-        let Some(mut c) = self.begin(strategy, out) else {
+        let from = self.replay_from(strategy, out);
+        let Some(mut c) = self.begin(strategy, out, from) else {
             return;
         };
         for y in c.from..n {
@@ -466,8 +467,23 @@ impl SectionSim {
     /// roots and divisions that keeps one run waiting on itself; two runs side by side give the
     /// processor two independent chains to work on.
     pub fn run_pair(&self, a: &Strategy, ta: &mut Trace, b: &Strategy, tb: &mut Trace) {
+        let (fa, fb) = (self.replay_from(a, ta), self.replay_from(b, tb));
+        self.run_pair_from(a, ta, fa, b, tb, fb);
+    }
+
+    /// [`SectionSim::run_pair`] with each trace's first year to play known
+    /// ([`SectionSim::replay_from`]).
+    fn run_pair_from(
+        &self,
+        a: &Strategy,
+        ta: &mut Trace,
+        from_a: usize,
+        b: &Strategy,
+        tb: &mut Trace,
+        from_b: usize,
+    ) {
         let n = self.years;
-        match (self.begin(a, ta), self.begin(b, tb)) {
+        match (self.begin(a, ta, from_a), self.begin(b, tb, from_b)) {
             (None, None) => {}
             (Some(mut c), None) => {
                 for y in c.from..n {
@@ -528,14 +544,14 @@ impl SectionSim {
                 Some(j) => {
                     let (si, sj) = (&strategies[i], &strategies[j]);
                     // Each to the trace it shares more years with (fewer years played).
-                    let kept = self.replay_from(si, ta) + self.replay_from(sj, tb);
-                    let swapped = self.replay_from(si, tb) + self.replay_from(sj, ta);
-                    if swapped > kept {
-                        self.run_pair(si, tb, sj, ta);
+                    let kept = (self.replay_from(si, ta), self.replay_from(sj, tb));
+                    let swapped = (self.replay_from(si, tb), self.replay_from(sj, ta));
+                    if swapped.0 + swapped.1 > kept.0 + kept.1 {
+                        self.run_pair_from(si, tb, swapped.0, sj, ta, swapped.1);
                         each(i, tb);
                         each(j, ta);
                     } else {
-                        self.run_pair(si, ta, sj, tb);
+                        self.run_pair_from(si, ta, kept.0, sj, tb, kept.1);
                         each(i, ta);
                         each(j, tb);
                     }
@@ -578,9 +594,8 @@ impl SectionSim {
     /// Make `out` ready to play `strategy`: the year to start from and the state there, or
     /// `None` when `out` already is this strategy's run.
     #[inline]
-    fn begin(&self, strategy: &Strategy, out: &mut Trace) -> Option<Cursor> {
+    fn begin(&self, strategy: &Strategy, out: &mut Trace, from: usize) -> Option<Cursor> {
         let n = self.years;
-        let from = self.replay_from(strategy, out);
         if from == n {
             // The same works every year: the trace already is this strategy's.
             return None;
