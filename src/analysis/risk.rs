@@ -791,6 +791,17 @@ impl Slice {
 mod tests {
     use super::*;
 
+    proptest::proptest! {
+        /// The raw slice's reader on arbitrary bytes: never a panic.
+        #[test]
+        fn a_slice_of_arbitrary_bytes_is_refused_not_a_panic(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..3000)) {
+            let dir = tempfile::tempdir().unwrap();
+            let path = dir.path().join(crate::output::schema::analysis::RISK_SLICE);
+            std::fs::write(&path, &bytes).unwrap();
+            let _ = Slice::read(&path);
+        }
+    }
+
     /// Draws of inputs that only scale money, weighed from split money, give what simulating
     /// every draw gives: every strategy's NPV, the plan's NPV and each line's spending (to
     /// rounding: 1e-9 of the amount, or a cent of spending rounded apart).

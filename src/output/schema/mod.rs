@@ -259,7 +259,7 @@ mod tests {
 
     proptest::proptest! {
         /// Every reader of the tool's own files on arbitrary bytes (each file of a plan's
-        /// directory, the summary, the manifest, a risk slice): never a panic.
+        /// directory, the summary, the manifest): never a panic.
         #[test]
         fn own_files_survive_arbitrary_bytes(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..3000)) {
             use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
@@ -268,7 +268,7 @@ mod tests {
             let d = dir.path();
             for name in crate::output::report::FILES_READ
                 .iter()
-                .chain(&[CANDIDATES, SectionPlan::FILE.name, Limit::FILE.name, "manifest.json", "risk_slice.bin"])
+                .chain(&[CANDIDATES, SectionPlan::FILE.name, Limit::FILE.name, "manifest.json"])
             {
                 std::fs::write(d.join(name), &bytes).unwrap();
             }
@@ -281,7 +281,6 @@ mod tests {
             let _ = read_candidates(d, |_| true);
             let _ = summary::Summary::parse("summary.json", &String::from_utf8_lossy(&bytes));
             let _ = crate::output::report::Inputs::read(d);
-            let _ = crate::analysis::risk::Slice::read(&d.join("risk_slice.bin"));
             let _ = crate::io::verify(d);
         }
     }
