@@ -2,6 +2,7 @@
 //! ([`format`](mod@format)), the tool's own CSVs read back with their places ([`readback`]), the workbook
 //! ([`xlsx`]) and the HTML report ([`report`]).
 
+pub mod appraisal;
 pub mod files;
 pub mod format;
 pub mod readback;
