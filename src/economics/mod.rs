@@ -15,6 +15,7 @@
 //! - FYRR = the first full year's net benefit ÷ the capital cost, both undiscounted (common
 //!   practice; definition from memory).
 
+pub mod alternatives;
 pub mod budget;
 pub mod incremental;
 pub mod irr;

@@ -37,7 +37,7 @@ pub struct Facts {
     pub every_widening_year: bool,
 }
 
-/// What [`write`] writes and keeps besides the files every plan writes.
+/// What [`write()`] writes and keeps besides the files every plan writes.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct Keep {
     /// Keep what a report draws (the work programme, the widening table) as typed rows.

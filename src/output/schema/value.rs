@@ -4,7 +4,7 @@
 //! Numbers with a fixed number of decimals are whole units ([`Fixed`], [`Cents`]), made from a
 //! float by the tool's one rounding rule ([`crate::model::money::units_half_even`]); a float wanted
 //! in full is written in its shortest exact form ([`Real`], [`Price`]), which reads back to the
-//! same bits. [`Value::to_f64`]-style conversions give the float that parsing the written text
+//! same bits. Their `to_f64` conversions give the float that parsing the written text
 //! gives, so a chart drawn from a row in memory is the chart drawn from the file.
 
 use rust_decimal::Decimal;
