@@ -11,7 +11,9 @@
 //! is exact and "within the limit" means exactly what the files say.
 
 use crate::diag::{Diagnostics, Place};
-use crate::select::problem::MAX_ROW_TOTAL;
+use crate::error::Error;
+use crate::select::network::Infeasible;
+use crate::select::problem::{Offer, Problem, ProblemError, MAX_ROW_TOTAL};
 use rust_decimal::Decimal;
 use std::collections::HashMap;
 
@@ -361,4 +363,141 @@ pub fn to_units(x: Decimal, decimals: u32) -> Option<i64> {
     }
     let v = m.mantissa();
     (v.unsigned_abs() <= MAX_ROW_TOTAL as u128).then_some(v as i64)
+}
+// ---- The file as a selection problem -------------------------------------------------------
+
+/// The candidates as a selection problem.
+pub struct Built {
+    pub problem: Problem,
+    /// Per section: the file's candidate index of each kept position.
+    pub kept: Vec<Vec<usize>>,
+    pub limits: Vec<Decimal>,
+    pub decimals: Vec<u32>,
+    /// -1 when minimising.
+    pub sign: f64,
+}
+
+/// The problem in exact integer rows; range problems are input errors naming the row.
+pub fn build(
+    file: &CandidateFile,
+    limits_label: &str,
+    limits: Vec<Decimal>,
+    sign: f64,
+    d: &mut Diagnostics,
+) -> Option<Built> {
+    let decimals = crate::input::candidates::row_decimals(file, &limits);
+    let mut units = Vec::with_capacity(limits.len());
+    for (j, l) in limits.iter().enumerate() {
+        match crate::input::candidates::to_units(*l, decimals[j]) {
+            Some(u) => units.push(u),
+            None => {
+                d.error(
+                    Place::file(limits_label).with_field(file.rows[j].clone()),
+                    format!("a limit of {l}, beyond the supported range at {} decimal places", decimals[j]),
+                    format!(
+                        "a limit whose magnitude, in units of the row's finest decimal place, is at most {}",
+                        crate::select::problem::MAX_ROW_TOTAL
+                    ),
+                );
+                return None;
+            }
+        }
+    }
+    let mut p = Problem::new(units);
+    let mut kept = Vec::with_capacity(file.sections.len());
+    for s in &file.sections {
+        let mut offers = Vec::with_capacity(s.candidates.len());
+        for c in &s.candidates {
+            let mut uses = Vec::with_capacity(c.uses.len());
+            for (j, x) in &c.uses {
+                let Some(u) = crate::input::candidates::to_units(*x, decimals[*j]) else {
+                    d.error(
+                        Place::line(&file.file, c.line).with_field(file.rows[*j].clone()),
+                        format!("{x}, beyond the supported range"),
+                        "a smaller amount",
+                    );
+                    return None;
+                };
+                uses.push((*j as u16, u));
+            }
+            offers.push(Offer {
+                value: sign * c.value,
+                uses,
+            });
+        }
+        match p.push_group(&offers) {
+            Ok(k) => kept.push(k),
+            Err(e) => {
+                let line = s.candidates.first().map_or(0, |c| c.line);
+                let (found, expected) = match e {
+                    ProblemError::TooLarge(j) => (
+                        format!(
+                            "`{}`: the candidates' uses together pass the supported range",
+                            file.rows[j]
+                        ),
+                        "smaller amounts, or fewer decimal places".to_owned(),
+                    ),
+                    ProblemError::TooMany(n) => (
+                        format!("section `{}` with {n} candidates", s.id),
+                        format!(
+                            "at most {} candidates per section",
+                            crate::select::problem::MAX_CANDIDATES
+                        ),
+                    ),
+                    other => (
+                        other.to_string(),
+                        "candidates the selection can hold".to_owned(),
+                    ),
+                };
+                d.error(
+                    Place::line(&file.file, line).with_field("section_id"),
+                    found,
+                    expected,
+                );
+                return None;
+            }
+        }
+    }
+    Some(Built {
+        problem: p,
+        kept,
+        limits,
+        decimals,
+        sign,
+    })
+}
+
+/// A row's amount in units, as an exact decimal.
+pub fn amount(units: i64, decimals: u32) -> Decimal {
+    Decimal::new(units, decimals)
+}
+
+pub fn infeasible(file: &CandidateFile, b: &Built, e: Infeasible) -> Error {
+    let describe = |rows: &[(usize, i64)], verb: &str| -> String {
+        rows.iter()
+            .map(|&(j, u)| {
+                format!(
+                    "{}: limit {}, {verb} {}",
+                    file.rows[j],
+                    b.limits[j],
+                    amount(u, b.decimals[j])
+                )
+            })
+            .collect::<Vec<_>>()
+            .join("\n  ")
+    };
+    Error::Infeasible(match e {
+        Infeasible::Rows(r) => format!(
+            "these rows cannot be met even with every section at its least use:\n  {}",
+            describe(&r, "least possible")
+        ),
+        Infeasible::Together(r) => format!(
+            "each row can be met on its own, but a complete search proved that no selection meets them all together; the closest found breaks:\n  {}",
+            describe(&r, "closest found")
+        ),
+        Infeasible::NotFound(r) => format!(
+            "no selection that meets every row was found within the time limit (not proven impossible; a longer --time-limit may find one); the closest found breaks:\n  {}",
+            describe(&r, "closest found")
+        ),
+    })
 }

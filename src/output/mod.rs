@@ -9,5 +9,6 @@ pub mod format;
 pub mod readback;
 pub mod report;
 pub mod schema;
+pub mod selection;
 pub mod terminal;
 pub mod xlsx;
