@@ -3,6 +3,7 @@
 //! ([`xlsx`]) and the HTML report ([`report`]).
 
 pub mod appraisal;
+pub mod calibration;
 pub mod cashflow;
 pub mod files;
 pub mod format;

@@ -184,6 +184,9 @@ pub mod calibrate {
 
     /// The fitted coefficients, to paste into a scenario.
     pub const TOML: &str = "calibration.toml";
+
+    /// Observed against predicted rises, as a page.
+    pub const PAGE: &str = "calibration.html";
 }
 
 /// What `init` writes: a scenario to edit.
