@@ -7,11 +7,9 @@
 use super::plan::parse_seconds;
 use super::sensitivity::held;
 use super::{load_scenario, Context, OutArg};
-use pavestrat::analysis::risk::{merge, precision, simulate, stats, Sampling, Slice};
+use pavestrat::analysis::risk::{merge, simulate, Sampling, Slice};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::model::money::grouped;
-use std::fmt::Write as _;
 use std::path::PathBuf;
 
 /// Arguments of `risk`.
@@ -149,78 +147,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
     }
     if args.out.out.is_none() || !ctx.quiet {
-        print_stdout(&render(&slice))?;
+        print_stdout(&pavestrat::output::terminal::risk(&slice))?;
     }
     Ok(())
-}
-
-fn render(s: &Slice) -> String {
-    let l = &s.layout;
-    let m = &l.money;
-    let net = s.network();
-    let st = stats(&net);
-    let se = precision(&net, s.first);
-    let mut out = format!(
-        "Risk of the network plan — draws {} to {} (seed {}, {} sampling), uncertain inputs: {}\n\n",
-        s.first,
-        s.first + s.draws - 1,
-        s.seed,
-        s.sampling.name(),
-        l.inputs.join(", ")
-    );
-    let _ = writeln!(
-        out,
-        "plan NPV ({m}): mean {}, P10 {}, P50 {}, P90 {}; NPV above zero in {:.1} % of draws",
-        grouped(st.mean, 0),
-        grouped(st.p10, 0),
-        grouped(st.p50, 0),
-        grouped(st.p90, 0),
-        100.0 * net.iter().filter(|x| **x > 0.0).count() as f64 / net.len().max(1) as f64
-    );
-    if se.p50.is_finite() {
-        let _ = writeln!(
-            out,
-            "precision (standard error, from the spread over {} replicate groups of the draws): mean ±{}, P10 ±{}, P50 ±{}, P90 ±{}",
-            pavestrat::analysis::risk::REPLICATES,
-            grouped(se.mean, 0),
-            grouped(se.p10, 0),
-            grouped(se.p50, 0),
-            grouped(se.p90, 0)
-        );
-    } else {
-        let _ = writeln!(
-            out,
-            "precision: too few draws to estimate it (at least {} needed)",
-            2 * pavestrat::analysis::risk::REPLICATES
-        );
-    }
-    let n: usize = l.strategies.iter().map(Vec::len).sum();
-    let w = l.width();
-    let mut over: Vec<(f64, &str)> = l
-        .lines
-        .iter()
-        .enumerate()
-        .map(|(j, name)| {
-            let c = (0..s.draws as usize)
-                .filter(|k| s.values[k * w + n + 1 + j] > l.limits[j] + 0.005)
-                .count();
-            (c as f64 / s.draws.max(1) as f64, name.as_str())
-        })
-        .filter(|x| x.0 > 0.0)
-        .collect();
-    over.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(b.1)));
-    if over.is_empty() {
-        let _ = writeln!(out, "the plan stays within every budget line in every draw");
-    } else {
-        let _ = writeln!(out, "budget lines the plan overspends in some draws:");
-        for (p, name) in over.iter().take(10) {
-            let _ = writeln!(out, "  {name:<24} {:.1} % of draws", p * 100.0);
-        }
-    }
-    let _ = writeln!(
-        out,
-        "\nPer section and strategy (mean, P10/P50/P90 of NPV, chance NPV > 0, chance of being best) in risk.csv (--out DIR).\n\n{}",
-        pavestrat::CAUTION
-    );
-    out
 }

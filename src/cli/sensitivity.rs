@@ -6,13 +6,11 @@
 use super::plan::parse_seconds;
 use super::{load_scenario, parse_rate, Context, OutArg};
 use pavestrat::analysis::held::HeldPlan;
-use pavestrat::analysis::sensitivity::{analyse, rows as sensitivity_rows, Tests, INPUTS};
+use pavestrat::analysis::sensitivity::{analyse, rows as sensitivity_rows, Tests};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::model::money::grouped;
 use pavestrat::plan::Settings;
 use pavestrat::select::network::{Method, Options};
-use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::time::Duration;
 
@@ -121,68 +119,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
     }
     if args.out.out.is_none() || !ctx.quiet {
-        let m = &run.scenario.money_label;
-        let net: Vec<_> = rows.iter().filter(|r| r.section.is_none()).collect();
-        let n0 = net[0].npv.unwrap_or(0.0);
-        let mut s = format!(
-            "Sensitivity of the network plan's NPV ({} {m} at the scenario's values)\n\n{:<16} {:>12} {:>20} {:>12} {:>20}\n",
-            grouped(n0, 0),
-            "input",
-            "low",
-            "NPV",
-            "high",
-            "NPV"
-        );
-        for (i, (_, label)) in INPUTS.iter().enumerate() {
-            let get = |t: &str| net.iter().find(|r| r.input == Some(i) && r.test == t);
-            if let (Some(lo), Some(hi)) = (get("low"), get("high")) {
-                let _ = writeln!(
-                    s,
-                    "{label:<16} {:>12} {:>20} {:>12} {:>20}",
-                    show(i, lo.value),
-                    grouped(lo.npv.unwrap_or(f64::NAN), 0),
-                    show(i, hi.value),
-                    grouped(hi.npv.unwrap_or(f64::NAN), 0)
-                );
-            }
-        }
-        let _ = writeln!(s, "\nSwitching values (the plan's NPV reaches zero):");
-        for (i, (_, label)) in INPUTS.iter().enumerate() {
-            for r in net
-                .iter()
-                .filter(|r| r.input == Some(i) && r.test == "npv-zero")
-            {
-                let _ = writeln!(
-                    s,
-                    "  {label:<16} {:<5} {}",
-                    r.direction,
-                    match r.value {
-                        Some(v) => show(i, Some(v)),
-                        None => "none within the search range".to_owned(),
-                    }
-                );
-            }
-        }
-        let sections = rows
-            .iter()
-            .filter(|r| r.section.is_some() && r.test == "best-changes" && r.value.is_some())
-            .count();
-        let _ = writeln!(
-            s,
-            "\n{sections} section switching values where another strategy becomes best; every section's tests and switching values are in sensitivity.csv (--out DIR).\n\n{}",
-            pavestrat::CAUTION
-        );
-        print_stdout(&s)?;
+        print_stdout(&pavestrat::output::terminal::sensitivity(&run, &rows))?;
     }
     Ok(())
-}
-
-/// An input's value as people say it: factors as %, growth in points, rates as %.
-fn show(i: usize, v: Option<f64>) -> String {
-    let Some(v) = v else { return "—".into() };
-    match i {
-        0 | 1 => format!("{:+.1} %", (v - 1.0) * 100.0),
-        2 => format!("{:+.2} pt", v * 100.0),
-        _ => format!("{:.2} %", v * 100.0),
-    }
 }

@@ -2,6 +2,8 @@
 //! base, spending against every budget line with its price, the condition targets, and the
 //! certificate with what its status means.
 
+use crate::analysis::risk::{precision, stats, Slice};
+use crate::analysis::sensitivity::INPUTS;
 use crate::input::plan::Objective;
 use crate::input::Run;
 use crate::model::money::grouped;
@@ -136,4 +138,144 @@ pub fn plan(run: &Run, p: &Plan, f: &Facts) -> String {
     );
     let _ = writeln!(s, "\n{}", crate::CAUTION);
     s
+}
+
+/// The terminal summary of a risk slice: the plan's NPV over the draws with the precision of its
+/// statistics, and the budget lines the plan overspends in some draws.
+pub fn risk(s: &Slice) -> String {
+    let l = &s.layout;
+    let m = &l.money;
+    let net = s.network();
+    let st = stats(&net);
+    let se = precision(&net, s.first);
+    let mut out = format!(
+        "Risk of the network plan — draws {} to {} (seed {}, {} sampling), uncertain inputs: {}\n\n",
+        s.first,
+        s.first + s.draws - 1,
+        s.seed,
+        s.sampling.name(),
+        l.inputs.join(", ")
+    );
+    let _ = writeln!(
+        out,
+        "plan NPV ({m}): mean {}, P10 {}, P50 {}, P90 {}; NPV above zero in {:.1} % of draws",
+        grouped(st.mean, 0),
+        grouped(st.p10, 0),
+        grouped(st.p50, 0),
+        grouped(st.p90, 0),
+        100.0 * net.iter().filter(|x| **x > 0.0).count() as f64 / net.len().max(1) as f64
+    );
+    if se.p50.is_finite() {
+        let _ = writeln!(
+            out,
+            "precision (standard error, from the spread over {} replicate groups of the draws): mean ±{}, P10 ±{}, P50 ±{}, P90 ±{}",
+            crate::analysis::risk::REPLICATES,
+            grouped(se.mean, 0),
+            grouped(se.p10, 0),
+            grouped(se.p50, 0),
+            grouped(se.p90, 0)
+        );
+    } else {
+        let _ = writeln!(
+            out,
+            "precision: too few draws to estimate it (at least {} needed)",
+            2 * crate::analysis::risk::REPLICATES
+        );
+    }
+    let n: usize = l.strategies.iter().map(Vec::len).sum();
+    let w = l.width();
+    let mut over: Vec<(f64, &str)> = l
+        .lines
+        .iter()
+        .enumerate()
+        .map(|(j, name)| {
+            let c = (0..s.draws as usize)
+                .filter(|k| s.values[k * w + n + 1 + j] > l.limits[j] + 0.005)
+                .count();
+            (c as f64 / s.draws.max(1) as f64, name.as_str())
+        })
+        .filter(|x| x.0 > 0.0)
+        .collect();
+    over.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(b.1)));
+    if over.is_empty() {
+        let _ = writeln!(out, "the plan stays within every budget line in every draw");
+    } else {
+        let _ = writeln!(out, "budget lines the plan overspends in some draws:");
+        for (p, name) in over.iter().take(10) {
+            let _ = writeln!(out, "  {name:<24} {:.1} % of draws", p * 100.0);
+        }
+    }
+    let _ = writeln!(
+        out,
+        "\nPer section and strategy (mean, P10/P50/P90 of NPV, chance NPV > 0, chance of being best) in risk.csv (--out DIR).\n\n{}",
+        crate::CAUTION
+    );
+    out
+}
+
+/// The terminal summary of the sensitivity tests: the network plan's NPV at each input's low and
+/// high value, where it reaches zero, and how many sections' best strategies switch.
+pub fn sensitivity(run: &Run, rows: &[crate::analysis::sensitivity::Row]) -> String {
+    let m = &run.scenario.money_label;
+    let net: Vec<_> = rows.iter().filter(|r| r.section.is_none()).collect();
+    let n0 = net[0].npv.unwrap_or(0.0);
+    let mut s = format!(
+        "Sensitivity of the network plan's NPV ({} {m} at the scenario's values)\n\n{:<16} {:>12} {:>20} {:>12} {:>20}\n",
+        grouped(n0, 0),
+        "input",
+        "low",
+        "NPV",
+        "high",
+        "NPV"
+    );
+    for (i, (_, label)) in INPUTS.iter().enumerate() {
+        let get = |t: &str| net.iter().find(|r| r.input == Some(i) && r.test == t);
+        if let (Some(lo), Some(hi)) = (get("low"), get("high")) {
+            let _ = writeln!(
+                s,
+                "{label:<16} {:>12} {:>20} {:>12} {:>20}",
+                show(i, lo.value),
+                grouped(lo.npv.unwrap_or(f64::NAN), 0),
+                show(i, hi.value),
+                grouped(hi.npv.unwrap_or(f64::NAN), 0)
+            );
+        }
+    }
+    let _ = writeln!(s, "\nSwitching values (the plan's NPV reaches zero):");
+    for (i, (_, label)) in INPUTS.iter().enumerate() {
+        for r in net
+            .iter()
+            .filter(|r| r.input == Some(i) && r.test == "npv-zero")
+        {
+            let _ = writeln!(
+                s,
+                "  {label:<16} {:<5} {}",
+                r.direction,
+                match r.value {
+                    Some(v) => show(i, Some(v)),
+                    None => "none within the search range".to_owned(),
+                }
+            );
+        }
+    }
+    let sections = rows
+        .iter()
+        .filter(|r| r.section.is_some() && r.test == "best-changes" && r.value.is_some())
+        .count();
+    let _ = writeln!(
+        s,
+        "\n{sections} section switching values where another strategy becomes best; every section's tests and switching values are in sensitivity.csv (--out DIR).\n\n{}",
+        crate::CAUTION
+    );
+    s
+}
+
+/// An input's value as people say it: factors as %, growth in points, rates as %.
+fn show(i: usize, v: Option<f64>) -> String {
+    let Some(v) = v else { return "—".into() };
+    match i {
+        0 | 1 => format!("{:+.1} %", (v - 1.0) * 100.0),
+        2 => format!("{:+.2} pt", v * 100.0),
+        _ => format!("{:.2} %", v * 100.0),
+    }
 }
