@@ -69,6 +69,8 @@ pub struct Discounting {
     rate: f64,
     base_year: Year,
     timing: Timing,
+    /// [`Discounting::factor`] of the base year, taken once: most streams start there.
+    at_base: f64,
 }
 
 /// Why a discount rate cannot be used.
@@ -89,11 +91,14 @@ impl Discounting {
         if rate <= -1.0 {
             return Err(RateError::TooLow(rate));
         }
-        Ok(Discounting {
+        let mut d = Discounting {
             rate,
             base_year,
             timing,
-        })
+            at_base: 1.0,
+        };
+        d.at_base = d.factor(base_year);
+        Ok(d)
     }
 
     pub fn rate(&self) -> f64 {
@@ -149,7 +154,11 @@ impl Discounting {
     pub fn pv_of(&self, first_year: Year, values: impl IntoIterator<Item = f64>) -> f64 {
         // Factors by repeated division keep the sum cheap; one powf for the first year.
         let step = 1.0 / (1.0 + self.rate);
-        let mut f = self.factor(first_year);
+        let mut f = if first_year == self.base_year {
+            self.at_base
+        } else {
+            self.factor(first_year)
+        };
         let mut sum = 0.0;
         for v in values {
             sum += v * f;
