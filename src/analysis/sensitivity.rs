@@ -141,6 +141,104 @@ fn npvs(
     npvs
 }
 
+/// One section under one variation, its strategies simulated only as far as asked: the NPV of
+/// one of them, or whether any strategy would be chosen over a given one — stopping at the first
+/// that would. Every NPV is the number [`npvs`] gives (the same runs, replayed in another order,
+/// give the same bits), so a search driven by it takes the same path as one that simulates every
+/// strategy at every step; most steps of a search for the value at which the best strategy
+/// changes end at the first or second strategy tried.
+struct Probe<'a> {
+    sim: SectionSim,
+    strategies: &'a [Strategy],
+    traces: [Trace; 2],
+    base_flows: crate::simulate::Flows,
+    own: crate::simulate::Flows,
+    d: crate::economics::Discounting,
+    y0: crate::model::Year,
+    npv: Vec<Option<f64>>,
+}
+
+impl<'a> Probe<'a> {
+    fn new(v: &Varied, run: &Run, sec: &Section, strategies: &'a [Strategy]) -> Probe<'a> {
+        let s2 = v.section(sec);
+        let sim = SectionSim::new(&v.run, &s2);
+        let mut base = Trace::default();
+        sim.run(&strategies[0], &mut base);
+        let d = *v.discounting();
+        let base_flows = base.flows(&d);
+        let mut npv = vec![None; strategies.len()];
+        npv[0] = Some(0.0);
+        Probe {
+            sim,
+            strategies,
+            traces: [base.clone(), base],
+            base_flows,
+            own: Default::default(),
+            d,
+            y0: run.scenario.base_year,
+            npv,
+        }
+    }
+
+    /// The NPVs of `which` (not yet known), two at a time.
+    fn simulate(&mut self, which: &[usize]) {
+        let Probe {
+            sim,
+            strategies,
+            traces,
+            base_flows,
+            own,
+            d,
+            y0,
+            npv,
+        } = self;
+        sim.run_each_of(strategies, which.iter().copied(), traces, |k, t| {
+            t.flows_into(d, own);
+            npv[k] = Some(crate::evaluate::npv_against(d, *y0, own, base_flows));
+        });
+    }
+
+    /// Strategy `k`'s NPV against the base.
+    fn npv(&mut self, k: usize) -> f64 {
+        if self.npv[k].is_none() {
+            self.simulate(&[k]);
+        }
+        self.npv[k].unwrap_or(f64::NAN)
+    }
+
+    /// Whether the highest NPV (the first of equals, as [`argmax`] takes it) is another
+    /// strategy's than `best`'s: strategies are tried in `order` (every other one, likeliest
+    /// first), two at a time, until one would be chosen over `best`.
+    fn beaten(&mut self, best: usize, order: &[usize]) -> bool {
+        let nb = self.npv(best);
+        if nb.is_nan() {
+            // No comparison holds against NaN: decide as `argmax` of every NPV would.
+            let all: Vec<usize> = (0..self.strategies.len())
+                .filter(|&k| self.npv[k].is_none())
+                .collect();
+            self.simulate(&all);
+            let n: Vec<f64> = self.npv.iter().map(|x| x.unwrap_or(f64::NAN)).collect();
+            return argmax(&n) != best;
+        }
+        let wins = |k: usize, x: f64| x > nb || (k < best && x >= nb);
+        for pair in order.chunks(2) {
+            let todo: Vec<usize> = pair
+                .iter()
+                .copied()
+                .filter(|&k| self.npv[k].is_none())
+                .collect();
+            self.simulate(&todo);
+            if pair
+                .iter()
+                .any(|&k| wins(k, self.npv[k].unwrap_or(f64::NAN)))
+            {
+                return true;
+            }
+        }
+        false
+    }
+}
+
 /// Whether input `i` ([`INPUTS`] order) only scales money or discounts it (everything but
 /// growth): its NPVs come from a [`Linear`] with no new simulation.
 fn is_linear(i: usize) -> bool {
@@ -275,6 +373,17 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     let lin = Linear::new(run, sec, strategies, &all);
     let at0 = lin.exact.clone();
     let best0 = argmax(&at0);
+    // Every other strategy, the best at the scenario's values first: the likeliest to take over.
+    let mut order: Vec<usize> = (0..strategies.len()).filter(|&k| k != best0).collect();
+    order.sort_by(|&a, &b| at0[b].total_cmp(&at0[a]).then(a.cmp(&b)));
+    // Whether the best strategy is another than `best0` with input `i` at `x`.
+    let changes_at = |i: usize, x: f64| -> bool {
+        if is_linear(i) {
+            argmax(&lin.npvs(run, i, x)) != best0
+        } else {
+            Probe::new(&value_of(run, i, x), run, sec, strategies).beaten(best0, &order)
+        }
+    };
     let eval = |i: usize, x: f64, only: Option<usize>| -> Vec<f64> {
         if is_linear(i) {
             lin.npvs(run, i, x)
@@ -326,12 +435,24 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
             let mut prev = c;
             let sign0 = at0[chosen] > 0.0;
             for &x in &grid {
-                let n = eval(i, x, None);
-                if zero.is_none() && chosen != 0 && (n[chosen] > 0.0) != sign0 {
+                let (n_chosen, changed) = if is_linear(i) {
+                    let n = lin.npvs(run, i, x);
+                    (n[chosen], change.is_none() && argmax(&n) != best0)
+                } else {
+                    // Only what is still looked for is simulated.
+                    let mut p = Probe::new(&value_of(run, i, x), run, sec, strategies);
+                    let n_chosen = if zero.is_none() && chosen != 0 {
+                        p.npv(chosen)
+                    } else {
+                        0.0
+                    };
+                    (n_chosen, change.is_none() && p.beaten(best0, &order))
+                };
+                if zero.is_none() && chosen != 0 && (n_chosen > 0.0) != sign0 {
                     zero = Some((prev, x));
                 }
-                if change.is_none() && argmax(&n) != best0 {
-                    change = Some((prev, x, argmax(&n)));
+                if changed {
+                    change = Some((prev, x, 0));
                 }
                 if (zero.is_some() || chosen == 0) && change.is_some() {
                     break;
@@ -364,7 +485,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
             }
             let (value, npv, other) = match change {
                 Some((a, b, _)) => {
-                    let x = bisect(a, b, tol, |m| argmax(&eval(i, m, None)) != best0);
+                    let x = bisect(a, b, tol, |m| changes_at(i, m));
                     let n = eval(i, x, None);
                     (Some(x), Some(n[best0]), strategies[argmax(&n)].name.clone())
                 }
