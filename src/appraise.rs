@@ -17,8 +17,8 @@
 use crate::economics::incremental::{analyse_with, Analysis};
 use crate::economics::{appraise, appraise_with, fyrr, Discounting, Indicators, Stream};
 use crate::enumerate::{Enumerator, Strategy, StrategyRef};
-use crate::input::network::Section;
 use crate::input::Run;
+use crate::model::network::Section;
 use crate::model::Year;
 use crate::simulate::{FlowStore, Flows, SectionSim, Trace};
 use rayon::prelude::*;

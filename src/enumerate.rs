@@ -9,9 +9,9 @@
 //! tags and calendar years, `strengthen@2029+widen@2034`, or `reseal@iri3.5` with a trigger;
 //! the strategy of routine maintenance only is always first and is named `base`.
 
-use crate::input::network::{Carriageway, Section};
 use crate::input::templates::{StepTiming, Template};
-use crate::input::treatments::{Action, Catalogue};
+use crate::model::catalogue::{Action, Catalogue};
+use crate::model::network::{Carriageway, Section};
 use crate::model::{Year, YearOffset};
 use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};

@@ -20,10 +20,10 @@
 //! of those two (and no network); growth is applied per section ([`Varied::section`]).
 
 use crate::economics::Discounting;
-use crate::input::network::Section;
 use crate::input::varied::{slot, Slot};
 use crate::input::Run;
 use crate::model::money::Money;
+use crate::model::network::Section;
 use rust_decimal::Decimal;
 
 pub use crate::input::varied::{input, input_names, Input, RUN_INPUTS};
@@ -73,7 +73,7 @@ pub fn apply(run: &Run, values: &[(&str, f64)]) -> Varied {
     let mut v = Varied {
         run: Run {
             scenario: run.scenario.clone(),
-            network: crate::input::network::Network {
+            network: crate::model::network::Network {
                 file: run.network.file.clone(),
                 ..Default::default()
             },
@@ -87,7 +87,7 @@ pub fn apply(run: &Run, values: &[(&str, f64)]) -> Varied {
         match name {
             "factor.capital_cost" => {
                 for t in &mut r.catalogue.treatments {
-                    if t.category != crate::input::scenario::Category::Routine {
+                    if t.category != crate::model::catalogue::Category::Routine {
                         t.cost = scaled(t.cost, x);
                     }
                 }
@@ -98,7 +98,7 @@ pub fn apply(run: &Run, values: &[(&str, f64)]) -> Varied {
                 rt.per_lane_km_per_iri = scaled(rt.per_lane_km_per_iri, x);
                 rt.holding_per_lane_km = scaled(rt.holding_per_lane_km, x);
                 for t in &mut r.catalogue.treatments {
-                    if t.category == crate::input::scenario::Category::Routine {
+                    if t.category == crate::model::catalogue::Category::Routine {
                         t.cost = scaled(t.cost, x);
                     }
                 }

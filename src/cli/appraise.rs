@@ -11,9 +11,9 @@ use super::{load_scenario, Context, OutArg};
 use pavestrat::appraise;
 use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
-use pavestrat::input::network::Section;
 use pavestrat::input::Run;
 use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::model::network::Section;
 use pavestrat::output::appraisal::{
     appraisal_rows, incremental_rows, widening_rows, yearly_rows, Summary,
 };

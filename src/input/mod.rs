@@ -21,12 +21,12 @@ pub mod uncertain;
 pub mod varied;
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::model::catalogue::Catalogue;
+use crate::model::network::Network;
 use crate::text::decode;
-use network::Network;
 use scenario::{FileRef, Scenario};
 use std::path::{Path, PathBuf};
 use templates::Template;
-use treatments::Catalogue;
 
 /// Where input files come from.
 pub trait Source {
@@ -259,7 +259,7 @@ fn check_template_treatments(
         if let Some(tr) = &t.trigger {
             if known(&tr.treatment, &tr.place, d) {
                 if let Some(tt) = cat.and_then(|c| c.get(&tr.treatment)) {
-                    if tt.action == treatments::Action::Widen {
+                    if tt.action == crate::model::catalogue::Action::Widen {
                         d.error(
                             tr.place.clone(),
                             format!("a roughness trigger on the widening `{}`", tr.treatment),

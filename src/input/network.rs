@@ -8,91 +8,11 @@
 //! type-guessed. All problems of all rows are reported, each with its line and column name.
 
 use crate::diag::{did_you_mean, Diagnostics, Place};
+use crate::model::network::{Carriageway, Network, Section};
 use crate::model::Year;
 use std::collections::HashMap;
 
 use crate::model::SectionId;
-
-/// Single carriageway (two-way, undivided) or divided (dual carriageway).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-pub enum Carriageway {
-    Single,
-    Divided,
-}
-
-impl Carriageway {
-    pub fn name(self) -> &'static str {
-        match self {
-            Carriageway::Single => "single",
-            Carriageway::Divided => "divided",
-        }
-    }
-
-    pub fn parse(s: &str) -> Option<Carriageway> {
-        match s {
-            "single" => Some(Carriageway::Single),
-            "divided" => Some(Carriageway::Divided),
-            _ => None,
-        }
-    }
-}
-
-/// One road section.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Section {
-    pub id: SectionId,
-    /// Line of the network file it was read from.
-    pub line: usize,
-    pub length_km: f64,
-    pub lanes: u8,
-    pub carriageway: Carriageway,
-    /// Roughness, m/km.
-    pub iri: f64,
-    /// AASHTO structural number of the pavement.
-    pub structural_number: f64,
-    /// Annual average daily traffic in the base year, vehicles/day (both directions).
-    pub aadt: f64,
-    /// Share of heavy vehicles in the AADT, 0–1.
-    pub heavy_share: f64,
-    /// Yearly compound traffic growth, as a fraction.
-    pub growth_rate: f64,
-    pub region: Option<String>,
-    pub lane_width_m: Option<f64>,
-    pub surface: Option<String>,
-    pub subgrade_mr_mpa: Option<f64>,
-    pub last_works_year: Option<Year>,
-    pub speed_kmh: Option<f64>,
-    /// The `x_` columns' values, in the order of [`Network::note_columns`].
-    pub notes: Vec<String>,
-}
-
-/// The resolved network.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct Network {
-    pub file: String,
-    pub sections: Vec<Section>,
-    /// Names of the user's `x_` columns.
-    pub note_columns: Vec<String>,
-}
-
-impl Network {
-    /// Total length, km (summed in file order).
-    pub fn length_km(&self) -> f64 {
-        self.sections.iter().map(|s| s.length_km).sum()
-    }
-
-    /// Distinct regions, sorted.
-    pub fn regions(&self) -> Vec<&str> {
-        let mut r: Vec<&str> = self
-            .sections
-            .iter()
-            .filter_map(|s| s.region.as_deref())
-            .collect();
-        r.sort_unstable();
-        r.dedup();
-        r
-    }
-}
 
 /// The required columns, in the documented order.
 pub const REQUIRED: [&str; 9] = [

@@ -33,6 +33,7 @@
 use super::tomldoc::{Doc, Table, Value};
 use crate::diag::{Diagnostics, Place};
 use crate::economics::{Discounting, Timing};
+use crate::model::catalogue::Category;
 use crate::model::money::Money;
 use crate::model::{Year, YearOffset};
 use std::path::{Path, PathBuf};
@@ -72,36 +73,6 @@ pub struct PerClass<T>(pub [T; 4]);
 impl<T: Copy> PerClass<T> {
     pub fn get(&self, c: VehicleClass) -> T {
         self.0[c as usize]
-    }
-}
-
-/// Which spending a budget line limits.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-pub enum Category {
-    /// Treatments: seals, overlays, reconstruction, widening.
-    Capital,
-    /// Routine maintenance.
-    Routine,
-    /// Both.
-    All,
-}
-
-impl Category {
-    pub fn name(self) -> &'static str {
-        match self {
-            Category::Capital => "capital",
-            Category::Routine => "routine",
-            Category::All => "all",
-        }
-    }
-
-    fn parse(s: &str) -> Option<Category> {
-        match s {
-            "capital" => Some(Category::Capital),
-            "routine" => Some(Category::Routine),
-            "all" => Some(Category::All),
-            _ => None,
-        }
     }
 }
 

@@ -23,7 +23,7 @@
 
 use super::tomldoc::{is_identifier, Doc, Table, Value};
 use crate::diag::{Diagnostics, Place};
-use crate::input::network::Carriageway;
+use crate::model::network::Carriageway;
 
 /// When a step happens.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -1,9 +1,12 @@
 //! The vocabulary every stage shares: calendar years and offsets ([`year`]), exact money
-//! ([`money`]) and identifiers ([`ids`]). Small types that carry their meaning, so that a
+//! ([`money`]), identifiers ([`ids`]), the road network ([`network`]) and the treatment catalogue
+//! ([`catalogue`]) as read and checked by [`crate::input`]. Small types that carry their meaning, so that a
 //! function's signature says which kind of year or amount it takes.
 
+pub mod catalogue;
 pub mod ids;
 pub mod money;
+pub mod network;
 pub mod year;
 
 pub use ids::SectionId;

@@ -4,9 +4,9 @@
 
 use crate::appraise::SectionResult;
 use crate::input::models::ConditionParams;
-use crate::input::network::Section;
 use crate::input::Run;
 use crate::model::money::grouped;
+use crate::model::network::Section;
 use crate::output::format::{irr_text, pct, Amount, Field, Fixed, Rates};
 use crate::simulate::condition::{classify, ConditionClass};
 use std::fmt::Write as _;

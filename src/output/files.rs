@@ -9,9 +9,10 @@
 use crate::appraise::timing_rules;
 use crate::enumerate::Enumerator;
 use crate::error::Result;
-use crate::input::scenario::{Category, VehicleClass};
+use crate::input::scenario::VehicleClass;
 use crate::input::Run;
 use crate::io::StreamSet;
+use crate::model::catalogue::Category;
 use crate::model::YearOffset;
 use crate::output::report::Inputs;
 use crate::output::schema::plan::{

@@ -3,8 +3,8 @@
 
 use crate::appraise;
 use crate::enumerate::{Enumerator, Strategy, Works};
-use crate::input::network::Section;
 use crate::input::Run;
+use crate::model::network::Section;
 use crate::simulate::{SectionSim, Trace};
 use proptest::prelude::*;
 use std::path::Path;

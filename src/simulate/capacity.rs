@@ -1,7 +1,7 @@
 //! Capacity, the volume-delay relation and free speed: how long a vehicle-km takes.
 
 use crate::input::models::{CapacityParams, SpeedParams};
-use crate::input::network::Carriageway;
+use crate::model::network::Carriageway;
 
 /// Capacity of a road in passenger cars per hour, both directions together.
 ///

@@ -3,7 +3,7 @@
 
 use crate::input::models::UserCostParams;
 use crate::input::scenario::VehicleClass;
-use crate::input::treatments::CostBasis;
+use crate::model::catalogue::CostBasis;
 
 /// Quantity a treatment's unit cost is multiplied by: km of section, lane-km, or m² of
 /// carriageway (length × lanes × lane width). The simulation passes a widening's added lanes,
@@ -37,7 +37,7 @@ pub struct Upkeep {
 }
 
 impl Upkeep {
-    pub fn new(r: &crate::input::treatments::Routine) -> Upkeep {
+    pub fn new(r: &crate::model::catalogue::Routine) -> Upkeep {
         Upkeep {
             per_lane_km: r.per_lane_km.to_f64(),
             per_lane_km_per_iri: r.per_lane_km_per_iri.to_f64(),

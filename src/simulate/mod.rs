@@ -29,11 +29,11 @@ mod behaviour;
 use crate::economics::Discounting;
 use crate::enumerate::Strategy;
 use crate::input::models::{CapacityParams, SpeedParams};
-use crate::input::network::{Carriageway, Section};
 use crate::input::scenario::{PerClass, VehicleClass};
-use crate::input::treatments::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::input::Run;
+use crate::model::catalogue::{Action, CostBasis, IriEffect, StructuralEffect};
 use crate::model::money::Money;
+use crate::model::network::{Carriageway, Section};
 use crate::model::YearOffset;
 use condition::{AgeFactors, Condition, SectionModel};
 
@@ -350,7 +350,7 @@ impl SectionSim {
             .map(|tr| Effect {
                 unit_cost: tr.cost.to_f64(),
                 cost_per: tr.cost_per,
-                capital: tr.category != crate::input::scenario::Category::Routine,
+                capital: tr.category != crate::model::catalogue::Category::Routine,
                 action: tr.action,
                 iri: tr.iri,
                 structure: tr.structure,

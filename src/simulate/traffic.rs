@@ -2,8 +2,8 @@
 //! classes' axle loads through load-equivalency factors.
 
 use crate::input::models::TrafficParams;
-use crate::input::network::Section;
 use crate::input::scenario::VehicleClass;
+use crate::model::network::Section;
 
 /// Load-equivalency factor of one axle: (load / standard)^exponent.
 ///
