@@ -44,6 +44,8 @@ pub fn plan_bytes(_run: &Run, _p: &Plan, _appraisal: &[SectionResult]) -> Result
 mod imp {
     use super::*;
     use crate::enumerate::Enumerator;
+    use crate::output::schema::plan::{BudgetUse, SectionPlan, Work};
+    use crate::output::schema::Record as _;
     use crate::plan::RowKind;
     use rust_xlsxwriter::{Format, Workbook, Worksheet, XlsxError};
 
@@ -150,14 +152,7 @@ mod imp {
         wb.set_zip_compression_level(3);
 
         let mut sh = sheet(&mut wb, "Work programme", &money)?;
-        sh.head(&[
-            "year",
-            "section_id",
-            "treatment",
-            "cost",
-            "region",
-            "category",
-        ])?;
+        sh.head(Work::FILE.columns)?;
         for w in &p.works {
             let t = &run.catalogue.treatments[w.treatment];
             let sec = &secs[w.section];
@@ -176,16 +171,7 @@ mod imp {
 
         let e = Enumerator::for_run(run);
         let mut sh = sheet(&mut wb, "Section plan", &money)?;
-        sh.head(&[
-            "section_id",
-            "region",
-            "strategy",
-            "npv",
-            "pv_agency_cost",
-            "unconstrained_strategy",
-            "unconstrained_npv",
-            "same",
-        ])?;
+        sh.head(SectionPlan::FILE.columns)?;
         for (g, sec) in secs.iter().enumerate() {
             let k = c.chosen(plan, g);
             let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
@@ -204,9 +190,8 @@ mod imp {
         }
 
         let mut sh = sheet(&mut wb, "Budget use", &money)?;
-        sh.head(&[
-            "line", "year", "limit", "used", "price", "category", "region", "slack",
-        ])?;
+        // budget_use.csv's columns but its budget group.
+        sh.head(&BudgetUse::FILE.columns[..8])?;
         for (j, row) in c.rows.iter().enumerate() {
             if let RowKind::Budget(b) = row.kind {
                 let line = &s.budget_lines[b];
