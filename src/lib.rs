@@ -50,6 +50,7 @@ pub mod output;
 pub mod plan;
 pub mod progress;
 pub mod resources;
+pub mod schema;
 pub mod select;
 pub mod simulate;
 pub mod stats;

@@ -15,10 +15,10 @@
 
 use crate::error::{Error, Result};
 use crate::input::Run;
-use crate::output::schema::analysis::FrontierLevel;
-use crate::output::schema::value::{Cents, Real, Sci6};
 use crate::plan::{solve_checked, Candidates, Row, RowKind};
 use crate::progress::Progress;
+use crate::schema::analysis::FrontierLevel;
+use crate::schema::value::{Cents, Real, Sci6};
 use crate::select::network::{relative_gap, Options, Status};
 
 /// Budget levels written when none are asked for.

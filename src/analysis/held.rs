@@ -5,9 +5,9 @@ use crate::diag::{Diagnostics, Place};
 use crate::enumerate::{Enumerator, Strategy};
 use crate::error::{Error, Result};
 use crate::input::Run;
-use crate::output::schema::plan::SectionPlan;
-use crate::output::schema::Record as _;
 use crate::plan::Settings;
+use crate::schema::plan::SectionPlan;
+use crate::schema::Record as _;
 use rayon::prelude::*;
 use std::collections::HashMap;
 use std::path::Path;
@@ -61,7 +61,7 @@ impl HeldPlan {
             .as_ref()
             .and_then(|m| m.plan_run().map(str::to_owned));
         let t = SectionPlan::FILE.read(dir)?;
-        let rows: Vec<(usize, SectionPlan)> = crate::output::schema::lines_of(&t)?;
+        let rows: Vec<(usize, SectionPlan)> = crate::schema::lines_of(&t)?;
         let strategies = Self::enumerate(run);
         let index: HashMap<&str, usize> = run
             .network

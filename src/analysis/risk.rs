@@ -688,9 +688,9 @@ impl Slice {
     /// true for the plan's), one `plan` row (the network plan's NPV) and `budget` rows (each
     /// line's spending by the plan); the standard errors are [`precision`]'s (empty below 16
     /// draws).
-    pub fn rows(&self) -> Vec<crate::output::schema::analysis::Risk> {
-        use crate::output::schema::analysis::Risk;
-        use crate::output::schema::value::{Cents, Fixed};
+    pub fn rows(&self) -> Vec<crate::schema::analysis::Risk> {
+        use crate::schema::analysis::Risk;
+        use crate::schema::value::{Cents, Fixed};
         let l = &self.layout;
         let w = l.width();
         let n = self.draws as usize;
@@ -769,8 +769,8 @@ impl Slice {
 
     /// `risk_draws.csv`: `draw,plan_npv` and one `spend:<line>` column per budget line.
     pub fn draws_csv(&self) -> String {
-        use crate::output::schema::analysis::RiskDraw;
-        use crate::output::schema::value::Cents;
+        use crate::schema::analysis::RiskDraw;
+        use crate::schema::value::Cents;
         let l = &self.layout;
         let w = l.width();
         let n: usize = l.strategies.iter().map(Vec::len).sum();
@@ -796,7 +796,7 @@ mod tests {
         #[test]
         fn a_slice_of_arbitrary_bytes_is_refused_not_a_panic(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..3000)) {
             let dir = tempfile::tempdir().unwrap();
-            let path = dir.path().join(crate::output::schema::analysis::RISK_SLICE);
+            let path = dir.path().join(crate::schema::analysis::RISK_SLICE);
             std::fs::write(&path, &bytes).unwrap();
             let _ = Slice::read(&path);
         }

@@ -637,10 +637,10 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
 }
 
 /// `sensitivity.csv`'s rows: the network plan's first, then each section's.
-pub fn rows(run: &Run, rows: &[Row]) -> Vec<crate::output::schema::analysis::Sensitivity> {
-    use crate::output::schema::value::{Cents, Real};
+pub fn rows(run: &Run, rows: &[Row]) -> Vec<crate::schema::analysis::Sensitivity> {
+    use crate::schema::value::{Cents, Real};
     rows.iter()
-        .map(|r| crate::output::schema::analysis::Sensitivity {
+        .map(|r| crate::schema::analysis::Sensitivity {
             scope: if r.section.is_some() {
                 "section"
             } else {

@@ -17,7 +17,7 @@ use pavestrat::model::network::Section;
 use pavestrat::output::appraisal::{
     appraisal_rows, incremental_rows, widening_rows, yearly_rows, Summary,
 };
-use pavestrat::output::schema::others::appraise::{APPRAISAL, INCREMENTAL, WIDENING, YEARLY};
+use pavestrat::schema::others::appraise::{APPRAISAL, INCREMENTAL, WIDENING, YEARLY};
 use std::path::PathBuf;
 
 /// Arguments of `appraise`.

@@ -81,15 +81,15 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if let Some(dir) = &args.out {
         let mut set = OutputSet::new();
         set.add(
-            pavestrat::output::schema::others::calibrate::TOML,
+            pavestrat::schema::others::calibrate::TOML,
             toml.clone().into_bytes(),
         );
         set.add(
-            pavestrat::output::schema::others::calibrate::INTERVALS.name,
+            pavestrat::schema::others::calibrate::INTERVALS.name,
             pavestrat::output::calibration::csv(&run, &intervals, &fits).into_bytes(),
         );
         set.add(
-            pavestrat::output::schema::others::calibrate::PAGE,
+            pavestrat::schema::others::calibrate::PAGE,
             pavestrat::output::calibration::page(&run, &intervals, &fits, &label).into_bytes(),
         );
         for p in set.commit(dir, "calibrate")? {

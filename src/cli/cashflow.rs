@@ -18,7 +18,7 @@ use pavestrat::input::cashflow::parse;
 use pavestrat::io::{print_stdout, OutputSet};
 use pavestrat::model::money::Money;
 use pavestrat::output::cashflow::{alternatives_csv, incremental_csv, table, to_json};
-use pavestrat::output::schema::others::cashflow;
+use pavestrat::schema::others::cashflow;
 use std::path::Path;
 
 /// Output format on stdout.
@@ -101,7 +101,8 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         independent: args.independent,
         budget,
     };
-    let result = appraise_flows(&label, &flows, &settings)?;
+    let streams = flows.iter().map(|f| (f.name.clone(), f.stream())).collect();
+    let result = appraise_flows(&label, streams, &settings)?;
 
     let json = serde_json::to_string_pretty(&to_json(&result)).unwrap_or_default() + "\n";
     let csv = alternatives_csv(&result);

@@ -12,11 +12,11 @@ use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
 use pavestrat::io::print_stdout;
 use pavestrat::model::money::grouped;
-use pavestrat::output::schema::plan::{
+use pavestrat::schema::plan::{
     read_candidates, row_column, BudgetUse, SectionPlan, TargetUse, CANDIDATES, SUMMARY,
 };
-use pavestrat::output::schema::summary::Summary;
-use pavestrat::output::schema::{self, Record as _};
+use pavestrat::schema::summary::Summary;
+use pavestrat::schema::{self, Record as _};
 use std::collections::HashMap;
 use std::fmt::Write as _;
 use std::path::PathBuf;

@@ -113,13 +113,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         pavestrat::analysis::frontier::frontier(&run, &mut c, &levels, &lines, &options, &bar)?;
     bar.finish();
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(
-            dir,
-            "frontier",
-            &[pavestrat::output::schema::analysis::FRONTIER],
-        )?;
+        let mut set = StreamSet::create(dir, "frontier", &[pavestrat::schema::analysis::FRONTIER])?;
         let rows = pavestrat::analysis::frontier::rows(&points);
-        set.write(0, pavestrat::output::schema::text(&rows).as_bytes())?;
+        set.write(0, pavestrat::schema::text(&rows).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }

@@ -57,7 +57,7 @@ pub struct Args {
 }
 
 /// The files `risk --out DIR` writes.
-pub const FILES: [&str; 3] = pavestrat::output::schema::analysis::RISK_FILES;
+pub const FILES: [&str; 3] = pavestrat::schema::analysis::RISK_FILES;
 
 /// Run `risk`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
@@ -124,10 +124,10 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             let m = pavestrat::io::verify(dir)?;
             plans.push(m.and_then(|m| {
                 m.files
-                    .get(pavestrat::output::schema::analysis::RISK_SLICE)
+                    .get(pavestrat::schema::analysis::RISK_SLICE)
                     .and_then(|e| e.for_plan.clone())
             }));
-            let p = dir.join(pavestrat::output::schema::analysis::RISK_SLICE);
+            let p = dir.join(pavestrat::schema::analysis::RISK_SLICE);
             parts.push((p.display().to_string(), Slice::read(&p)?));
         }
         // The merged draws are of the plan every slice names, if they all name the same one.
@@ -139,7 +139,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if let Some(dir) = &args.out.out {
         let mut set = StreamSet::create(dir, "risk", &FILES)?;
         set.made_for(plan_run);
-        set.write(0, pavestrat::output::schema::text(&slice.rows()).as_bytes())?;
+        set.write(0, pavestrat::schema::text(&slice.rows()).as_bytes())?;
         set.write(1, slice.draws_csv().as_bytes())?;
         set.write(2, &slice.to_bytes())?;
         for p in set.commit()? {

@@ -17,8 +17,8 @@ use pavestrat::diag::Diagnostics;
 use pavestrat::error::{Error, Result};
 use pavestrat::input::candidates;
 use pavestrat::io::{print_stdout, OutputSet};
-use pavestrat::output::schema::others::select::{ROW_USE, SELECTION};
 use pavestrat::output::selection::{row_use_csv, selection_csv, summary_json, summary_text, Asked};
+use pavestrat::schema::others::select::{ROW_USE, SELECTION};
 use pavestrat::select::network::{self, Method, Options};
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -116,7 +116,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             started.elapsed().as_secs_f64(),
         );
         set.add(
-            pavestrat::output::schema::others::select::SUMMARY,
+            pavestrat::schema::others::select::SUMMARY,
             json.into_bytes(),
         );
         for p in set.commit(dir, "select")? {

@@ -109,11 +109,11 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut set = StreamSet::create(
             dir,
             "sensitivity",
-            &[pavestrat::output::schema::analysis::SENSITIVITY],
+            &[pavestrat::schema::analysis::SENSITIVITY],
         )?;
         set.made_for(held.plan_run.clone());
         let table = sensitivity_rows(&run, &rows);
-        set.write(0, pavestrat::output::schema::text(&table).as_bytes())?;
+        set.write(0, pavestrat::schema::text(&table).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }

@@ -11,9 +11,12 @@ use crate::economics::budget::{best_set, greedy, Portfolio, Project, Ranking};
 use crate::economics::incremental::{analyse, Analysis};
 use crate::economics::{appraise, Discounting, Indicators, Timing};
 use crate::error::{Error, Result};
-use crate::input::cashflow::Flows;
 use crate::model::Year;
 use crate::select::SelectError;
+
+/// The longest stream accepted, in years, and the farthest a base year may lie from a stream's
+/// first year (a guard against a mistyped year).
+pub const MAX_SPAN: i32 = 500;
 
 /// How the flows are appraised.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -47,21 +50,25 @@ pub struct BudgetResult {
     pub by_ratio: Portfolio,
 }
 
-/// Appraise the alternatives of a cash-flow file (`label` names it in the result).
-pub fn appraise_flows(label: &str, flows: &[Flows], args: &Settings) -> Result<Appraisal> {
+/// Appraise named streams, the alternatives of a cash-flow file (`label` names it in the
+/// result).
+pub fn appraise_flows(
+    label: &str,
+    streams: Vec<(String, crate::economics::Stream)>,
+    args: &Settings,
+) -> Result<Appraisal> {
     let budget = args.budget;
-    let first_year = flows
+    let first_year = streams
         .iter()
-        .filter_map(|f| f.years.keys().next().copied())
+        .filter(|(_, s)| !s.is_empty())
+        .map(|(_, s)| s.first_year.0)
         .min()
         .unwrap_or(0);
     let base_year = args.base_year.map_or(first_year, |y| y.0);
-    if (i64::from(base_year) - i64::from(first_year)).abs()
-        > i64::from(crate::input::cashflow::MAX_SPAN)
-    {
+    if (i64::from(base_year) - i64::from(first_year)).abs() > i64::from(MAX_SPAN) {
         return Err(Error::Usage(format!(
             "--base-year {base_year} is more than {} years from the stream's first year {first_year}",
-            crate::input::cashflow::MAX_SPAN
+            MAX_SPAN
         )));
     }
     let timing = if args.mid_year {
@@ -71,10 +78,8 @@ pub fn appraise_flows(label: &str, flows: &[Flows], args: &Settings) -> Result<A
     };
     let discounting = Discounting::new(args.rate, crate::model::Year(base_year), timing)
         .map_err(|e| Error::Usage(format!("--rate: {e}")))?;
-    let streams: Vec<(String, crate::economics::Stream)> =
-        flows.iter().map(|f| (f.name.clone(), f.stream())).collect();
     let incremental =
-        (flows.len() > 1 && !args.independent).then(|| analyse(&streams, &discounting));
+        (streams.len() > 1 && !args.independent).then(|| analyse(&streams, &discounting));
     // The analysis already appraised every alternative; keep the file's order for the tables.
     let alternatives: Vec<(String, Indicators)> = match &incremental {
         Some(a) => streams

@@ -29,7 +29,7 @@ impl Flows {
 }
 
 /// The longest stream accepted, in years (a guard against a mistyped year).
-pub const MAX_SPAN: i32 = 500;
+pub use crate::economics::alternatives::MAX_SPAN;
 
 /// Name of the single alternative when the file has no `alternative` column.
 pub const SINGLE: &str = "stream";

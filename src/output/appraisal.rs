@@ -1,5 +1,5 @@
 //! What `appraise` writes and prints: the rows of `appraisal.csv`, `incremental.csv`,
-//! `widening.csv` and `yearly.csv` (columns in [`crate::output::schema::others::appraise`]) from
+//! `widening.csv` and `yearly.csv` (columns in [`crate::schema::others::appraise`]) from
 //! each section's typed results, and the terminal summary, gathered chunk by chunk.
 
 use crate::appraise::SectionResult;

@@ -1,5 +1,5 @@
 //! What `calibrate` writes and prints: the summary of the fit, `calibration.csv` (columns in
-//! [`crate::output::schema::others::calibrate`]), and the page of observed against predicted
+//! [`crate::schema::others::calibrate`]), and the page of observed against predicted
 //! rises.
 
 use crate::calibrate::{self, Fit, Interval};
@@ -65,7 +65,7 @@ fn scenario_model(run: &Run, family: &str) -> Option<crate::input::models::Famil
 
 /// `calibration.csv`: one row per interval of a fitted family.
 pub fn csv(run: &Run, intervals: &[Interval], fits: &[Fit]) -> String {
-    let mut s = crate::output::schema::others::calibrate::INTERVALS.head();
+    let mut s = crate::schema::others::calibrate::INTERVALS.head();
     for i in intervals {
         let (Some(fit), Some(before)) = (model_of(fits, &i.family), scenario_model(run, &i.family))
         else {

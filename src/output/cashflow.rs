@@ -1,6 +1,6 @@
 //! What `cashflow` writes and prints: the table, `cashflow.csv`, `incremental.csv` and
 //! `cashflow.json` of an [`Appraisal`] (columns in
-//! [`crate::output::schema::others::cashflow`]).
+//! [`crate::schema::others::cashflow`]).
 
 use crate::economics::alternatives::Appraisal;
 use crate::economics::budget::Portfolio;
@@ -8,7 +8,7 @@ use crate::economics::{Indicators, Irr};
 use crate::input::cashflow::SINGLE;
 use crate::model::money::grouped;
 use crate::output::format::{csv_field, irr_text, num, opt, pct, rates};
-use crate::output::schema::others::cashflow;
+use crate::schema::others::cashflow;
 use serde_json::{json, Value};
 
 pub fn table(a: &Appraisal) -> String {

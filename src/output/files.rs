@@ -1,5 +1,5 @@
 //! The files of `plan --out DIR`, made from the typed plan through the schema
-//! ([`crate::output::schema::plan`]) and written into one all-or-nothing set.
+//! ([`crate::schema::plan`]) and written into one all-or-nothing set.
 //!
 //! Large files (the section plan, the candidates, the widening table) are made and written
 //! chunk by chunk, their rows in parallel. What a report draws is kept as typed rows when asked
@@ -15,14 +15,14 @@ use crate::io::StreamSet;
 use crate::model::catalogue::Category;
 use crate::model::YearOffset;
 use crate::output::report::Inputs;
-use crate::output::schema::plan::{
+use crate::plan::{ConditionSeries, Plan, RowKind, CASES};
+use crate::schema::plan::{
     candidate_head, row_column, write_candidate, BudgetUse, Condition, Limit, SectionPlan,
     TargetUse, Widening, Work, CANDIDATES, SUMMARY,
 };
-use crate::output::schema::summary::{self, Summary};
-use crate::output::schema::value::{Cents, Dec, Fixed, Price, Real};
-use crate::output::schema::{self as schema, Record};
-use crate::plan::{ConditionSeries, Plan, RowKind, CASES};
+use crate::schema::summary::{self, Summary};
+use crate::schema::value::{Cents, Dec, Fixed, Price, Real};
+use crate::schema::{self as schema, Record};
 use rayon::prelude::*;
 
 /// Facts about a run besides the plan.

@@ -27,10 +27,10 @@ pub fn rates(irr: &Irr) -> String {
 }
 
 /// A text field for CSV, quoted when it holds a comma, quote or line break (the schema's one
-/// rule, [`crate::output::schema::value::write_text`]).
+/// rule, [`crate::schema::value::write_text`]).
 pub fn csv_field(s: &str) -> String {
     let mut out = String::new();
-    crate::output::schema::value::write_text(s, &mut out);
+    crate::schema::value::write_text(s, &mut out);
     out
 }
 
@@ -110,7 +110,7 @@ pub struct Field<'a>(pub &'a str);
 
 impl std::fmt::Display for Field<'_> {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        if crate::output::schema::value::needs_quotes(self.0) {
+        if crate::schema::value::needs_quotes(self.0) {
             f.write_str(&csv_field(self.0))
         } else {
             f.write_str(self.0)

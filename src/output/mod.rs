@@ -1,15 +1,15 @@
-//! What the tool writes and reads back: number and field formats shared by every output
-//! ([`format`](mod@format)), the tool's own CSVs read back with their places ([`readback`]), the workbook
-//! ([`xlsx`]) and the HTML report ([`report`]).
+//! Every file and summary the tool writes, made from typed results through the schema
+//! ([`crate::schema`]): the plan's files ([`files`]), the other commands' ([`appraisal`],
+//! [`cashflow`], [`selection`], [`calibration`]), what the terminal shows ([`terminal`]), the HTML
+//! report ([`report`]), the workbook ([`xlsx`]), and the number formats of the files no one
+//! reads back ([`format`](mod@format)).
 
 pub mod appraisal;
 pub mod calibration;
 pub mod cashflow;
 pub mod files;
 pub mod format;
-pub mod readback;
 pub mod report;
-pub mod schema;
 pub mod selection;
 pub mod terminal;
 pub mod xlsx;

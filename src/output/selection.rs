@@ -1,11 +1,11 @@
 //! What `select` writes and prints: `selection.csv`, `row_use.csv` (columns in
-//! [`crate::output::schema::others::select`]), `summary.json` and the terminal certificate.
+//! [`crate::schema::others::select`]), `summary.json` and the terminal certificate.
 
 use crate::input::candidates::{self, CandidateFile};
 use crate::input::candidates::{amount, Built};
 use crate::model::money::grouped;
 use crate::output::format::Field;
-use crate::output::schema::others::select::{ROW_USE, SELECTION};
+use crate::schema::others::select::{ROW_USE, SELECTION};
 use crate::select::network::Outcome;
 use std::fmt::Write as _;
 

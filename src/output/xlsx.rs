@@ -44,9 +44,9 @@ pub fn plan_bytes(_run: &Run, _p: &Plan, _appraisal: &[SectionResult]) -> Result
 mod imp {
     use super::*;
     use crate::enumerate::Enumerator;
-    use crate::output::schema::plan::{BudgetUse, SectionPlan, Work};
-    use crate::output::schema::Record as _;
     use crate::plan::RowKind;
+    use crate::schema::plan::{BudgetUse, SectionPlan, Work};
+    use crate::schema::Record as _;
     use rust_xlsxwriter::{Format, Workbook, Worksheet, XlsxError};
 
     fn fault(e: XlsxError) -> Error {

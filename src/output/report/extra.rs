@@ -3,8 +3,8 @@
 
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
 use crate::model::money::grouped;
-use crate::output::schema::analysis::{Risk, RiskDraw, Sensitivity};
-use crate::output::schema::value::{Cents, Fixed};
+use crate::schema::analysis::{Risk, RiskDraw, Sensitivity};
+use crate::schema::value::{Cents, Fixed};
 use std::fmt::Write as _;
 
 fn axis_title(what: &str, m: &str, word: &str) -> String {

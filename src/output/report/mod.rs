@@ -13,10 +13,10 @@ mod extra;
 
 use crate::error::Result;
 use crate::model::money::grouped;
-use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
-use crate::output::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMARY};
-use crate::output::schema::summary::Summary;
-use crate::output::schema::{self, Record};
+use crate::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
+use crate::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMARY};
+use crate::schema::summary::Summary;
+use crate::schema::{self, Record};
 use chart::{esc, Chart, Spec, Units, BLUE, GREEN, GREY, ORANGE, VERMILLION};
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -38,7 +38,7 @@ pub const FILES_READ: [&str; 10] = [
 
 /// What a report is drawn from: a plan's summary and tables as typed rows — made in memory by
 /// the run that writes them (`plan --report`), or read from the directory it wrote
-/// ([`Inputs::read`]); the rows are the same either way ([`crate::output::schema`]).
+/// ([`Inputs::read`]); the rows are the same either way ([`crate::schema`]).
 #[derive(Debug, Clone, Default)]
 pub struct Inputs {
     pub summary: Summary,

@@ -12,17 +12,22 @@
 //!   use, condition, widening plan, limits) and [`summary`], its `summary.json`;
 //! - [`analysis`]: the frontier's, sensitivity's and risk's files;
 //! - [`others`]: the files of `appraise`, `select`, `cashflow`, `calibrate` and `init`, which
-//!   no command reads back: their names and columns.
+//!   no command reads back: their names and columns;
+//! - [`readback`]: a CSV of ours read whole, its errors naming file, line and column.
+//!
+//! The schema sits below both the writers ([`crate::output`]) and the readers (the report, the
+//! held plan of [`crate::analysis::held`], `explain`), so that neither reaches into the other.
 
 pub mod analysis;
 pub mod others;
 pub mod plan;
+pub mod readback;
 pub mod summary;
 pub mod value;
 
 use crate::diag::{Diagnostics, Place};
 use crate::error::{Error, Result};
-use crate::output::readback::Table;
+use crate::schema::readback::Table;
 use std::path::Path;
 pub use value::Value;
 
@@ -46,7 +51,7 @@ impl FileSpec {
 
     /// The file `dir/NAME` read whole, every row kept.
     pub fn read(&self, dir: &Path) -> Result<Table> {
-        crate::output::readback::read(dir, self.name, self.maker, |_| true)
+        crate::schema::readback::read(dir, self.name, self.maker, |_| true)
     }
 
     /// The position of each column in `t`'s header, or an error naming the first missing one.
@@ -178,8 +183,8 @@ macro_rules! record {
             $( $(#[$fmeta])* pub $field: $ty ),+
         }
 
-        impl $crate::output::schema::Record for $name {
-            const FILE: $crate::output::schema::FileSpec = $crate::output::schema::FileSpec {
+        impl $crate::schema::Record for $name {
+            const FILE: $crate::schema::FileSpec = $crate::schema::FileSpec {
                 name: $file,
                 maker: $maker,
                 columns: &[$($col),+],
@@ -188,14 +193,14 @@ macro_rules! record {
             fn write(&self, out: &mut String) {
                 let mut first = true;
                 $(
-                    $crate::output::schema::separate(out, &mut first);
-                    $crate::output::schema::Value::write(&self.$field, out);
+                    $crate::schema::separate(out, &mut first);
+                    $crate::schema::Value::write(&self.$field, out);
                 )+
                 out.push('\n');
             }
 
             fn from_cells(
-                cells: &mut $crate::output::schema::Cells<'_>,
+                cells: &mut $crate::schema::Cells<'_>,
             ) -> $crate::error::Result<Self> {
                 Ok($name { $( $field: cells.take::<$ty>()? ),+ })
             }
@@ -251,7 +256,7 @@ mod tests {
         let text = text(&rows);
         assert!(text.starts_with("name,year,cost,share,price,real,gap,limit,rate,flag\n"));
         let t =
-            crate::output::readback::parse("probe.csv", text.as_bytes(), "test", |_| true).unwrap();
+            crate::schema::readback::parse("probe.csv", text.as_bytes(), "test", |_| true).unwrap();
         let back: Vec<Probe> = rows_of(&t).unwrap();
         assert_eq!(back, rows);
         assert_eq!(super::text(&back), text);
@@ -262,8 +267,8 @@ mod tests {
         /// directory, the summary, the manifest): never a panic.
         #[test]
         fn own_files_survive_arbitrary_bytes(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..3000)) {
-            use crate::output::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
-            use crate::output::schema::plan::*;
+            use crate::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
+            use crate::schema::plan::*;
             let dir = tempfile::tempdir().unwrap();
             let d = dir.path();
             for name in crate::output::report::FILES_READ
@@ -291,7 +296,7 @@ mod tests {
         let mut text = super::text(&[probe("a", 1.0), probe("b", 2.0)]);
         text = text.replacen("2031", "twenty", 2);
         let t =
-            crate::output::readback::parse("probe.csv", text.as_bytes(), "test", |_| true).unwrap();
+            crate::schema::readback::parse("probe.csv", text.as_bytes(), "test", |_| true).unwrap();
         let Err(Error::Input(d)) = rows_of::<Probe>(&t) else {
             panic!("a bad year must be refused");
         };
@@ -301,7 +306,7 @@ mod tests {
             "{m}"
         );
         let missing = "name,year\na,2031\n";
-        let t = crate::output::readback::parse("probe.csv", missing.as_bytes(), "test", |_| true)
+        let t = crate::schema::readback::parse("probe.csv", missing.as_bytes(), "test", |_| true)
             .unwrap();
         let Err(Error::Input(d)) = rows_of::<Probe>(&t) else {
             panic!("a missing column must be refused");

@@ -203,7 +203,7 @@ pub fn read_candidates(
     keep: impl Fn(&str) -> bool,
 ) -> crate::error::Result<Vec<Candidate>> {
     let t =
-        crate::output::readback::read(dir, CANDIDATES, MAKER, |r| keep(r.get(0).unwrap_or("")))?;
+        crate::schema::readback::read(dir, CANDIDATES, MAKER, |r| keep(r.get(0).unwrap_or("")))?;
     let fixed = CANDIDATES_FILE.positions(&t)?;
     let rows: Vec<usize> = (0..t.head.len()).filter(|i| !fixed.contains(i)).collect();
     t.rows
