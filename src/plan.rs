@@ -334,6 +334,10 @@ impl<'a> SectionRows<'a> {
                         Category::Routine => t.routine[i],
                         Category::All => t.capital[i] + t.routine[i],
                     };
+                    // Most years of most lines see no works: nothing to round.
+                    if x == 0.0 {
+                        continue;
+                    }
                     to_units(x, MONEY_PLACES)
                 }
                 Read::MeanIri(i) => to_units(self.length_km * t.iri[i], TARGET_PLACES),

@@ -157,7 +157,11 @@ pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
     // The product x·10^places is within half an ulp of the exact one; unless it lies within an
     // ulp of a midpoint, rounding it rounds the exact value the same way (the common case, and
     // far cheaper than the exact path below).
-    let y = x * 10f64.powi(places as i32);
+    const SCALE: [f64; 19] = [
+        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+        1e16, 1e17, 1e18,
+    ];
+    let y = x * SCALE[places as usize];
     if y.abs() < 4.0e15 {
         let r = y.round();
         let margin = (0.5 - (y - r).abs()).abs();
