@@ -169,7 +169,7 @@ pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
             // |y − r| is below 1/2 by more than the product's error: `r` is the nearest
             // integer to the exact value, and not a tie.
             if (y - r).abs() < 0.5 {
-                return Some(r as i128);
+                return Some(i128::from(r as i64));
             }
         }
     }
