@@ -153,7 +153,7 @@ pub fn section(
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
     // Each strategy replays only the years after its works part from an earlier one's.
-    let mut runs = [base.clone(), base.clone()];
+    let mut runs: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
     let mut alternatives: Vec<(String, Stream)> = Vec::with_capacity(strategies.len());
     let mut partial: Vec<StrategyResult> = Vec::with_capacity(strategies.len());
     let mut traces = Vec::new();

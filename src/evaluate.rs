@@ -46,7 +46,7 @@ pub fn each_split(
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
-    let mut traces = [base.clone(), base.clone()];
+    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
     let mut own = Flows::default();
     sim.run_each_of(strategies, which.iter().copied(), &mut traces, |k, t| {
         if k == 0 {

@@ -521,7 +521,7 @@ fn section_candidates(
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
     // Each strategy replays only the years after its works part from an earlier one's.
-    let mut traces = [base.clone(), base.clone()];
+    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
     // The buffers are the previous section's, emptied.
     out.offers.clear();
     out.strategy.clear();

@@ -215,7 +215,7 @@ fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &
     network[0] = 0.0;
     spend.iter_mut().for_each(|x| *x = 0.0);
     let mut base = Trace::default();
-    let mut traces = [Trace::default(), Trace::default()];
+    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = Default::default();
     let mut own = crate::simulate::Flows::default();
     let mut u = Vec::new();
     let mut at = 0;

@@ -127,7 +127,7 @@ fn npvs(
     let sim = SectionSim::new(&v.run, &s2);
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
-    let mut traces = [base.clone(), base.clone()];
+    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
     let d = v.discounting();
     let bf = base.flows(d);
     let y0 = run.scenario.base_year;
@@ -150,7 +150,7 @@ fn npvs(
 struct Probe<'a> {
     sim: SectionSim,
     strategies: &'a [Strategy],
-    traces: [Trace; 2],
+    traces: [Trace; crate::simulate::SIDE_BY_SIDE],
     base_flows: crate::simulate::Flows,
     own: crate::simulate::Flows,
     d: crate::economics::Discounting,
@@ -171,7 +171,7 @@ impl<'a> Probe<'a> {
         Probe {
             sim,
             strategies,
-            traces: [base.clone(), base],
+            traces: std::array::from_fn(|_| base.clone()),
             base_flows,
             own: Default::default(),
             d,

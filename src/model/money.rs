@@ -158,8 +158,8 @@ pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
     // ulp of a midpoint, rounding it rounds the exact value the same way (the common case, and
     // far cheaper than the exact path below).
     const SCALE: [f64; 19] = [
-        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-        1e16, 1e17, 1e18,
+        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+        1e17, 1e18,
     ];
     let y = x * SCALE[places as usize];
     if y.abs() < 4.0e15 {

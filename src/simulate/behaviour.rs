@@ -448,7 +448,7 @@ fn a_resumed_run_is_the_run_from_the_base_year() {
     assert!(pairs > 2_000 && resumed * 2 > pairs, "{resumed} of {pairs}");
 }
 
-/// Strategies played two at a time ([`SectionSim::run_each`], [`SectionSim::run_pair`]) give each
+/// Strategies played four and two at a time ([`SectionSim::run_each`], [`SectionSim::run_pair`]) give each
 /// strategy the trace a run of it alone from the base year gives, bit for bit: every strategy of
 /// a spread of the demo's and a synthetic network's sections in order, and pairs whose runs start
 /// in different years (one trace fresh, one holding another strategy's run, or a strategy beside
@@ -487,7 +487,7 @@ fn strategies_played_side_by_side_are_played_alone() {
         let sim = SectionSim::new(&run, sec);
         let all = e.strategies(sec);
         let fresh: Vec<Trace> = all.iter().map(|st| trace(&run, sec, st)).collect();
-        let mut traces = [Trace::default(), Trace::default()];
+        let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = Default::default();
         let mut seen = 0;
         sim.run_each(&all, &mut traces, |i, t| {
             assert_eq!(i, seen, "{}: strategies in order", sec.id);

@@ -117,6 +117,19 @@ struct Cursor {
     next: usize,
 }
 
+/// How many strategies [`SectionSim::run_each`] plays at once.
+pub const SIDE_BY_SIDE: usize = 4;
+
+/// What a year's ageing needs from the year before it: the works due (treatment indices, how
+/// many), the design-lane ESALs and the share holding repairs take off the rise.
+#[derive(Debug, Clone, Copy)]
+struct Due {
+    done: [usize; crate::input::MAX_STEPS],
+    count: usize,
+    esals: f64,
+    slow: f64,
+}
+
 /// [`YearState::series`] of a capacity no series was taken for.
 const NO_SERIES: u8 = u8::MAX;
 
@@ -516,13 +529,96 @@ impl SectionSim {
         }
     }
 
+    /// Play four strategies at once, strategy k into trace k from year `from[k]` on
+    /// ([`SectionSim::replay_from`]), each as [`SectionSim::run`] would (the same bits): the
+    /// works of each run one by one, the pavement's ageing of all four in one vector pass
+    /// ([`SectionModel::age_four`]).
+    fn run_quad_from(&self, st: [&Strategy; 4], tr: [&mut Trace; 4], from: [usize; 4]) {
+        let n = self.years;
+        let [t0, t1, t2, t3] = tr;
+        let cs = [
+            self.begin(st[0], t0, from[0]),
+            self.begin(st[1], t1, from[1]),
+            self.begin(st[2], t2, from[2]),
+            self.begin(st[3], t3, from[3]),
+        ];
+        let [Some(mut c0), Some(mut c1), Some(mut c2), Some(mut c3)] = cs else {
+            // A strategy whose trace already is its run: the others one by one.
+            let traces = [t0, t1, t2, t3];
+            for ((c, t), s) in cs.into_iter().zip(traces).zip(st) {
+                if let Some(mut c) = c {
+                    for y in c.from..n {
+                        self.year(s, t, y, &mut c);
+                    }
+                    self.finish(t, c.from);
+                }
+            }
+            return;
+        };
+        // All four in step from the earliest start; a run whose replay starts later sits out
+        // its early years (its lane ages a copy of another's pavement, and the result is
+        // dropped).
+        let first = c0.from.min(c1.from).min(c2.from).min(c3.from);
+        let mut spare = [c0.state.cond; 4];
+        for y in first..n {
+            let on = [y >= c0.from, y >= c1.from, y >= c2.from, y >= c3.from];
+            let d0 = on[0].then(|| self.works_due(st[0], t0, y, &mut c0));
+            let d1 = on[1].then(|| self.works_due(st[1], t1, y, &mut c1));
+            let d2 = on[2].then(|| self.works_due(st[2], t2, y, &mut c2));
+            let d3 = on[3].then(|| self.works_due(st[3], t3, y, &mut c3));
+            // A lane sitting out ages a copy of a lane that plays (there is one from `first` on).
+            let (lead, lead_due) = match (d0, d1, d2, d3) {
+                (Some(d), ..) => (c0.state.cond, d),
+                (None, Some(d), ..) => (c1.state.cond, d),
+                (None, None, Some(d), _) => (c2.state.cond, d),
+                (None, None, None, Some(d)) => (c3.state.cond, d),
+                (None, None, None, None) => continue,
+            };
+            let dues = [d0, d1, d2, d3].map(|d| d.unwrap_or(lead_due));
+            for (k, sp) in spare.iter_mut().enumerate() {
+                if !on[k] {
+                    *sp = lead;
+                }
+            }
+            let [s0, s1, s2, s3] = &mut spare;
+            self.model.age_four(
+                [
+                    if on[0] { &mut c0.state.cond } else { s0 },
+                    if on[1] { &mut c1.state.cond } else { s1 },
+                    if on[2] { &mut c2.state.cond } else { s2 },
+                    if on[3] { &mut c3.state.cond } else { s3 },
+                ],
+                dues.map(|d| d.esals),
+                dues.map(|d| d.slow),
+                &self.age_factors,
+            );
+            if on[0] {
+                self.works_take_effect(y, &mut c0, &dues[0]);
+            }
+            if on[1] {
+                self.works_take_effect(y, &mut c1, &dues[1]);
+            }
+            if on[2] {
+                self.works_take_effect(y, &mut c2, &dues[2]);
+            }
+            if on[3] {
+                self.works_take_effect(y, &mut c3, &dues[3]);
+            }
+        }
+        self.finish(t0, c0.from);
+        self.finish(t1, c1.from);
+        self.finish(t2, c2.from);
+        self.finish(t3, c3.from);
+    }
+
     /// Play every strategy of `strategies` in order, calling `each(i, trace)` with strategy
-    /// i's run: two at a time ([`SectionSim::run_pair`]), each into its own trace, which
-    /// replays from the run it held. The traces are `traces`' (reused across sections).
+    /// i's run: four at a time ([`SectionSim::run_quad_from`]), each into the trace it shares
+    /// the most years with (which it replays from), then the last two or three in a pair. The
+    /// traces are `traces`' (reused across sections).
     pub fn run_each(
         &self,
         strategies: &[Strategy],
-        traces: &mut [Trace; 2],
+        traces: &mut [Trace; SIDE_BY_SIDE],
         each: impl FnMut(usize, &Trace),
     ) {
         self.run_each_of(strategies, 0..strategies.len(), traces, each);
@@ -534,31 +630,92 @@ impl SectionSim {
         &self,
         strategies: &[Strategy],
         which: impl IntoIterator<Item = usize>,
-        traces: &mut [Trace; 2],
+        traces: &mut [Trace; SIDE_BY_SIDE],
         mut each: impl FnMut(usize, &Trace),
     ) {
-        let [ta, tb] = traces;
         let mut which = which.into_iter();
-        while let Some(i) = which.next() {
-            match which.next() {
-                Some(j) => {
-                    let (si, sj) = (&strategies[i], &strategies[j]);
-                    // Each to the trace it shares more years with (fewer years played).
-                    let kept = (self.replay_from(si, ta), self.replay_from(sj, tb));
-                    let swapped = (self.replay_from(si, tb), self.replay_from(sj, ta));
-                    if swapped.0 + swapped.1 > kept.0 + kept.1 {
-                        self.run_pair_from(si, tb, swapped.0, sj, ta, swapped.1);
-                        each(i, tb);
-                        each(j, ta);
-                    } else {
-                        self.run_pair_from(si, ta, kept.0, sj, tb, kept.1);
-                        each(i, ta);
-                        each(j, tb);
+        loop {
+            let mut group = [0usize; SIDE_BY_SIDE];
+            let mut len = 0;
+            while len < SIDE_BY_SIDE {
+                match which.next() {
+                    Some(i) => {
+                        group[len] = i;
+                        len += 1;
+                    }
+                    None => break,
+                }
+            }
+            match len {
+                0 => return,
+                SIDE_BY_SIDE => {
+                    // Strategy → trace, the pairs that share the most years first.
+                    let mut shared = [[0usize; SIDE_BY_SIDE]; SIDE_BY_SIDE];
+                    for (a, &i) in group.iter().enumerate() {
+                        for (b, t) in traces.iter().enumerate() {
+                            shared[a][b] = self.replay_from(&strategies[i], t);
+                        }
+                    }
+                    let mut trace_of = [usize::MAX; SIDE_BY_SIDE];
+                    let mut taken = [false; SIDE_BY_SIDE];
+                    for _ in 0..SIDE_BY_SIDE {
+                        let mut best: Option<(usize, usize)> = None;
+                        for a in 0..SIDE_BY_SIDE {
+                            for b in 0..SIDE_BY_SIDE {
+                                if trace_of[a] == usize::MAX
+                                    && !taken[b]
+                                    && best.is_none_or(|(x, y)| shared[a][b] > shared[x][y])
+                                {
+                                    best = Some((a, b));
+                                }
+                            }
+                        }
+                        if let Some((a, b)) = best {
+                            trace_of[a] = b;
+                            taken[b] = true;
+                        }
+                    }
+                    // The traces in the order of the strategies they take.
+                    let mut slots: [Option<&mut Trace>; SIDE_BY_SIDE] = Default::default();
+                    for (b, t) in traces.iter_mut().enumerate() {
+                        if let Some(a) = trace_of.iter().position(|&x| x == b) {
+                            slots[a] = Some(t);
+                        }
+                    }
+                    let [Some(s0), Some(s1), Some(s2), Some(s3)] = slots else {
+                        return;
+                    };
+                    self.run_quad_from(
+                        group.map(|i| &strategies[i]),
+                        [s0, s1, s2, s3],
+                        std::array::from_fn(|a| shared[a][trace_of[a]]),
+                    );
+                    for (a, &i) in group.iter().enumerate() {
+                        each(i, &traces[trace_of[a]]);
                     }
                 }
-                None => {
-                    self.run(&strategies[i], ta);
-                    each(i, ta);
+                _ => {
+                    // Two or three left: a pair, then one alone.
+                    let [ta, tb, tc, _] = traces;
+                    let (i, j) = (group[0], group.get(1).copied().filter(|_| len > 1));
+                    match j {
+                        Some(j) => {
+                            let (si, sj) = (&strategies[i], &strategies[j]);
+                            let (fa, fb) = (self.replay_from(si, ta), self.replay_from(sj, tb));
+                            self.run_pair_from(si, ta, fa, sj, tb, fb);
+                            each(i, ta);
+                            each(j, tb);
+                        }
+                        None => {
+                            self.run(&strategies[i], ta);
+                            each(i, ta);
+                        }
+                    }
+                    if len == 3 {
+                        let k = group[2];
+                        self.run(&strategies[k], tc);
+                        each(k, tc);
+                    }
                 }
             }
         }
@@ -633,47 +790,54 @@ impl SectionSim {
     /// Year `y` of `strategy`'s run into `out`, from the state `c` holds (which it advances).
     #[inline(always)]
     fn year(&self, strategy: &Strategy, out: &mut Trace, y: usize, c: &mut Cursor) {
+        let due = self.works_due(strategy, out, y, c);
+        self.model
+            .age_with(&mut c.state.cond, due.esals, due.slow, &self.age_factors);
+        self.works_take_effect(y, c, &due);
+    }
+
+    /// Year `y` up to the pavement's ageing: the state kept for replays, the works due (timed,
+    /// or the trigger's), their costs and the work-zone delay; and what the ageing needs.
+    #[inline(always)]
+    fn works_due(&self, strategy: &Strategy, out: &mut Trace, y: usize, c: &mut Cursor) -> Due {
         out.resume.states[y] = c.state;
-        let YearState {
-            mut cond,
-            mut lanes,
-            mut cw,
-            mut crash_factor,
-            mut per_cap,
-            mut series,
-            mut lane_factor,
-            mut last_works,
-        } = c.state;
-        let mut done = [0usize; crate::input::MAX_STEPS];
+        let s = &c.state;
+        let mut due = Due {
+            done: [0usize; crate::input::MAX_STEPS],
+            count: 0,
+            esals: self.esal_two_way[y] * s.lane_factor,
+            slow: 0.0,
+        };
         // 1. Works due this year.
         let first = c.next;
         while c.next < strategy.works.len() && strategy.works[c.next].year.index() == y {
             c.next += 1;
         }
-        let mut count = 0;
         for w in &strategy.works[first..c.next] {
-            if count < done.len() {
-                done[count] = w.treatment;
-                count += 1;
+            if due.count < due.done.len() {
+                due.done[due.count] = w.treatment;
+                due.count += 1;
             }
         }
-        if count == 0 {
+        if due.count == 0 {
             if let Some(tr) = &strategy.trigger {
-                let gap_ok = last_works.is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
-                if cond.iri >= tr.iri && gap_ok {
-                    done[0] = tr.treatment;
-                    count = 1;
+                let gap_ok = s
+                    .last_works
+                    .is_none_or(|l| y as i64 - l >= i64::from(tr.min_gap_years));
+                if s.cond.iri >= tr.iri && gap_ok {
+                    due.done[0] = tr.treatment;
+                    due.count = 1;
                 }
             }
         }
         // 2. The year's costs.
         let mut zone_days = 0u32;
-        for &ti in &done[..count] {
+        for &ti in &due.done[..due.count] {
             let w = &self.treatments[ti];
             let lanes_worked = if w.action == Action::Widen {
                 w.lanes_added
             } else {
-                lanes
+                s.lanes
             };
             let q = costs::quantity(w.cost_per, self.length_km, lanes_worked, self.lane_width_m);
             let cost = w.unit_cost * q;
@@ -692,57 +856,48 @@ impl SectionSim {
         out.delay[y] =
             f64::from(zone_days.min(365)) * self.aadt[y] * self.length_km * self.delay_per_vkm;
         // The rest of the year's costs are the state's alone: `finish` counts them.
-        let slow = self.upkeep.slows(cond.iri);
-        // 3. Ageing under the year's traffic, slowed by any holding repairs.
-        self.model.age_with(
-            &mut cond,
-            self.esal_two_way[y] * lane_factor,
-            slow,
-            &self.age_factors,
-        );
-        // 4. The works take effect.
-        if count > 0 {
-            last_works = Some(y as i64);
-            for &ti in &done[..count] {
-                let w = &self.treatments[ti];
-                match w.structure {
-                    StructuralEffect::None => {}
-                    StructuralEffect::SetTo(sn) => self.model.rebuild(&mut cond, sn),
-                    layer @ StructuralEffect::Layer { .. } => {
-                        self.model
-                            .strengthen(&mut cond, layer.added_sn().unwrap_or(0.0));
-                    }
-                }
-                match w.iri {
-                    IriEffect::ResetTo(x) => self.model.resurface(&mut cond, x, w.carry),
-                    IriEffect::Reduce(r) => {
-                        let to = (cond.iri - r).max(self.iri_floor);
-                        self.model.lower(&mut cond, to);
-                    }
-                }
-                if w.action == Action::Widen {
-                    lanes = lanes.saturating_add(w.lanes_added).min(12);
-                    if let Some(after) = w.carriageway_after {
-                        cw = after;
-                    }
-                    per_cap = 1.0 / capacity::capacity_pc_h(lanes, cw, &self.capacity);
-                    series = self.series_of(per_cap);
-                    lane_factor =
-                        traffic::lane_share(lanes, self.direction_factor, &self.lane_factor);
-                }
-                crash_factor *= w.crash_factor;
-            }
+        // 3. The ageing under the year's traffic is slowed by any holding repairs.
+        due.slow = self.upkeep.slows(s.cond.iri);
+        due
+    }
+
+    /// 4. The year's works take effect on the aged pavement, and the state moves on.
+    #[inline(always)]
+    fn works_take_effect(&self, y: usize, c: &mut Cursor, due: &Due) {
+        if due.count == 0 {
+            return;
         }
-        c.state = YearState {
-            cond,
-            lanes,
-            cw,
-            crash_factor,
-            per_cap,
-            series,
-            lane_factor,
-            last_works,
-        };
+        let s = &mut c.state;
+        s.last_works = Some(y as i64);
+        for &ti in &due.done[..due.count] {
+            let w = &self.treatments[ti];
+            match w.structure {
+                StructuralEffect::None => {}
+                StructuralEffect::SetTo(sn) => self.model.rebuild(&mut s.cond, sn),
+                layer @ StructuralEffect::Layer { .. } => {
+                    self.model
+                        .strengthen(&mut s.cond, layer.added_sn().unwrap_or(0.0));
+                }
+            }
+            match w.iri {
+                IriEffect::ResetTo(x) => self.model.resurface(&mut s.cond, x, w.carry),
+                IriEffect::Reduce(r) => {
+                    let to = (s.cond.iri - r).max(self.iri_floor);
+                    self.model.lower(&mut s.cond, to);
+                }
+            }
+            if w.action == Action::Widen {
+                s.lanes = s.lanes.saturating_add(w.lanes_added).min(12);
+                if let Some(after) = w.carriageway_after {
+                    s.cw = after;
+                }
+                s.per_cap = 1.0 / capacity::capacity_pc_h(s.lanes, s.cw, &self.capacity);
+                s.series = self.series_of(s.per_cap);
+                s.lane_factor =
+                    traffic::lane_share(s.lanes, self.direction_factor, &self.lane_factor);
+            }
+            s.crash_factor *= w.crash_factor;
+        }
     }
 
     /// The state at the start of the base year.
