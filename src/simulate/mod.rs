@@ -130,6 +130,16 @@ struct Due {
     slow: f64,
 }
 
+impl Due {
+    /// No works, no traffic: what a year's works and ageing inputs are written over.
+    const NONE: Due = Due {
+        done: [0; crate::input::MAX_STEPS],
+        count: 0,
+        esals: 0.0,
+        slow: 0.0,
+    };
+}
+
 /// [`YearState::series`] of a capacity no series was taken for.
 const NO_SERIES: u8 = u8::MAX;
 
@@ -560,24 +570,33 @@ impl SectionSim {
         // dropped).
         let first = c0.from.min(c1.from).min(c2.from).min(c3.from);
         let mut spare = [c0.state.cond; 4];
+        let mut dues = [Due::NONE; 4];
         for y in first..n {
             let on = [y >= c0.from, y >= c1.from, y >= c2.from, y >= c3.from];
-            let d0 = on[0].then(|| self.works_due(st[0], t0, y, &mut c0));
-            let d1 = on[1].then(|| self.works_due(st[1], t1, y, &mut c1));
-            let d2 = on[2].then(|| self.works_due(st[2], t2, y, &mut c2));
-            let d3 = on[3].then(|| self.works_due(st[3], t3, y, &mut c3));
-            // A lane sitting out ages a copy of a lane that plays (there is one from `first` on).
-            let (lead, lead_due) = match (d0, d1, d2, d3) {
-                (Some(d), ..) => (c0.state.cond, d),
-                (None, Some(d), ..) => (c1.state.cond, d),
-                (None, None, Some(d), _) => (c2.state.cond, d),
-                (None, None, None, Some(d)) => (c3.state.cond, d),
-                (None, None, None, None) => continue,
-            };
-            let dues = [d0, d1, d2, d3].map(|d| d.unwrap_or(lead_due));
-            for (k, sp) in spare.iter_mut().enumerate() {
-                if !on[k] {
-                    *sp = lead;
+            if on[0] {
+                self.works_due(st[0], t0, y, &mut c0, &mut dues[0]);
+            }
+            if on[1] {
+                self.works_due(st[1], t1, y, &mut c1, &mut dues[1]);
+            }
+            if on[2] {
+                self.works_due(st[2], t2, y, &mut c2, &mut dues[2]);
+            }
+            if on[3] {
+                self.works_due(st[3], t3, y, &mut c3, &mut dues[3]);
+            }
+            if on != [true; 4] {
+                // A lane sitting out ages a copy of a lane that plays (there is one from
+                // `first` on).
+                let Some(lead) = on.iter().position(|&x| x) else {
+                    continue;
+                };
+                let cond = [&c0, &c1, &c2, &c3][lead].state.cond;
+                for k in 0..4 {
+                    if !on[k] {
+                        spare[k] = cond;
+                        dues[k] = dues[lead];
+                    }
                 }
             }
             let [s0, s1, s2, s3] = &mut spare;
@@ -588,8 +607,8 @@ impl SectionSim {
                     if on[2] { &mut c2.state.cond } else { s2 },
                     if on[3] { &mut c3.state.cond } else { s3 },
                 ],
-                dues.map(|d| d.esals),
-                dues.map(|d| d.slow),
+                [dues[0].esals, dues[1].esals, dues[2].esals, dues[3].esals],
+                [dues[0].slow, dues[1].slow, dues[2].slow, dues[3].slow],
                 &self.age_factors,
             );
             if on[0] {
@@ -790,7 +809,8 @@ impl SectionSim {
     /// Year `y` of `strategy`'s run into `out`, from the state `c` holds (which it advances).
     #[inline(always)]
     fn year(&self, strategy: &Strategy, out: &mut Trace, y: usize, c: &mut Cursor) {
-        let due = self.works_due(strategy, out, y, c);
+        let mut due = Due::NONE;
+        self.works_due(strategy, out, y, c, &mut due);
         self.model
             .age_with(&mut c.state.cond, due.esals, due.slow, &self.age_factors);
         self.works_take_effect(y, c, &due);
@@ -799,15 +819,18 @@ impl SectionSim {
     /// Year `y` up to the pavement's ageing: the state kept for replays, the works due (timed,
     /// or the trigger's), their costs and the work-zone delay; and what the ageing needs.
     #[inline(always)]
-    fn works_due(&self, strategy: &Strategy, out: &mut Trace, y: usize, c: &mut Cursor) -> Due {
+    fn works_due(
+        &self,
+        strategy: &Strategy,
+        out: &mut Trace,
+        y: usize,
+        c: &mut Cursor,
+        due: &mut Due,
+    ) {
         out.resume.states[y] = c.state;
         let s = &c.state;
-        let mut due = Due {
-            done: [0usize; crate::input::MAX_STEPS],
-            count: 0,
-            esals: self.esal_two_way[y] * s.lane_factor,
-            slow: 0.0,
-        };
+        due.count = 0;
+        due.esals = self.esal_two_way[y] * s.lane_factor;
         // 1. Works due this year.
         let first = c.next;
         while c.next < strategy.works.len() && strategy.works[c.next].year.index() == y {
@@ -858,7 +881,6 @@ impl SectionSim {
         // The rest of the year's costs are the state's alone: `finish` counts them.
         // 3. The ageing under the year's traffic is slowed by any holding repairs.
         due.slow = self.upkeep.slows(s.cond.iri);
-        due
     }
 
     /// 4. The year's works take effect on the aged pavement, and the state moves on.
