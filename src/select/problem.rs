@@ -33,6 +33,19 @@ pub struct Problem {
     cstart: Vec<usize>,
     crow: Vec<u16>,
     cval: Vec<i64>,
+    /// Buffers [`Problem::push_group`] reuses from group to group (no part of the problem).
+    scratch: Scratch,
+}
+
+/// [`Problem::push_group`]'s working buffers.
+#[derive(Debug, Clone, Default)]
+struct Scratch {
+    /// Per row: its position among the group's rows, or `u16::MAX` where the group uses none.
+    slot: Vec<u16>,
+    touched: Vec<u16>,
+    dense: Vec<i64>,
+    reach: Vec<i128>,
+    order: Vec<usize>,
 }
 
 /// Why a group cannot be added.
@@ -130,6 +143,7 @@ impl Problem {
             cstart: vec![0],
             crow: Vec::new(),
             cval: Vec::new(),
+            scratch: Scratch::default(),
         }
     }
 
@@ -218,8 +232,25 @@ impl Problem {
         }
         let rows = self.rows();
         self.check_limits()?;
+        let mut sc = std::mem::take(&mut self.scratch);
+        let kept = self.push_group_with(offers, n, rows, &mut sc);
+        self.scratch = sc;
+        kept
+    }
+
+    /// [`Problem::push_group`] with its buffers.
+    fn push_group_with<L: OfferList + ?Sized>(
+        &mut self,
+        offers: &L,
+        n: usize,
+        rows: usize,
+        sc: &mut Scratch,
+    ) -> Result<Vec<usize>, ProblemError> {
         // The group's own rows, densely, so that dominance is a comparison of short vectors.
-        let mut touched: Vec<u16> = Vec::new();
+        sc.slot.clear();
+        sc.slot.resize(rows, u16::MAX);
+        let touched = &mut sc.touched;
+        touched.clear();
         for i in 0..n {
             if !offers.value(i).is_finite() {
                 return Err(ProblemError::NotFinite);
@@ -231,17 +262,24 @@ impl Problem {
                 if u.unsigned_abs() > MAX_ROW_TOTAL as u64 {
                     return Err(ProblemError::TooLarge(r as usize));
                 }
-                if !touched.contains(&r) {
+                if sc.slot[r as usize] == u16::MAX {
+                    sc.slot[r as usize] = 0;
                     touched.push(r);
                 }
             }
         }
         touched.sort_unstable();
+        for (k, &r) in touched.iter().enumerate() {
+            sc.slot[r as usize] = k as u16;
+        }
+        let touched = &*touched;
         let w = touched.len();
-        let mut dense = vec![0i64; n * w];
+        let dense = &mut sc.dense;
+        dense.clear();
+        dense.resize(n * w, 0);
         for i in 0..n {
             for &(r, u) in offers.uses(i) {
-                let k = touched.binary_search(&r).unwrap_or(0);
+                let k = usize::from(sc.slot[r as usize]);
                 let d = &mut dense[i * w + k];
                 *d = d
                     .checked_add(u)
@@ -251,7 +289,8 @@ impl Problem {
         }
         // The group's largest use of each of its rows, added to the row's reach: refused before
         // anything is stored if a row would pass the supported total.
-        let mut reach = Vec::with_capacity(w);
+        let reach = &mut sc.reach;
+        reach.clear();
         for (k, &r) in touched.iter().enumerate() {
             let most = (0..n)
                 .map(|i| dense[i * w + k].unsigned_abs())
@@ -268,10 +307,12 @@ impl Problem {
         }
         // Highest value first (ties: original order), then each is kept unless an earlier kept
         // one dominates it.
-        let mut order: Vec<usize> = (0..n).collect();
+        let order = &mut sc.order;
+        order.clear();
+        order.extend(0..n);
         order.sort_by(|&a, &b| offers.value(b).total_cmp(&offers.value(a)).then(a.cmp(&b)));
         let mut kept: Vec<usize> = Vec::new();
-        for &i in &order {
+        for &i in order.iter() {
             let row_i = &dense[i * w..(i + 1) * w];
             let dominated = kept.iter().any(|&k| {
                 let row_k = &dense[k * w..(k + 1) * w];
