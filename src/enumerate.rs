@@ -224,6 +224,17 @@ impl<'a> Enumerator<'a> {
 
     /// Every strategy of `section`, the base first, then templates in order; names unique.
     pub fn strategies(&self, section: &Section) -> Vec<Strategy> {
+        self.strategies_named(section, true)
+    }
+
+    /// [`Enumerator::strategies`] without their names (each left empty; [`Enumerator::name`]
+    /// gives it from the key): the same strategies in the same order, for a caller that names
+    /// none of them, without a text per strategy.
+    pub fn unnamed_strategies(&self, section: &Section) -> Vec<Strategy> {
+        self.strategies_named(section, false)
+    }
+
+    fn strategies_named(&self, section: &Section, named: bool) -> Vec<Strategy> {
         let mut out = vec![Strategy::base()];
         // Each name's hash and the first strategy with it: a name is taken when a strategy
         // with that hash has that name (hashes that collide are told apart by a scan).
@@ -244,16 +255,26 @@ impl<'a> Enumerator<'a> {
                 for (t, thr) in thresholds.iter().enumerate() {
                     self.name_into(c, works, *thr, &mut name);
                     let h = name_hash(&name);
+                    // An unnamed strategy's name is rebuilt from its key (a hash seen before:
+                    // a repeated strategy, or rarely another name with the same hash).
+                    let same = |s: &Strategy| {
+                        if named {
+                            s.name == name
+                        } else {
+                            self.name(s.key) == name
+                        }
+                    };
                     match names.get(&h) {
-                        Some(&i) if out[i].name == name => continue,
-                        Some(_) if out.iter().any(|s| s.name == name) => continue,
+                        Some(&i) if same(&out[i]) => continue,
+                        Some(_) if out.iter().any(same) => continue,
                         Some(_) => {}
                         None => {
                             names.insert(h, out.len());
                         }
                     }
                     let key = Self::key_of(c, works, thr.map(|_| t));
-                    out.push(self.build(c, key, works.clone(), name.clone()));
+                    let kept = if named { name.clone() } else { String::new() };
+                    out.push(self.build(c, key, works.clone(), kept));
                 }
             }
         }
@@ -466,6 +487,37 @@ pub fn feasible(t: &Template, s: &Section) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The unnamed enumeration is the named one with the names left out: the same strategies,
+    /// keys, works and triggers in the same order, on the demo's sections and 300 synthetic
+    /// ones (repeats told apart by their names rebuilt from the keys).
+    #[test]
+    fn unnamed_strategies_are_the_named_ones() {
+        let (run, d) = crate::input::load(
+            &crate::demo::SOURCE,
+            std::path::Path::new(crate::demo::SCENARIO),
+        );
+        let run = run.unwrap_or_else(|| panic!("{d}"));
+        let text = crate::demo::synth::network_csv(300, 31);
+        let mut d = crate::diag::Diagnostics::new();
+        let synth = crate::input::network::parse("synth.csv", &text, &mut d).unwrap();
+        let e = Enumerator::for_run(&run);
+        let mut n = 0;
+        for sec in run.network.sections.iter().chain(&synth.sections) {
+            let named = e.strategies(sec);
+            let unnamed = e.unnamed_strategies(sec);
+            assert_eq!(named.len(), unnamed.len(), "{}", sec.id);
+            for (a, b) in named.iter().zip(&unnamed) {
+                assert_eq!(
+                    (a.key, &a.works, a.trigger, a.template),
+                    (b.key, &b.works, b.trigger, b.template)
+                );
+                assert_eq!(e.name(b.key), a.name);
+                n += 1;
+            }
+        }
+        assert!(n > 10_000, "{n}");
+    }
     use crate::diag::Diagnostics;
     use std::collections::HashSet;
     use std::path::Path;

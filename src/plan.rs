@@ -516,7 +516,13 @@ fn section_candidates(
     let d: &Discounting = &s.discounting;
     let y0 = s.base_year;
     let sim = SectionSim::new(run, sec);
-    let strategies: Vec<Strategy> = e.strategies(sec);
+    // Names are wanted only to keep commitments to a named strategy, and to name some in a
+    // message about them.
+    let strategies: Vec<Strategy> = if held.is_some() {
+        e.strategies(sec)
+    } else {
+        e.unnamed_strategies(sec)
+    };
     let mut base = Trace::default();
     sim.run(&strategies[0], &mut base);
     let base_flows = base.flows(d);
