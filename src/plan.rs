@@ -1184,8 +1184,7 @@ pub fn recheck(
             let mut target = vec![0.0; nt];
             let mut works = Vec::new();
             let mut sums = ConditionSums::new(if series == Series::Condition { n } else { 0 });
-            let mut t = Trace::default();
-            let mut others = [Trace::default(), Trace::default()];
+            let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = Default::default();
             let mut u = Vec::new();
             for (i, sec) in chunk.iter().enumerate() {
                 let g = ci * CHUNK + i;
@@ -1193,34 +1192,42 @@ pub fn recheck(
                     .strategy(c.strategy[c.chosen(plan, g)])
                     .unwrap_or_else(Strategy::base);
                 let sim = SectionSim::new(run, sec);
-                sim.run(&st, &mut t);
+                // The plan's strategy, then (for the series) the base and the unconstrained
+                // choice, side by side.
+                let mut played = vec![st];
                 if series == Series::Condition {
-                    // The plan's roughness, then the base's and the unconstrained choice's.
-                    sums.add(run, sec, 0, &t.iri);
-                    let un = e
-                        .strategy(c.unconstrained[g].strategy)
-                        .unwrap_or_else(Strategy::base);
-                    let [tb, tu] = &mut others;
-                    sim.run_pair(&Strategy::base(), tb, &un, tu);
-                    sums.add(run, sec, 1, &tb.iri);
-                    sums.add(run, sec, 2, &tu.iri);
-                    sums.length += sec.length_km;
+                    played.push(Strategy::base());
+                    played.push(
+                        e.strategy(c.unconstrained[g].strategy)
+                            .unwrap_or_else(Strategy::base),
+                    );
                 }
-                works.extend(t.works.iter().map(|w| PlannedWork {
-                    year: w.year,
-                    section: g,
-                    treatment: w.treatment,
-                    cost: w.cost,
-                }));
-                uses(run, &c.rows, sec, &t, &mut u);
-                for &(j, x) in &u {
-                    match c.rows[j as usize].kind {
-                        // Cents to decimal money: exact.
-                        RowKind::Budget(b) => {
-                            spent[b] = spent[b].saturating_add(Decimal::new(x, 2))
-                        }
-                        RowKind::Target(k) => target[k] += c.rows[j as usize].measure(x),
+                sim.run_each(&played, &mut traces, |k, t| {
+                    if series == Series::Condition {
+                        sums.add(run, sec, k, &t.iri);
                     }
+                    if k > 0 {
+                        return;
+                    }
+                    works.extend(t.works.iter().map(|w| PlannedWork {
+                        year: w.year,
+                        section: g,
+                        treatment: w.treatment,
+                        cost: w.cost,
+                    }));
+                    uses(run, &c.rows, sec, t, &mut u);
+                    for &(j, x) in &u {
+                        match c.rows[j as usize].kind {
+                            // Cents to decimal money: exact.
+                            RowKind::Budget(b) => {
+                                spent[b] = spent[b].saturating_add(Decimal::new(x, 2))
+                            }
+                            RowKind::Target(k) => target[k] += c.rows[j as usize].measure(x),
+                        }
+                    }
+                });
+                if series == Series::Condition {
+                    sums.length += sec.length_km;
                 }
             }
             (spent, target, works, sums)

@@ -543,33 +543,36 @@ impl SectionSim {
     /// ([`SectionSim::replay_from`]), each as [`SectionSim::run`] would (the same bits): the
     /// works of each run one by one, the pavement's ageing of all four in one vector pass
     /// ([`SectionModel::age_four`]).
-    fn run_quad_from(&self, st: [&Strategy; 4], tr: [&mut Trace; 4], from: [usize; 4]) {
+    /// Lanes that are not `live` (fewer than four strategies to play) sit out, as does a lane
+    /// whose trace already is its strategy's run.
+    fn run_quad_from(
+        &self,
+        st: [&Strategy; 4],
+        tr: [&mut Trace; 4],
+        from: [usize; 4],
+        live: [bool; 4],
+    ) {
         let n = self.years;
         let [t0, t1, t2, t3] = tr;
-        let cs = [
-            self.begin(st[0], t0, from[0]),
-            self.begin(st[1], t1, from[1]),
-            self.begin(st[2], t2, from[2]),
-            self.begin(st[3], t3, from[3]),
-        ];
-        let [Some(mut c0), Some(mut c1), Some(mut c2), Some(mut c3)] = cs else {
-            // A strategy whose trace already is its run: the others one by one.
-            let traces = [t0, t1, t2, t3];
-            for ((c, t), s) in cs.into_iter().zip(traces).zip(st) {
-                if let Some(mut c) = c {
-                    for y in c.from..n {
-                        self.year(s, t, y, &mut c);
-                    }
-                    self.finish(t, c.from);
-                }
-            }
-            return;
+        // A lane with nothing to play starts after the last year.
+        let idle = || Cursor {
+            from: n,
+            state: self.initial_state(),
+            next: 0,
         };
+        let lane = |k: usize, t: &mut Trace| -> Cursor {
+            if live[k] {
+                self.begin(st[k], t, from[k]).unwrap_or_else(idle)
+            } else {
+                idle()
+            }
+        };
+        let (mut c0, mut c1, mut c2, mut c3) = (lane(0, t0), lane(1, t1), lane(2, t2), lane(3, t3));
         // All four in step from the earliest start; a run whose replay starts later sits out
         // its early years (its lane ages a copy of another's pavement, and the result is
         // dropped).
         let first = c0.from.min(c1.from).min(c2.from).min(c3.from);
-        let mut spare = [c0.state.cond; 4];
+        let mut spare = [self.start; 4];
         let mut dues = [Due::NONE; 4];
         for y in first..n {
             let on = [y >= c0.from, y >= c1.from, y >= c2.from, y >= c3.from];
@@ -624,10 +627,11 @@ impl SectionSim {
                 self.works_take_effect(y, &mut c3, &dues[3]);
             }
         }
-        self.finish(t0, c0.from);
-        self.finish(t1, c1.from);
-        self.finish(t2, c2.from);
-        self.finish(t3, c3.from);
+        for (c, t) in [(&c0, t0), (&c1, t1), (&c2, t2), (&c3, t3)] {
+            if c.from < n {
+                self.finish(t, c.from);
+            }
+        }
     }
 
     /// Play every strategy of `strategies` in order, calling `each(i, trace)` with strategy
@@ -665,77 +669,60 @@ impl SectionSim {
                     None => break,
                 }
             }
-            match len {
-                0 => return,
-                SIDE_BY_SIDE => {
-                    // Strategy → trace, the pairs that share the most years first.
-                    let mut shared = [[0usize; SIDE_BY_SIDE]; SIDE_BY_SIDE];
-                    for (a, &i) in group.iter().enumerate() {
-                        for (b, t) in traces.iter().enumerate() {
-                            shared[a][b] = self.replay_from(&strategies[i], t);
+            if len == 0 {
+                return;
+            }
+            // Strategy → trace, the pairs that share the most years first.
+            let mut shared = [[0usize; SIDE_BY_SIDE]; SIDE_BY_SIDE];
+            for (a, &i) in group[..len].iter().enumerate() {
+                for (b, t) in traces.iter().enumerate() {
+                    shared[a][b] = self.replay_from(&strategies[i], t);
+                }
+            }
+            let mut trace_of = [usize::MAX; SIDE_BY_SIDE];
+            let mut taken = [false; SIDE_BY_SIDE];
+            for _ in 0..len {
+                let mut best: Option<(usize, usize)> = None;
+                for a in 0..len {
+                    for b in 0..SIDE_BY_SIDE {
+                        if trace_of[a] == usize::MAX
+                            && !taken[b]
+                            && best.is_none_or(|(x, y)| shared[a][b] > shared[x][y])
+                        {
+                            best = Some((a, b));
                         }
-                    }
-                    let mut trace_of = [usize::MAX; SIDE_BY_SIDE];
-                    let mut taken = [false; SIDE_BY_SIDE];
-                    for _ in 0..SIDE_BY_SIDE {
-                        let mut best: Option<(usize, usize)> = None;
-                        for a in 0..SIDE_BY_SIDE {
-                            for b in 0..SIDE_BY_SIDE {
-                                if trace_of[a] == usize::MAX
-                                    && !taken[b]
-                                    && best.is_none_or(|(x, y)| shared[a][b] > shared[x][y])
-                                {
-                                    best = Some((a, b));
-                                }
-                            }
-                        }
-                        if let Some((a, b)) = best {
-                            trace_of[a] = b;
-                            taken[b] = true;
-                        }
-                    }
-                    // The traces in the order of the strategies they take.
-                    let mut slots: [Option<&mut Trace>; SIDE_BY_SIDE] = Default::default();
-                    for (b, t) in traces.iter_mut().enumerate() {
-                        if let Some(a) = trace_of.iter().position(|&x| x == b) {
-                            slots[a] = Some(t);
-                        }
-                    }
-                    let [Some(s0), Some(s1), Some(s2), Some(s3)] = slots else {
-                        return;
-                    };
-                    self.run_quad_from(
-                        group.map(|i| &strategies[i]),
-                        [s0, s1, s2, s3],
-                        std::array::from_fn(|a| shared[a][trace_of[a]]),
-                    );
-                    for (a, &i) in group.iter().enumerate() {
-                        each(i, &traces[trace_of[a]]);
                     }
                 }
-                _ => {
-                    // Two or three left: a pair, then one alone.
-                    let [ta, tb, tc, _] = traces;
-                    let (i, j) = (group[0], group.get(1).copied().filter(|_| len > 1));
-                    match j {
-                        Some(j) => {
-                            let (si, sj) = (&strategies[i], &strategies[j]);
-                            let (fa, fb) = (self.replay_from(si, ta), self.replay_from(sj, tb));
-                            self.run_pair_from(si, ta, fa, sj, tb, fb);
-                            each(i, ta);
-                            each(j, tb);
-                        }
-                        None => {
-                            self.run(&strategies[i], ta);
-                            each(i, ta);
-                        }
-                    }
-                    if len == 3 {
-                        let k = group[2];
-                        self.run(&strategies[k], tc);
-                        each(k, tc);
-                    }
+                if let Some((a, b)) = best {
+                    trace_of[a] = b;
+                    taken[b] = true;
                 }
+            }
+            // Lanes past `len` sit out on the traces no strategy took.
+            for slot in trace_of.iter_mut().skip(len) {
+                if let Some(b) = taken.iter().position(|&x| !x) {
+                    *slot = b;
+                    taken[b] = true;
+                }
+            }
+            // The traces in the order of the lanes they serve.
+            let mut slots: [Option<&mut Trace>; SIDE_BY_SIDE] = Default::default();
+            for (b, t) in traces.iter_mut().enumerate() {
+                if let Some(a) = trace_of.iter().position(|&x| x == b) {
+                    slots[a] = Some(t);
+                }
+            }
+            let [Some(s0), Some(s1), Some(s2), Some(s3)] = slots else {
+                return;
+            };
+            self.run_quad_from(
+                std::array::from_fn(|a| &strategies[group[a.min(len - 1)]]),
+                [s0, s1, s2, s3],
+                std::array::from_fn(|a| shared[a][trace_of[a]]),
+                std::array::from_fn(|a| a < len),
+            );
+            for (a, &i) in group[..len].iter().enumerate() {
+                each(i, &traces[trace_of[a]]);
             }
         }
     }
