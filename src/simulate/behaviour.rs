@@ -448,11 +448,11 @@ fn a_resumed_run_is_the_run_from_the_base_year() {
     assert!(pairs > 2_000 && resumed * 2 > pairs, "{resumed} of {pairs}");
 }
 
-/// Strategies played four and two at a time ([`SectionSim::run_each`], [`SectionSim::run_pair`]) give each
-/// strategy the trace a run of it alone from the base year gives, bit for bit: every strategy of
-/// a spread of the demo's and a synthetic network's sections in order, and pairs whose runs start
-/// in different years (one trace fresh, one holding another strategy's run, or a strategy beside
-/// itself).
+/// Strategies played four at a time ([`SectionSim::run_each`], [`SectionSim::run_each_of`])
+/// give each strategy the trace a run of it alone from the base year gives, bit for bit: every
+/// strategy of a spread of the demo's and a synthetic network's sections in order, and
+/// scattered orders whose lanes start in different years (traces holding other strategies'
+/// runs, a strategy beside itself, a last group with idle lanes).
 #[test]
 fn strategies_played_side_by_side_are_played_alone() {
     let run = demo();
@@ -496,16 +496,23 @@ fn strategies_played_side_by_side_are_played_alone() {
             seen += 1;
         });
         assert_eq!(seen, all.len());
-        for (k, a) in all.iter().enumerate().step_by(7) {
-            let b = &all[(k * 5 + 3) % all.len()];
-            let (mut ta, mut tb) = (Trace::default(), Trace::default());
-            sim.run(&all[all.len() - 1 - k % all.len()], &mut tb);
-            sim.run_pair(a, &mut ta, b, &mut tb);
-            let want_b = &fresh[(k * 5 + 3) % all.len()];
-            assert_eq!(bits(&ta), bits(&fresh[k]), "{}: {}", sec.id, a.name);
-            assert_eq!(bits(&tb), bits(want_b), "{}: {}", sec.id, b.name);
-            sim.run_pair(a, &mut ta, a, &mut tb);
-            assert_eq!(bits(&ta), bits(&tb));
+        // Scattered orders and a strategy beside itself: the traces hold other strategies'
+        // runs, so the lanes start in different years.
+        for k in (0..all.len()).step_by(7) {
+            let which = [
+                k,
+                (k * 5 + 3) % all.len(),
+                k,
+                all.len() - 1 - k % all.len(),
+                k / 2,
+            ];
+            let mut got = 0;
+            sim.run_each_of(&all, which, &mut traces, |i, t| {
+                assert_eq!(i, which[got]);
+                assert_eq!(bits(t), bits(&fresh[i]), "{}: {}", sec.id, all[i].name);
+                got += 1;
+            });
+            assert_eq!(got, which.len());
             checked += 1;
         }
     }

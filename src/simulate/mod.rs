@@ -485,60 +485,6 @@ impl SectionSim {
         self.finish(out, c.from);
     }
 
-    /// Play two strategies at once, `a` into `ta` and `b` into `tb`, each as [`SectionSim::run`]
-    /// would (the same bits). A year's roughness depends on the year before through a chain of
-    /// roots and divisions that keeps one run waiting on itself; two runs side by side give the
-    /// processor two independent chains to work on.
-    pub fn run_pair(&self, a: &Strategy, ta: &mut Trace, b: &Strategy, tb: &mut Trace) {
-        let (fa, fb) = (self.replay_from(a, ta), self.replay_from(b, tb));
-        self.run_pair_from(a, ta, fa, b, tb, fb);
-    }
-
-    /// [`SectionSim::run_pair`] with each trace's first year to play known
-    /// ([`SectionSim::replay_from`]).
-    fn run_pair_from(
-        &self,
-        a: &Strategy,
-        ta: &mut Trace,
-        from_a: usize,
-        b: &Strategy,
-        tb: &mut Trace,
-        from_b: usize,
-    ) {
-        let n = self.years;
-        match (self.begin(a, ta, from_a), self.begin(b, tb, from_b)) {
-            (None, None) => {}
-            (Some(mut c), None) => {
-                for y in c.from..n {
-                    self.year(a, ta, y, &mut c);
-                }
-                self.finish(ta, c.from);
-            }
-            (None, Some(mut c)) => {
-                for y in c.from..n {
-                    self.year(b, tb, y, &mut c);
-                }
-                self.finish(tb, c.from);
-            }
-            (Some(mut ca), Some(mut cb)) => {
-                // The later starter's years before the other's start alone, then both in step.
-                let (fa, fb) = (ca.from, cb.from);
-                for y in fa..fb {
-                    self.year(a, ta, y, &mut ca);
-                }
-                for y in fb..fa {
-                    self.year(b, tb, y, &mut cb);
-                }
-                for y in fa.max(fb)..n {
-                    self.year(a, ta, y, &mut ca);
-                    self.year(b, tb, y, &mut cb);
-                }
-                self.finish(ta, fa);
-                self.finish(tb, fb);
-            }
-        }
-    }
-
     /// Play four strategies at once, strategy k into trace k from year `from[k]` on
     /// ([`SectionSim::replay_from`]), each as [`SectionSim::run`] would (the same bits): the
     /// works of each run one by one, the pavement's ageing of all four in one vector pass
@@ -635,8 +581,8 @@ impl SectionSim {
     }
 
     /// Play every strategy of `strategies` in order, calling `each(i, trace)` with strategy
-    /// i's run: four at a time ([`SectionSim::run_quad_from`]), each into the trace it shares
-    /// the most years with (which it replays from), then the last two or three in a pair. The
+    /// i's run: four at a time, side by side, each into the trace it shares the most years
+    /// with (which it replays from); a last group of fewer than four leaves lanes idle. The
     /// traces are `traces`' (reused across sections).
     pub fn run_each(
         &self,
