@@ -1,10 +1,11 @@
 //! Analyses of a plan held fixed, after selection: the varied inputs and their ranges
 //! ([`vary`]), the distributions of uncertain inputs ([`distribution`]), a plan held fixed
 //! ([`held`]), one-at-a-time tests and switching values ([`sensitivity`]), Monte Carlo draws
-//! ([`risk`]), and budget levels re-selected on one set of candidates
-//! ([`frontier`]).
+//! ([`risk`]), budget levels re-selected on one set of candidates ([`frontier`]), and why a
+//! section got its strategy in a written plan ([`explain`]).
 
 pub mod distribution;
+pub mod explain;
 pub mod frontier;
 pub mod held;
 pub mod risk;

@@ -9,10 +9,8 @@ use pavestrat::diag::did_you_mean;
 use pavestrat::error::{Error, Result};
 use pavestrat::input::plan::Objective;
 use pavestrat::io::{print_stdout, StreamSet};
-use pavestrat::model::money::grouped;
 use pavestrat::plan::Settings;
 use pavestrat::select::network::{Method, Options};
-use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::time::Duration;
 
@@ -121,55 +119,11 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
     }
     if args.out.out.is_none() || !ctx.quiet {
-        let m = &run.scenario.money_label;
-        let mut s = format!(
-            "Budget frontier — {} ({}; objective: {})\n\n{:>10} {:>20} {:>20} {:>20} {:>9}  status\n",
-            match &lines {
-                Lines::All => "every budget line scaled".to_owned(),
-                Lines::Only(n) => format!("only `{n}` scaled"),
-            },
-            m,
-            objective.name(),
-            "level",
-            "total budget",
-            "objective",
-            "bound",
-            "gap"
-        );
-        for p in &points {
-            let level = if p.unlimited {
-                format!("{:.4}*", p.level)
-            } else {
-                format!("{}", p.level)
-            };
-            match &p.solved {
-                Some(v) => {
-                    let _ = writeln!(
-                        s,
-                        "{level:>10} {:>20} {:>20} {:>20} {:>8.4}%  {}",
-                        grouped(p.total_budget, 0),
-                        grouped(v.objective, 0),
-                        grouped(v.bound, 0),
-                        v.gap * 100.0,
-                        v.status
-                    );
-                }
-                None => {
-                    let _ = writeln!(
-                        s,
-                        "{level:>10} {:>20} {:>20} {:>20} {:>9}  infeasible",
-                        grouped(p.total_budget, 0),
-                        "—",
-                        "—",
-                        "—"
-                    );
-                }
-            }
-        }
-        let _ = writeln!(
-            s,
-            "\n* the level at which no scaled line can bind.\n\n{}",
-            pavestrat::CAUTION
+        let s = pavestrat::output::terminal::frontier(
+            &points,
+            &lines,
+            &run.scenario.money_label,
+            objective,
         );
         print_stdout(&s)?;
     }

@@ -1,12 +1,15 @@
-//! What `plan` prints on the terminal: the plan's value against the unconstrained choice and the
-//! base, spending against every budget line with its price, the condition targets, and the
-//! certificate with what its status means.
+//! What the commands print on the terminal. `plan`: the plan's value against the unconstrained
+//! choice and the base, spending against every budget line with its price, the condition
+//! targets, and the certificate with what its status means; `risk`, `sensitivity`, `frontier`
+//! `check` and `explain`: their summaries.
 
+use crate::analysis::explain::Explanation;
+use crate::analysis::frontier::{Lines, Point};
 use crate::analysis::risk::{precision, stats, Slice};
 use crate::analysis::sensitivity::INPUTS;
 use crate::input::plan::Objective;
 use crate::input::Run;
-use crate::model::money::grouped;
+use crate::model::money::{grouped, Money};
 use crate::output::files::Facts;
 use crate::plan::{Plan, RowKind};
 use std::fmt::Write as _;
@@ -278,4 +281,235 @@ fn show(i: usize, v: Option<f64>) -> String {
         2 => format!("{:+.2} pt", v * 100.0),
         _ => format!("{:.2} %", v * 100.0),
     }
+}
+
+/// What `frontier` prints: each budget level's total budget, objective, bound, gap and status
+/// (money in `m`).
+pub fn frontier(points: &[Point], lines: &Lines, m: &str, objective: Objective) -> String {
+    let mut s = format!(
+        "Budget frontier — {} ({}; objective: {})\n\n{:>10} {:>20} {:>20} {:>20} {:>9}  status\n",
+        match lines {
+            Lines::All => "every budget line scaled".to_owned(),
+            Lines::Only(n) => format!("only `{n}` scaled"),
+        },
+        m,
+        objective.name(),
+        "level",
+        "total budget",
+        "objective",
+        "bound",
+        "gap"
+    );
+    for p in points {
+        let level = if p.unlimited {
+            format!("{:.4}*", p.level)
+        } else {
+            format!("{}", p.level)
+        };
+        match &p.solved {
+            Some(v) => {
+                let _ = writeln!(
+                    s,
+                    "{level:>10} {:>20} {:>20} {:>20} {:>8.4}%  {}",
+                    grouped(p.total_budget, 0),
+                    grouped(v.objective, 0),
+                    grouped(v.bound, 0),
+                    v.gap * 100.0,
+                    v.status
+                );
+            }
+            None => {
+                let _ = writeln!(
+                    s,
+                    "{level:>10} {:>20} {:>20} {:>20} {:>9}  infeasible",
+                    grouped(p.total_budget, 0),
+                    "—",
+                    "—",
+                    "—"
+                );
+            }
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\n* the level at which no scaled line can bind.\n\n{}",
+        crate::CAUTION
+    );
+    s
+}
+
+/// What `check` prints for a scenario that loaded with no errors and `notes` notes: what was
+/// read (scenario, network, catalogue, templates, budgets) and what `plan` will cost.
+pub fn check(run: &Run, notes: usize) -> String {
+    let s = &run.scenario;
+    let net = &run.network;
+    let regions = net.regions();
+    let lane_km: f64 = net
+        .sections
+        .iter()
+        .map(|x| x.length_km * f64::from(x.lanes))
+        .sum();
+    let per_section: u64 = 1 + run
+        .templates
+        .iter()
+        .map(|t| t.max_strategies())
+        .fold(0u64, u64::saturating_add);
+    let total: Money = s.budget_lines.iter().map(|b| b.limit).sum();
+    let mut groups: Vec<&str> = s.budget_lines.iter().map(|b| b.group.as_str()).collect();
+    groups.dedup();
+    let money = if s.money_label.is_empty() {
+        String::new()
+    } else {
+        format!(" {}", s.money_label)
+    };
+    let mut out = String::new();
+    out.push_str(&format!(
+        "{}: no errors, {} note{}\n",
+        s.file,
+        notes,
+        if notes == 1 { "" } else { "s" }
+    ));
+    out.push_str(&format!(
+        "  scenario    {}; base year {}, {} years to {}; discount rate {:.2} % ({})\n",
+        if s.title.is_empty() {
+            "(untitled)"
+        } else {
+            &s.title
+        },
+        s.base_year,
+        s.analysis_years,
+        s.last_year(),
+        s.discounting.rate() * 100.0,
+        s.discounting.timing()
+    ));
+    out.push_str(&format!(
+        "  network     {} sections, {} km, {} lane-km{}\n",
+        net.sections.len(),
+        grouped(net.length_km(), 1),
+        grouped(lane_km, 1),
+        if regions.is_empty() {
+            String::new()
+        } else {
+            format!(", regions {}", regions.join(", "))
+        }
+    ));
+    out.push_str(&format!(
+        "  treatments  {} in {}, plus routine maintenance\n",
+        run.catalogue.treatments.len(),
+        run.catalogue.file
+    ));
+    let e = crate::enumerate::Enumerator::for_run(run);
+    let strategies: usize = net.sections.iter().map(|x| e.strategies(x).len()).sum();
+    out.push_str(&format!(
+        "  templates   {}, at most {} strategies per section before feasibility rules (base included); {} strategies in all after them\n",
+        run.templates.len(),
+        per_section,
+        strategies
+    ));
+    let steps = strategies as f64 * f64::from(s.analysis_years);
+    let (seconds, bytes) = crate::resources::plan_cost(strategies as f64, s.analysis_years);
+    out.push_str(&format!(
+        "  work        `plan` simulates {steps:.0} section-years of strategies: about {} on {} threads and {} at its peak (estimates from measured rates)\n",
+        crate::resources::duration(seconds),
+        rayon::current_num_threads(),
+        crate::resources::bytes(bytes)
+    ));
+    if s.budget_lines.is_empty() {
+        out.push_str("  budgets     none (selection will be unconstrained)\n");
+    } else {
+        let first = s
+            .budget_lines
+            .iter()
+            .map(|b| b.year)
+            .min()
+            .unwrap_or(s.base_year);
+        let last = s
+            .budget_lines
+            .iter()
+            .map(|b| b.year)
+            .max()
+            .unwrap_or(s.base_year);
+        out.push_str(&format!(
+            "  budgets     {} lines in {} group{} ({}), {first}–{last}, {}{money} in all\n",
+            s.budget_lines.len(),
+            groups.len(),
+            if groups.len() == 1 { "" } else { "s" },
+            groups.join(", "),
+            grouped(total.to_f64(), 0),
+        ));
+    }
+    out
+}
+
+/// What `explain` prints: every candidate of the section at the plan's prices, the chosen one
+/// marked, and how firm the choice is.
+pub fn explain(e: &Explanation) -> String {
+    let (id, chosen, unconstrained) = (&e.section, e.chosen.as_str(), &e.unconstrained);
+    let (opts, least_cost, money) = (&e.candidates, e.least_cost, &e.money);
+    let mut s = format!(
+        "Section {id}: the plan gives it `{chosen}`{}.\n\n",
+        if chosen == unconstrained {
+            " — also its best with no budget limits".to_owned()
+        } else {
+            format!("; with no budget limits it would get `{unconstrained}`")
+        }
+    );
+    let value_name = if least_cost { "−PV agency" } else { "NPV" };
+    let _ = writeln!(
+        s,
+        "Each candidate at the plan's budget prices (money in {money}); priced value = {value_name} − Σ price × use:"
+    );
+    let _ = writeln!(
+        s,
+        "  {:<36} {:>16} {:>16} {:>16}",
+        "strategy", value_name, "priced use", "priced value"
+    );
+    for o in opts {
+        let mark = if o.strategy == chosen { "*" } else { " " };
+        let _ = writeln!(
+            s,
+            "{mark} {:<36} {:>16} {:>16} {:>16}",
+            o.strategy,
+            grouped(o.value, 0),
+            grouped(o.priced, 0),
+            grouped(o.priced_value(), 0)
+        );
+    }
+    let pos = opts.iter().position(|o| o.strategy == chosen);
+    match pos {
+        Some(0) if opts.len() > 1 => {
+            let m = opts[0].priced_value() - opts[1].priced_value();
+            let _ = writeln!(
+                s,
+                "\n`{chosen}` has the highest priced value, {} {money} ahead of the runner-up `{}`.",
+                grouped(m, 0),
+                opts[1].strategy
+            );
+            if m.abs() < 1e-6 * opts[0].value.abs().max(1.0) {
+                s.push_str("The two tie at these prices: the budgets split between them.\n");
+            }
+        }
+        Some(0) => s.push_str("\nIt is the only candidate left (the others are dominated or excluded by commitments).\n"),
+        Some(k) => {
+            let m = opts[0].priced_value() - opts[k].priced_value();
+            let _ = writeln!(
+                s,
+                "\n`{}` has a higher priced value by {} {money}, but the budgets cannot give every section its \
+                 best at these prices: this section is one the whole-plan search settled, trading with others \
+                 for whole projects.",
+                opts[0].strategy,
+                grouped(m, 0)
+            );
+        }
+        None => s.push_str("\nThe chosen strategy is missing from candidates.csv: the directory's files do not belong to one run.\n"),
+    }
+    if let Some(o) = opts.iter().find(|o| o.strategy == chosen) {
+        let _ = writeln!(
+            s,
+            "Its NPV against the base: {} {money}.",
+            grouped(o.npv, 0)
+        );
+    }
+    let _ = writeln!(s, "\n{}", crate::CAUTION);
+    s
 }
