@@ -49,6 +49,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
 
     let mut sections = Vec::new();
     let mut seen: HashMap<String, usize> = HashMap::new();
+    let mut regions = crate::model::region::Interner::default();
     while let Some(line) = input.next_row(d) {
         let record = input.record();
         // Duplicates are checked on the raw id, so a bad row still claims its id.
@@ -73,6 +74,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
             record,
             cols: &cols,
             d,
+            regions: &mut regions,
             ok: true,
         };
         if let Some(s) = row.section() {
@@ -162,6 +164,7 @@ struct Row<'a> {
     record: &'a csv::StringRecord,
     cols: &'a Columns,
     d: &'a mut Diagnostics,
+    regions: &'a mut crate::model::region::Interner,
     ok: bool,
 }
 
@@ -331,7 +334,7 @@ impl<'a> Row<'a> {
             "a yearly growth rate as a fraction from -0.5 to 0.5 (0.03 for 3 %)",
         );
 
-        let region = self.opt_raw(0).map(str::to_owned);
+        let region = self.opt_raw(0).map(|r| self.regions.get(r));
         let lane_width_m = match self.opt_raw(1) {
             Some(r) => self.number(
                 "lane_width_m",

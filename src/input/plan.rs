@@ -27,8 +27,7 @@
 
 use super::tomldoc::{Table, Value};
 use crate::diag::{Diagnostics, Place};
-use crate::model::SectionId;
-use crate::model::Year;
+use crate::model::{Region, SectionId, Year};
 
 /// What the selection optimises.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -101,7 +100,7 @@ pub struct TargetLine {
     pub year: Year,
     pub measure: Measure,
     pub at_most: f64,
-    pub region: Option<String>,
+    pub region: Option<Region>,
     pub place: Place,
 }
 

@@ -35,7 +35,7 @@ use crate::diag::{Diagnostics, Place};
 use crate::economics::{Discounting, Timing};
 use crate::model::catalogue::Category;
 use crate::model::money::Money;
-use crate::model::{Year, YearOffset};
+use crate::model::{Region, Year, YearOffset};
 use std::path::{Path, PathBuf};
 
 /// The vehicle classes every unit value and traffic share is given for.
@@ -86,7 +86,7 @@ pub struct BudgetLine {
     pub year: Year,
     pub limit: Money,
     pub category: Category,
-    pub region: Option<String>,
+    pub region: Option<Region>,
     /// Where the `[[budget]]` entry is.
     pub place: Place,
 }
@@ -473,9 +473,9 @@ fn read_unit_values(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<UnitVal
 pub(super) fn optional_region(
     t: &mut Table<'_, '_>,
     d: &mut Diagnostics,
-) -> Option<Option<String>> {
+) -> Option<Option<Region>> {
     match t.get("region") {
-        Some(v) => v.string(d).map(|s| Some(s.to_owned())),
+        Some(v) => v.string(d).map(|s| Some(Region::new(s))),
         None => Some(None),
     }
 }

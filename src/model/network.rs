@@ -1,7 +1,7 @@
 //! The road network as the tool holds it: sections with their attributes, read and checked by
 //! [`crate::input::network`].
 
-use crate::model::{SectionId, Year};
+use crate::model::{Region, SectionId, Year};
 
 /// Single carriageway (two-way, undivided) or divided (dual carriageway).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -46,7 +46,7 @@ pub struct Section {
     pub heavy_share: f64,
     /// Yearly compound traffic growth, as a fraction.
     pub growth_rate: f64,
-    pub region: Option<String>,
+    pub region: Option<Region>,
     pub lane_width_m: Option<f64>,
     pub surface: Option<String>,
     pub subgrade_mr_mpa: Option<f64>,

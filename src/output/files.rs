@@ -174,7 +174,7 @@ pub fn work_programme<'a>(run: &'a Run, p: &'a Plan) -> impl Iterator<Item = Wor
             section_id: sec.id.as_str().to_owned(),
             treatment: t.id.clone(),
             cost: Cents::of(w.cost),
-            region: sec.region.clone().unwrap_or_default(),
+            region: sec.region.as_deref().unwrap_or_default().to_owned(),
             category: t.category.name().to_owned(),
         }
     })
@@ -188,7 +188,7 @@ pub fn section_plan(run: &Run, e: &Enumerator<'_>, p: &Plan, g: usize) -> Sectio
     let u = &c.unconstrained[g];
     SectionPlan {
         section_id: sec.id.as_str().to_owned(),
-        region: sec.region.clone().unwrap_or_default(),
+        region: sec.region.as_deref().unwrap_or_default().to_owned(),
         strategy: e.name(c.strategy[k]),
         npv: Cents::of(c.npv[k]),
         pv_agency_cost: Cents::of(c.pv_agency[k]),
@@ -249,7 +249,7 @@ pub fn budget_use(run: &Run, p: &Plan) -> Vec<BudgetUse> {
                 used: Dec(used.0.round_dp(2)),
                 price: Price(p.outcome.prices[j]),
                 category: line.category.name().to_owned(),
-                region: line.region.clone().unwrap_or_default(),
+                region: line.region.as_deref().unwrap_or_default().to_owned(),
                 slack: Dec((limit.0 - used.0).round_dp(2)),
                 group: line.group.clone(),
             })
@@ -274,7 +274,7 @@ pub fn target_use(run: &Run, p: &Plan) -> Vec<TargetUse> {
             at_most: Real(t.at_most),
             achieved: Fixed::of(p.achieved[out.len()]),
             price: Price(p.outcome.prices[j]),
-            region: t.region.clone().unwrap_or_default(),
+            region: t.region.as_deref().unwrap_or_default().to_owned(),
             length_km: Real(crate::plan::target_length(run, t)),
         });
     }
