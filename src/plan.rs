@@ -455,6 +455,10 @@ struct SectionCands {
     widening: Vec<WideningOption>,
     /// Commitments no strategy keeps: (place, what was found, what was expected), added to.
     problems: Vec<(Place, String, String)>,
+    /// The traces the strategies are played into, reused from section to section.
+    traces: [Trace; crate::simulate::SIDE_BY_SIDE],
+    /// The base's flows.
+    base_flows: crate::simulate::Flows,
 }
 
 /// The candidates of one parallel chunk of sections, in network order, before they join the
@@ -523,11 +527,6 @@ fn section_candidates(
     } else {
         e.unnamed_strategies(sec)
     };
-    let mut base = Trace::default();
-    sim.run(&strategies[0], &mut base);
-    let base_flows = base.flows(d);
-    // Each strategy replays only the years after its works part from an earlier one's.
-    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
     // The buffers are the previous section's, emptied.
     out.offers.clear();
     out.strategy.clear();
@@ -536,7 +535,6 @@ fn section_candidates(
     out.widening.clear();
     out.enumerated = strategies.len() as u32;
     out.unconstrained = Unconstrained::default();
-    out.base_pv_agency = d.pv(y0, &base_flows.agency);
     let mut widening: Vec<(usize, Year, f64)> = Vec::new();
     // Every strategy's own flows, for the widening's return against the same works without it
     // (kept only where some strategy widens).
@@ -548,10 +546,18 @@ fn section_candidates(
     let mut u = Vec::new();
     let mut own = crate::simulate::Flows::default();
     let reads = SectionRows::new(run, rows, sec);
-    sim.run_each(&strategies, &mut traces, |i, t| {
+    let base_flows = &mut out.base_flows;
+    let base_pv_agency = &mut out.base_pv_agency;
+    // The base is the first strategy, played (and so known) before any other is valued; each
+    // strategy replays only the years after its works part from an earlier one's.
+    sim.run_each(&strategies, &mut out.traces, |i, t| {
         let st = &strategies[i];
+        if i == 0 {
+            t.flows_into(d, base_flows);
+            *base_pv_agency = d.pv(y0, &base_flows.agency);
+        }
         t.flows_into(d, &mut own);
-        let npv = crate::evaluate::npv_against(d, y0, &own, &base_flows);
+        let npv = crate::evaluate::npv_against(d, y0, &own, base_flows);
         if let Some(w) = st.widening_year(&run.catalogue) {
             widening.push((i, y0 + w, npv));
         }
