@@ -619,8 +619,7 @@ impl SectionModel {
         let mut sl = [0.0; 4];
         for k in 0..4 {
             iri[k] = c[k].iri;
-            // psr_from_iri, as written there.
-            psr[k] = 5.0 * (-0.26 * c[k].iri).exp();
+            psr[k] = psr_from_iri(c[k].iri);
             af[k] = f.at(c[k].age);
             psi[k] = c[k].psi_per_esal;
             per[k] = c[k].per_esal;
