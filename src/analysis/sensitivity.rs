@@ -180,7 +180,7 @@ impl<'a> Probe<'a> {
         }
     }
 
-    /// The NPVs of `which` (not yet known), two at a time.
+    /// The NPVs of `which` (not yet known), played side by side.
     fn simulate(&mut self, which: &[usize]) {
         let Probe {
             sim,
@@ -208,7 +208,8 @@ impl<'a> Probe<'a> {
 
     /// Whether the highest NPV (the first of equals, as [`argmax`] takes it) is another
     /// strategy's than `best`'s: strategies are tried in `order` (every other one, likeliest
-    /// first), two at a time, until one would be chosen over `best`.
+    /// first), a group of [`crate::simulate::SIDE_BY_SIDE`] at a time (the lanes of one
+    /// side-by-side run), until one would be chosen over `best`.
     fn beaten(&mut self, best: usize, order: &[usize]) -> bool {
         let nb = self.npv(best);
         if nb.is_nan() {
@@ -221,14 +222,14 @@ impl<'a> Probe<'a> {
             return argmax(&n) != best;
         }
         let wins = |k: usize, x: f64| x > nb || (k < best && x >= nb);
-        for pair in order.chunks(2) {
-            let todo: Vec<usize> = pair
+        for group in order.chunks(crate::simulate::SIDE_BY_SIDE) {
+            let todo: Vec<usize> = group
                 .iter()
                 .copied()
                 .filter(|&k| self.npv[k].is_none())
                 .collect();
             self.simulate(&todo);
-            if pair
+            if group
                 .iter()
                 .any(|&k| wins(k, self.npv[k].unwrap_or(f64::NAN)))
             {
@@ -431,7 +432,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 .collect();
             // NPV zero of the chosen strategy (the base has no NPV to lose).
             let mut zero: Option<(f64, f64)> = None; // (last x on the same side, first x past)
-            let mut change: Option<(f64, f64, usize)> = None;
+            let mut change: Option<(f64, f64)> = None;
             let mut prev = c;
             let sign0 = at0[chosen] > 0.0;
             for &x in &grid {
@@ -452,7 +453,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                     zero = Some((prev, x));
                 }
                 if changed {
-                    change = Some((prev, x, 0));
+                    change = Some((prev, x));
                 }
                 if (zero.is_some() || chosen == 0) && change.is_some() {
                     break;
@@ -484,7 +485,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 });
             }
             let (value, npv, other) = match change {
-                Some((a, b, _)) => {
+                Some((a, b)) => {
                     let x = bisect(a, b, tol, |m| changes_at(i, m));
                     let n = eval(i, x, None);
                     (Some(x), Some(n[best0]), strategies[argmax(&n)].name.clone())
