@@ -13,7 +13,6 @@
 //! 100 %.
 
 use crate::analysis::held::HeldPlan;
-use crate::analysis::vary::{apply, Varied};
 use crate::enumerate::Strategy;
 use crate::evaluate::{Parts, Scales, Split};
 use crate::input::Run;
@@ -115,86 +114,106 @@ pub struct Row {
     pub other: String,
 }
 
-/// Every strategy's NPV against the base for one section under one variation.
+/// Every strategy's NPV against the base for one section with traffic growth shifted by
+/// `shift` points (`only`: just that strategy's; the others are left at 0).
 fn npvs(
-    v: &Varied,
     run: &Run,
+    shift: f64,
     sec: &Section,
     strategies: &[Strategy],
     only: Option<usize>,
 ) -> Vec<f64> {
-    let s2 = v.section(sec);
-    let sim = SectionSim::new(&v.run, &s2);
-    let mut base = Trace::default();
-    sim.run(&strategies[0], &mut base);
-    let mut traces: [Trace; crate::simulate::SIDE_BY_SIDE] = std::array::from_fn(|_| base.clone());
-    let d = v.discounting();
-    let bf = base.flows(d);
-    let y0 = run.scenario.base_year;
-    let mut npvs = vec![0.0; strategies.len()];
-    let mut own = crate::simulate::Flows::default();
-    let which = (1..strategies.len()).filter(|&i| only.is_none_or(|o| o == i));
-    sim.run_each_of(strategies, which, &mut traces, |i, t| {
-        t.flows_into(d, &mut own);
-        npvs[i] = crate::evaluate::npv_against(d, y0, &own, &bf);
-    });
-    npvs
+    let mut p = Probe::new(run, shift, sec, strategies);
+    match only {
+        Some(k) => {
+            p.simulate(&[k]);
+        }
+        None => {
+            let all: Vec<usize> = (1..strategies.len()).collect();
+            p.simulate(&all);
+        }
+    }
+    p.npv.iter().map(|x| x.unwrap_or(0.0)).collect()
 }
 
-/// One section under one variation, its strategies simulated only as far as asked: the NPV of
-/// one of them, or whether any strategy would be chosen over a given one — stopping at the first
-/// that would. Every NPV is the number [`npvs`] gives (the same runs, replayed in another order,
-/// give the same bits), so a search driven by it takes the same path as one that simulates every
-/// strategy at every step; most steps of a search for the value at which the best strategy
-/// changes end at the first or second strategy tried.
+/// What a probe reuses from one probe to the next on the same thread: the four traces of a
+/// side-by-side run and two flow buffers, so that a probe allocates (almost) nothing.
+#[derive(Default)]
+struct Scratch {
+    traces: [Trace; crate::simulate::SIDE_BY_SIDE],
+    base: crate::simulate::Flows,
+    own: crate::simulate::Flows,
+}
+
+thread_local! {
+    static SCRATCH: std::cell::RefCell<Scratch> = std::cell::RefCell::default();
+}
+
+/// One section with traffic growth shifted, its strategies simulated only as far as asked: the
+/// NPV of some of them, or whether any strategy would be chosen over a given one — stopping at
+/// the first group of four that holds one. The base is played in the first group, beside the
+/// first strategies asked for. Every NPV is the number one simulation of that strategy gives
+/// (the same runs, replayed in another order or lane, give the same bits), so a search driven
+/// by a probe takes the same path as one that simulates every strategy at every step; most
+/// steps of a search for the value at which the best strategy changes end in the first group.
 struct Probe<'a> {
     sim: SectionSim,
     strategies: &'a [Strategy],
-    traces: [Trace; crate::simulate::SIDE_BY_SIDE],
-    base_flows: crate::simulate::Flows,
-    own: crate::simulate::Flows,
+    scratch: Scratch,
     d: crate::economics::Discounting,
     y0: crate::model::Year,
+    /// Each strategy's NPV against the base, once simulated (the base's is 0 once it is).
     npv: Vec<Option<f64>>,
 }
 
 impl<'a> Probe<'a> {
-    fn new(v: &Varied, run: &Run, sec: &Section, strategies: &'a [Strategy]) -> Probe<'a> {
-        let s2 = v.section(sec);
-        let sim = SectionSim::new(&v.run, &s2);
-        let mut base = Trace::default();
-        sim.run(&strategies[0], &mut base);
-        let d = *v.discounting();
-        let base_flows = base.flows(&d);
-        let mut npv = vec![None; strategies.len()];
-        npv[0] = Some(0.0);
+    /// Nothing is simulated until asked; growth is shifted as
+    /// [`crate::analysis::vary::Varied::section`] shifts it.
+    fn new(run: &Run, shift: f64, sec: &Section, strategies: &'a [Strategy]) -> Probe<'a> {
+        let mut s2 = sec.clone();
+        s2.growth_rate += shift;
         Probe {
-            sim,
+            sim: SectionSim::new(run, &s2),
             strategies,
-            traces: std::array::from_fn(|_| base.clone()),
-            base_flows,
-            own: Default::default(),
-            d,
+            scratch: SCRATCH.with(|s| std::mem::take(&mut *s.borrow_mut())),
+            d: run.scenario.discounting,
             y0: run.scenario.base_year,
-            npv,
+            npv: vec![None; strategies.len()],
         }
     }
 
-    /// The NPVs of `which` (not yet known), played side by side.
+    /// The NPVs of `which` not yet known (and the base first, if it is not), played side by
+    /// side.
     fn simulate(&mut self, which: &[usize]) {
         let Probe {
             sim,
             strategies,
-            traces,
-            base_flows,
-            own,
+            scratch,
             d,
             y0,
             npv,
         } = self;
-        sim.run_each_of(strategies, which.iter().copied(), traces, |k, t| {
-            t.flows_into(d, own);
-            npv[k] = Some(crate::evaluate::npv_against(d, *y0, own, base_flows));
+        let base = npv[0].is_none().then_some(0);
+        let todo = base
+            .into_iter()
+            .chain(
+                which
+                    .iter()
+                    .copied()
+                    .filter(|&k| k != 0 && npv[k].is_none()),
+            )
+            .collect::<Vec<_>>();
+        let Scratch { traces, base, own } = scratch;
+        // The base is the first lane of the first group: its flows are taken before any other
+        // strategy's NPV is (`run_each_of` hands the runs back in lane order).
+        sim.run_each_of(strategies, todo, traces, |k, t| {
+            if k == 0 {
+                t.flows_into(d, base);
+                npv[0] = Some(0.0);
+            } else {
+                t.flows_into(d, own);
+                npv[k] = Some(crate::evaluate::npv_against(d, *y0, own, base));
+            }
         });
     }
 
@@ -207,36 +226,60 @@ impl<'a> Probe<'a> {
     }
 
     /// Whether the highest NPV (the first of equals, as [`argmax`] takes it) is another
-    /// strategy's than `best`'s: strategies are tried in `order` (every other one, likeliest
-    /// first), a group of [`crate::simulate::SIDE_BY_SIDE`] at a time (the lanes of one
-    /// side-by-side run), until one would be chosen over `best`.
-    fn beaten(&mut self, best: usize, order: &[usize]) -> bool {
+    /// strategy's than `best`'s. `order` holds every other strategy, likeliest first; they are
+    /// played a group of [`crate::simulate::SIDE_BY_SIDE`] at a time (the first group with the
+    /// base, `best` and the strategies of `also`, whose NPVs the caller reads next) until one
+    /// would be chosen over `best`. The answer does not depend on the order: only on whether
+    /// any strategy of `order` wins.
+    fn beaten(&mut self, best: usize, order: &[usize], also: &[usize]) -> bool {
+        // The base takes a lane of the first group if it is not known yet.
+        let slots = crate::simulate::SIDE_BY_SIDE - usize::from(self.npv[0].is_none());
+        let mut first: Vec<usize> = Vec::with_capacity(crate::simulate::SIDE_BY_SIDE);
+        for k in std::iter::once(best)
+            .chain(also.iter().copied())
+            .chain(order.iter().copied())
+        {
+            if first.len() == slots {
+                break;
+            }
+            if k != 0 && self.npv[k].is_none() && !first.contains(&k) {
+                first.push(k);
+            }
+        }
+        self.simulate(&first);
         let nb = self.npv(best);
         if nb.is_nan() {
             // No comparison holds against NaN: decide as `argmax` of every NPV would.
-            let all: Vec<usize> = (0..self.strategies.len())
-                .filter(|&k| self.npv[k].is_none())
-                .collect();
+            let all: Vec<usize> = (0..self.strategies.len()).collect();
             self.simulate(&all);
             let n: Vec<f64> = self.npv.iter().map(|x| x.unwrap_or(f64::NAN)).collect();
             return argmax(&n) != best;
         }
-        let wins = |k: usize, x: f64| x > nb || (k < best && x >= nb);
-        for group in order.chunks(crate::simulate::SIDE_BY_SIDE) {
-            let todo: Vec<usize> = group
-                .iter()
-                .copied()
-                .filter(|&k| self.npv[k].is_none())
-                .collect();
-            self.simulate(&todo);
-            if group
-                .iter()
-                .any(|&k| wins(k, self.npv[k].unwrap_or(f64::NAN)))
-            {
+        let wins = |k: usize, x: Option<f64>| x.is_some_and(|x| x > nb || (k < best && x >= nb));
+        let mut next = 0;
+        loop {
+            if order.iter().any(|&k| wins(k, self.npv[k])) {
                 return true;
             }
+            let mut group: Vec<usize> = Vec::with_capacity(crate::simulate::SIDE_BY_SIDE);
+            while group.len() < crate::simulate::SIDE_BY_SIDE && next < order.len() {
+                if self.npv[order[next]].is_none() {
+                    group.push(order[next]);
+                }
+                next += 1;
+            }
+            if group.is_empty() {
+                return false;
+            }
+            self.simulate(&group);
         }
-        false
+    }
+}
+
+impl Drop for Probe<'_> {
+    fn drop(&mut self) {
+        let scratch = std::mem::take(&mut self.scratch);
+        SCRATCH.with(|s| *s.borrow_mut() = scratch);
     }
 }
 
@@ -336,16 +379,11 @@ fn bisect(mut a: f64, mut b: f64, tol: f64, mut pred: impl FnMut(f64) -> bool) -
     b
 }
 
-fn value_of(run: &Run, i: usize, x: f64) -> Varied {
-    apply(run, &[(INPUTS[i].0, x)])
-}
-
 /// The variations every section shares, built once: each input at its two tested values.
 struct Shared {
     central: [f64; 4],
-    /// Per input ([`INPUTS`] order): (test, value, the run with it — only for inputs that
-    /// simulate again; the others are weighed from the split money).
-    tested: Vec<[(&'static str, f64, Option<Varied>); 2]>,
+    /// Per input ([`INPUTS`] order): (test, value).
+    tested: Vec<[(&'static str, f64); 2]>,
 }
 
 impl Shared {
@@ -355,8 +393,7 @@ impl Shared {
             tested: (0..INPUTS.len())
                 .map(|i| {
                     let (lo, hi) = tests.values(i);
-                    let at = |x: f64| (!is_linear(i)).then(|| value_of(run, i, x));
-                    [("low", lo, at(lo)), ("high", hi, at(hi))]
+                    [("low", lo), ("high", hi)]
                 })
                 .collect(),
         }
@@ -382,14 +419,14 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
         if is_linear(i) {
             argmax(&lin.npvs(run, i, x)) != best0
         } else {
-            Probe::new(&value_of(run, i, x), run, sec, strategies).beaten(best0, &order)
+            Probe::new(run, x, sec, strategies).beaten(best0, &order, &[])
         }
     };
     let eval = |i: usize, x: f64, only: Option<usize>| -> Vec<f64> {
         if is_linear(i) {
             lin.npvs(run, i, x)
         } else {
-            npvs(&value_of(run, i, x), run, sec, strategies, only)
+            npvs(run, x, sec, strategies, only)
         }
     };
     let mut rows = vec![Row {
@@ -404,12 +441,8 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
         other: String::new(),
     }];
     for (i, &c) in shared.central.iter().enumerate() {
-        for (test, x, v) in &shared.tested[i] {
-            let (test, x) = (*test, *x);
-            let n = match v {
-                Some(v) => npvs(v, run, sec, strategies, Some(chosen))[chosen],
-                None => lin.npvs(run, i, x)[chosen],
-            };
+        for &(test, x) in &shared.tested[i] {
+            let n = eval(i, x, Some(chosen))[chosen];
             rows.push(Row {
                 section: Some(g),
                 strategy: strategies[chosen].name.clone(),
@@ -440,14 +473,14 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                     let n = lin.npvs(run, i, x);
                     (n[chosen], change.is_none() && argmax(&n) != best0)
                 } else {
-                    // Only what is still looked for is simulated.
-                    let mut p = Probe::new(&value_of(run, i, x), run, sec, strategies);
-                    let n_chosen = if zero.is_none() && chosen != 0 {
-                        p.npv(chosen)
-                    } else {
-                        0.0
-                    };
-                    (n_chosen, change.is_none() && p.beaten(best0, &order))
+                    // Only what is still looked for is simulated: the chosen strategy's NPV
+                    // while its zero is not found, beside the first group of the search for a
+                    // change.
+                    let mut p = Probe::new(run, x, sec, strategies);
+                    let wants_zero = zero.is_none() && chosen != 0;
+                    let also = if wants_zero { vec![chosen] } else { Vec::new() };
+                    let changed = change.is_none() && p.beaten(best0, &order, &also);
+                    (if wants_zero { p.npv(chosen) } else { 0.0 }, changed)
                 };
                 if zero.is_none() && chosen != 0 && (n_chosen > 0.0) != sign0 {
                     zero = Some((prev, x));
@@ -508,8 +541,8 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     rows
 }
 
-/// The plan's NPV (chosen strategies, network order) under one variation.
-fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
+/// The plan's NPV (chosen strategies, network order) with growth shifted by `shift` points.
+fn plan_npv(run: &Run, held: &HeldPlan, shift: f64) -> f64 {
     let per: Vec<f64> = run
         .network
         .sections
@@ -520,7 +553,7 @@ fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
             if c == 0 {
                 0.0
             } else {
-                npvs(v, run, sec, &held.strategies[g], Some(c))[c]
+                npvs(run, shift, sec, &held.strategies[g], Some(c))[c]
             }
         })
         .collect();
@@ -531,7 +564,7 @@ fn plan_npv(run: &Run, held: &HeldPlan, v: &Varied) -> f64 {
 /// (`chosen`) for the linear inputs, simulated again for growth.
 fn plan_npv_at(run: &Run, held: &HeldPlan, chosen: &[Option<Linear>], i: usize, x: f64) -> f64 {
     if !is_linear(i) {
-        return plan_npv(run, held, &value_of(run, i, x));
+        return plan_npv(run, held, x);
     }
     let per: Vec<f64> = chosen
         .par_iter()
@@ -574,8 +607,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
         other: String::new(),
     }];
     for (i, &c) in shared.central.iter().enumerate() {
-        for (test, x, v) in &shared.tested[i] {
-            let (test, x) = (*test, *x);
+        for &(test, x) in &shared.tested[i] {
             rows.push(Row {
                 section: None,
                 strategy: String::new(),
@@ -584,10 +616,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
-                npv: Some(match v {
-                    Some(v) => plan_npv(run, held, v),
-                    None => plan_npv_at(run, held, &chosen, i, x),
-                }),
+                npv: Some(plan_npv_at(run, held, &chosen, i, x)),
                 other: String::new(),
             });
         }
@@ -668,6 +697,11 @@ pub fn rows(run: &Run, rows: &[Row]) -> Vec<crate::schema::analysis::Sensitivity
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::analysis::vary::{apply, Varied};
+
+    fn value_of(run: &Run, i: usize, x: f64) -> Varied {
+        apply(run, &[(INPUTS[i].0, x)])
+    }
     use crate::enumerate::Enumerator;
 
     /// The demo with its first `n` sections, and each section's best strategy with no limits as
@@ -687,13 +721,12 @@ mod tests {
             .iter()
             .map(|s| e.strategies(s))
             .collect();
-        let plain = apply(&run, &[]);
         let chosen = run
             .network
             .sections
             .iter()
             .zip(&strategies)
-            .map(|(sec, st)| argmax(&npvs(&plain, &run, sec, st, None)))
+            .map(|(sec, st)| argmax(&npvs(&run, 0.0, sec, st, None)))
             .collect();
         (
             run,
@@ -808,5 +841,54 @@ mod tests {
         assert!(net(1, "low") < net(1, "high"));
         assert!(net(2, "low") < net(2, "high"));
         assert!(net(3, "low") > net(3, "high"));
+    }
+
+    /// A probe's NPVs are the bits of each strategy run alone against the base run alone, in
+    /// whatever order and lanes it plays them, and whether the best strategy is beaten is the
+    /// answer `argmax` of every NPV gives — at shifts of growth either side, for every strategy
+    /// taken as the one to beat and with strategies asked for beside the first group.
+    #[test]
+    fn a_probe_answers_as_every_strategy_run_alone() {
+        let (run, held) = small_demo(12);
+        let d = run.scenario.discounting;
+        let y0 = run.scenario.base_year;
+        let mut checked = (0, 0);
+        for (g, sec) in run.network.sections.iter().enumerate() {
+            let strategies = &held.strategies[g];
+            for shift in [-0.03, -0.004, 0.0, 0.0125, 0.05] {
+                let mut s2 = sec.clone();
+                s2.growth_rate += shift;
+                let sim = SectionSim::new(&run, &s2);
+                let mut t = Trace::default();
+                sim.run(&strategies[0], &mut t);
+                let bf = t.flows(&d);
+                let alone: Vec<f64> = strategies
+                    .iter()
+                    .map(|st| {
+                        sim.run(st, &mut t);
+                        crate::evaluate::npv_against(&d, y0, &t.flows(&d), &bf)
+                    })
+                    .collect();
+                for best in 0..strategies.len() {
+                    let order: Vec<usize> =
+                        (0..strategies.len()).rev().filter(|&k| k != best).collect();
+                    let also = [strategies.len() / 2];
+                    let mut p = Probe::new(&run, shift, sec, strategies);
+                    let beaten = p.beaten(best, &order, &also);
+                    assert_eq!(beaten, argmax(&alone) != best, "section {g} shift {shift}");
+                    checked.0 += 1;
+                    for k in 0..strategies.len() {
+                        if let Some(x) = p.npv[k] {
+                            assert_eq!(x.to_bits(), alone[k].to_bits(), "{g} {shift} {k}");
+                            checked.1 += 1;
+                        }
+                    }
+                }
+                let all = npvs(&run, shift, sec, strategies, None);
+                let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+                assert_eq!(bits(&all), bits(&alone));
+            }
+        }
+        assert!(checked.0 > 100 && checked.1 > 1000, "{checked:?}");
     }
 }
