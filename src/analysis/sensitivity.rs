@@ -877,9 +877,9 @@ mod tests {
                     let beaten = p.beaten(best, &order, &also);
                     assert_eq!(beaten, argmax(&alone) != best, "section {g} shift {shift}");
                     checked.0 += 1;
-                    for k in 0..strategies.len() {
-                        if let Some(x) = p.npv[k] {
-                            assert_eq!(x.to_bits(), alone[k].to_bits(), "{g} {shift} {k}");
+                    for (k, (x, a)) in p.npv.iter().zip(&alone).enumerate() {
+                        if let Some(x) = x {
+                            assert_eq!(x.to_bits(), a.to_bits(), "{g} {shift} {k}");
                             checked.1 += 1;
                         }
                     }
