@@ -97,8 +97,9 @@ fn search(i: usize) -> (f64, f64, Vec<f64>) {
 pub struct Row {
     /// `None` for the network plan.
     pub section: Option<usize>,
-    /// The strategy the row is about (the chosen one; for `best-changes`, the best one).
-    pub strategy: String,
+    /// The strategy the row is about (the chosen one; for `best-changes`, the best one), by
+    /// its position among the section's strategies; `None` for the network plan.
+    pub strategy: Option<usize>,
     /// Index into [`INPUTS`]; `None` for the scenario row.
     pub input: Option<usize>,
     /// `scenario`, `low`, `high`, `npv-zero` or `best-changes`.
@@ -110,8 +111,9 @@ pub struct Row {
     /// The value less the scenario's.
     pub change: Option<f64>,
     pub npv: Option<f64>,
-    /// For `best-changes`: the strategy that becomes best.
-    pub other: String,
+    /// For `best-changes`: the strategy that becomes best (`None`: no change found, or
+    /// another test).
+    pub other: Option<usize>,
 }
 
 /// Every strategy's NPV against the base for one section with traffic growth shifted by
@@ -431,28 +433,28 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     };
     let mut rows = vec![Row {
         section: Some(g),
-        strategy: strategies[chosen].name.clone(),
+        strategy: Some(chosen),
         input: None,
         test: "scenario",
         direction: "",
         value: None,
         change: None,
         npv: Some(at0[chosen]),
-        other: String::new(),
+        other: None,
     }];
     for (i, &c) in shared.central.iter().enumerate() {
         for &(test, x) in &shared.tested[i] {
             let n = eval(i, x, Some(chosen))[chosen];
             rows.push(Row {
                 section: Some(g),
-                strategy: strategies[chosen].name.clone(),
+                strategy: Some(chosen),
                 input: Some(i),
                 test,
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
                 npv: Some(n),
-                other: String::new(),
+                other: None,
             });
         }
         let (min, max, steps) = search(i);
@@ -507,27 +509,27 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 };
                 rows.push(Row {
                     section: Some(g),
-                    strategy: strategies[chosen].name.clone(),
+                    strategy: Some(chosen),
                     input: Some(i),
                     test: "npv-zero",
                     direction,
                     value: row.0,
                     change: row.0.map(|x| x - c),
                     npv: row.1,
-                    other: String::new(),
+                    other: None,
                 });
             }
             let (value, npv, other) = match change {
                 Some((a, b)) => {
                     let x = bisect(a, b, tol, |m| changes_at(i, m));
                     let n = eval(i, x, None);
-                    (Some(x), Some(n[best0]), strategies[argmax(&n)].name.clone())
+                    (Some(x), Some(n[best0]), Some(argmax(&n)))
                 }
-                None => (None, None, String::new()),
+                None => (None, None, None),
             };
             rows.push(Row {
                 section: Some(g),
-                strategy: strategies[best0].name.clone(),
+                strategy: Some(best0),
                 input: Some(i),
                 test: "best-changes",
                 direction,
@@ -597,27 +599,27 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
         .sum();
     let mut rows = vec![Row {
         section: None,
-        strategy: String::new(),
+        strategy: None,
         input: None,
         test: "scenario",
         direction: "",
         value: None,
         change: None,
         npv: Some(n0),
-        other: String::new(),
+        other: None,
     }];
     for (i, &c) in shared.central.iter().enumerate() {
         for &(test, x) in &shared.tested[i] {
             rows.push(Row {
                 section: None,
-                strategy: String::new(),
+                strategy: None,
                 input: Some(i),
                 test,
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
                 npv: Some(plan_npv_at(run, held, &chosen, i, x)),
-                other: String::new(),
+                other: None,
             });
         }
         let (min, max, steps) = search(i);
@@ -643,14 +645,14 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
             });
             rows.push(Row {
                 section: None,
-                strategy: String::new(),
+                strategy: None,
                 input: Some(i),
                 test: "npv-zero",
                 direction,
                 value,
                 change: value.map(|x| x - c),
                 npv: value.map(|x| plan_npv_at(run, held, &chosen, i, x)),
-                other: String::new(),
+                other: None,
             });
         }
     }
@@ -666,32 +668,45 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
     rows
 }
 
-/// `sensitivity.csv`'s rows: the network plan's first, then each section's.
-pub fn rows(run: &Run, rows: &[Row]) -> Vec<crate::schema::analysis::Sensitivity> {
+/// `sensitivity.csv`'s row for `r`, its strategies named from `held`.
+pub fn record(run: &Run, held: &HeldPlan, r: &Row) -> crate::schema::analysis::Sensitivity {
     use crate::schema::value::{Cents, Real};
-    rows.iter()
-        .map(|r| crate::schema::analysis::Sensitivity {
-            scope: if r.section.is_some() {
-                "section"
-            } else {
-                "network"
-            }
+    let name = |k: Option<usize>| match (r.section, k) {
+        (Some(g), Some(k)) => held.strategies[g][k].name.clone(),
+        _ => String::new(),
+    };
+    crate::schema::analysis::Sensitivity {
+        scope: if r.section.is_some() {
+            "section"
+        } else {
+            "network"
+        }
+        .to_owned(),
+        section_id: r
+            .section
+            .map(|g| run.network.sections[g].id.as_str())
+            .unwrap_or("")
             .to_owned(),
-            section_id: r
-                .section
-                .map(|g| run.network.sections[g].id.as_str())
-                .unwrap_or("")
-                .to_owned(),
-            strategy: r.strategy.clone(),
-            input: r.input.map(|i| INPUTS[i].1).unwrap_or("").to_owned(),
-            test: r.test.to_owned(),
-            direction: r.direction.to_owned(),
-            value: r.value.map(Real),
-            change: r.change.map(Real),
-            npv: r.npv.and_then(Cents::of_f64),
-            other_strategy: r.other.clone(),
-        })
-        .collect()
+        strategy: name(r.strategy),
+        input: r.input.map(|i| INPUTS[i].1).unwrap_or("").to_owned(),
+        test: r.test.to_owned(),
+        direction: r.direction.to_owned(),
+        value: r.value.map(Real),
+        change: r.change.map(Real),
+        npv: r.npv.and_then(Cents::of_f64),
+        other_strategy: name(r.other),
+    }
+}
+
+/// `sensitivity.csv`: the network plan's rows first, then each section's, each made and
+/// written in turn (no table of every row is held beside the text).
+pub fn text(run: &Run, held: &HeldPlan, rows: &[Row]) -> String {
+    use crate::schema::Record as _;
+    let mut s = crate::schema::analysis::Sensitivity::FILE.head();
+    for r in rows {
+        record(run, held, r).write(&mut s);
+    }
+    s
 }
 
 #[cfg(test)]
@@ -765,6 +780,7 @@ mod tests {
             .filter(|r| r.section.is_some() && r.value.is_some())
         {
             let (g, i, x) = (r.section.unwrap(), r.input.unwrap(), r.value.unwrap());
+            let name = record(&run, &held, r).strategy;
             let (min, max, _) = search(i);
             let step = 1e-6 * (max - min);
             let past = if r.direction == "up" {
@@ -791,19 +807,19 @@ mod tests {
             };
             match r.test {
                 "npv-zero" => {
-                    let at0 = npv_of(&appraised(&run, g, i, central[i]), &r.strategy);
-                    let here = npv_of(&appraised(&run, g, i, x), &r.strategy);
-                    let beyond = npv_of(&appraised(&run, g, i, past), &r.strategy);
+                    let at0 = npv_of(&appraised(&run, g, i, central[i]), &name);
+                    let here = npv_of(&appraised(&run, g, i, x), &name);
+                    let beyond = npv_of(&appraised(&run, g, i, past), &name);
                     assert!(
                         here.abs() <= 1e-5 * at0.abs().max(1.0),
                         "{} {}: NPV {here} at the switching value {x} (scenario {at0})",
-                        r.strategy,
+                        name,
                         INPUTS[i].1
                     );
                     assert!(
                         (beyond > 0.0) != (at0 > 0.0),
                         "{} {}: NPV {beyond} just past {x} keeps the scenario's sign ({at0})",
-                        r.strategy,
+                        name,
                         INPUTS[i].1
                     );
                     zeros += 1;
@@ -811,8 +827,8 @@ mod tests {
                 "best-changes" => {
                     let b_before = best_of(&appraised(&run, g, i, before));
                     let b_past = best_of(&appraised(&run, g, i, past));
-                    assert_eq!(b_before, r.strategy, "{} just before {x}", INPUTS[i].1);
-                    assert_ne!(b_past, r.strategy, "{} just past {x}", INPUTS[i].1);
+                    assert_eq!(b_before, name, "{} just before {x}", INPUTS[i].1);
+                    assert_ne!(b_past, name, "{} just past {x}", INPUTS[i].1);
                     changes += 1;
                 }
                 _ => {}

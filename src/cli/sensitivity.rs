@@ -6,7 +6,7 @@
 use super::plan::parse_seconds;
 use super::{load_scenario, parse_rate, Context, OutArg};
 use pavestrat::analysis::held::HeldPlan;
-use pavestrat::analysis::sensitivity::{analyse, rows as sensitivity_rows, Tests};
+use pavestrat::analysis::sensitivity::{analyse, text as sensitivity_text, Tests};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
 use pavestrat::plan::Settings;
@@ -112,8 +112,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             &[pavestrat::schema::analysis::SENSITIVITY],
         )?;
         set.made_for(held.plan_run.clone());
-        let table = sensitivity_rows(&run, &rows);
-        set.write(0, pavestrat::schema::text(&table).as_bytes())?;
+        set.write(0, sensitivity_text(&run, &held, &rows).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
