@@ -8,7 +8,7 @@
 //! Run with `cargo bench --bench risk [-- SIZES]`, SIZES a comma-separated list of synthetic
 //! network sizes (default `10000`); the demo is always measured. Best of three rounds.
 
-use pavestrat::analysis::held::HeldPlan;
+use pavestrat::analysis::held::{Every, HeldPlan};
 use pavestrat::analysis::risk::{simulate, Sampling};
 use pavestrat::demo::synth::synthetic_files;
 use pavestrat::diag::Diagnostics;
@@ -18,7 +18,7 @@ use pavestrat::progress::Progress;
 use std::path::Path;
 use std::time::Instant;
 
-fn unconstrained(run: &Run) -> HeldPlan {
+fn unconstrained(run: &Run) -> Every {
     let c = candidates(
         run,
         &Settings {
@@ -28,24 +28,11 @@ fn unconstrained(run: &Run) -> HeldPlan {
         },
     )
     .expect("candidates");
-    let e = pavestrat::enumerate::Enumerator::for_run(run);
-    let strategies: Vec<_> = run
-        .network
-        .sections
-        .iter()
-        .map(|s| e.strategies(s))
-        .collect();
-    let chosen = c
-        .unconstrained
-        .iter()
-        .zip(&strategies)
-        .map(|(u, all)| all.iter().position(|s| s.key == u.strategy).unwrap_or(0))
-        .collect();
     HeldPlan {
-        strategies,
-        chosen,
+        chosen: c.unconstrained.iter().map(|u| u.strategy).collect(),
         plan_run: None,
     }
+    .every(run)
 }
 
 fn measure(label: &str, run: &Run, draws: u64) {

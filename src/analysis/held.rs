@@ -1,8 +1,10 @@
-//! A plan held fixed for `sensitivity` and `risk`: every section's strategies (enumerated once)
-//! and the one the plan chose — read from a plan's `section_plan.csv`, or selected afresh.
+//! A plan held fixed for `sensitivity` and `risk`: the strategy the plan chose for every
+//! section, by its key — read from a plan's `section_plan.csv`, or selected afresh. An analysis
+//! that weighs every strategy enumerates a section's strategies when it comes to it
+//! ([`HeldPlan::every`] for all sections at once).
 
 use crate::diag::{Diagnostics, Place};
-use crate::enumerate::{Enumerator, Strategy};
+use crate::enumerate::{Enumerator, Strategy, StrategyRef};
 use crate::error::{Error, Result};
 use crate::input::Run;
 use crate::plan::Settings;
@@ -12,25 +14,46 @@ use rayon::prelude::*;
 use std::collections::HashMap;
 use std::path::Path;
 
-/// Each section's strategies (network order) and the plan's choice among them.
+/// The plan's choice for each section (network order), by key (14 bytes a section, not the
+/// section's every strategy).
 #[derive(Debug, Clone)]
 pub struct HeldPlan {
-    pub strategies: Vec<Vec<Strategy>>,
-    pub chosen: Vec<usize>,
+    pub chosen: Vec<StrategyRef>,
     /// The run id of the `plan` whose files it was read from (from the directory's manifest);
     /// `None` when selected afresh or read from a directory without a manifest.
     pub plan_run: Option<String>,
 }
 
+/// Every section's strategies as [`Enumerator::strategies`] lists them, and the position of the
+/// plan's choice among them: for an analysis that goes over every strategy of every section
+/// many times.
+#[derive(Debug, Clone)]
+pub struct Every {
+    pub strategies: Vec<Vec<Strategy>>,
+    pub chosen: Vec<usize>,
+}
+
+/// The position of `key` among a section's `strategies` (the base's, 0, if it is not there).
+pub fn position(strategies: &[Strategy], key: StrategyRef) -> usize {
+    strategies.iter().position(|s| s.key == key).unwrap_or(0)
+}
+
 impl HeldPlan {
-    /// Every section's strategies, enumerated once.
-    fn enumerate(run: &Run) -> Vec<Vec<Strategy>> {
+    /// Every section's strategies, enumerated, with the plan's choice among them.
+    pub fn every(&self, run: &Run) -> Every {
         let e = Enumerator::for_run(run);
-        run.network
+        let strategies: Vec<Vec<Strategy>> = run
+            .network
             .sections
             .par_iter()
             .map(|s| e.strategies(s))
-            .collect()
+            .collect();
+        let chosen = strategies
+            .iter()
+            .zip(&self.chosen)
+            .map(|(st, &key)| position(st, key))
+            .collect();
+        Every { strategies, chosen }
     }
 
     /// Select a plan with these settings (as `plan` does) and hold it.
@@ -38,15 +61,10 @@ impl HeldPlan {
         let c = crate::plan::candidates(run, settings)?;
         let plan = crate::plan::select(run, c, &settings.select)?;
         let c = &plan.candidates;
-        let strategies = Self::enumerate(run);
         let chosen = (0..c.sections())
-            .map(|g| {
-                let key = c.strategy[c.chosen(&plan.outcome.plan, g)];
-                strategies[g].iter().position(|s| s.key == key).unwrap_or(0)
-            })
+            .map(|g| c.strategy[c.chosen(&plan.outcome.plan, g)])
             .collect();
         Ok(HeldPlan {
-            strategies,
             chosen,
             plan_run: None,
         })
@@ -62,7 +80,7 @@ impl HeldPlan {
             .and_then(|m| m.plan_run().map(str::to_owned));
         let t = SectionPlan::FILE.read(dir)?;
         let rows: Vec<(usize, SectionPlan)> = crate::schema::lines_of(&t)?;
-        let strategies = Self::enumerate(run);
+        let e = Enumerator::for_run(run);
         let index: HashMap<&str, usize> = run
             .network
             .sections
@@ -70,9 +88,20 @@ impl HeldPlan {
             .enumerate()
             .map(|(g, s)| (s.id.as_str(), g))
             .collect();
-        let mut chosen: Vec<Option<usize>> = vec![None; strategies.len()];
+        // Each row's strategy among its section's (enumerated in parallel, none held).
+        let found: Vec<Option<StrategyRef>> = rows
+            .par_iter()
+            .map(|(_, r)| {
+                let g = *index.get(r.section_id.as_str())?;
+                e.strategies(&run.network.sections[g])
+                    .into_iter()
+                    .find(|s| s.name == r.strategy)
+                    .map(|s| s.key)
+            })
+            .collect();
+        let mut chosen: Vec<Option<StrategyRef>> = vec![None; run.network.sections.len()];
         let mut d = Diagnostics::new();
-        for (line, r) in &rows {
+        for ((line, r), found) in rows.iter().zip(found) {
             let (id, name) = (r.section_id.as_str(), r.strategy.as_str());
             let place = Place::line(t.label.clone(), *line);
             let Some(&g) = index.get(id) else {
@@ -83,8 +112,8 @@ impl HeldPlan {
                 );
                 continue;
             };
-            match strategies[g].iter().position(|s| s.name == name) {
-                Some(k) => chosen[g] = Some(k),
+            match found {
+                Some(key) => chosen[g] = Some(key),
                 None => {
                     d.error(
                         place.with_field("strategy"),
@@ -112,8 +141,10 @@ impl HeldPlan {
             return Err(Error::Input(d));
         }
         Ok(HeldPlan {
-            strategies,
-            chosen: chosen.into_iter().map(|c| c.unwrap_or(0)).collect(),
+            chosen: chosen
+                .into_iter()
+                .map(|c| c.unwrap_or(StrategyRef::BASE))
+                .collect(),
             plan_run,
         })
     }

@@ -32,7 +32,7 @@
 //! spending is above its limit.
 
 use crate::analysis::distribution::stream;
-use crate::analysis::held::HeldPlan;
+use crate::analysis::held::Every;
 use crate::error::{Error, Result};
 use crate::evaluate::{Parts, Scales};
 use crate::input::Run;
@@ -177,7 +177,7 @@ fn budget_rows(run: &Run) -> Result<Vec<Row>, crate::error::Error> {
 }
 
 /// The layout of a run under a held plan.
-pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error> {
+pub fn layout(run: &Run, held: &Every) -> Result<Layout, crate::error::Error> {
     let rows = budget_rows(run)?;
     Ok(Layout {
         sections: run
@@ -205,7 +205,7 @@ pub fn layout(run: &Run, held: &HeldPlan) -> Result<Layout, crate::error::Error>
 }
 
 /// Compute one draw into `out` (length [`Layout::width`]).
-fn draw(run: &Run, held: &HeldPlan, rows: &[Row], values: &[(&str, f64)], out: &mut [f64]) {
+fn draw(run: &Run, held: &Every, rows: &[Row], values: &[(&str, f64)], out: &mut [f64]) {
     let v = crate::analysis::vary::apply(run, values);
     let d = v.discounting();
     let y0 = run.scenario.base_year;
@@ -262,7 +262,7 @@ struct Linear<'a> {
 
 impl<'a> Linear<'a> {
     /// `None` when some uncertain input changes more than money.
-    fn new(run: &'a Run, held: &HeldPlan, rows: &[Row]) -> Option<Linear<'a>> {
+    fn new(run: &'a Run, held: &Every, rows: &[Row]) -> Option<Linear<'a>> {
         let s = &run.scenario;
         if !s
             .uncertain
@@ -313,7 +313,7 @@ impl<'a> Linear<'a> {
     fn draw(
         &self,
         run: &Run,
-        held: &HeldPlan,
+        held: &Every,
         rows: &[Row],
         values: &[(&str, f64)],
         out: &mut [f64],
@@ -403,12 +403,14 @@ pub fn check_sampling(run: &Run, sampling: Sampling) -> Result<()> {
     Ok(())
 }
 
-/// Run draws `first .. first + draws`. When every uncertain input only scales money (the cost
+/// Run draws `first .. first + draws` of the plan `held` (every strategy of every section, as
+/// [`crate::analysis::held::HeldPlan::every`] enumerates them: each draw weighs them all). When every uncertain input
+/// only scales money (the cost
 /// and unit-value factors, time and crash unit values), each strategy is simulated once and the
 /// draws weigh its split money; otherwise every draw simulates every strategy.
 pub fn simulate(
     run: &Run,
-    held: &HeldPlan,
+    held: &Every,
     seed: u64,
     sampling: Sampling,
     first: u64,
@@ -823,7 +825,9 @@ mod tests {
             budget_scale: 1.0,
             select: Default::default(),
         };
-        let held = HeldPlan::select(&run, &settings).unwrap();
+        let held = crate::analysis::held::HeldPlan::select(&run, &settings)
+            .unwrap()
+            .every(&run);
         let rows = budget_rows(&run).unwrap();
         let linear = Linear::new(&run, &held, &rows).expect("money-only inputs");
         let width = layout(&run, &held).unwrap().width();

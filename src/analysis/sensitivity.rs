@@ -13,6 +13,7 @@
 //! 100 %.
 
 use crate::analysis::held::HeldPlan;
+use crate::enumerate::{Enumerator, StrategyRef};
 use crate::enumerate::Strategy;
 use crate::evaluate::{Parts, Scales, Split};
 use crate::input::Run;
@@ -98,8 +99,8 @@ pub struct Row {
     /// `None` for the network plan.
     pub section: Option<usize>,
     /// The strategy the row is about (the chosen one; for `best-changes`, the best one), by
-    /// its position among the section's strategies; `None` for the network plan.
-    pub strategy: Option<usize>,
+    /// key; `None` for the network plan.
+    pub strategy: Option<StrategyRef>,
     /// Index into [`INPUTS`]; `None` for the scenario row.
     pub input: Option<usize>,
     /// `scenario`, `low`, `high`, `npv-zero` or `best-changes`.
@@ -113,7 +114,7 @@ pub struct Row {
     pub npv: Option<f64>,
     /// For `best-changes`: the strategy that becomes best (`None`: no change found, or
     /// another test).
-    pub other: Option<usize>,
+    pub other: Option<StrategyRef>,
 }
 
 /// Every strategy's NPV against the base for one section with traffic growth shifted by
@@ -403,10 +404,16 @@ impl Shared {
 }
 
 /// Everything for one section.
-fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Row> {
+fn section_rows(
+    run: &Run,
+    e: &Enumerator,
+    held: &HeldPlan,
+    g: usize,
+    shared: &Shared,
+) -> Vec<Row> {
     let sec = &run.network.sections[g];
-    let strategies = &held.strategies[g];
-    let chosen = held.chosen[g];
+    let strategies = &e.strategies(sec);
+    let chosen = crate::analysis::held::position(strategies, held.chosen[g]);
     // Every strategy once, its money split: the scenario's NPVs, and the cost, unit-value and
     // rate tests, need no other simulation; growth simulates again at each value.
     let all: Vec<usize> = (0..strategies.len()).collect();
@@ -433,7 +440,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     };
     let mut rows = vec![Row {
         section: Some(g),
-        strategy: Some(chosen),
+        strategy: Some(strategies[chosen].key),
         input: None,
         test: "scenario",
         direction: "",
@@ -447,7 +454,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
             let n = eval(i, x, Some(chosen))[chosen];
             rows.push(Row {
                 section: Some(g),
-                strategy: Some(chosen),
+                strategy: Some(strategies[chosen].key),
                 input: Some(i),
                 test,
                 direction: "",
@@ -509,7 +516,7 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 };
                 rows.push(Row {
                     section: Some(g),
-                    strategy: Some(chosen),
+                    strategy: Some(strategies[chosen].key),
                     input: Some(i),
                     test: "npv-zero",
                     direction,
@@ -523,13 +530,13 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
                 Some((a, b)) => {
                     let x = bisect(a, b, tol, |m| changes_at(i, m));
                     let n = eval(i, x, None);
-                    (Some(x), Some(n[best0]), Some(argmax(&n)))
+                    (Some(x), Some(n[best0]), Some(strategies[argmax(&n)].key))
                 }
                 None => (None, None, None),
             };
             rows.push(Row {
                 section: Some(g),
-                strategy: Some(best0),
+                strategy: Some(strategies[best0].key),
                 input: Some(i),
                 test: "best-changes",
                 direction,
@@ -543,20 +550,20 @@ fn section_rows(run: &Run, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Ro
     rows
 }
 
+/// Each section's base and chosen strategy, rebuilt from the held key (`None` for a section
+/// left at its base).
+type Pairs = [Option<[Strategy; 2]>];
+
 /// The plan's NPV (chosen strategies, network order) with growth shifted by `shift` points.
-fn plan_npv(run: &Run, held: &HeldPlan, shift: f64) -> f64 {
+fn plan_npv(run: &Run, pairs: &Pairs, shift: f64) -> f64 {
     let per: Vec<f64> = run
         .network
         .sections
         .par_iter()
-        .enumerate()
-        .map(|(g, sec)| {
-            let c = held.chosen[g];
-            if c == 0 {
-                0.0
-            } else {
-                npvs(run, shift, sec, &held.strategies[g], Some(c))[c]
-            }
+        .zip(pairs)
+        .map(|(sec, pair)| match pair {
+            Some(pair) => npvs(run, shift, sec, pair, Some(1))[1],
+            None => 0.0,
         })
         .collect();
     per.iter().sum()
@@ -564,9 +571,9 @@ fn plan_npv(run: &Run, held: &HeldPlan, shift: f64) -> f64 {
 
 /// The plan's NPV with input `i` at `x`: from each section's chosen strategy split once
 /// (`chosen`) for the linear inputs, simulated again for growth.
-fn plan_npv_at(run: &Run, held: &HeldPlan, chosen: &[Option<Linear>], i: usize, x: f64) -> f64 {
+fn plan_npv_at(run: &Run, pairs: &Pairs, chosen: &[Option<Linear>], i: usize, x: f64) -> f64 {
     if !is_linear(i) {
-        return plan_npv(run, held, x);
+        return plan_npv(run, pairs, x);
     }
     let per: Vec<f64> = chosen
         .par_iter()
@@ -581,16 +588,22 @@ fn plan_npv_at(run: &Run, held: &HeldPlan, chosen: &[Option<Linear>], i: usize, 
 /// Every row: the network plan's first, then each section's.
 pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -> Vec<Row> {
     let shared = Shared::new(run, tests);
+    let e = Enumerator::for_run(run);
+    let pairs: Vec<Option<[Strategy; 2]>> = held
+        .chosen
+        .par_iter()
+        .map(|&key| {
+            let s = e.strategy(key).filter(|s| !s.is_base())?;
+            Some([Strategy::base(), s])
+        })
+        .collect();
     // Each section's chosen strategy, its money split (none for a section left at its base).
     let chosen: Vec<Option<Linear>> = run
         .network
         .sections
         .par_iter()
-        .enumerate()
-        .map(|(g, sec)| {
-            let c = held.chosen[g];
-            (c != 0).then(|| Linear::new(run, sec, &held.strategies[g], &[c]))
-        })
+        .zip(&pairs)
+        .map(|(sec, pair)| pair.as_ref().map(|pair| Linear::new(run, sec, pair, &[1])))
         .collect();
     // The plan's NPV at the scenario's values, summed in network order.
     let n0: f64 = chosen
@@ -618,7 +631,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction: "",
                 value: Some(x),
                 change: Some(x - c),
-                npv: Some(plan_npv_at(run, held, &chosen, i, x)),
+                npv: Some(plan_npv_at(run, &pairs, &chosen, i, x)),
                 other: None,
             });
         }
@@ -632,7 +645,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 .map(|s| c + sign * s)
                 .filter(|x| *x >= min && *x <= max)
             {
-                if (plan_npv_at(run, held, &chosen, i, x) > 0.0) != (n0 > 0.0) {
+                if (plan_npv_at(run, &pairs, &chosen, i, x) > 0.0) != (n0 > 0.0) {
                     found = Some((prev, x));
                     break;
                 }
@@ -640,7 +653,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
             }
             let value = found.map(|(a, b)| {
                 bisect(a, b, tol, |m| {
-                    (plan_npv_at(run, held, &chosen, i, m) > 0.0) != (n0 > 0.0)
+                    (plan_npv_at(run, &pairs, &chosen, i, m) > 0.0) != (n0 > 0.0)
                 })
             });
             rows.push(Row {
@@ -651,7 +664,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
                 direction,
                 value,
                 change: value.map(|x| x - c),
-                npv: value.map(|x| plan_npv_at(run, held, &chosen, i, x)),
+                npv: value.map(|x| plan_npv_at(run, &pairs, &chosen, i, x)),
                 other: None,
             });
         }
@@ -659,7 +672,7 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
     let per: Vec<Vec<Row>> = (0..run.network.sections.len())
         .into_par_iter()
         .map(|g| {
-            let r = section_rows(run, held, g, &shared);
+            let r = section_rows(run, &e, held, g, &shared);
             progress.inc(1);
             r
         })
@@ -668,11 +681,33 @@ pub fn analyse(run: &Run, held: &HeldPlan, tests: &Tests, progress: &Progress) -
     rows
 }
 
-/// `sensitivity.csv`'s row for `r`, its strategies named from `held`.
-pub fn record(run: &Run, held: &HeldPlan, r: &Row) -> crate::schema::analysis::Sensitivity {
+/// Strategy names by key, each made once (a file's rows name a few hundred strategies
+/// hundreds of thousands of times).
+pub struct Names<'a> {
+    e: Enumerator<'a>,
+    by_key: std::collections::HashMap<StrategyRef, String>,
+}
+
+impl<'a> Names<'a> {
+    pub fn new(run: &'a Run) -> Names<'a> {
+        Names {
+            e: Enumerator::for_run(run),
+            by_key: Default::default(),
+        }
+    }
+
+    /// The name of the strategy `key` names.
+    pub fn of(&mut self, key: StrategyRef) -> &str {
+        let e = &self.e;
+        self.by_key.entry(key).or_insert_with(|| e.name(key))
+    }
+}
+
+/// `sensitivity.csv`'s row for `r`.
+pub fn record(run: &Run, names: &mut Names, r: &Row) -> crate::schema::analysis::Sensitivity {
     use crate::schema::value::{Cents, Real};
-    let name = |k: Option<usize>| match (r.section, k) {
-        (Some(g), Some(k)) => held.strategies[g][k].name.clone(),
+    let mut name = |k: Option<StrategyRef>| match (r.section, k) {
+        (Some(_), Some(k)) => names.of(k).to_owned(),
         _ => String::new(),
     };
     crate::schema::analysis::Sensitivity {
@@ -700,11 +735,12 @@ pub fn record(run: &Run, held: &HeldPlan, r: &Row) -> crate::schema::analysis::S
 
 /// `sensitivity.csv`: the network plan's rows first, then each section's, each made and
 /// written in turn (no table of every row is held beside the text).
-pub fn text(run: &Run, held: &HeldPlan, rows: &[Row]) -> String {
+pub fn text(run: &Run, rows: &[Row]) -> String {
     use crate::schema::Record as _;
+    let mut names = Names::new(run);
     let mut s = crate::schema::analysis::Sensitivity::FILE.head();
     for r in rows {
-        record(run, held, r).write(&mut s);
+        record(run, &mut names, r).write(&mut s);
     }
     s
 }
@@ -730,23 +766,18 @@ mod tests {
         run.network.sections.truncate(n);
         run.scenario.plan.commitments.clear();
         let e = Enumerator::for_run(&run);
-        let strategies: Vec<Vec<Strategy>> = run
-            .network
-            .sections
-            .iter()
-            .map(|s| e.strategies(s))
-            .collect();
         let chosen = run
             .network
             .sections
             .iter()
-            .zip(&strategies)
-            .map(|(sec, st)| argmax(&npvs(&run, 0.0, sec, st, None)))
+            .map(|sec| {
+                let st = e.strategies(sec);
+                st[argmax(&npvs(&run, 0.0, sec, &st, None))].key
+            })
             .collect();
         (
             run,
             HeldPlan {
-                strategies,
                 chosen,
                 plan_run: None,
             },
@@ -780,7 +811,7 @@ mod tests {
             .filter(|r| r.section.is_some() && r.value.is_some())
         {
             let (g, i, x) = (r.section.unwrap(), r.input.unwrap(), r.value.unwrap());
-            let name = record(&run, &held, r).strategy;
+            let name = record(&run, &mut Names::new(&run), r).strategy;
             let (min, max, _) = search(i);
             let step = 1e-6 * (max - min);
             let past = if r.direction == "up" {
@@ -866,11 +897,12 @@ mod tests {
     #[test]
     fn a_probe_answers_as_every_strategy_run_alone() {
         let (run, held) = small_demo(12);
+        let every = held.every(&run);
         let d = run.scenario.discounting;
         let y0 = run.scenario.base_year;
         let mut checked = (0, 0);
         for (g, sec) in run.network.sections.iter().enumerate() {
-            let strategies = &held.strategies[g];
+            let strategies = &every.strategies[g];
             for shift in [-0.03, -0.004, 0.0, 0.0125, 0.05] {
                 let mut s2 = sec.clone();
                 s2.growth_rate += shift;

@@ -82,7 +82,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         }
         let held = held(&run, args.from.as_deref(), args.time_limit, ctx)?;
         plan_run.clone_from(&held.plan_run);
-        let layout = pavestrat::analysis::risk::layout(&run, &held)?;
+        // Each draw weighs every strategy of every section: enumerated once for the run.
+        let every = held.every(&run);
+        let layout = pavestrat::analysis::risk::layout(&run, &every)?;
         let raw = pavestrat::analysis::risk::check_size(&layout, args.draws)?;
         let secs = pavestrat::analysis::risk::estimated_seconds(
             &layout,
@@ -108,7 +110,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         };
         let s = simulate(
             &run,
-            &held,
+            &every,
             args.seed,
             sampling,
             args.first_draw,

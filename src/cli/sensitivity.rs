@@ -112,7 +112,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             &[pavestrat::schema::analysis::SENSITIVITY],
         )?;
         set.made_for(held.plan_run.clone());
-        set.write(0, sensitivity_text(&run, &held, &rows).as_bytes())?;
+        set.write(0, sensitivity_text(&run, &rows).as_bytes())?;
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
