@@ -13,8 +13,8 @@
 //! 100 %.
 
 use crate::analysis::held::HeldPlan;
-use crate::enumerate::{Enumerator, StrategyRef};
 use crate::enumerate::Strategy;
+use crate::enumerate::{Enumerator, StrategyRef};
 use crate::evaluate::{Parts, Scales, Split};
 use crate::input::Run;
 use crate::model::network::Section;
@@ -404,13 +404,7 @@ impl Shared {
 }
 
 /// Everything for one section.
-fn section_rows(
-    run: &Run,
-    e: &Enumerator,
-    held: &HeldPlan,
-    g: usize,
-    shared: &Shared,
-) -> Vec<Row> {
+fn section_rows(run: &Run, e: &Enumerator, held: &HeldPlan, g: usize, shared: &Shared) -> Vec<Row> {
     let sec = &run.network.sections[g];
     let strategies = &e.strategies(sec);
     let chosen = crate::analysis::held::position(strategies, held.chosen[g]);
