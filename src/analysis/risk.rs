@@ -404,10 +404,10 @@ pub fn check_sampling(run: &Run, sampling: Sampling) -> Result<()> {
 }
 
 /// Run draws `first .. first + draws` of the plan `held` (every strategy of every section, as
-/// [`crate::analysis::held::HeldPlan::every`] enumerates them: each draw weighs them all). When every uncertain input
-/// only scales money (the cost
-/// and unit-value factors, time and crash unit values), each strategy is simulated once and the
-/// draws weigh its split money; otherwise every draw simulates every strategy.
+/// [`crate::analysis::held::HeldPlan::every`] enumerates them: each draw weighs them all). When
+/// every uncertain input only scales money (the cost and unit-value factors, time and crash unit
+/// values), each strategy is simulated once and the draws weigh its split money; otherwise every
+/// draw simulates every strategy.
 pub fn simulate(
     run: &Run,
     held: &Every,
