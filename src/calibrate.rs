@@ -45,6 +45,7 @@ pub fn read_surveys(file: &str, text: &str, run: &Run, d: &mut Diagnostics) -> V
     let Some(mut csv) = CsvInput::open(file, text, "a header `section_id,year,iri`", d) else {
         return out;
     };
+    csv.text_columns(|c| c == "section_id");
     let col = |name: &str| csv.headers.iter().position(|h| h == name);
     let (cid, cyear, ciri, cworks) = (
         col("section_id"),

@@ -1,12 +1,11 @@
 //! Turning the bytes of an input file into text, and byte offsets back into lines and columns.
 //!
 //! Agencies' files come from spreadsheets and databases on every platform, so the readers accept
-//! what is harmless and say how they read it: CRLF line ends and non-UTF-8 bytes (read as
-//! Windows-1252, the usual single-byte encoding of spreadsheet exports) are accepted with a note.
-//! A UTF-8 byte-order mark is reported as an error: it is invisible in most editors and would
-//! otherwise glue itself to the first column's name, so the user is told where it is and how to
-//! save the file without it. The rest of the file is still checked, so one pass shows every
-//! problem.
+//! what is harmless and say how they read it: CRLF line ends, a UTF-8 byte-order mark (what a
+//! spreadsheet's "CSV UTF-8" export starts with; removed, so that it cannot glue itself to the
+//! first column's name) and non-UTF-8 bytes (read as Windows-1252, the usual single-byte encoding
+//! of spreadsheet exports) are accepted with a note. UTF-16 and UTF-32 are errors; the rest of
+//! such a file is still checked, so one pass shows every problem.
 
 use crate::diag::{Diagnostics, Place};
 
@@ -54,16 +53,10 @@ pub fn decode(file: &str, bytes: impl Into<Vec<u8>>, diags: &mut Diagnostics) ->
     }
     let mut offset = 0;
     if body.starts_with(BOM) {
-        diags
-            .error(
-                Place::line(file, 1).with_column(1),
-                "the file starts with a UTF-8 byte-order mark (BOM, bytes EF BB BF)",
-                "plain UTF-8 text without a byte-order mark",
-            )
-            .hint = Some(
-            "save it again as plain UTF-8 (in spreadsheets choose 'CSV' rather than 'CSV UTF-8'), \
-             or remove the first three bytes"
-                .into(),
+        diags.note(
+            Place::line(file, 1),
+            "UTF-8 with a byte-order mark (as a spreadsheet's 'CSV UTF-8' saves it); accepted, \
+             the mark removed",
         );
         body.drain(..BOM.len());
         offset = BOM.len();
@@ -217,12 +210,18 @@ mod tests {
     use super::*;
 
     #[test]
-    fn bom_is_an_error_and_is_stripped() {
+    fn bom_is_a_note_and_is_stripped() {
         let mut d = Diagnostics::new();
         let t = decode("n.csv", &b"\xEF\xBB\xBFa,b\n1,2\n"[..], &mut d);
         assert_eq!(t, "a,b\n1,2\n");
-        assert_eq!(d.error_count(), 1);
-        assert!(d.errors()[0].found.contains("byte-order mark"));
+        assert!(!d.has_errors());
+        assert_eq!(d.note_count(), 1);
+        assert!(d.iter().any(|x| x.found.contains("byte-order mark")));
+        // A mark with Windows-1252 bytes after it: both said, the mark still removed.
+        let mut d = Diagnostics::new();
+        let t = decode("n.csv", &b"\xEF\xBB\xBFa\n\xE9\n"[..], &mut d);
+        assert_eq!(t, "a\n\u{e9}\n");
+        assert_eq!(d.note_count(), 2);
     }
 
     #[test]

@@ -205,10 +205,6 @@ fn bad_inputs_are_rejected_with_their_place() {
         &["flows.csv:1: a header but no rows"],
     );
     rejected(
-        b"\xEF\xBB\xBFyear,benefit,cost\n2027,1,2\n",
-        &["flows.csv:1:1: the file starts with a UTF-8 byte-order mark"],
-    );
-    rejected(
         b"year,benefit,cost\n2027,1,2\n2028,NaN,1\n",
         &["flows.csv:3: benefit: found `NaN`"],
     );

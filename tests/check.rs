@@ -156,16 +156,88 @@ fn missing_scenario_file() {
 }
 
 #[test]
-fn byte_order_mark_is_rejected_with_a_fix() {
+fn byte_order_mark_is_accepted_with_a_note() {
     let mut net = b"\xEF\xBB\xBF".to_vec();
     net.extend_from_slice(demo_network().as_bytes());
-    expect_rejected(
-        &with_network(&net),
-        &[
-            "network.csv:1:1: the file starts with a UTF-8 byte-order mark",
-            "hint: save it again as plain UTF-8",
-        ],
-    );
+    with_network(&net)
+        .run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stderr_has("network.csv:1: UTF-8 with a byte-order mark");
+}
+
+/// The plan's files (all but the manifest, which records the input's bytes; JSON without its
+/// run ids and timings) for `network`.
+fn plan_files(network: &[u8]) -> Vec<(String, Vec<u8>)> {
+    let wd = with_network(network);
+    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res", "-q"])
+        .expect_code(0);
+    let mut files: Vec<(String, Vec<u8>)> = std::fs::read_dir(wd.join("res"))
+        .unwrap()
+        .map(|e| e.unwrap())
+        .map(|e| {
+            let name = e.file_name().to_string_lossy().into_owned();
+            let bytes = crate::golden::comparable(&name, std::fs::read(e.path()).unwrap());
+            (name, bytes)
+        })
+        .filter(|(n, _)| n != "manifest.json" && !n.starts_with('.'))
+        .collect();
+    files.sort();
+    files
+}
+
+/// The demo network saved as spreadsheets save it in other settings: semicolons with decimal
+/// commas (where the comma is the decimal separator), tabs, and each with a byte-order mark
+/// ("CSV UTF-8"): every one gives the plain file's plan, byte for byte.
+#[test]
+fn every_separator_and_a_byte_order_mark_give_the_same_plan() {
+    let plain = demo_network();
+    let semicolons: String = plain
+        .lines()
+        .map(|l| {
+            // Fields hold no commas or semicolons of their own in the demo.
+            l.split(',')
+                .map(|f| f.replacen('.', ",", 1))
+                .collect::<Vec<_>>()
+                .join(";")
+                + "\n"
+        })
+        .collect();
+    assert!(semicolons.contains(";3,3;"), "decimal commas written");
+    let tabs = plain.replace(',', "\t");
+    let want = plan_files(plain.as_bytes());
+    assert!(want.iter().any(|(n, _)| n == "section_plan.csv"));
+    for (label, text) in [
+        ("semicolons", &semicolons),
+        ("tabs", &tabs),
+        ("commas", &plain),
+    ] {
+        for bom in [false, true] {
+            if label == "commas" && !bom {
+                continue;
+            }
+            let mut bytes = if bom {
+                b"\xEF\xBB\xBF".to_vec()
+            } else {
+                Vec::new()
+            };
+            bytes.extend_from_slice(text.as_bytes());
+            let got = plan_files(&bytes);
+            assert_eq!(
+                got.iter().map(|f| &f.0).collect::<Vec<_>>(),
+                want.iter().map(|f| &f.0).collect::<Vec<_>>(),
+                "{label}, mark {bom}"
+            );
+            for ((name, a), (_, b)) in got.iter().zip(&want) {
+                assert!(a == b, "{name} differs ({label}, mark {bom})");
+            }
+        }
+    }
+    // The notes name what was read.
+    with_network(semicolons.as_bytes())
+        .run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(0)
+        .stderr_has("network.csv:1: fields separated by semicolons; accepted")
+        .stderr_has("network.csv:2: length_km: `3,3` read as 3.3 (a decimal comma)");
 }
 
 #[test]

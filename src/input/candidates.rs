@@ -67,6 +67,7 @@ pub fn parse(
         "a header `section_id,strategy,npv` (and `cost:<row>`/`use:<row>` columns) and one row per candidate",
         d,
     )?;
+    input.text_columns(|c| matches!(c, "section_id" | "strategy"));
     let headers = input.headers.clone();
     let (mut is, mut ist, mut iv) = (None, None, None);
     let mut rows: Vec<(usize, String)> = Vec::new();
@@ -239,6 +240,7 @@ pub fn parse_limits(
     let before = d.error_count();
     let mut input =
         super::csvfile::CsvInput::open(file, text, "a header `row,limit` and one row per row", d)?;
+    input.text_columns(|c| c == "row");
     let headers = input.headers.clone();
     let (mut ir, mut il) = (None, None);
     for (i, h) in headers.iter().enumerate() {

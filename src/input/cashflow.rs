@@ -43,6 +43,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Vec<Flows>> 
         "a header `year,benefit,cost` and one row per year",
         d,
     )?;
+    input.text_columns(|c| c == "alternative");
     let headers = input.headers.clone();
     let known = ["year", "benefit", "cost", "alternative"];
     let mut pos = [None; 4];

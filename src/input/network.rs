@@ -45,6 +45,9 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
         REQUIRED.join(", ")
     );
     let mut input = super::csvfile::CsvInput::open(file, text, &layout, d)?;
+    input.text_columns(|c| {
+        matches!(c, "section_id" | "region" | "surface" | "carriageway") || c.starts_with("x_")
+    });
     let cols = read_header(file, &input.headers, d)?;
 
     let mut sections = Vec::new();
