@@ -187,9 +187,11 @@ fn plan_files(network: &[u8]) -> Vec<(String, Vec<u8>)> {
 
 /// The demo network saved as spreadsheets save it in other settings: semicolons with decimal
 /// commas (where the comma is the decimal separator), tabs, and each with a byte-order mark
-/// ("CSV UTF-8"): every one gives the plain file's plan, byte for byte.
+/// ("CSV UTF-8"); its words capitalised (`Single`, `DIVIDED`, `Asphalt`); its shares and rates
+/// as percentages (`16%`, `2.2%`), and the scenario's discount rate as `"6%"`: every one gives
+/// the plain file's plan, byte for byte.
 #[test]
-fn every_separator_and_a_byte_order_mark_give_the_same_plan() {
+fn spreadsheet_variants_of_the_demo_give_the_same_plan() {
     let plain = demo_network();
     let semicolons: String = plain
         .lines()
@@ -204,12 +206,47 @@ fn every_separator_and_a_byte_order_mark_give_the_same_plan() {
         .collect();
     assert!(semicolons.contains(";3,3;"), "decimal commas written");
     let tabs = plain.replace(',', "\t");
+    // Enumerated words and surfaces in any case.
+    let capitals = plain
+        .replace(",single,", ",Single,")
+        .replace(",divided,", ",DIVIDED,")
+        .replace(",asphalt,", ",Asphalt,");
+    assert!(capitals.contains(",Single,") && capitals.contains(",Asphalt,"));
+    // Shares and rates as percentages: heavy_share and growth_rate (columns 8 and 9).
+    let percent = |f: &str| {
+        // 0.022 → 2.2%: the point moved two places in the text.
+        let (int, frac) = f.split_once('.').unwrap_or((f, ""));
+        let frac = format!("{frac:0<2}");
+        let whole = format!("{}{}", int.trim_start_matches('0'), &frac[..2]);
+        let whole = whole.trim_start_matches('0');
+        let whole = if whole.is_empty() { "0" } else { whole };
+        if frac.len() > 2 {
+            format!("{whole}.{}%", &frac[2..])
+        } else {
+            format!("{whole}%")
+        }
+    };
+    let percentages: String = plain
+        .lines()
+        .enumerate()
+        .map(|(i, l)| {
+            let mut f: Vec<String> = l.split(',').map(str::to_owned).collect();
+            if i > 0 {
+                f[7] = percent(&f[7]);
+                f[8] = percent(&f[8]);
+            }
+            f.join(",") + "\n"
+        })
+        .collect();
+    assert!(percentages.contains(",16%,2.2%,"), "{percentages}");
     let want = plan_files(plain.as_bytes());
     assert!(want.iter().any(|(n, _)| n == "section_plan.csv"));
     for (label, text) in [
         ("semicolons", &semicolons),
         ("tabs", &tabs),
         ("commas", &plain),
+        ("capitals", &capitals),
+        ("percentages", &percentages),
     ] {
         for bom in [false, true] {
             if label == "commas" && !bom {
@@ -231,6 +268,21 @@ fn every_separator_and_a_byte_order_mark_give_the_same_plan() {
                 assert!(a == b, "{name} differs ({label}, mark {bom})");
             }
         }
+    }
+    // A rate as a percentage in the scenario.
+    let wd = with_network(plain.as_bytes());
+    let scenario = wd.read("scenario.toml");
+    assert!(scenario.contains("discount_rate = 0.06\n"));
+    wd.write(
+        "scenario.toml",
+        scenario.replace("discount_rate = 0.06\n", "discount_rate = \"6%\"\n"),
+    );
+    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res", "-q"])
+        .expect_code(0);
+    for (name, bytes) in &want {
+        let got =
+            crate::golden::comparable(name, std::fs::read(wd.join("res").join(name)).unwrap());
+        assert!(&got == bytes, "{name} differs with discount_rate = \"6%\"");
     }
     // The notes name what was read.
     with_network(semicolons.as_bytes())

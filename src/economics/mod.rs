@@ -46,13 +46,11 @@ impl Timing {
         }
     }
 
-    /// Parse `end-of-year` or `mid-year`.
+    /// Parse `end-of-year` or `mid-year`, in any case.
     pub fn parse(s: &str) -> Option<Timing> {
-        match s {
-            "end-of-year" => Some(Timing::EndOfYear),
-            "mid-year" => Some(Timing::MidYear),
-            _ => None,
-        }
+        [Timing::EndOfYear, Timing::MidYear]
+            .into_iter()
+            .find(|t| t.name().eq_ignore_ascii_case(s))
     }
 }
 

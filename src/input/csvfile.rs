@@ -51,9 +51,10 @@ pub fn separator(text: &str) -> u8 {
 }
 
 /// `field` with its decimal comma made a point, when it is a number written with one comma and
-/// no point (`1,5`, `-0,25`, `,5`).
+/// no point (`1,5`, `-0,25`, `,5`, `2,2%`).
 fn decimal_point(field: &str) -> Option<String> {
     let body = field.strip_prefix(['-', '+']).unwrap_or(field);
+    let body = body.strip_suffix('%').unwrap_or(body);
     let (int, frac) = body.split_once(',')?;
     let digits = |s: &str| s.bytes().all(|b| b.is_ascii_digit());
     (digits(int) && !frac.is_empty() && digits(frac)).then(|| field.replacen(',', ".", 1))
@@ -245,6 +246,7 @@ mod tests {
         assert_eq!(decimal_point("1,5").as_deref(), Some("1.5"));
         assert_eq!(decimal_point("-0,25").as_deref(), Some("-0.25"));
         assert_eq!(decimal_point(",5").as_deref(), Some(".5"));
+        assert_eq!(decimal_point("2,2%").as_deref(), Some("2.2%"));
         for kept in ["1.5", "1,5,2", "1,", "a,5", "1,5e3", "", "12", "1.234,5"] {
             assert_eq!(decimal_point(kept), None, "{kept}");
         }

@@ -20,6 +20,28 @@ pub mod treatments;
 pub mod uncertain;
 pub mod varied;
 
+/// A percentage written as text (`6%`, `-1.5 %`, `+0.25%`) as the fraction it stands for, to the
+/// bit: the decimal point is moved two places in the text before the number is read, so `2.2%`
+/// is the same `f64` as `0.022`. `None` for anything else (no `%`, no digits, an exponent).
+pub fn percent(text: &str) -> Option<f64> {
+    let body = text.trim().strip_suffix('%')?.trim_end();
+    let (sign, digits) = match body.as_bytes().first()? {
+        b'-' => ("-", &body[1..]),
+        b'+' => ("", &body[1..]),
+        _ => ("", body),
+    };
+    let (int, frac) = digits.split_once('.').unwrap_or((digits, ""));
+    let is_digits = |s: &str| s.bytes().all(|b| b.is_ascii_digit());
+    if (int.is_empty() && frac.is_empty()) || !is_digits(int) || !is_digits(frac) {
+        return None;
+    }
+    // int.frac % = 0.(int padded to two places)frac
+    let padded = format!("{int:0>2}");
+    let (whole, hundredths) = padded.split_at(padded.len() - 2);
+    let whole = if whole.is_empty() { "0" } else { whole };
+    format!("{sign}{whole}.{hundredths}{frac}").parse().ok()
+}
+
 use crate::diag::{did_you_mean, Diagnostics, Place};
 use crate::model::catalogue::Catalogue;
 use crate::model::network::Network;
@@ -132,7 +154,7 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
 
     let read = |f: &FileRef, d: &mut Diagnostics| read_text(source, &f.path, Some(&f.place), d);
 
-    let network = read(&files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
+    let mut network = read(&files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
     let (catalogue, treatment_names) = match read(&files.treatments, d) {
         Some((l, t)) => treatments::parse(&l, &t, d),
         None => (None, Vec::new()),
@@ -167,7 +189,7 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
         check_template_treatments(&templates, &label, &treatment_names, catalogue.as_ref(), d);
     }
     check_template_sizes(&templates, d);
-    if let (Some(net), Some(families)) = (&network, &families) {
+    if let (Some(net), Some(families)) = (&mut network, &families) {
         check_surfaces(net, families, d);
     }
     let scenario = scenario?;
@@ -337,18 +359,23 @@ fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
     }
 }
 
-/// Every section's surface must name a pavement family of the scenario.
-fn check_surfaces(net: &Network, families: &[String], d: &mut Diagnostics) {
+/// Every section's surface must name a pavement family of the scenario, in any case (the
+/// surface is then spelt as the family is).
+fn check_surfaces(net: &mut Network, families: &[String], d: &mut Diagnostics) {
     let families: Vec<&str> = families.iter().map(String::as_str).collect();
-    for sec in &net.sections {
-        let Some(surface) = &sec.surface else {
+    let file = net.file.clone();
+    for sec in &mut net.sections {
+        let Some(surface) = &mut sec.surface else {
             continue;
         };
-        if families.contains(&surface.as_str()) {
+        if let Some(f) = families.iter().find(|f| f.eq_ignore_ascii_case(surface)) {
+            if *f != surface.as_str() {
+                *surface = (*f).to_owned();
+            }
             continue;
         }
         let e = d.error(
-            Place::line(net.file.clone(), sec.line).with_field("surface"),
+            Place::line(file.clone(), sec.line).with_field("surface"),
             format!("the surface `{surface}`, which has no pavement family"),
             format!(
                 "one of the scenario's [condition.family.NAME] tables: {}",
@@ -422,6 +449,53 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn percentages_are_the_fractions_they_stand_for_to_the_bit() {
+        let cases = [
+            ("6%", "0.06"),
+            ("2.2%", "0.022"),
+            (" 16 % ", "0.16"),
+            ("-1.5%", "-0.015"),
+            ("+0.25%", "0.0025"),
+            ("100%", "1"),
+            ("125.5%", "1.255"),
+            (".5%", "0.005"),
+            ("0%", "0"),
+        ];
+        for (text, fraction) in cases {
+            let want: f64 = fraction.parse().unwrap();
+            assert_eq!(
+                percent(text).map(f64::to_bits),
+                Some(want.to_bits()),
+                "{text}"
+            );
+        }
+        for bad in [
+            "6", "%", "six%", "1e2%", "1.2.3%", "--1%", "", "1,5%", "- 1%",
+        ] {
+            assert_eq!(percent(bad), None, "{bad}");
+        }
+    }
+
+    proptest::proptest! {
+        // Any decimal with up to six places, as a percentage, is the number a hundred times
+        // smaller written out, to the bit.
+        #[test]
+        fn any_percentage_reads_as_its_fraction(units in -10_000_000i64..10_000_000, places in 0u32..6) {
+            let scale = 10i64.pow(places);
+            let (int, frac) = (units.abs() / scale, units.abs() % scale);
+            let sign = if units < 0 { "-" } else { "" };
+            let text = if places == 0 {
+                format!("{sign}{int}%")
+            } else {
+                format!("{sign}{int}.{frac:0>w$}%", w = places as usize)
+            };
+            // The same value written as a fraction: the exponent moved by two.
+            let want: f64 = format!("{}e-2", text.trim_end_matches('%')).parse().unwrap();
+            proptest::prop_assert_eq!(percent(&text).map(f64::to_bits), Some(want.to_bits()), "{}", text);
+        }
+    }
 
     #[test]
     fn built_in_demo_is_valid() {

@@ -624,7 +624,7 @@ fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams
             } else {
                 let xs: Option<Vec<f64>> = items
                     .iter()
-                    .map(|i| i.number_in(d, 0.05, 1.0, "a share from 0.05 to 1"))
+                    .map(|i| i.fraction_in(d, 0.05, 1.0, "a share from 0.05 to 1"))
                     .collect();
                 if let Some(xs) = xs {
                     p.lane_factor.copy_from_slice(&xs);
@@ -651,7 +651,7 @@ fn read_bands(v: &Value<'_, '_>, d: &mut Diagnostics) -> Option<Vec<FlowBand>> {
             .and_then(|v| v.number_in(d, 1.0, 8760.0, "hours from 1 to 8760"));
         let share = t
             .require("share", d, "the share of the year's traffic in the band")
-            .and_then(|v| v.number_in(d, 0.0, 1.0, "a share from 0 to 1"));
+            .and_then(|v| v.fraction_in(d, 0.0, 1.0, "a share from 0 to 1"));
         Some(FlowBand {
             name: name?,
             hours: hours?,

@@ -236,6 +236,8 @@ impl<'a> Row<'a> {
         Some(x)
     }
 
+    /// A rate or share in `lo..=hi`: a number (`0.03`) or a percentage (`3%`, read as 0.03 to
+    /// the bit).
     fn fraction(
         &mut self,
         field: &str,
@@ -244,11 +246,22 @@ impl<'a> Row<'a> {
         hi: f64,
         expected: &str,
     ) -> Option<f64> {
+        if raw.trim_end().ends_with('%') {
+            let Some(x) = crate::input::percent(raw) else {
+                self.bad(field, format!("found `{raw}`"), expected);
+                return None;
+            };
+            if x < lo || x > hi {
+                self.bad(field, format!("found {raw}"), expected);
+                return None;
+            }
+            return Some(x);
+        }
         let x = self.number(field, raw, f64::MIN, f64::MAX, false, expected)?;
         if x < lo || x > hi {
             let hint = if x > 1.0 && x <= 100.0 {
                 format!(
-                    "found {raw} (a percentage? write {} for {raw} %)",
+                    "found {raw} (a percentage? write {} or {raw}% for {raw} %)",
                     x / 100.0
                 )
             } else {

@@ -47,12 +47,11 @@ impl Objective {
         }
     }
 
+    /// `npv` or `least-cost`, in any case.
     pub fn parse(s: &str) -> Option<Objective> {
-        match s {
-            "npv" => Some(Objective::Npv),
-            "least-cost" => Some(Objective::LeastCost),
-            _ => None,
-        }
+        [Objective::Npv, Objective::LeastCost]
+            .into_iter()
+            .find(|o| o.name().eq_ignore_ascii_case(s))
     }
 }
 
@@ -275,7 +274,7 @@ fn read_targets(v: &Value<'_, '_>, first: i64, last: i64, d: &mut Diagnostics) -
             .require("at_most", d, "the largest value allowed")
             .and_then(|v| match measure {
                 Some(Measure::PoorShare) => {
-                    v.number_in(d, 0.0, 1.0, "a share of length from 0 to 1")
+                    v.fraction_in(d, 0.0, 1.0, "a share of length from 0 to 1")
                 }
                 _ => v.number_in(d, 0.0, 30.0, "an IRI in m/km from 0 to 30"),
             });

@@ -319,11 +319,11 @@ fn read_frame(mut t: Table<'_, '_>, d: &mut Diagnostics) -> (Option<Frame>, Opti
             "the real discount rate as a fraction, e.g. 0.06",
         )
         .and_then(|v| {
-            let r = v.number_in(
+            let r = v.fraction_in(
                 d,
                 -0.5,
                 1.0,
-                "a real discount rate as a fraction from -0.5 to 1 (0.06 for 6 %)",
+                "a real discount rate as a fraction from -0.5 to 1 (0.06 or \"6%\" for 6 %)",
             );
             if let Some(x) = r {
                 if x > 0.3 {

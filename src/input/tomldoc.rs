@@ -132,6 +132,37 @@ impl<'a, 'i> Value<'a, 'i> {
         Some(x)
     }
 
+    /// A rate or share within `lo..=hi`: a number (`0.06`), or a string with a percentage
+    /// (`"6%"`, read as 0.06 to the bit, as [`crate::input::percent`] reads it).
+    pub fn fraction_in(
+        &self,
+        d: &mut Diagnostics,
+        lo: f64,
+        hi: f64,
+        expected: &str,
+    ) -> Option<f64> {
+        let DeValue::String(text) = self.value else {
+            return self.number_in(d, lo, hi, expected);
+        };
+        let Some(x) = crate::input::percent(text.as_ref()) else {
+            d.error(
+                self.place(),
+                format!("found \"{text}\""),
+                format!("{expected} (a number, or a percentage such as \"6%\")"),
+            );
+            return None;
+        };
+        if x < lo || x > hi {
+            d.error(
+                self.place(),
+                format!("found \"{text}\""),
+                expected.to_owned(),
+            );
+            return None;
+        }
+        Some(x)
+    }
+
     /// An integer within `lo..=hi`.
     pub fn integer_in(&self, d: &mut Diagnostics, lo: i64, hi: i64, expected: &str) -> Option<i64> {
         let DeValue::Integer(i) = self.value else {
@@ -160,10 +191,11 @@ impl<'a, 'i> Value<'a, 'i> {
     }
 
     /// One of the given words.
-    pub fn word(&self, d: &mut Diagnostics, choices: &[&str]) -> Option<&'a str> {
+    /// One of `choices`, in any case (`Single` is `single`); the choice as written there.
+    pub fn word<'c>(&self, d: &mut Diagnostics, choices: &[&'c str]) -> Option<&'c str> {
         let s = self.string(d)?;
-        if choices.contains(&s) {
-            Some(s)
+        if let Some(c) = choices.iter().find(|c| c.eq_ignore_ascii_case(s)) {
+            Some(c)
         } else {
             let hint = did_you_mean(s, choices);
             let e = d.error(
@@ -505,6 +537,46 @@ mod tests {
         let lines: Vec<Option<usize>> = errs.iter().map(|e| e.place.line).collect();
         assert_eq!(lines, vec![Some(1), Some(3), Some(4), Some(5)]);
         assert!(errs[3].found.contains("unknown key `a.w`"));
+    }
+
+    #[test]
+    fn words_are_read_in_any_case() {
+        let text = "a = \"Mid-Year\"\nb = \"DIVIDED\"\nc = \"sideways\"\n";
+        let mut d = Diagnostics::new();
+        let doc = Doc::parse("t.toml", text, &mut d);
+        let mut t = doc.table();
+        let choices = ["end-of-year", "mid-year"];
+        assert_eq!(t.get("a").unwrap().word(&mut d, &choices), Some("mid-year"));
+        let cw = ["single", "divided"];
+        assert_eq!(t.get("b").unwrap().word(&mut d, &cw), Some("divided"));
+        assert_eq!(t.get("c").unwrap().word(&mut d, &cw), None);
+        assert_eq!(d.error_count(), 1);
+        assert!(d.errors()[0].found.contains("`sideways`"));
+    }
+
+    #[test]
+    fn rates_and_shares_take_percentages() {
+        let text = "a = \"6%\"\nb = 0.06\nc = \"six\"\nd = \"150%\"\n";
+        let mut d = Diagnostics::new();
+        let doc = Doc::parse("t.toml", text, &mut d);
+        let mut t = doc.table();
+        let mut at = |k: &str| t.get(k).unwrap().fraction_in(&mut d, 0.0, 1.0, "a share");
+        assert_eq!(at("a").map(f64::to_bits), Some(0.06f64.to_bits()));
+        assert_eq!(at("b"), Some(0.06));
+        assert_eq!(at("c"), None);
+        assert_eq!(at("d"), None);
+        let found: Vec<String> = d
+            .errors()
+            .iter()
+            .map(|e| format!("{}: {}", e.place, e.found))
+            .collect();
+        assert_eq!(
+            found,
+            [
+                "t.toml:3:5: c: found \"six\"",
+                "t.toml:4:5: d: found \"150%\""
+            ]
+        );
     }
 
     #[test]

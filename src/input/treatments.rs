@@ -149,7 +149,7 @@ fn read_routine(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<Routine> {
             d,
             "the share of the yearly rise in roughness holding repairs take off",
         )
-        .and_then(|v| v.number_in(d, 0.0, 0.95, "a share from 0 to 0.95"));
+        .and_then(|v| v.fraction_in(d, 0.0, 0.95, "a share from 0 to 0.95"));
     t.finish(d);
     Some(Routine {
         per_lane_km: a?,
@@ -260,7 +260,7 @@ fn read_treatment(id: &str, mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option
     let carry_place = t.get("carry_over").map(|v| v.place());
     let carry_over = match t.get("carry_over") {
         Some(v) => v
-            .number_in(d, 0.0, 1.0, "a share from 0 to 1 of the roughness left")
+            .fraction_in(d, 0.0, 1.0, "a share from 0 to 1 of the roughness left")
             .map(Some),
         None => Some(None),
     };
@@ -386,7 +386,7 @@ fn read_components(
             .and_then(|v| v.identifier(d).map(str::to_owned));
         let share = t
             .require("share", d, "the part's share of the cost")
-            .and_then(|v| v.number_in(d, 0.0, 1.0, "a share from 0 to 1"));
+            .and_then(|v| v.fraction_in(d, 0.0, 1.0, "a share from 0 to 1"));
         let life = t
             .require("life_years", d, "the part's expected life in years")
             .and_then(|v| v.integer_in(d, 1, 120, "a whole number of years from 1 to 120"))

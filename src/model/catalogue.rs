@@ -23,15 +23,17 @@ impl Action {
         Action::NAMES[self as usize]
     }
 
+    /// One of [`Action::NAMES`], in any case.
     pub fn parse(s: &str) -> Option<Action> {
-        Some(match s {
-            "seal" => Action::Seal,
-            "overlay" => Action::Overlay,
-            "mill-inlay" => Action::MillInlay,
-            "reconstruct" => Action::Reconstruct,
-            "widen" => Action::Widen,
-            _ => return None,
-        })
+        [
+            Action::Seal,
+            Action::Overlay,
+            Action::MillInlay,
+            Action::Reconstruct,
+            Action::Widen,
+        ]
+        .into_iter()
+        .find(|a| a.name().eq_ignore_ascii_case(s))
     }
 }
 
@@ -206,12 +208,10 @@ impl Category {
         }
     }
 
+    /// `capital`, `routine` or `all`, in any case.
     pub fn parse(s: &str) -> Option<Category> {
-        match s {
-            "capital" => Some(Category::Capital),
-            "routine" => Some(Category::Routine),
-            "all" => Some(Category::All),
-            _ => None,
-        }
+        [Category::Capital, Category::Routine, Category::All]
+            .into_iter()
+            .find(|c| c.name().eq_ignore_ascii_case(s))
     }
 }

@@ -18,12 +18,11 @@ impl Carriageway {
         }
     }
 
+    /// `single` or `divided`, in any case.
     pub fn parse(s: &str) -> Option<Carriageway> {
-        match s {
-            "single" => Some(Carriageway::Single),
-            "divided" => Some(Carriageway::Divided),
-            _ => None,
-        }
+        [Carriageway::Single, Carriageway::Divided]
+            .into_iter()
+            .find(|c| c.name().eq_ignore_ascii_case(s))
     }
 }
 
