@@ -101,6 +101,7 @@ fn outputs_are_unchanged() {
             "5",
             "--out",
             "demo-risk",
+            "--keep-raw",
         ],
         &[
             "-q",

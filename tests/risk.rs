@@ -147,8 +147,8 @@ fn same_seed_same_files_with_any_threads_and_as_merged_slices() {
         wd.run_env(&args, &[("RAYON_NUM_THREADS", threads)])
             .expect_code(0);
     };
-    risk("one", &["--draws", "24"], "1");
-    risk("two", &["--draws", "24"], "2");
+    risk("one", &["--draws", "24", "--keep-raw"], "1");
+    risk("two", &["--draws", "24", "--keep-raw"], "2");
     for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
         assert_eq!(
             std::fs::read(wd.join(&format!("one/{f}"))).unwrap(),
@@ -159,8 +159,18 @@ fn same_seed_same_files_with_any_threads_and_as_merged_slices() {
     risk("s1", &["--first-draw", "0", "--draws", "10"], "2");
     risk("s2", &["--first-draw", "10", "--draws", "5"], "1");
     risk("s3", &["--first-draw", "15", "--draws", "9"], "2");
-    wd.run(&["-q", "risk", "--merge", "s3", "s1", "s2", "--out", "merged"])
-        .expect_code(0);
+    wd.run(&[
+        "-q",
+        "risk",
+        "--merge",
+        "s3",
+        "s1",
+        "s2",
+        "--out",
+        "merged",
+        "--keep-raw",
+    ])
+    .expect_code(0);
     for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
         assert_eq!(
             std::fs::read(wd.join(&format!("one/{f}"))).unwrap(),
@@ -169,7 +179,22 @@ fn same_seed_same_files_with_any_threads_and_as_merged_slices() {
         );
     }
     // Another seed gives other draws.
-    risk("other", &["--draws", "24", "--seed", "100"], "2");
+    risk(
+        "other",
+        &["--draws", "24", "--seed", "100", "--keep-raw"],
+        "2",
+    );
+    // A whole run keeps no raw results unless asked (they are 8 bytes × strategies × draws),
+    // and a directory without them cannot be merged.
+    risk("plain", &["--draws", "24"], "2");
+    assert!(!wd.join("plain/risk_slice.bin").exists());
+    assert_eq!(wd.read("plain/risk.csv"), wd.read("one/risk.csv"));
+    wd.run(&["risk", "--merge", "s1", "plain"])
+        .expect_code(2)
+        .stderr_has("--merge plain: the directory has no raw results (risk_slice.bin)");
+    // Run again without --keep-raw into a directory that had them: the old ones are taken away.
+    risk("one", &["--draws", "24"], "2");
+    assert!(!wd.join("one/risk_slice.bin").exists());
     assert_ne!(
         wd.read("one/risk_draws.csv"),
         wd.read("other/risk_draws.csv")
@@ -204,15 +229,32 @@ fn sobol_draws_merge_exactly_and_measure_their_precision() {
             .expect_code(0);
     };
     let sobol = ["--sampling", "sobol"];
-    risk("whole", &[&sobol[..], &["--draws", "24"]].concat(), "2");
-    risk("a", &[&sobol[..], &["--draws", "10"]].concat(), "1");
+    risk(
+        "whole",
+        &[&sobol[..], &["--draws", "24", "--keep-raw"]].concat(),
+        "2",
+    );
+    risk(
+        "a",
+        &[&sobol[..], &["--first-draw", "0", "--draws", "10"]].concat(),
+        "1",
+    );
     risk(
         "b",
         &[&sobol[..], &["--first-draw", "10", "--draws", "14"]].concat(),
         "2",
     );
-    wd.run(&["-q", "risk", "--merge", "b", "a", "--out", "merged"])
-        .expect_code(0);
+    wd.run(&[
+        "-q",
+        "risk",
+        "--merge",
+        "b",
+        "a",
+        "--out",
+        "merged",
+        "--keep-raw",
+    ])
+    .expect_code(0);
     for f in ["risk.csv", "risk_draws.csv", "risk_slice.bin"] {
         assert_eq!(
             std::fs::read(wd.join(&format!("whole/{f}"))).unwrap(),

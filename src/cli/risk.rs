@@ -1,8 +1,8 @@
 //! `pavestrat risk`: Monte Carlo over the scenario's uncertain inputs (see [`pavestrat::analysis::risk`]).
 //! Prints the network plan's NPV distribution and the budget lines most likely to be overspent;
-//! `--out DIR` writes `risk.csv`, `risk_draws.csv` and the raw `risk_slice.bin`. Slices of one
-//! run (`--first-draw K --draws N`) merge with `risk --merge DIR…` into exactly the files one
-//! whole run would give.
+//! `--out DIR` writes `risk.csv` and `risk_draws.csv`, and the raw `risk_slice.bin` for a slice
+//! (`--first-draw K`) or when asked (`--keep-raw`). Slices of one run (`--first-draw K --draws
+//! N`) merge with `risk --merge DIR…` into exactly the files one whole run would give.
 
 use super::plan::parse_seconds;
 use super::sensitivity::held;
@@ -39,9 +39,15 @@ pub struct Args {
     #[arg(long, value_name = "HOW", default_value = "random", value_parser = ["random", "sobol"], conflicts_with = "merge")]
     pub sampling: String,
 
-    /// Number of the first draw (to run one slice of a larger run).
-    #[arg(long, value_name = "K", default_value_t = 0)]
-    pub first_draw: u64,
+    /// Number of the first draw, to run one slice of a larger run (draws K, K+1, …): the slice
+    /// also writes its raw results (risk_slice.bin) for `--merge`. Without it, draws start at 0.
+    #[arg(long, value_name = "K")]
+    pub first_draw: Option<u64>,
+
+    /// Also write the raw results (risk_slice.bin: 8 bytes × strategies × draws), for a later
+    /// `--merge`; a slice (`--first-draw`) writes them anyway.
+    #[arg(long)]
+    pub keep_raw: bool,
 
     /// Most seconds the plan's selection may take (when there is no --from).
     #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
@@ -62,6 +68,9 @@ pub const FILES: [&str; 3] = pavestrat::schema::analysis::RISK_FILES;
 /// Run `risk`.
 pub fn run(args: Args, ctx: Context) -> Result<()> {
     let mut plan_run: Option<String> = None;
+    let first_draw = args.first_draw.unwrap_or(0);
+    // The raw results are for merging: a slice's, or when asked.
+    let keep_raw = args.keep_raw || args.first_draw.is_some();
     let slice = if args.merge.is_empty() {
         let (run, diags) = load_scenario(args.scenario.as_deref(), ctx);
         let Some(run) = run else {
@@ -75,7 +84,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
                 run.scenario.file
             )));
         }
-        if args.first_draw.checked_add(args.draws).is_none() {
+        if first_draw.checked_add(args.draws).is_none() {
             return Err(Error::Usage(
                 "--first-draw + --draws: past the largest draw number".into(),
             ));
@@ -109,13 +118,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             Sampling::Random
         };
         let s = simulate(
-            &run,
-            &every,
-            args.seed,
-            sampling,
-            args.first_draw,
-            args.draws,
-            &bar,
+            &run, &every, args.seed, sampling, first_draw, args.draws, &bar,
         )?;
         bar.finish();
         s
@@ -124,6 +127,19 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut plans = Vec::new();
         for dir in &args.merge {
             let m = pavestrat::io::verify(dir)?;
+            if let Some(m) = &m {
+                if !m
+                    .files
+                    .contains_key(pavestrat::schema::analysis::RISK_SLICE)
+                {
+                    return Err(Error::Usage(format!(
+                        "--merge {}: the directory has no raw results ({}); run each slice with \
+                         --first-draw K (or a whole run with --keep-raw)",
+                        dir.display(),
+                        pavestrat::schema::analysis::RISK_SLICE
+                    )));
+                }
+            }
             plans.push(m.and_then(|m| {
                 m.files
                     .get(pavestrat::schema::analysis::RISK_SLICE)
@@ -139,11 +155,14 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         merge(parts)?
     };
     if let Some(dir) = &args.out.out {
-        let mut set = StreamSet::create(dir, "risk", &FILES)?;
+        let files = if keep_raw { &FILES[..] } else { &FILES[..2] };
+        let mut set = StreamSet::create(dir, "risk", files)?;
         set.made_for(plan_run);
         set.write(0, pavestrat::schema::text(&slice.rows()).as_bytes())?;
         set.write(1, slice.draws_csv().as_bytes())?;
-        set.write(2, &slice.to_bytes())?;
+        if keep_raw {
+            set.write(2, &slice.to_bytes())?;
+        }
         for p in set.commit()? {
             ctx.say(&format!("wrote {}", p.display()));
         }
