@@ -55,7 +55,7 @@ def main():
         scen = ["--scenario", "net/scenario.toml"]
     run(exe, "plan", *scen, "--out", "res", "--time-limit", "3", cwd=work)
     run(exe, "risk", *scen, "--from", "res", "--draws", draws, "--seed", seed,
-        "--sampling", sampling, "--out", "res", cwd=work)
+        "--sampling", sampling, "--out", "res", "--keep-raw", cwd=work)
     out = os.path.join(work, "res")
     blob = open(os.path.join(out, "risk_slice.bin"), "rb").read()
     assert blob.startswith(MAGIC), "risk_slice.bin starts with its magic line"
