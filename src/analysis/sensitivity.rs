@@ -747,7 +747,6 @@ mod tests {
     fn value_of(run: &Run, i: usize, x: f64) -> Varied {
         apply(run, &[(INPUTS[i].0, x)])
     }
-    use crate::enumerate::Enumerator;
 
     /// The demo with its first `n` sections, and each section's best strategy with no limits as
     /// the plan held fixed.

@@ -10,6 +10,7 @@ use super::{load_scenario, Context, OutArg};
 use pavestrat::analysis::risk::{merge, simulate, Sampling, Slice};
 use pavestrat::error::{Error, Result};
 use pavestrat::io::{print_stdout, StreamSet};
+use pavestrat::schema::analysis::RISK_SLICE;
 use std::path::PathBuf;
 
 /// Arguments of `risk`.
@@ -126,26 +127,23 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let mut parts = Vec::new();
         let mut plans = Vec::new();
         for dir in &args.merge {
-            let m = pavestrat::io::verify(dir)?;
-            if let Some(m) = &m {
-                if !m
-                    .files
-                    .contains_key(pavestrat::schema::analysis::RISK_SLICE)
-                {
-                    return Err(Error::Usage(format!(
-                        "--merge {}: the directory has no raw results ({}); run each slice with \
-                         --first-draw K (or a whole run with --keep-raw)",
-                        dir.display(),
-                        pavestrat::schema::analysis::RISK_SLICE
-                    )));
-                }
-            }
-            plans.push(m.and_then(|m| {
-                m.files
-                    .get(pavestrat::schema::analysis::RISK_SLICE)
-                    .and_then(|e| e.for_plan.clone())
-            }));
-            let p = dir.join(pavestrat::schema::analysis::RISK_SLICE);
+            // With a manifest, the slice must be one of its files (its entry names the plan).
+            let slice = RISK_SLICE;
+            let plan = match pavestrat::io::verify(dir)? {
+                Some(m) => match m.files.get(slice) {
+                    Some(entry) => entry.for_plan.clone(),
+                    None => {
+                        return Err(Error::Usage(format!(
+                            "--merge {}: the directory has no raw results ({slice}); run each \
+                             slice with --first-draw K (or a whole run with --keep-raw)",
+                            dir.display()
+                        )))
+                    }
+                },
+                None => None,
+            };
+            plans.push(plan);
+            let p = dir.join(slice);
             parts.push((p.display().to_string(), Slice::read(&p)?));
         }
         // The merged draws are of the plan every slice names, if they all name the same one.

@@ -169,38 +169,33 @@ impl<'t> CsvInput<'t> {
 
     /// The current row with every decimal comma made a point (see the module's notes).
     fn points_for_commas(&mut self, line: usize, d: &mut Diagnostics) {
-        let number = |k: usize, f: &str| {
-            if self.text.get(k).copied().unwrap_or(false) {
-                None
-            } else {
-                decimal_point(f)
-            }
-        };
-        if !self
+        let fixed: Vec<Option<String>> = self
             .record
             .iter()
             .enumerate()
-            .any(|(k, f)| number(k, f).is_some())
-        {
+            .map(|(k, f)| match self.text.get(k) {
+                Some(true) => None,
+                _ => decimal_point(f),
+            })
+            .collect();
+        let Some(first) = fixed.iter().position(Option::is_some) else {
             return;
+        };
+        if !self.said_decimal_comma {
+            self.said_decimal_comma = true;
+            d.note(
+                Place::line(self.file, line).with_field(self.headers.get(first).unwrap_or("")),
+                format!(
+                    "`{}` read as {} (a decimal comma)",
+                    &self.record[first],
+                    fixed[first].as_deref().unwrap_or("")
+                ),
+            );
         }
         let mut out =
             csv::StringRecord::with_capacity(self.record.as_slice().len(), self.record.len());
-        for (k, f) in self.record.iter().enumerate() {
-            match number(k, f) {
-                Some(p) => {
-                    if !self.said_decimal_comma {
-                        self.said_decimal_comma = true;
-                        let column = self.headers.get(k).unwrap_or("");
-                        d.note(
-                            Place::line(self.file, line).with_field(column),
-                            format!("`{f}` read as {p} (a decimal comma)"),
-                        );
-                    }
-                    out.push_field(&p);
-                }
-                None => out.push_field(f),
-            }
+        for (f, p) in self.record.iter().zip(&fixed) {
+            out.push_field(p.as_deref().unwrap_or(f));
         }
         out.set_position(self.record.position().cloned());
         self.record = out;

@@ -190,7 +190,6 @@ impl<'a, 'i> Value<'a, 'i> {
         }
     }
 
-    /// One of the given words.
     /// One of `choices`, in any case (`Single` is `single`); the choice as written there.
     pub fn word<'c>(&self, d: &mut Diagnostics, choices: &[&'c str]) -> Option<&'c str> {
         let s = self.string(d)?;
