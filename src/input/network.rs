@@ -340,14 +340,14 @@ impl<'a> Row<'a> {
             self.raw(7),
             0.0,
             1.0,
-            "a share from 0 to 1 (0.12 for 12 %)",
+            "a share from 0 to 1 (0.12 or 12% for 12 %)",
         );
         let growth = self.fraction(
             "growth_rate",
             self.raw(8),
             -0.5,
             0.5,
-            "a yearly growth rate as a fraction from -0.5 to 0.5 (0.03 for 3 %)",
+            "a yearly growth rate as a fraction from -0.5 to 0.5 (0.03 or 3% for 3 %)",
         );
 
         let region = self.opt_raw(0).map(|r| self.regions.get(r));
