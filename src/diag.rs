@@ -27,6 +27,9 @@ pub struct Place {
     pub column: Option<usize>,
     /// The field, column header or key path concerned.
     pub field: Option<String>,
+    /// The worksheet, for a place in a workbook: `line` is then its row and `column` its
+    /// column (both 1-based), shown as a cell reference (`Sections!D5`).
+    pub sheet: Option<String>,
 }
 
 impl Place {
@@ -67,12 +70,44 @@ impl Place {
         self.column = Some(column);
         self
     }
+
+    /// A cell of a workbook's sheet (`row` and `column` 1-based), or a whole row when `column`
+    /// is `None`.
+    pub fn cell(file: impl Into<String>, sheet: &str, row: usize, column: Option<usize>) -> Place {
+        Place {
+            file: file.into(),
+            line: Some(row),
+            column,
+            field: None,
+            sheet: Some(sheet.to_owned()),
+        }
+    }
+}
+
+/// A spreadsheet's letters for a 1-based column number: 1 → `A`, 27 → `AA`.
+pub fn column_letters(mut column: usize) -> String {
+    let mut out = Vec::new();
+    while column > 0 {
+        let k = (column - 1) % 26;
+        out.push(b'A' + k as u8);
+        column = (column - 1) / 26;
+    }
+    out.reverse();
+    String::from_utf8(out).unwrap_or_default()
 }
 
 impl fmt::Display for Place {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(f, "{}", self.file)?;
-        if let Some(line) = self.line {
+        if let (Some(sheet), Some(row)) = (&self.sheet, self.line) {
+            // A sheet name with anything but letters, digits and `_` is quoted, as in a formula.
+            let plain = sheet.chars().all(|c| c.is_alphanumeric() || c == '_');
+            let q = if plain { "" } else { "'" };
+            match self.column {
+                Some(col) => write!(f, ": {q}{sheet}{q}!{}{row}", column_letters(col))?,
+                None => write!(f, ": {q}{sheet}{q}!{row}:{row}")?,
+            }
+        } else if let Some(line) = self.line {
             write!(f, ":{line}")?;
             if let Some(col) = self.column {
                 write!(f, ":{col}")?;
@@ -289,6 +324,22 @@ mod tests {
             .with_field("lanes");
         assert_eq!(p.to_string(), "network.csv:12:3: lanes");
         assert_eq!(Place::file("a.toml").to_string(), "a.toml");
+    }
+
+    #[test]
+    fn a_workbook_place_is_a_cell_reference() {
+        let p = Place::cell("inv.xlsx", "Sections", 5, Some(4)).with_field("iri");
+        assert_eq!(p.to_string(), "inv.xlsx: Sections!D5: iri");
+        assert_eq!(
+            Place::cell("inv.ods", "Road list", 7, None).to_string(),
+            "inv.ods: 'Road list'!7:7"
+        );
+        let letters: Vec<String> = [1, 26, 27, 52, 53, 702, 703, 16384]
+            .into_iter()
+            .map(column_letters)
+            .collect();
+        // Spreadsheets' own column names; XFD is the last column of an xlsx sheet.
+        assert_eq!(letters, ["A", "Z", "AA", "AZ", "BA", "ZZ", "AAA", "XFD"]);
     }
 
     #[test]

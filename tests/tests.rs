@@ -13,3 +13,4 @@ mod report;
 mod risk;
 mod select;
 mod util;
+mod workbook;

@@ -111,8 +111,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             toml_string(&p.display().to_string())
         };
         let strategies: Vec<String> = f.strategies.iter().map(|s| abs(&s.path)).collect();
+        let sheet = match &f.network_sheet {
+            Some((name, _)) => format!("\nnetwork_sheet = {}", toml_string(name)),
+            None => String::new(),
+        };
         let files = format!(
-            "[files]\nnetwork = {}\ntreatments = {}\nstrategies = [{}]",
+            "[files]\nnetwork = {}{sheet}\ntreatments = {}\nstrategies = [{}]",
             abs(&f.network.path),
             abs(&f.treatments.path),
             strategies.join(", ")

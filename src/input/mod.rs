@@ -14,6 +14,8 @@ pub mod network;
 pub mod plan;
 pub mod provenance;
 pub mod scenario;
+pub mod sheet;
+pub mod table;
 pub mod templates;
 pub mod tomldoc;
 pub mod treatments;
@@ -111,9 +113,21 @@ pub fn read_text(
     named_at: Option<&Place>,
     d: &mut Diagnostics,
 ) -> Option<(String, String)> {
+    let (label, bytes) = read_bytes(source, path, named_at, d)?;
+    let text = decode(&label, bytes, d);
+    Some((label, text))
+}
+
+/// Read a file's bytes and its label, recording a failure as [`read_text`] does.
+fn read_bytes(
+    source: &dyn Source,
+    path: &Path,
+    named_at: Option<&Place>,
+    d: &mut Diagnostics,
+) -> Option<(String, Vec<u8>)> {
     let label = source.label(path);
     match source.read(path) {
-        Ok(bytes) => Some((label.clone(), decode(&label, bytes, d))),
+        Ok(bytes) => Some((label, bytes)),
         Err(e) => {
             let (place, found) = match named_at {
                 Some(p) => (p.clone(), format!("cannot read `{label}`: {e}")),
@@ -126,6 +140,32 @@ pub fn read_text(
             None
         }
     }
+}
+
+/// Read the network: a workbook (told by its first bytes, whatever its name) or CSV text.
+fn read_network(
+    source: &dyn Source,
+    files: &scenario::ScenarioFiles,
+    d: &mut Diagnostics,
+) -> Option<Network> {
+    let f = &files.network;
+    let (label, bytes) = read_bytes(source, &f.path, Some(&f.place), d)?;
+    let sheet = files
+        .network_sheet
+        .as_ref()
+        .map(|(name, place)| (name.as_str(), place));
+    if sheet::is_workbook(&bytes) {
+        return network::parse_workbook(&label, &bytes, sheet, d);
+    }
+    if let Some((_, place)) = sheet {
+        d.error(
+            place.clone(),
+            format!("a sheet named, but `{label}` is not a workbook"),
+            "network_sheet only with an .xlsx, .xls or .ods network",
+        );
+    }
+    let text = decode(&label, bytes, d);
+    network::parse(&label, &text, d)
 }
 
 /// The directory relative paths in a scenario resolve against.
@@ -154,7 +194,7 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
 
     let read = |f: &FileRef, d: &mut Diagnostics| read_text(source, &f.path, Some(&f.place), d);
 
-    let mut network = read(&files.network, d).and_then(|(l, t)| network::parse(&l, &t, d));
+    let mut network = read_network(source, &files, d);
     let (catalogue, treatment_names) = match read(&files.treatments, d) {
         Some((l, t)) => treatments::parse(&l, &t, d),
         None => (None, Vec::new()),
@@ -363,26 +403,30 @@ fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
 /// surface is then spelt as the family is).
 fn check_surfaces(net: &mut Network, families: &[String], d: &mut Diagnostics) {
     let families: Vec<&str> = families.iter().map(String::as_str).collect();
-    let file = net.file.clone();
-    for sec in &mut net.sections {
-        let Some(surface) = &mut sec.surface else {
+    for k in 0..net.sections.len() {
+        let Some(surface) = net.sections[k].surface.as_deref() else {
             continue;
         };
-        if let Some(f) = families.iter().find(|f| f.eq_ignore_ascii_case(surface)) {
-            if *f != surface.as_str() {
-                *surface = (*f).to_owned();
+        let family = families
+            .iter()
+            .find(|f| f.eq_ignore_ascii_case(surface))
+            .copied();
+        if let Some(f) = family {
+            if f != surface {
+                net.sections[k].surface = Some(f.to_owned());
             }
             continue;
         }
+        let surface = surface.to_owned();
         let e = d.error(
-            Place::line(file.clone(), sec.line).with_field("surface"),
+            net.place(&net.sections[k], "surface"),
             format!("the surface `{surface}`, which has no pavement family"),
             format!(
                 "one of the scenario's [condition.family.NAME] tables: {}",
                 families.join(", ")
             ),
         );
-        if let Some(m) = did_you_mean(surface, &families) {
+        if let Some(m) = did_you_mean(&surface, &families) {
             e.hint = Some(format!("did you mean `{m}`?"));
         }
     }
@@ -437,7 +481,7 @@ fn check_network_against_scenario(net: &Network, s: &Scenario, d: &mut Diagnosti
         if let Some(y) = sec.last_works_year {
             if y > s.base_year {
                 d.error(
-                    Place::line(net.file.clone(), sec.line).with_field("last_works_year"),
+                    net.place(sec, "last_works_year"),
                     format!("found {y}, after the base year {}", s.base_year),
                     "a year no later than the base year",
                 );

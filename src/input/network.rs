@@ -7,6 +7,7 @@
 //! otherwise be silently ignored). Every field is read as text and converted here, so nothing is
 //! type-guessed. All problems of all rows are reported, each with its line and column name.
 
+use super::table::Rows;
 use crate::diag::{did_you_mean, Diagnostics, Place};
 use crate::model::network::{Carriageway, Network, Section};
 use crate::model::Year;
@@ -37,22 +38,47 @@ pub const OPTIONAL: [&str; 6] = [
     "speed_kmh",
 ];
 
-/// Read the network from decoded CSV text.
-pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
-    let before = d.error_count();
-    let layout = format!(
+/// What a network table holds, for the error on an empty one.
+fn layout() -> String {
+    format!(
         "a header line naming the columns {} and one row per section",
         REQUIRED.join(", ")
-    );
-    let mut input = super::csvfile::CsvInput::open(file, text, &layout, d)?;
+    )
+}
+
+/// Read the network from decoded CSV text.
+pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
+    let input = super::csvfile::CsvInput::open(file, text, &layout(), d)?;
+    parse_rows(file, Rows::Text(input), d)
+}
+
+/// Read the network from a workbook's sheet (`sheet`, named where `place` says, or the
+/// first).
+pub fn parse_workbook(
+    file: &str,
+    bytes: &[u8],
+    sheet: Option<(&str, &Place)>,
+    d: &mut Diagnostics,
+) -> Option<Network> {
+    let input = super::sheet::SheetInput::open(file, bytes, sheet, &layout(), d)?;
+    parse_rows(file, Rows::Sheet(input), d)
+}
+
+/// Read the network from its records.
+fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Network> {
+    let before = d.error_count();
     input.text_columns(|c| {
         matches!(c, "section_id" | "region" | "surface" | "carriageway") || c.starts_with("x_")
     });
-    let cols = read_header(file, &input.headers, d)?;
+    let cols = read_header(file, &input, d)?;
 
     let mut sections = Vec::new();
     let mut seen: HashMap<String, usize> = HashMap::new();
     let mut regions = crate::model::region::Interner::default();
+    let row_word = match input {
+        Rows::Text(_) => "line",
+        Rows::Sheet(_) => "row",
+    };
     while let Some(line) = input.next_row(d) {
         let record = input.record();
         // Duplicates are checked on the raw id, so a bad row still claims its id.
@@ -60,8 +86,10 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
         let duplicate = match seen.get(&id) {
             Some(first) if !id.is_empty() => {
                 d.error(
-                    Place::line(file, line).with_field("section_id"),
-                    format!("duplicate section_id `{id}` (first on line {first})"),
+                    input
+                        .place(file, line, Some(cols.required[0]))
+                        .with_field("section_id"),
+                    format!("duplicate section_id `{id}` (first on {row_word} {first})"),
                     "each section_id once",
                 );
                 true
@@ -73,6 +101,7 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
         };
         let mut row = Row {
             file,
+            input: &input,
             line,
             record,
             cols: &cols,
@@ -92,10 +121,15 @@ pub fn parse(file: &str, text: &str, d: &mut Diagnostics) -> Option<Network> {
     if d.error_count() > before {
         return None;
     }
+    let cells = match &input {
+        Rows::Text(_) => None,
+        Rows::Sheet(s) => Some(s.cells()),
+    };
     Some(Network {
         file: file.to_owned(),
         sections,
         note_columns: cols.notes.iter().map(|(n, _)| n.clone()).collect(),
+        cells,
     })
 }
 
@@ -106,13 +140,17 @@ struct Columns {
     notes: Vec<(String, usize)>,
 }
 
-fn read_header(file: &str, headers: &csv::StringRecord, d: &mut Diagnostics) -> Option<Columns> {
+fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Columns> {
+    let headers = input.headers();
+    let row = input.header_row();
     let mut pos: HashMap<&str, usize> = HashMap::new();
     let mut notes = Vec::new();
     let mut ok = true;
     let known: Vec<&str> = REQUIRED.iter().chain(OPTIONAL.iter()).copied().collect();
     for (i, h) in headers.iter().enumerate() {
-        let place = Place::line(file, 1).with_field(format!("column {} `{h}`", i + 1));
+        let place = input
+            .place(file, row, Some(i))
+            .with_field(format!("column {} `{h}`", i + 1));
         if h.is_empty() {
             d.error(place, "an empty column name", "a column name");
             ok = false;
@@ -141,7 +179,7 @@ fn read_header(file: &str, headers: &csv::StringRecord, d: &mut Diagnostics) -> 
             Some(&i) => required[k] = i,
             None => {
                 d.error(
-                    Place::line(file, 1),
+                    input.place(file, row, None),
                     format!("no `{name}` column"),
                     format!("the required columns {}", REQUIRED.join(", ")),
                 );
@@ -163,6 +201,7 @@ fn read_header(file: &str, headers: &csv::StringRecord, d: &mut Diagnostics) -> 
 /// One data row being converted; every failed field is recorded and marks the row bad.
 struct Row<'a> {
     file: &'a str,
+    input: &'a Rows<'a>,
     line: usize,
     record: &'a csv::StringRecord,
     cols: &'a Columns,
@@ -173,8 +212,18 @@ struct Row<'a> {
 
 impl<'a> Row<'a> {
     fn bad(&mut self, field: &str, found: String, expected: &str) {
+        let column = REQUIRED
+            .iter()
+            .position(|c| *c == field)
+            .map(|k| self.cols.required[k])
+            .or_else(|| {
+                let k = OPTIONAL.iter().position(|c| *c == field)?;
+                self.cols.optional[k]
+            });
         self.d.error(
-            Place::line(self.file, self.line).with_field(field),
+            self.input
+                .place(self.file, self.line, column)
+                .with_field(field),
             found,
             expected.to_owned(),
         );

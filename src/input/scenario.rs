@@ -11,7 +11,8 @@
 //! money = "CR"              # label printed beside amounts
 //!
 //! [files]                   # paths relative to this file
-//! network = "network.csv"
+//! network = "network.csv"  # or a workbook, .xlsx / .xls / .ods
+//! network_sheet = "Roads"   # optional: the workbook's sheet (else its first)
 //! treatments = "treatments.toml"
 //! strategies = ["templates.toml"]
 //!
@@ -117,6 +118,8 @@ pub struct FileRef {
 #[derive(Debug, Clone, PartialEq)]
 pub struct ScenarioFiles {
     pub network: FileRef,
+    /// The sheet of a workbook network, and where the scenario names it.
+    pub network_sheet: Option<(String, Place)>,
     pub treatments: FileRef,
     pub strategies: Vec<FileRef>,
 }
@@ -389,8 +392,20 @@ fn file_ref(v: &Value<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<FileRe
 
 fn read_files(mut t: Table<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<ScenarioFiles> {
     let network = t
-        .require("network", d, "the network CSV file, e.g. \"network.csv\"")
+        .require(
+            "network",
+            d,
+            "the network file (CSV or a workbook), e.g. \"network.csv\"",
+        )
         .and_then(|v| file_ref(&v, dir, d));
+    let network_sheet = t.get("network_sheet").and_then(|v| {
+        let s = v.string(d)?;
+        if s.trim().is_empty() {
+            d.error(v.place(), "found an empty name", "the name of a sheet");
+            return None;
+        }
+        Some((s.to_owned(), v.place()))
+    });
     let treatments = t
         .require(
             "treatments",
@@ -420,6 +435,7 @@ fn read_files(mut t: Table<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<S
     t.finish(d);
     Some(ScenarioFiles {
         network: network?,
+        network_sheet,
         treatments: treatments?,
         strategies: strategies?,
     })

@@ -30,7 +30,7 @@ impl Carriageway {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Section {
     pub id: SectionId,
-    /// Line of the network file it was read from.
+    /// Line of the network file it was read from (its row, for a workbook's sheet).
     pub line: usize,
     pub length_km: f64,
     pub lanes: u8,
@@ -62,9 +62,38 @@ pub struct Network {
     pub sections: Vec<Section>,
     /// Names of the user's `x_` columns.
     pub note_columns: Vec<String>,
+    /// Where the columns are, when the network was read from a workbook's sheet.
+    pub cells: Option<Cells>,
+}
+
+/// The columns of a network read from a workbook's sheet.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Cells {
+    pub sheet: String,
+    /// The header's names, in column order.
+    pub columns: Vec<String>,
+    /// The 1-based sheet column of the first.
+    pub first_column: usize,
 }
 
 impl Network {
+    /// Where a section's `field` was read: its line of a CSV, or its cell of a sheet.
+    pub fn place(&self, section: &Section, field: &str) -> crate::diag::Place {
+        use crate::diag::Place;
+        match &self.cells {
+            None => Place::line(self.file.clone(), section.line),
+            Some(c) => {
+                let column = c
+                    .columns
+                    .iter()
+                    .position(|h| h == field)
+                    .map(|k| k + c.first_column);
+                Place::cell(self.file.clone(), &c.sheet, section.line, column)
+            }
+        }
+        .with_field(field)
+    }
+
     /// Total length, km (summed in file order).
     pub fn length_km(&self) -> f64 {
         self.sections.iter().map(|s| s.length_km).sum()

@@ -1,0 +1,71 @@
+//! A table of records, whether it came as CSV text or as a workbook's sheet: the readers ask
+//! for the header, each record and the place of a field, and need not know which it was.
+
+use super::csvfile::CsvInput;
+use super::sheet::SheetInput;
+use crate::diag::{Diagnostics, Place};
+
+/// Records with their places.
+pub enum Rows<'t> {
+    Text(CsvInput<'t>),
+    Sheet(SheetInput),
+}
+
+impl Rows<'_> {
+    /// The header's fields.
+    pub fn headers(&self) -> &csv::StringRecord {
+        match self {
+            Rows::Text(c) => &c.headers,
+            Rows::Sheet(s) => &s.headers,
+        }
+    }
+
+    /// Say which columns hold text; see [`CsvInput::text_columns`] (a sheet's cells are typed,
+    /// so it has nothing to convert).
+    pub fn text_columns(&mut self, is_text: impl Fn(&str) -> bool) {
+        if let Rows::Text(c) = self {
+            c.text_columns(is_text);
+        }
+    }
+
+    /// Move to the next record and return its line (CSV) or row (sheet).
+    pub fn next_row(&mut self, d: &mut Diagnostics) -> Option<usize> {
+        match self {
+            Rows::Text(c) => c.next_row(d),
+            Rows::Sheet(s) => s.next_row(),
+        }
+    }
+
+    /// The current record.
+    pub fn record(&self) -> &csv::StringRecord {
+        match self {
+            Rows::Text(c) => c.record(),
+            Rows::Sheet(s) => s.record(),
+        }
+    }
+
+    /// Report a table with a header but no records; `true` when there were records.
+    pub fn had_rows(&self, what: &str, d: &mut Diagnostics) -> bool {
+        match self {
+            Rows::Text(c) => c.had_rows(what, d),
+            Rows::Sheet(s) => s.had_rows(what, d),
+        }
+    }
+
+    /// The header's line or row.
+    pub fn header_row(&self) -> usize {
+        match self {
+            Rows::Text(_) => 1,
+            Rows::Sheet(s) => s.header_row(),
+        }
+    }
+
+    /// The place of a record's `line` (CSV) or row (sheet), at a column (0-based in the
+    /// header) when given: a cell in a sheet; the line alone in a CSV.
+    pub fn place(&self, file: &str, line: usize, column: Option<usize>) -> Place {
+        match self {
+            Rows::Text(_) => Place::line(file, line),
+            Rows::Sheet(s) => s.place(line, column),
+        }
+    }
+}
