@@ -369,7 +369,7 @@ fn every_problem_in_every_file_at_once() {
 fn unknown_columns_and_budget_regions() {
     let wd = Workdir::new();
     wd.demo_files();
-    let net = demo_network().replacen("x_road", "road_name", 1);
+    let net = demo_network().replacen(",road,", ",road_name,", 1);
     wd.write("network.csv", net);
     let sc = wd
         .read("scenario.toml")

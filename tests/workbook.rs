@@ -107,8 +107,8 @@ xmlns:text=\"urn:oasis:names:tc:opendocument:xmlns:text:1.0\" office:version=\"1
 </manifest:manifest>";
     let mut out = std::io::Cursor::new(Vec::new());
     let mut zip = zip::ZipWriter::new(&mut out);
-    let stored = zip::write::SimpleFileOptions::default()
-        .compression_method(zip::CompressionMethod::Stored);
+    let stored =
+        zip::write::SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
     for (name, body) in [
         ("mimetype", "application/vnd.oasis.opendocument.spreadsheet"),
         ("META-INF/manifest.xml", manifest),

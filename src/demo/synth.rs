@@ -38,7 +38,7 @@ impl SplitMix64 {
 /// The network file's header, as the demo's.
 pub const HEADER: &str =
     "section_id,length_km,lanes,carriageway,iri,structural_number,aadt,heavy_share,\
-growth_rate,region,lane_width_m,surface,subgrade_mr_mpa,last_works_year,speed_kmh,x_road";
+growth_rate,region,lane_width_m,surface,subgrade_mr_mpa,last_works_year,speed_kmh,road,from_km,to_km";
 
 const REGIONS: [&str; 3] = ["north", "south", "river"];
 
@@ -49,6 +49,8 @@ pub fn network_csv(n: usize, seed: u64) -> String {
     s.push_str(HEADER);
     s.push('\n');
     let width = n.to_string().len().max(4);
+    // Where the next section of the current road starts, in tenths of a km.
+    let mut at_tenths = 0i64;
     for i in 0..n {
         let kind = r.unit();
         let region = REGIONS[(r.next_u64() % 3) as usize];
@@ -95,11 +97,20 @@ pub fn network_csv(n: usize, seed: u64) -> String {
             )
         };
         let length = r.range(1.0, 9.0);
+        let length_text = format!("{length:.1}");
+        if i % 5 == 0 {
+            at_tenths = 0;
+        }
+        let from = at_tenths;
+        at_tenths += length_text.replace('.', "").parse::<i64>().unwrap_or(0);
+        let tenths = |t: i64| format!("{}.{}", t / 10, t % 10);
         let lane_width = r.range(3.2, 3.6);
         let mr = r.range(40.0, 90.0);
         let last = 2000 + (r.next_u64() % 26) as i32;
         s.push_str(&format!(
-            "S{i:0width$},{length:.1},{lanes},{cw},{iri:.1},{sn:.1},{aadt:.0},{heavy:.2},{growth:.3},{region},{lane_width:.2},{surface},{mr:.0},{last},{speed},Synthetic road {road}\n"
+            "S{i:0width$},{length_text},{lanes},{cw},{iri:.1},{sn:.1},{aadt:.0},{heavy:.2},{growth:.3},{region},{lane_width:.2},{surface},{mr:.0},{last},{speed},Synthetic road {road},{},{}\n",
+            tenths(from),
+            tenths(at_tenths)
         ));
     }
     s

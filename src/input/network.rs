@@ -2,10 +2,17 @@
 //!
 //! Required columns, exactly these names: `section_id, length_km, lanes, carriageway, iri,
 //! structural_number, aadt, heavy_share, growth_rate`. Optional: `region, lane_width_m, surface,
-//! subgrade_mr_mpa, last_works_year, speed_kmh`. Columns starting `x_` are the user's own notes,
-//! carried along untouched; any other column is an error (a misspelt optional column would
-//! otherwise be silently ignored). Every field is read as text and converted here, so nothing is
-//! type-guessed. All problems of all rows are reported, each with its line and column name.
+//! subgrade_mr_mpa, last_works_year, speed_kmh`, and the location `road, from_km, to_km`.
+//! Columns starting `x_` are the user's own notes, carried along untouched; any other column is
+//! an error (a misspelt optional column would otherwise be silently ignored). Every field is
+//! read as text and converted here, so nothing is type-guessed. All problems of all rows are
+//! reported, each with its line and column name.
+//!
+//! Location: `from_km` and `to_km` are a section's chainage along its `road` (both or neither,
+//! `from_km < to_km`, and a road named). Two sections of one road may touch but not overlap.
+//! With the chainage columns, `length_km` may be left out (or a cell left empty): it is then
+//! `to_km − from_km`, to the metre. Where both are given and differ by more than 5 %, a note
+//! says so (a chainage can differ from the measured length; the stated `length_km` is used).
 
 use super::table::Rows;
 use crate::diag::{did_you_mean, Diagnostics, Place};
@@ -29,14 +36,23 @@ pub const REQUIRED: [&str; 9] = [
 ];
 
 /// The optional columns.
-pub const OPTIONAL: [&str; 6] = [
+pub const OPTIONAL: [&str; 9] = [
     "region",
     "lane_width_m",
     "surface",
     "subgrade_mr_mpa",
     "last_works_year",
     "speed_kmh",
+    "road",
+    "from_km",
+    "to_km",
 ];
+
+/// Most chainage, km: longer than any road.
+const MAX_CHAINAGE_KM: f64 = 100_000.0;
+
+/// Where `required[1]` points when `length_km` is left out (chainage given): no field.
+const NO_COLUMN: usize = usize::MAX;
 
 /// What a network table holds, for the error on an empty one.
 fn layout() -> String {
@@ -118,6 +134,7 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
     if !input.had_rows("at least one section after the header line", d) {
         return None;
     }
+    check_chainage(file, &input, &cols, &sections, row_word, d);
     if d.error_count() > before {
         return None;
     }
@@ -130,13 +147,95 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
         sections,
         note_columns: cols.notes.iter().map(|(n, _)| n.clone()).collect(),
         cells,
+        road_column: cols.optional[6].is_some(),
+        chainage_columns: cols.optional[7].is_some() && cols.optional[8].is_some(),
     })
+}
+
+/// Sections of one road must not overlap (they may touch); where `length_km` is given beside
+/// a chainage, a difference of more than 5 % is noted once, with a count.
+fn check_chainage(
+    file: &str,
+    input: &Rows<'_>,
+    cols: &Columns,
+    sections: &[Section],
+    row_word: &str,
+    d: &mut Diagnostics,
+) {
+    let mut located: Vec<(&str, f64, f64, &Section)> = sections
+        .iter()
+        .filter_map(|s| {
+            let (a, b) = s.chainage?;
+            Some((s.road.as_deref()?, a, b, s))
+        })
+        .collect();
+    located.sort_by(|x, y| {
+        (x.0, x.1, x.2, x.3.line)
+            .partial_cmp(&(y.0, y.1, y.2, y.3.line))
+            .unwrap_or(std::cmp::Ordering::Equal)
+    });
+    // The section reaching furthest so far on this road.
+    let mut reach: Option<(&str, f64, &Section)> = None;
+    for &(road, a, b, s) in &located {
+        match reach {
+            Some((r, end, prev)) if r == road && a < end => {
+                let (pa, pb) = prev.chainage.unwrap_or_default();
+                d.error(
+                    input
+                        .place(file, s.line, cols.optional[7])
+                        .with_field("from_km"),
+                    format!(
+                        "km {a}–{b} of road `{road}` overlaps section `{}` ({row_word} {}, km \
+                         {pa}–{pb})",
+                        prev.id.as_str(),
+                        prev.line
+                    ),
+                    "sections of one road that do not overlap (they may touch)",
+                );
+                if b > end {
+                    reach = Some((road, b, s));
+                }
+            }
+            _ => reach = Some((road, b, s)),
+        }
+    }
+    if cols.required[1] == NO_COLUMN {
+        return;
+    }
+    let differs: Vec<&Section> = sections
+        .iter()
+        .filter(|s| {
+            s.chainage.is_some_and(|(a, b)| {
+                let c = b - a;
+                (s.length_km - c).abs() > 0.05 * c + 0.0005
+            })
+        })
+        .collect();
+    if let Some(first) = differs.first() {
+        let (a, b) = first.chainage.unwrap_or_default();
+        d.note(
+            input
+                .place(file, first.line, Some(cols.required[1]))
+                .with_field("length_km"),
+            format!(
+                "length_km {} differs from its chainage ({} km) by more than 5 %{}; the \
+                 length_km given is used",
+                first.length_km,
+                ((b - a) * 1000.0).round() / 1000.0,
+                match differs.len() {
+                    1 => String::new(),
+                    2 => ", and so does one more section".to_owned(),
+                    n => format!(", and so do {} more sections", n - 1),
+                }
+            ),
+        );
+    }
 }
 
 /// Column positions.
 struct Columns {
     required: [usize; 9],
-    optional: [Option<usize>; 6],
+    optional: [Option<usize>; 9],
     notes: Vec<(String, usize)>,
 }
 
@@ -174,9 +273,11 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
         }
     }
     let mut required = [0usize; 9];
+    let chainage = pos.contains_key("from_km") && pos.contains_key("to_km");
     for (k, name) in REQUIRED.iter().enumerate() {
         match pos.get(name) {
             Some(&i) => required[k] = i,
+            None if *name == "length_km" && chainage => required[k] = NO_COLUMN,
             None => {
                 d.error(
                     input.place(file, row, None),
@@ -187,9 +288,22 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
             }
         }
     }
-    let mut optional = [None; 6];
+    let mut optional = [None; 9];
     for (k, name) in OPTIONAL.iter().enumerate() {
         optional[k] = pos.get(name).copied();
+    }
+    if pos.contains_key("from_km") != pos.contains_key("to_km") {
+        let (has, lacks) = if pos.contains_key("from_km") {
+            ("from_km", "to_km")
+        } else {
+            ("to_km", "from_km")
+        };
+        d.error(
+            input.place(file, row, None),
+            format!("a `{has}` column but no `{lacks}`"),
+            "both chainage columns, from_km and to_km, or neither",
+        );
+        ok = false;
     }
     ok.then_some(Columns {
         required,
@@ -322,6 +436,56 @@ impl<'a> Row<'a> {
         Some(x)
     }
 
+    /// The road and chainage columns: `(road, Some((from_km, to_km)))`.
+    fn location(&mut self) -> (Option<String>, Option<(f64, f64)>) {
+        let road = self.opt_raw(6).map(str::to_owned);
+        let expected = "a chainage in km from 0 to 100000";
+        let from = self
+            .opt_raw(7)
+            .map(|r| self.number("from_km", r, 0.0, MAX_CHAINAGE_KM, false, expected));
+        let to = self
+            .opt_raw(8)
+            .map(|r| self.number("to_km", r, 0.0, MAX_CHAINAGE_KM, false, expected));
+        let chainage = match (from, to) {
+            (None, None) => None,
+            (Some(Some(a)), Some(Some(b))) if b > a => Some((a, b)),
+            (Some(Some(a)), Some(Some(b))) => {
+                let what = if b < a { "before" } else { "equal to" };
+                self.bad(
+                    "to_km",
+                    format!("to_km {b} {what} from_km {a}"),
+                    "a chainage past from_km (write each section in the road's direction)",
+                );
+                None
+            }
+            (Some(_), None) => {
+                self.bad(
+                    "to_km",
+                    "an empty value".into(),
+                    "to_km, as from_km is given",
+                );
+                None
+            }
+            (None, Some(_)) => {
+                self.bad(
+                    "from_km",
+                    "an empty value".into(),
+                    "from_km, as to_km is given",
+                );
+                None
+            }
+            _ => None, // a bad number, reported
+        };
+        if chainage.is_some() && road.is_none() {
+            self.bad(
+                "road",
+                "an empty value".into(),
+                "the road the chainage runs along",
+            );
+        }
+        (road, chainage)
+    }
+
     fn section(&mut self) -> Option<Section> {
         let id = self.raw(0).to_owned();
         if id.is_empty() {
@@ -331,14 +495,25 @@ impl<'a> Row<'a> {
                 "an identifier for the section",
             );
         }
-        let length_km = self.number(
-            "length_km",
-            self.raw(1),
-            0.0,
-            1000.0,
-            true,
-            "a length in km, more than 0 and at most 1000",
-        );
+        let (road, chainage) = self.location();
+        let length_expected = "a length in km, more than 0 and at most 1000";
+        let length_km = match chainage {
+            // Derived from the chainage, to the metre.
+            Some((a, b)) if self.raw(1).is_empty() => {
+                let l = ((b - a) * 1000.0).round() / 1000.0;
+                if l > 0.0 && l <= 1000.0 {
+                    Some(l)
+                } else {
+                    self.bad(
+                        "to_km",
+                        format!("a chainage of {l} km (to_km − from_km)"),
+                        length_expected,
+                    );
+                    None
+                }
+            }
+            _ => self.number("length_km", self.raw(1), 0.0, 1000.0, true, length_expected),
+        };
         let lanes_raw = self.raw(2);
         let lanes = match lanes_raw.parse::<u8>() {
             Ok(n) if (1..=12).contains(&n) => Some(n),
@@ -485,6 +660,8 @@ impl<'a> Row<'a> {
             subgrade_mr_mpa: subgrade,
             last_works_year: last_works_year.map(Year),
             speed_kmh: speed,
+            road,
+            chainage,
             notes,
         })
     }
@@ -591,6 +768,71 @@ mod tests {
         assert_eq!(n.unwrap().sections[0].id.as_str(), "A 1");
         assert!(!d.has_errors());
         assert!(d.to_string().contains("quoted fields"));
+    }
+
+    #[test]
+    fn chainage_gives_the_length_and_overlaps_are_located() {
+        let head = "section_id,lanes,carriageway,iri,structural_number,aadt,heavy_share,growth_rate,road,from_km,to_km";
+        let row = |id: &str, road: &str, a: &str, b: &str| {
+            format!("{id},2,single,3,3,100,0.1,0.02,{road},{a},{b}\n")
+        };
+        // No length_km column: lengths from the chainage, to the metre (12.3 − 10.1 is
+        // 2.2000000000000011 in floating point).
+        let text = format!(
+            "{head}\n{}{}{}",
+            row("A", "R1", "10.1", "12.3"),
+            row("B", "R1", "12.3", "15"),
+            row("C", "R2", "0", "4.25")
+        );
+        let (n, d) = read(&text);
+        let n = n.unwrap_or_else(|| panic!("{d}"));
+        let lengths: Vec<f64> = n.sections.iter().map(|s| s.length_km).collect();
+        assert_eq!(lengths, [2.2, 2.7, 4.25]);
+        assert_eq!(n.sections[0].road.as_deref(), Some("R1"));
+        assert_eq!(n.sections[1].chainage, Some((12.3, 15.0)));
+        assert!(n.road_column && n.chainage_columns);
+        // Overlapping, reversed, one-sided and road-less chainages: each named where it is.
+        let text = format!(
+            "{head}\n{}{}{}{}{}{}",
+            row("A", "R1", "10", "12"),
+            row("B", "R1", "11.5", "13"),
+            row("C", "R1", "14", "13"),
+            row("D", "R2", "3", ""),
+            row("E", "", "1", "2"),
+            row("F", "R1", "13", "13")
+        );
+        let (n, d) = read(&text);
+        assert!(n.is_none());
+        let t = d.to_string();
+        for want in [
+            "n.csv:3: from_km: km 11.5–13 of road `R1` overlaps section `A` (line 2, km 10–12)",
+            "n.csv:4: to_km: to_km 13 before from_km 14",
+            "n.csv:5: to_km: an empty value; expected to_km, as from_km is given",
+            "n.csv:6: road: an empty value; expected the road the chainage runs along",
+            "n.csv:7: to_km: to_km 13 equal to from_km 13",
+        ] {
+            assert!(t.contains(want), "missing `{want}` in\n{t}");
+        }
+        // Touching sections are fine; a length far from the chainage is noted once, counted.
+        let text = format!(
+            "{HEAD},road,from_km,to_km\nA,2,2,single,3,3,100,0.1,0.02,R,0,2\nB,1.5,2,single,3,3,100,0.1,0.02,R,2,4\nC,9,2,single,3,3,100,0.1,0.02,R,4,5\n"
+        );
+        let (n, d) = read(&text);
+        assert!((n.expect("reads").sections[1].length_km - 1.5).abs() < 1e-12);
+        assert!(
+            d.to_string().contains(
+                "n.csv:3: length_km: length_km 1.5 differs from its chainage (2 km) by more than 5 %, and so does one more section"
+            ),
+            "{d}"
+        );
+        // One chainage column alone is an error of the header.
+        let (_, d) = read(&format!(
+            "{HEAD},from_km\nA,2,2,single,3,3,100,0.1,0.02,1\n"
+        ));
+        assert!(
+            d.to_string().contains("a `from_km` column but no `to_km`"),
+            "{d}"
+        );
     }
 
     #[test]

@@ -210,7 +210,11 @@ impl SheetInput {
             None => match names.first() {
                 Some(n) => n.clone(),
                 None => {
-                    d.error(Place::file(file), "a workbook with no sheets", layout.to_owned());
+                    d.error(
+                        Place::file(file),
+                        "a workbook with no sheets",
+                        layout.to_owned(),
+                    );
                     return None;
                 }
             },
@@ -238,7 +242,12 @@ impl SheetInput {
         // a caption) are skipped with a note.
         let Some(h) = rows_of.iter().position(|(_, v)| v.len() >= 2) else {
             d.error(
-                Place::cell(file, &sheet, rows_of.first().map_or(1, |r| r.0 as usize + 1), None),
+                Place::cell(
+                    file,
+                    &sheet,
+                    rows_of.first().map_or(1, |r| r.0 as usize + 1),
+                    None,
+                ),
                 "no header row (a row naming two columns or more)",
                 layout.to_owned(),
             );

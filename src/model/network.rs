@@ -51,6 +51,10 @@ pub struct Section {
     pub subgrade_mr_mpa: Option<f64>,
     pub last_works_year: Option<Year>,
     pub speed_kmh: Option<f64>,
+    /// The road the section lies on.
+    pub road: Option<String>,
+    /// Its chainage along the road, km: (from, to), from < to.
+    pub chainage: Option<(f64, f64)>,
     /// The `x_` columns' values, in the order of [`Network::note_columns`].
     pub notes: Vec<String>,
 }
@@ -64,6 +68,10 @@ pub struct Network {
     pub note_columns: Vec<String>,
     /// Where the columns are, when the network was read from a workbook's sheet.
     pub cells: Option<Cells>,
+    /// The network has a `road` column.
+    pub road_column: bool,
+    /// The network has the chainage columns `from_km` and `to_km`.
+    pub chainage_columns: bool,
 }
 
 /// The columns of a network read from a workbook's sheet.

@@ -13,6 +13,7 @@ use crate::input::scenario::VehicleClass;
 use crate::input::Run;
 use crate::io::StreamSet;
 use crate::model::catalogue::Category;
+use crate::model::network::{Network, Section};
 use crate::model::YearOffset;
 use crate::output::report::Inputs;
 use crate::plan::{ConditionSeries, Plan, RowKind, CASES};
@@ -66,12 +67,20 @@ pub fn write(
     let e = Enumerator::for_run(run);
     let secs = &run.network.sections;
 
+    let net = &run.network;
     // Work programme: the works the exact re-check simulated, by year.
-    set.write_to(Work::FILE.name, Work::FILE.head().as_bytes())?;
+    let head = |spec: schema::FileSpec| {
+        let mut h = spec.head();
+        h.pop();
+        h.push_str(&carried_head(net));
+        h.push('\n');
+        h
+    };
+    set.write_to(Work::FILE.name, head(Work::FILE).as_bytes())?;
     let mut programme = Vec::new();
     let mut text = String::new();
-    for row in work_programme(run, p) {
-        row.write(&mut text);
+    for (w, row) in p.works.iter().zip(work_programme(run, p)) {
+        row.write_then(&mut text, |out| carried_cells(net, &secs[w.section], out));
         if keep.report {
             programme.push(row);
         }
@@ -83,7 +92,7 @@ pub fn write(
     set.write_to(Work::FILE.name, text.as_bytes())?;
 
     // Section plan and candidates, chunk by chunk (names rebuilt from the strategies' keys).
-    set.write_to(SectionPlan::FILE.name, SectionPlan::FILE.head().as_bytes())?;
+    set.write_to(SectionPlan::FILE.name, head(SectionPlan::FILE).as_bytes())?;
     let c = &p.candidates;
     if keep.candidates {
         let head = candidate_head(
@@ -99,7 +108,8 @@ pub fn write(
             .into_par_iter()
             .map(|g| {
                 let mut sp = String::new();
-                section_plan(run, &e, p, g).write(&mut sp);
+                section_plan(run, &e, p, g)
+                    .write_then(&mut sp, |out| carried_cells(net, &secs[g], out));
                 let mut cs = String::new();
                 if keep.candidates {
                     candidates_of(run, &e, p, g, &mut cs);
@@ -160,6 +170,45 @@ pub fn write(
         risk: None,
         risk_draws: None,
     })
+}
+
+/// The columns carried from the network into the section-level files, after their own: the
+/// location (`road`, `from_km`, `to_km`, when the network has them), then each `x_` column,
+/// as `,name…` (empty when there are none).
+pub fn carried_head(net: &Network) -> String {
+    let mut h = String::new();
+    if net.road_column {
+        h.push_str(",road");
+    }
+    if net.chainage_columns {
+        h.push_str(",from_km,to_km");
+    }
+    for n in &net.note_columns {
+        h.push(',');
+        schema::value::write_text(n, &mut h);
+    }
+    h
+}
+
+/// A section's cells of [`carried_head`]'s columns, each after a comma; the chainage to the
+/// metre.
+pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {
+    if net.road_column {
+        out.push(',');
+        schema::value::write_text(sec.road.as_deref().unwrap_or(""), out);
+    }
+    if net.chainage_columns {
+        for x in [sec.chainage.map(|c| c.0), sec.chainage.map(|c| c.1)] {
+            out.push(',');
+            if let Some(x) = x {
+                schema::Value::write(&Fixed::<3>::of(x), out);
+            }
+        }
+    }
+    for v in &sec.notes {
+        out.push(',');
+        schema::value::write_text(v, out);
+    }
 }
 
 /// The work programme's rows: every treatment of the plan, by year.

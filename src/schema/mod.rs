@@ -65,6 +65,14 @@ pub trait Record: Sized {
     const FILE: FileSpec;
     /// Append the row's cells, comma-separated, and a line break.
     fn write(&self, out: &mut String);
+    /// [`Record::write`] with more cells before the line break: `tail` appends them, each
+    /// after a comma (the columns a file carries from the network).
+    fn write_then(&self, out: &mut String, tail: impl FnOnce(&mut String)) {
+        self.write(out);
+        out.pop();
+        tail(out);
+        out.push('\n');
+    }
     /// The row from its cells, in [`Record::FILE`]'s column order.
     fn from_cells(cells: &mut Cells<'_>) -> Result<Self>;
 }
