@@ -699,7 +699,7 @@ impl<'a> Names<'a> {
 
 /// `sensitivity.csv`'s row for `r`.
 pub fn record(run: &Run, names: &mut Names, r: &Row) -> crate::schema::analysis::Sensitivity {
-    use crate::schema::value::{Cents, Real};
+    use crate::schema::value::{Cents, Fixed};
     let mut name = |k: Option<StrategyRef>| match (r.section, k) {
         (Some(_), Some(k)) => names.of(k).to_owned(),
         _ => String::new(),
@@ -720,8 +720,8 @@ pub fn record(run: &Run, names: &mut Names, r: &Row) -> crate::schema::analysis:
         input: r.input.map(|i| INPUTS[i].1).unwrap_or("").to_owned(),
         test: r.test.to_owned(),
         direction: r.direction.to_owned(),
-        value: r.value.map(Real),
-        change: r.change.map(Real),
+        value: r.value.and_then(Fixed::of_f64),
+        change: r.change.and_then(Fixed::of_f64),
         npv: r.npv.and_then(Cents::of_f64),
         other_strategy: name(r.other),
     }

@@ -324,7 +324,7 @@ pub fn target_use(run: &Run, p: &Plan) -> Vec<TargetUse> {
             achieved: Fixed::of(p.achieved[out.len()]),
             price: Price(p.outcome.prices[j]),
             region: t.region.as_deref().unwrap_or_default().to_owned(),
-            length_km: Real(crate::plan::target_length(run, t)),
+            length_km: Fixed::of(crate::plan::target_length(run, t)),
         });
     }
     out

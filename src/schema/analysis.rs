@@ -26,7 +26,8 @@ record! {
 
 record! {
     /// `sensitivity.csv`: one test or switching value, for the network plan (`scope`
-    /// `network`) or one section's strategy.
+    /// `network`) or one section's strategy; the input's value and its change from the
+    /// scenario to six decimals.
     Sensitivity in "sensitivity.csv" by "pavestrat sensitivity" {
         scope: String = "scope",
         section_id: String = "section_id",
@@ -34,8 +35,8 @@ record! {
         input: String = "input",
         test: String = "test",
         direction: String = "direction",
-        value: Option<Real> = "value",
-        change: Option<Real> = "change",
+        value: Option<Fixed<6>> = "value",
+        change: Option<Fixed<6>> = "change",
         npv: Option<Cents> = "npv",
         other_strategy: String = "other_strategy",
     }

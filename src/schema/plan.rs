@@ -55,8 +55,8 @@ record! {
 }
 
 record! {
-    /// `target_use.csv`: one row per condition-target line, with the length it counts (the
-    /// row is Σ use ≤ at_most × length_km).
+    /// `target_use.csv`: one row per condition-target line, with the length it counts, to the
+    /// metre (the row is Σ use ≤ at_most × length_km).
     TargetUse in "target_use.csv" by "pavestrat plan" {
         line: String = "line",
         year: Year = "year",
@@ -65,7 +65,7 @@ record! {
         achieved: Fixed<6> = "achieved",
         price: Price = "price",
         region: String = "region",
-        length_km: Real = "length_km",
+        length_km: Fixed<3> = "length_km",
     }
 }
 

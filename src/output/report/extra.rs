@@ -38,7 +38,7 @@ pub fn sensitivity_section(rows: &[Sensitivity], m: &str) -> String {
     for r in rows {
         let input = r.input.clone();
         let test = r.test.as_str();
-        let value = r.value.map(|v| v.0);
+        let value = r.value.map(|v| v.to_f64());
         let npv = r.npv.map(|x| x.to_f64());
         if r.scope != "network" {
             if test == "best-changes" {
