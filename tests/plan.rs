@@ -35,6 +35,7 @@ fn plans_the_built_in_demo_within_every_line() {
             "condition.csv",
             "limits.csv",
             "manifest.json",
+            "programme.csv",
             "section_plan.csv",
             "summary.json",
             "target_use.csv",
@@ -171,6 +172,82 @@ fn plans_the_built_in_demo_within_every_line() {
     wd.run(&["explain", "OR-01", "--from", "nowhere"])
         .expect_code(2)
         .stderr_has("summary.json");
+}
+
+/// `programme.csv` holds the work programme's money exactly: each section's cell of a year is
+/// the sum of its works that year in `work_programme.csv`, with their treatments; the `all`
+/// row is the column sums of the sections' rows; the treatment, category and region totals
+/// partition it, to the cent and the metre.
+#[test]
+fn the_programme_sums_the_work_programme_to_the_cent() {
+    let wd = Workdir::new();
+    wd.run(&["plan", "--out", "res", "-q"]).expect_code(0);
+    let works = rows(&wd.read("res/work_programme.csv"));
+    let prog = rows(&wd.read("res/programme.csv"));
+    let mut by_cell: HashMap<(String, String), (i64, Vec<String>)> = HashMap::new();
+    for w in &works {
+        let e = by_cell
+            .entry((w["section_id"].clone(), w["year"].clone()))
+            .or_default();
+        e.0 += cents(&w["cost"]);
+        e.1.push(w["treatment"].clone());
+    }
+    let years: Vec<String> = (2027..2057).map(|y| y.to_string()).collect();
+    let sections: Vec<&HashMap<String, String>> =
+        prog.iter().filter(|r| r["kind"] == "section").collect();
+    let mut cells = 0;
+    for r in &sections {
+        for y in &years {
+            let got = cents(&r[&format!("cost_{y}")]);
+            match by_cell.get(&(r["section_id"].clone(), y.clone())) {
+                Some((c, names)) => {
+                    cells += 1;
+                    assert_eq!(got, *c, "{} {y}", r["section_id"]);
+                    let mut written: Vec<&str> = r[&format!("treatment_{y}")].split('+').collect();
+                    let mut want: Vec<&str> = names.iter().map(String::as_str).collect();
+                    written.sort_unstable();
+                    want.sort_unstable();
+                    assert_eq!(written, want, "{} {y}", r["section_id"]);
+                }
+                None => assert_eq!(got, 0, "{} {y}", r["section_id"]),
+            }
+        }
+    }
+    assert_eq!(
+        cells,
+        by_cell.len(),
+        "every works' cell has its section's row"
+    );
+    // Exact totals: money in cents, quantities in metres (square metres for the area).
+    let units = |s: &str| -> i64 {
+        let (int, frac) = s.split_once('.').unwrap_or((s, ""));
+        format!("{int}{frac}").parse().unwrap()
+    };
+    let cols: Vec<String> = ["works", "km", "lane_km", "area_m2", "cost"]
+        .iter()
+        .map(|c| c.to_string())
+        .chain(years.iter().map(|y| format!("cost_{y}")))
+        .collect();
+    let sum = |rows: &[&HashMap<String, String>], c: &str| -> i64 {
+        rows.iter().map(|r| units(&r[c])).sum()
+    };
+    let all: Vec<&HashMap<String, String>> = prog.iter().filter(|r| r["kind"] == "total").collect();
+    assert_eq!(all.len(), 1);
+    assert_eq!(units(&all[0]["works"]), works.len() as i64);
+    for kind in ["section", "treatment", "category", "region"] {
+        let part: Vec<&HashMap<String, String>> =
+            prog.iter().filter(|r| r["kind"] == kind).collect();
+        assert!(!part.is_empty(), "{kind}");
+        for c in &cols {
+            assert_eq!(sum(&part, c), units(&all[0][c]), "{kind} rows' {c}");
+        }
+    }
+    // A rate is its row's cost over its quantity, to the cent.
+    for r in &prog {
+        let rate = cents(&r["cost_per_lane_km"]) as f64 / 100.0;
+        let want = cents(&r["cost"]) as f64 / 100.0 / (units(&r["lane_km"]) as f64 / 1000.0);
+        assert!((rate - want).abs() <= 0.005 + 1e-9, "{r:?}");
+    }
 }
 
 #[test]

@@ -6,6 +6,8 @@
 //! it writes:
 //! - `work_programme.csv`: `year,section_id,treatment,cost,region,category` — every treatment
 //!   of the plan, by year;
+//! - `programme.csv`: each section's works money by year with the treatment beside it, and
+//!   totals by budget group, region, category and treatment, with quantities and unit rates;
 //! - `section_plan.csv`: each section's strategy, NPV and PV agency cost, and what it would get
 //!   with no limits;
 //! - `budget_use.csv`: `line,year,limit,used,price,category,region,slack` — one row per budget

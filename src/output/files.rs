@@ -90,6 +90,10 @@ pub fn write(
         }
     }
     set.write_to(Work::FILE.name, text.as_bytes())?;
+    set.write_to(
+        super::programme::NAME,
+        super::programme::text(run, &p.works).as_bytes(),
+    )?;
 
     // Section plan and candidates, chunk by chunk (names rebuilt from the strategies' keys).
     set.write_to(SectionPlan::FILE.name, head(SectionPlan::FILE).as_bytes())?;

@@ -123,9 +123,13 @@ pub const CANDIDATES_FILE: FileSpec = FileSpec {
     columns: &CANDIDATE_COLUMNS,
 };
 
+/// `programme.csv`'s name (written by [`crate::output::programme`]).
+pub const PROGRAMME: &str = "programme.csv";
+
 /// Every file `plan --out` writes by default, in the order it writes them.
-pub const FILES: [&str; 8] = [
+pub const FILES: [&str; 9] = [
     Work::FILE.name,
+    PROGRAMME,
     SectionPlan::FILE.name,
     BudgetUse::FILE.name,
     TargetUse::FILE.name,

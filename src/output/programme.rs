@@ -1,0 +1,280 @@
+//! `programme.csv`: the plan's works as finance reads them — a row per section with works,
+//! its spending year by year beside the treatment done that year, then totals: all works, and
+//! by budget group, region, category and treatment. Every row has the quantities treated (km,
+//! lane-km, m² — each works counted once, on the lanes it works on, as its cost is priced) and
+//! the unit rates they give (cost per lane-km and per m²).
+//!
+//! The sums are exact: each works' cost is taken to the cent and each quantity to its written
+//! unit (the metre, the square metre) before adding, so every total equals the sum of the rows
+//! it totals, to the cent. A budget group's total counts the works its lines count (year,
+//! category, region); routine upkeep is not works and is in `budget_use.csv`, so a group that
+//! counts routine money spends more there than here.
+
+use crate::input::Run;
+use crate::model::catalogue::{Action, Category};
+use crate::plan::PlannedWork;
+use crate::schema::value::{write_text, Fixed};
+use crate::schema::Value;
+
+/// The file's name.
+pub const NAME: &str = crate::schema::plan::PROGRAMME;
+
+/// The columns before the years' (then `cost_YEAR,treatment_YEAR` for every year of the
+/// analysis, then the columns carried from the network).
+pub const COLUMNS: [&str; 11] = [
+    "kind",
+    "name",
+    "section_id",
+    "region",
+    "works",
+    "km",
+    "lane_km",
+    "area_m2",
+    "cost",
+    "cost_per_lane_km",
+    "cost_per_m2",
+];
+
+/// One row's sums, in written units: metres, square metres, cents.
+#[derive(Debug, Clone)]
+struct Tally {
+    works: u64,
+    metres: i128,
+    lane_metres: i128,
+    area_m2: i128,
+    cents: i128,
+    /// Cents by year of the analysis.
+    by_year: Vec<i128>,
+}
+
+impl Tally {
+    fn new(years: usize) -> Tally {
+        Tally {
+            works: 0,
+            metres: 0,
+            lane_metres: 0,
+            area_m2: 0,
+            cents: 0,
+            by_year: vec![0; years],
+        }
+    }
+
+    fn add(&mut self, w: &Item) {
+        self.works += 1;
+        self.metres += w.metres;
+        self.lane_metres += w.lane_metres;
+        self.area_m2 += w.area_m2;
+        self.cents += w.cents;
+        self.by_year[w.year] += w.cents;
+    }
+}
+
+/// One works, in written units.
+#[derive(Debug, Clone, Copy)]
+struct Item {
+    section: usize,
+    year: usize,
+    treatment: usize,
+    metres: i128,
+    lane_metres: i128,
+    area_m2: i128,
+    cents: i128,
+}
+
+/// `x` in units of 10^-p, half to even.
+fn units(x: f64, p: u32) -> i128 {
+    crate::model::money::units_half_even(x, p).unwrap_or(0)
+}
+
+/// Each works of the plan with its quantities: the lanes a works is on are the section's lanes
+/// at the time (a widening's are the lanes it adds, and the lanes after it count for later
+/// works), as the simulation prices them.
+fn items(run: &Run, works: &[PlannedWork]) -> Vec<Item> {
+    let secs = &run.network.sections;
+    let mut order: Vec<&PlannedWork> = works.iter().collect();
+    order.sort_by_key(|w| (w.section, w.year.0 as usize, w.treatment));
+    let mut out = Vec::with_capacity(order.len());
+    let mut lanes = 0u8;
+    let mut last = usize::MAX;
+    for w in order {
+        let sec = &secs[w.section];
+        if w.section != last {
+            lanes = sec.lanes;
+            last = w.section;
+        }
+        let t = &run.catalogue.treatments[w.treatment];
+        let worked = if t.action == Action::Widen {
+            t.lanes_added
+        } else {
+            lanes
+        };
+        if t.action == Action::Widen {
+            lanes = lanes.saturating_add(t.lanes_added);
+        }
+        let width = sec
+            .lane_width_m
+            .unwrap_or(crate::simulate::DEFAULT_LANE_WIDTH_M);
+        let km = sec.length_km;
+        out.push(Item {
+            section: w.section,
+            year: w.year.0 as usize,
+            treatment: w.treatment,
+            metres: units(km, 3),
+            lane_metres: units(km * f64::from(worked), 3),
+            area_m2: units(km * 1000.0 * f64::from(worked) * width, 0),
+            cents: units(w.cost, 2),
+        });
+    }
+    out
+}
+
+/// The whole file.
+pub fn text(run: &Run, works: &[PlannedWork]) -> String {
+    let s = &run.scenario;
+    let years = s.analysis_years as usize;
+    let net = &run.network;
+    let cat = &run.catalogue;
+    let items = items(run, works);
+
+    let mut out = COLUMNS.join(",");
+    for y in 0..years {
+        let year = s.base_year.0 + y as i32;
+        out.push_str(&format!(",cost_{year},treatment_{year}"));
+    }
+    out.push_str(&super::files::carried_head(net));
+    out.push('\n');
+
+    // Sections, in network order.
+    let mut k = 0;
+    while k < items.len() {
+        let g = items[k].section;
+        let end = k + items[k..].iter().take_while(|i| i.section == g).count();
+        let mut t = Tally::new(years);
+        let mut names: Vec<Vec<&str>> = vec![Vec::new(); years];
+        for i in &items[k..end] {
+            t.add(i);
+            names[i.year].push(cat.treatments[i.treatment].id.as_str());
+        }
+        let sec = &net.sections[g];
+        let region = sec.region.as_deref().unwrap_or("");
+        row(
+            &mut out,
+            "section",
+            "",
+            sec.id.as_str(),
+            region,
+            &t,
+            Some(&names),
+        );
+        super::files::carried_cells(net, sec, &mut out);
+        out.push('\n');
+        k = end;
+    }
+
+    // Totals.
+    let total = |kind: &str, name: &str, keep: &dyn Fn(&Item) -> bool, out: &mut String| {
+        let mut t = Tally::new(years);
+        items.iter().filter(|i| keep(i)).for_each(|i| t.add(i));
+        if kind == "total" || t.works > 0 {
+            row(out, kind, name, "", "", &t, None);
+            for _ in super::files::carried_head(net).matches(',') {
+                out.push(',');
+            }
+            out.push('\n');
+        }
+    };
+    total("total", "all", &|_| true, &mut out);
+    let mut groups: Vec<&str> = Vec::new();
+    for b in &s.budget_lines {
+        if !groups.contains(&b.group.as_str()) {
+            groups.push(&b.group);
+        }
+    }
+    for g in groups {
+        let counts = |i: &Item| {
+            let t = &cat.treatments[i.treatment];
+            let region = net.sections[i.section].region.as_ref();
+            let year = s.base_year.0 + i.year as i32;
+            s.budget_lines.iter().any(|b| {
+                b.group == g
+                    && b.year.0 == year
+                    && (b.category == Category::All || b.category == t.category)
+                    && b.region.as_ref().is_none_or(|r| Some(r) == region)
+            })
+        };
+        total("group", g, &counts, &mut out);
+    }
+    for r in net.regions() {
+        let r = r.to_owned();
+        total(
+            "region",
+            &r,
+            &|i: &Item| net.sections[i.section].region.as_deref() == Some(r.as_str()),
+            &mut out,
+        );
+    }
+    for c in [Category::Capital, Category::Routine] {
+        total(
+            "category",
+            c.name(),
+            &|i: &Item| cat.treatments[i.treatment].category == c,
+            &mut out,
+        );
+    }
+    for (j, t) in cat.treatments.iter().enumerate() {
+        total("treatment", &t.id, &|i: &Item| i.treatment == j, &mut out);
+    }
+    out
+}
+
+/// A row's cells up to its years' (no line break, no carried cells).
+fn row(
+    out: &mut String,
+    kind: &str,
+    name: &str,
+    section: &str,
+    region: &str,
+    t: &Tally,
+    names: Option<&Vec<Vec<&str>>>,
+) {
+    for (k, text) in [kind, name, section, region].into_iter().enumerate() {
+        if k > 0 {
+            out.push(',');
+        }
+        write_text(text, out);
+    }
+    out.push_str(&format!(",{}", t.works));
+    for (v, p) in [
+        (t.metres, 3),
+        (t.lane_metres, 3),
+        (t.area_m2, 0),
+        (t.cents, 2),
+    ] {
+        out.push(',');
+        write_units(v, p, out);
+    }
+    // Unit rates, to the cent: cost over lane-km and over m².
+    let cost = t.cents as f64 / 100.0;
+    for q in [t.lane_metres as f64 / 1000.0, t.area_m2 as f64] {
+        out.push(',');
+        if q > 0.0 {
+            Fixed::<2>::of(cost / q).write(out);
+        }
+    }
+    for (y, c) in t.by_year.iter().enumerate() {
+        out.push(',');
+        write_units(*c, 2, out);
+        out.push(',');
+        if let Some(n) = names {
+            write_text(&n[y].join("+"), out);
+        }
+    }
+}
+
+fn write_units(v: i128, p: u32, out: &mut String) {
+    match p {
+        0 => Fixed::<0>(v).write(out),
+        2 => Fixed::<2>(v).write(out),
+        _ => Fixed::<3>(v).write(out),
+    }
+}
