@@ -545,6 +545,7 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
     let names = wb.sheet_names().to_vec();
     for s in [
         "Work programme",
+        "Programme",
         "Section plan",
         "Budget use",
         "Appraisal",
@@ -552,17 +553,76 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
     ] {
         assert!(names.iter().any(|n| n == s), "sheet {s} in {names:?}");
     }
+    let cents = |x: f64| (x * 100.0).round() as i64;
     let works = rows(&read("work_programme.csv"));
     let ws = wb.worksheet_range("Work programme").unwrap();
-    let body: Vec<_> = ws.rows().skip(1).collect();
+    let all: Vec<_> = ws.rows().collect();
+    // Readable headings; the table, then a totals row.
+    let head: Vec<String> = all[0].iter().map(|c| c.to_string()).collect();
+    assert_eq!(
+        head[..4],
+        ["Year", "Section", "Treatment", "Cost"].map(String::from)
+    );
+    assert_eq!(
+        head.last().map(String::as_str),
+        Some("To km"),
+        "carried columns"
+    );
+    let body = &all[1..all.len() - 1];
     assert_eq!(body.len(), works.len());
+    let mut sum = 0i64;
     for (r, w) in body.iter().zip(&works) {
         assert!(matches!(r[0], Data::Float(_)), "year is a number");
         match r[3] {
-            Data::Float(x) => assert!(close(x, w["cost"].parse().unwrap(), 1e-12)),
+            Data::Float(x) => {
+                assert_eq!(cents(x), cents(w["cost"].parse().unwrap()));
+                sum += cents(x);
+            }
             ref other => panic!("cost is {other:?}, not a number"),
         }
         assert_eq!(r[1].to_string(), w["section_id"]);
+    }
+    // The totals row's formula holds the CSV's sum to the cent.
+    let total = &all[all.len() - 1];
+    assert_eq!(total[0].to_string(), "Total");
+    match total[3] {
+        Data::Float(x) => assert_eq!(cents(x), sum),
+        ref other => panic!("total is {other:?}"),
+    }
+    // The programme sheet is programme.csv, cell for cell, typed.
+    let prog = rows(&read("programme.csv"));
+    let ws = wb.worksheet_range("Programme").unwrap();
+    let sheet: Vec<_> = ws.rows().skip(1).collect();
+    assert_eq!(sheet.len(), prog.len());
+    for (r, p) in sheet.iter().zip(&prog) {
+        assert_eq!(r[0].to_string(), p["kind"]);
+        assert_eq!(r[2].to_string(), p["section_id"]);
+        for (k, col) in [(8, "cost"), (11, "cost_2027"), (13, "cost_2028")] {
+            match r[k] {
+                Data::Float(x) => assert_eq!(cents(x), cents(p[col].parse().unwrap()), "{col}"),
+                ref other => panic!("{col} is {other:?}"),
+            }
+        }
+        assert_eq!(r[12].to_string(), p["treatment_2027"]);
+    }
+    // Filters on the heading rows and frozen headings, in the sheets' XML.
+    let mut zip =
+        zip::ZipArchive::new(std::fs::File::open(demo().join("plan.xlsx")).unwrap()).unwrap();
+    for k in 1..=5 {
+        let mut xml = String::new();
+        std::io::Read::read_to_string(
+            &mut zip.by_name(&format!("xl/worksheets/sheet{k}.xml")).unwrap(),
+            &mut xml,
+        )
+        .unwrap();
+        assert!(
+            xml.contains("<autoFilter ref=\"A1:"),
+            "sheet {k} has a filter"
+        );
+        assert!(
+            xml.contains("state=\"frozen\""),
+            "sheet {k} has frozen headings"
+        );
     }
     let budget = rows(&read("budget_use.csv"));
     let ws = wb.worksheet_range("Budget use").unwrap();

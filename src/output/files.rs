@@ -194,6 +194,20 @@ pub fn carried_head(net: &Network) -> String {
     h
 }
 
+/// The names of [`carried_head`]'s columns.
+pub fn carried_names(net: &Network) -> Vec<String> {
+    let mut v: Vec<String> = Vec::new();
+    if net.road_column {
+        v.push("road".into());
+    }
+    if net.chainage_columns {
+        v.push("from_km".into());
+        v.push("to_km".into());
+    }
+    v.extend(net.note_columns.iter().cloned());
+    v
+}
+
 /// A section's cells of [`carried_head`]'s columns, each after a comma; the chainage to the
 /// metre.
 pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {

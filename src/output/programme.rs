@@ -128,21 +128,54 @@ fn items(run: &Run, works: &[PlannedWork]) -> Vec<Item> {
     out
 }
 
-/// The whole file.
-pub fn text(run: &Run, works: &[PlannedWork]) -> String {
+/// One row of the programme, in written units.
+#[derive(Debug, Clone)]
+pub struct Row {
+    /// `section`, `total`, `group`, `region`, `category` or `treatment`.
+    pub kind: &'static str,
+    /// The total's name (`all`, the group, region, category or treatment); empty for a section.
+    pub name: String,
+    /// The section's index in network order, for a section's row.
+    pub section: Option<usize>,
+    tally: Tally,
+    /// A section's treatments by year (joined with `+` when more than one).
+    pub treatments: Vec<String>,
+}
+
+impl Row {
+    pub fn works(&self) -> u64 {
+        self.tally.works
+    }
+    /// Km, lane-km, m² treated and cost, as written (km to the metre, cost to the cent).
+    pub fn quantities(&self) -> [f64; 4] {
+        let t = &self.tally;
+        [
+            t.metres as f64 / 1000.0,
+            t.lane_metres as f64 / 1000.0,
+            t.area_m2 as f64,
+            t.cents as f64 / 100.0,
+        ]
+    }
+    /// Cost per lane-km and per m², to the cent (`None` with no quantity).
+    pub fn rates(&self) -> [Option<f64>; 2] {
+        let [_, lane_km, m2, cost] = self.quantities();
+        [lane_km, m2].map(|q| (q > 0.0).then(|| Fixed::<2>::of(cost / q).to_f64()))
+    }
+    /// Cost by year of the analysis, to the cent.
+    pub fn by_year(&self) -> impl Iterator<Item = f64> + '_ {
+        self.tally.by_year.iter().map(|c| *c as f64 / 100.0)
+    }
+}
+
+/// The programme's rows: sections with works in network order, then the totals (all works,
+/// each budget group, region, category and treatment that has works).
+pub fn rows(run: &Run, works: &[PlannedWork]) -> Vec<Row> {
     let s = &run.scenario;
     let years = s.analysis_years as usize;
     let net = &run.network;
     let cat = &run.catalogue;
     let items = items(run, works);
-
-    let mut out = COLUMNS.join(",");
-    for y in 0..years {
-        let year = s.base_year.0 + y as i32;
-        out.push_str(&format!(",cost_{year},treatment_{year}"));
-    }
-    out.push_str(&super::files::carried_head(net));
-    out.push('\n');
+    let mut out = Vec::new();
 
     // Sections, in network order.
     let mut k = 0;
@@ -155,34 +188,31 @@ pub fn text(run: &Run, works: &[PlannedWork]) -> String {
             t.add(i);
             names[i.year].push(cat.treatments[i.treatment].id.as_str());
         }
-        let sec = &net.sections[g];
-        let region = sec.region.as_deref().unwrap_or("");
-        row(
-            &mut out,
-            "section",
-            "",
-            sec.id.as_str(),
-            region,
-            &t,
-            Some(&names),
-        );
-        super::files::carried_cells(net, sec, &mut out);
-        out.push('\n');
+        out.push(Row {
+            kind: "section",
+            name: String::new(),
+            section: Some(g),
+            tally: t,
+            treatments: names.iter().map(|n| n.join("+")).collect(),
+        });
         k = end;
     }
 
     // Totals.
-    let total = |kind: &str, name: &str, keep: &dyn Fn(&Item) -> bool, out: &mut String| {
-        let mut t = Tally::new(years);
-        items.iter().filter(|i| keep(i)).for_each(|i| t.add(i));
-        if kind == "total" || t.works > 0 {
-            row(out, kind, name, "", "", &t, None);
-            for _ in super::files::carried_head(net).matches(',') {
-                out.push(',');
+    let total =
+        |kind: &'static str, name: &str, keep: &dyn Fn(&Item) -> bool, out: &mut Vec<Row>| {
+            let mut t = Tally::new(years);
+            items.iter().filter(|i| keep(i)).for_each(|i| t.add(i));
+            if kind == "total" || t.works > 0 {
+                out.push(Row {
+                    kind,
+                    name: name.to_owned(),
+                    section: None,
+                    tally: t,
+                    treatments: Vec::new(),
+                });
             }
-            out.push('\n');
-        }
-    };
+        };
     total("total", "all", &|_| true, &mut out);
     let mut groups: Vec<&str> = Vec::new();
     for b in &s.budget_lines {
@@ -205,11 +235,10 @@ pub fn text(run: &Run, works: &[PlannedWork]) -> String {
         total("group", g, &counts, &mut out);
     }
     for r in net.regions() {
-        let r = r.to_owned();
         total(
             "region",
-            &r,
-            &|i: &Item| net.sections[i.section].region.as_deref() == Some(r.as_str()),
+            r,
+            &|i: &Item| net.sections[i.section].region.as_deref() == Some(r),
             &mut out,
         );
     }
@@ -227,16 +256,41 @@ pub fn text(run: &Run, works: &[PlannedWork]) -> String {
     out
 }
 
+/// The whole file.
+pub fn text(run: &Run, works: &[PlannedWork]) -> String {
+    let s = &run.scenario;
+    let net = &run.network;
+    let mut out = COLUMNS.join(",");
+    for y in 0..s.analysis_years {
+        let year = s.base_year.0 + y as i32;
+        out.push_str(&format!(",cost_{year},treatment_{year}"));
+    }
+    let carried = super::files::carried_head(net);
+    out.push_str(&carried);
+    out.push('\n');
+    for r in rows(run, works) {
+        match r.section {
+            Some(g) => {
+                let sec = &net.sections[g];
+                let region = sec.region.as_deref().unwrap_or("");
+                row(&mut out, r.kind, "", sec.id.as_str(), region, &r);
+                super::files::carried_cells(net, sec, &mut out);
+            }
+            None => {
+                row(&mut out, r.kind, &r.name, "", "", &r);
+                for _ in carried.matches(',') {
+                    out.push(',');
+                }
+            }
+        }
+        out.push('\n');
+    }
+    out
+}
+
 /// A row's cells up to its years' (no line break, no carried cells).
-fn row(
-    out: &mut String,
-    kind: &str,
-    name: &str,
-    section: &str,
-    region: &str,
-    t: &Tally,
-    names: Option<&Vec<Vec<&str>>>,
-) {
+fn row(out: &mut String, kind: &str, name: &str, section: &str, region: &str, r: &Row) {
+    let t = &r.tally;
     for (k, text) in [kind, name, section, region].into_iter().enumerate() {
         if k > 0 {
             out.push(',');
@@ -254,19 +308,18 @@ fn row(
         write_units(v, p, out);
     }
     // Unit rates, to the cent: cost over lane-km and over m².
-    let cost = t.cents as f64 / 100.0;
-    for q in [t.lane_metres as f64 / 1000.0, t.area_m2 as f64] {
+    for rate in r.rates() {
         out.push(',');
-        if q > 0.0 {
-            Fixed::<2>::of(cost / q).write(out);
+        if let Some(x) = rate {
+            Fixed::<2>::of(x).write(out);
         }
     }
     for (y, c) in t.by_year.iter().enumerate() {
         out.push(',');
         write_units(*c, 2, out);
         out.push(',');
-        if let Some(n) = names {
-            write_text(&n[y].join("+"), out);
+        if let Some(n) = r.treatments.get(y) {
+            write_text(n, out);
         }
     }
 }

@@ -1,7 +1,12 @@
-//! Spreadsheet output (`plan --xlsx FILE`): the work programme, section plan, budget use and
-//! appraisal in one workbook, with numbers as typed numeric cells (money with thousands
-//! separators and two decimals, rates as percentages), plus a sheet with the run's facts and the
-//! planning-level caution. Built with the `xlsx` cargo feature (on by default).
+//! Spreadsheet output (`plan --xlsx FILE`): the work programme, the programme by section and
+//! year (`programme.csv`), section plan, budget use and appraisal in one workbook, with numbers
+//! as typed numeric cells (money to the cent with thousands separators, rates as percentages,
+//! ratios and roughness to two decimals), plus a sheet with the run's facts and the
+//! planning-level caution. Every table has readable headings (one title per column name, the
+//! same across sheets, from the CSV files' names), a filter on its heading row, the heading
+//! frozen, and a totals row of its money columns (a `SUBTOTAL` formula, so a filter totals what
+//! it shows, stored with its value: the exact sum of the cells to the cent). Built with the
+//! `xlsx` cargo feature (on by default).
 //!
 //! The bytes are written by `plan`: with `--out`, as part of the directory's all-or-nothing set
 //! (staged beside the target and moved into place with it); alone, atomically.
@@ -56,46 +61,134 @@ mod imp {
     /// One cell's content.
     enum Cell<'a> {
         Text(&'a str),
+        /// An owned text (a carried note, a name made for the row).
+        Owned(String),
+        /// Money, written to the cent and counted in the sheet's totals.
         Money(f64),
+        /// A count or a year: a whole number.
         Number(f64),
+        /// A ratio, a roughness or a quantity: two decimals shown (the cell holds the value).
+        Ratio(f64),
+        /// A budget price: four decimals shown.
+        Price(f64),
         Rate(Option<f64>),
         Flag(bool),
+    }
+
+    /// The heading of a column named `key` in the CSV files: one title per name, the same on
+    /// every sheet. A year's columns of the programme read `2027 cost`, `2027 treatment`; a
+    /// name not listed (the user's `x_` columns) is kept.
+    pub(super) fn title(key: &str) -> String {
+        if let Some(y) = key.strip_prefix("cost_") {
+            return format!("{y} cost");
+        }
+        if let Some(y) = key.strip_prefix("treatment_") {
+            return format!("{y} treatment");
+        }
+        let t = match key {
+            "year" => "Year",
+            "section_id" => "Section",
+            "treatment" => "Treatment",
+            "cost" => "Cost",
+            "region" => "Region",
+            "category" => "Category",
+            "strategy" => "Strategy",
+            "npv" => "NPV",
+            "pv_agency_cost" => "PV agency cost",
+            "pv_user_cost" => "PV road-user cost",
+            "unconstrained_strategy" => "Best strategy with no limits",
+            "unconstrained_npv" => "NPV with no limits",
+            "same" => "Same as with no limits",
+            "line" => "Budget line",
+            "limit" => "Limit",
+            "used" => "Used",
+            "price" => "Budget price",
+            "slack" => "Slack",
+            "template" => "Template",
+            "bcr" => "BCR",
+            "bcr_capital" => "BCR on capital",
+            "npv_per_capital" => "NPV per unit of capital",
+            "irr" => "IRR",
+            "irr_status" => "IRR status",
+            "fyrr" => "FYRR",
+            "mean_iri" => "Mean IRI (m/km)",
+            "preferred" => "Preferred",
+            "kind" => "Row",
+            "name" => "Total of",
+            "works" => "Works",
+            "km" => "Km",
+            "lane_km" => "Lane-km",
+            "area_m2" => "Area (m²)",
+            "cost_per_lane_km" => "Cost per lane-km",
+            "cost_per_m2" => "Cost per m²",
+            "road" => "Road",
+            "item" => "Item",
+            "value" => "Value",
+            "from_km" => "From km",
+            "to_km" => "To km",
+            other => other,
+        };
+        t.to_owned()
     }
 
     struct Sheet<'w> {
         ws: &'w mut Worksheet,
         row: u32,
+        columns: u16,
         money: Format,
         rate: Format,
+        ratio: Format,
+        price: Format,
+        /// Each money column's sum in cents (the cells hold amounts to the cent).
+        sums: Vec<Option<i128>>,
     }
 
     impl Sheet<'_> {
-        fn head(&mut self, names: &[&str]) -> Result<()> {
+        fn head<S: AsRef<str>>(&mut self, names: &[S]) -> Result<()> {
             let bold = Format::new().set_bold();
             for (c, n) in names.iter().enumerate() {
+                let t = title(n.as_ref());
                 self.ws
-                    .write_string_with_format(0, c as u16, *n, &bold)
+                    .write_string_with_format(0, c as u16, &t, &bold)
                     .map_err(fault)?;
                 self.ws
-                    .set_column_width(c as u16, (n.len() as f64 + 4.0).max(12.0))
+                    .set_column_width(c as u16, (t.chars().count() as f64 + 4.0).max(12.0))
                     .map_err(fault)?;
             }
             self.ws.set_freeze_panes(1, 0).map_err(fault)?;
             self.row = 1;
+            self.columns = names.len() as u16;
+            self.sums = vec![None; names.len()];
             Ok(())
         }
 
         fn line(&mut self, cells: &[Cell<'_>]) -> Result<()> {
             let r = self.row;
-            for (c, cell) in cells.iter().enumerate() {
-                let c = c as u16;
+            for (k, cell) in cells.iter().enumerate() {
+                let c = k as u16;
                 match cell {
                     Cell::Text(s) => self.ws.write_string(r, c, *s).map(|_| ()),
-                    Cell::Money(x) if x.is_finite() => self
-                        .ws
-                        .write_number_with_format(r, c, *x, &self.money)
-                        .map(|_| ()),
+                    Cell::Owned(s) => self.ws.write_string(r, c, s).map(|_| ()),
+                    Cell::Money(x) => match crate::model::money::units_half_even(*x, 2) {
+                        Some(cents) => {
+                            if let Some(sum) = self.sums.get_mut(k) {
+                                *sum = Some(sum.unwrap_or(0) + cents);
+                            }
+                            self.ws
+                                .write_number_with_format(r, c, cents as f64 / 100.0, &self.money)
+                                .map(|_| ())
+                        }
+                        None => Ok(()),
+                    },
                     Cell::Number(x) if x.is_finite() => self.ws.write_number(r, c, *x).map(|_| ()),
+                    Cell::Ratio(x) if x.is_finite() => self
+                        .ws
+                        .write_number_with_format(r, c, *x, &self.ratio)
+                        .map(|_| ()),
+                    Cell::Price(x) if x.is_finite() => self
+                        .ws
+                        .write_number_with_format(r, c, *x, &self.price)
+                        .map(|_| ()),
                     Cell::Rate(Some(x)) if x.is_finite() => self
                         .ws
                         .write_number_with_format(r, c, *x, &self.rate)
@@ -108,6 +201,47 @@ mod imp {
             self.row += 1;
             Ok(())
         }
+
+        /// Close the table: a filter on the heading row over its rows, and (with `totals`) a
+        /// totals row below them — each money column's `SUBTOTAL(109, …)` (the sum of the rows
+        /// a filter shows), stored with its value, the exact sum of the column's cells.
+        fn finish(&mut self, totals: bool) -> Result<()> {
+            let last = self.row.saturating_sub(1).max(1);
+            let right = self.columns.saturating_sub(1);
+            self.ws.autofilter(0, 0, last, right).map_err(fault)?;
+            if !totals || self.row < 2 {
+                return Ok(());
+            }
+            let r = self.row;
+            let bold = Format::new().set_bold();
+            self.ws
+                .write_string_with_format(r, 0, "Total", &bold)
+                .map_err(fault)?;
+            let money = self.money.clone().set_bold();
+            for (k, sum) in self.sums.iter().enumerate() {
+                let Some(cents) = sum else { continue };
+                let col = crate::diag::column_letters(k + 1);
+                let value = Fixed2(*cents).to_string();
+                let f = rust_xlsxwriter::Formula::new(format!("=SUBTOTAL(109,{col}2:{col}{})", r))
+                    .set_result(value);
+                self.ws
+                    .write_formula_with_format(r, k as u16, f, &money)
+                    .map_err(fault)?;
+            }
+            self.row += 1;
+            Ok(())
+        }
+    }
+
+    /// Cents as the decimal text of the amount.
+    struct Fixed2(i128);
+
+    impl std::fmt::Display for Fixed2 {
+        fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+            let mut s = String::new();
+            crate::schema::Value::write(&crate::schema::value::Fixed::<2>(self.0), &mut s);
+            f.write_str(&s)
+        }
     }
 
     fn sheet<'w>(wb: &'w mut Workbook, name: &str, money: &str) -> Result<Sheet<'w>> {
@@ -118,8 +252,12 @@ mod imp {
         Ok(Sheet {
             ws,
             row: 0,
+            columns: 0,
             money: Format::new().set_num_format(format!("#,##0.00 \"{money}\"")),
             rate: Format::new().set_num_format("0.00%"),
+            ratio: Format::new().set_num_format("0.00"),
+            price: Format::new().set_num_format("0.0000"),
+            sums: Vec::new(),
         })
     }
 
@@ -151,33 +289,99 @@ mod imp {
         // level 1 23.1 s for 134 MB.
         wb.set_zip_compression_level(3);
 
+        // The columns carried from the network: the road as text, the chainage as numbers,
+        // the user's notes as text.
+        let net = &run.network;
+        let carried = crate::output::files::carried_names(net);
+        let carry = |sec: &crate::model::network::Section, cells: &mut Vec<Cell<'_>>| {
+            if net.road_column {
+                cells.push(Cell::Owned(sec.road.clone().unwrap_or_default()));
+            }
+            if net.chainage_columns {
+                for x in [sec.chainage.map(|c| c.0), sec.chainage.map(|c| c.1)] {
+                    let x = x.map(|x| crate::schema::value::Fixed::<3>::of(x).to_f64());
+                    cells.push(Cell::Ratio(x.unwrap_or(f64::NAN)));
+                }
+            }
+            cells.extend(sec.notes.iter().map(|n| Cell::Owned(n.clone())));
+        };
+        let with_carried = |cols: &[&str]| -> Vec<String> {
+            cols.iter()
+                .map(|c| c.to_string())
+                .chain(carried.iter().cloned())
+                .collect()
+        };
+
         let mut sh = sheet(&mut wb, "Work programme", &money)?;
-        sh.head(Work::FILE.columns)?;
+        sh.head(&with_carried(Work::FILE.columns))?;
         for w in &p.works {
             let t = &run.catalogue.treatments[w.treatment];
             let sec = &secs[w.section];
-            sh.line(&[
+            let mut cells = vec![
                 Cell::Number(f64::from((s.base_year + w.year).0)),
                 Cell::Text(sec.id.as_str()),
                 Cell::Text(&t.id),
-                Cell::Money(
-                    crate::model::money::Money::from_f64_rounded(w.cost)
-                        .map_or(f64::NAN, |m| m.to_f64()),
-                ),
+                Cell::Money(w.cost),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
                 Cell::Text(t.category.name()),
-            ])?;
+            ];
+            carry(sec, &mut cells);
+            sh.line(&cells)?;
         }
+        sh.finish(true)?;
+
+        // The programme by section and year, with its own totals rows.
+        let rows = crate::output::programme::rows(run, &p.works);
+        check_rows("Programme", rows.len())?;
+        let mut sh = sheet(&mut wb, "Programme", &money)?;
+        let mut head: Vec<String> = crate::output::programme::COLUMNS
+            .iter()
+            .map(|c| c.to_string())
+            .collect();
+        for y in 0..s.analysis_years {
+            let year = s.base_year.0 + y as i32;
+            head.push(format!("cost_{year}"));
+            head.push(format!("treatment_{year}"));
+        }
+        head.extend(carried.iter().cloned());
+        sh.head(&head)?;
+        for r in &rows {
+            let sec = r.section.map(|g| &secs[g]);
+            let [km, lane_km, m2, cost] = r.quantities();
+            let [per_lane_km, per_m2] = r.rates();
+            let mut cells = vec![
+                Cell::Text(r.kind),
+                Cell::Text(&r.name),
+                Cell::Text(sec.map_or("", |x| x.id.as_str())),
+                Cell::Text(sec.and_then(|x| x.region.as_deref()).unwrap_or("")),
+                Cell::Number(r.works() as f64),
+                Cell::Ratio(km),
+                Cell::Ratio(lane_km),
+                Cell::Number(m2),
+                Cell::Money(cost),
+                Cell::Money(per_lane_km.unwrap_or(f64::NAN)),
+                Cell::Money(per_m2.unwrap_or(f64::NAN)),
+            ];
+            for (y, c) in r.by_year().enumerate() {
+                cells.push(Cell::Money(c));
+                cells.push(Cell::Text(r.treatments.get(y).map_or("", String::as_str)));
+            }
+            if let Some(sec) = sec {
+                carry(sec, &mut cells);
+            }
+            sh.line(&cells)?;
+        }
+        sh.finish(false)?;
 
         let e = Enumerator::for_run(run);
         let mut sh = sheet(&mut wb, "Section plan", &money)?;
-        sh.head(SectionPlan::FILE.columns)?;
+        sh.head(&with_carried(SectionPlan::FILE.columns))?;
         for (g, sec) in secs.iter().enumerate() {
             let k = c.chosen(plan, g);
             let (u, unpv) = (c.unconstrained[g].strategy, c.unconstrained[g].npv);
             let chosen = &e.name(c.strategy[k]);
             let un = &e.name(u);
-            sh.line(&[
+            let mut cells = vec![
                 Cell::Text(sec.id.as_str()),
                 Cell::Text(sec.region.as_deref().unwrap_or("")),
                 Cell::Text(chosen),
@@ -186,8 +390,11 @@ mod imp {
                 Cell::Text(un),
                 Cell::Money(unpv),
                 Cell::Flag(chosen == un),
-            ])?;
+            ];
+            carry(sec, &mut cells);
+            sh.line(&cells)?;
         }
+        sh.finish(true)?;
 
         let mut sh = sheet(&mut wb, "Budget use", &money)?;
         // budget_use.csv's columns but its budget group.
@@ -202,13 +409,14 @@ mod imp {
                     Cell::Number(f64::from(line.year.0)),
                     Cell::Money(limit),
                     Cell::Money(used),
-                    Cell::Number(p.outcome.prices[j]),
+                    Cell::Price(p.outcome.prices[j]),
                     Cell::Text(line.category.name()),
                     Cell::Text(line.region.as_deref().unwrap_or("")),
                     Cell::Money(limit - used),
                 ])?;
             }
         }
+        sh.finish(true)?;
 
         let mut sh = sheet(&mut wb, "Appraisal", &money)?;
         sh.head(&[
@@ -225,7 +433,7 @@ mod imp {
             "irr_status",
             "fyrr",
             "mean_iri",
-            "best",
+            "preferred",
         ])?;
         for r in appraisal {
             for st in &r.strategies {
@@ -241,17 +449,19 @@ mod imp {
                     Cell::Money(st.pv_agency),
                     Cell::Money(st.pv_user),
                     Cell::Money(i.npv),
-                    Cell::Number(i.bcr.unwrap_or(f64::NAN)),
-                    Cell::Number(st.bcr_capital.unwrap_or(f64::NAN)),
-                    Cell::Number(st.npv_per_capital.unwrap_or(f64::NAN)),
+                    Cell::Ratio(i.bcr.unwrap_or(f64::NAN)),
+                    Cell::Ratio(st.bcr_capital.unwrap_or(f64::NAN)),
+                    Cell::Ratio(st.npv_per_capital.unwrap_or(f64::NAN)),
                     Cell::Rate(irr),
                     Cell::Text(i.irr.status()),
                     Cell::Rate(i.fyrr),
-                    Cell::Number(st.mean_iri),
+                    Cell::Ratio(st.mean_iri),
                     Cell::Flag(st.strategy == r.best),
                 ])?;
             }
         }
+        // Strategies of one section are alternatives: their money does not add up.
+        sh.finish(false)?;
 
         let mut sh = sheet(&mut wb, "About", &money)?;
         sh.head(&["item", "value"])?;
