@@ -37,10 +37,12 @@ fn plans_the_built_in_demo_within_every_line() {
             "manifest.json",
             "programme.csv",
             "section_plan.csv",
+            "section_plan.geojson",
             "summary.json",
             "target_use.csv",
             "widening_plan.csv",
-            "work_programme.csv"
+            "work_programme.csv",
+            "work_programme.geojson"
         ]
     );
     let budget = rows(&wd.read("res/budget_use.csv"));
@@ -787,6 +789,83 @@ fn plan_widening_table_agrees_with_appraise() {
             ] {
                 assert_eq!(x[px], y[ax], "{tag}: {px} of {x:?} against {y:?}");
             }
+        }
+    }
+}
+
+/// With a `geometry` column (the demo's, in an invented projected grid), `plan` writes
+/// `section_plan.geojson` and `work_programme.geojson`: a FeatureCollection (RFC 7946) with a
+/// feature per row of the CSV of the same name, its properties the row's cells and its geometry
+/// the section's centre line as the network gives it.
+#[test]
+fn geojson_files_hold_the_csv_rows_on_the_networks_lines() {
+    let wd = Workdir::new();
+    wd.run(&["plan", "--out", "res", "-q"]).expect_code(0);
+    // The demo network's centre lines, by section.
+    let net_bytes = pavestrat::demo::FILES[1].1;
+    let mut r = csv::Reader::from_reader(net_bytes);
+    let head = r.headers().unwrap().clone();
+    let (id_col, geo_col) = (
+        head.iter().position(|h| h == "section_id").unwrap(),
+        head.iter().position(|h| h == "geometry").unwrap(),
+    );
+    let lines: HashMap<String, Vec<[f64; 2]>> = r
+        .records()
+        .map(|rec| {
+            let rec = rec.unwrap();
+            let wkt = &rec[geo_col];
+            let body = wkt.trim_start_matches("LINESTRING (").trim_end_matches(')');
+            let pts = body
+                .split(", ")
+                .map(|p| {
+                    let mut xy = p.split(' ').map(|v| v.parse::<f64>().unwrap());
+                    [xy.next().unwrap(), xy.next().unwrap()]
+                })
+                .collect();
+            (rec[id_col].to_owned(), pts)
+        })
+        .collect();
+    for (file, csv_name) in [
+        ("section_plan.geojson", "section_plan.csv"),
+        ("work_programme.geojson", "work_programme.csv"),
+    ] {
+        let v: serde_json::Value = serde_json::from_str(&wd.read(&format!("res/{file}"))).unwrap();
+        assert_eq!(v["type"], "FeatureCollection", "{file}");
+        let features = v["features"].as_array().unwrap();
+        let rows = rows(&wd.read(&format!("res/{csv_name}")));
+        assert_eq!(features.len(), rows.len(), "{file}");
+        for (f, row) in features.iter().zip(&rows) {
+            assert_eq!(f["type"], "Feature");
+            let p = f["properties"].as_object().unwrap();
+            for (k, cell) in row {
+                let got = match &p[k] {
+                    serde_json::Value::String(s) => s.clone(),
+                    serde_json::Value::Bool(b) => b.to_string(),
+                    serde_json::Value::Number(n) => {
+                        // Numbers as the CSV writes them: money to the cent, km to the metre.
+                        let x = n.as_f64().unwrap();
+                        match cell.split_once('.') {
+                            Some((_, d)) => format!("{x:.*}", d.len()),
+                            None => format!("{x}"),
+                        }
+                    }
+                    other => panic!("{file}: {k} is {other}"),
+                };
+                assert_eq!(&got, cell, "{file}: {k} of {}", row["section_id"]);
+            }
+            let g = &f["geometry"];
+            assert_eq!(g["type"], "LineString");
+            let pts: Vec<[f64; 2]> = g["coordinates"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|p| [p[0].as_f64().unwrap(), p[1].as_f64().unwrap()])
+                .collect();
+            assert_eq!(
+                pts, lines[&row["section_id"]],
+                "{file}: {}",
+                row["section_id"]
+            );
         }
     }
 }

@@ -6,9 +6,12 @@ use crate::util::Workdir;
 use std::io::Write;
 
 fn demo_rows() -> Vec<Vec<String>> {
-    let text = String::from_utf8(pavestrat::demo::FILES[1].1.to_vec()).unwrap();
-    text.lines()
-        .map(|l| l.split(',').map(str::to_owned).collect())
+    let bytes = pavestrat::demo::FILES[1].1;
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .from_reader(bytes);
+    r.records()
+        .map(|rec| rec.unwrap().iter().map(str::to_owned).collect())
         .collect()
 }
 

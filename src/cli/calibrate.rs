@@ -111,10 +111,16 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             toml_string(&p.display().to_string())
         };
         let strategies: Vec<String> = f.strategies.iter().map(|s| abs(&s.path)).collect();
-        let sheet = match &f.network_sheet {
+        let mut sheet = match &f.network_sheet {
             Some((name, _)) => format!("\nnetwork_sheet = {}", toml_string(name)),
             None => String::new(),
         };
+        if f.coordinates != pavestrat::model::network::Coordinates::LonLat {
+            sheet.push_str(&format!(
+                "\nnetwork_coordinates = \"{}\"",
+                f.coordinates.name()
+            ));
+        }
         let files = format!(
             "[files]\nnetwork = {}{sheet}\ntreatments = {}\nstrategies = [{}]",
             abs(&f.network.path),

@@ -207,6 +207,10 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         if args.candidates {
             names.push(CANDIDATES);
         }
+        if run.network.geometry_column {
+            use pavestrat::output::geojson;
+            names.extend([geojson::WORK_PROGRAMME, geojson::SECTION_PLAN]);
+        }
         if args.report {
             names.extend([FRONTIER, REPORT]);
         }

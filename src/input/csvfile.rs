@@ -50,6 +50,39 @@ pub fn separator(text: &str) -> u8 {
     }
 }
 
+/// The byte offset of the first quoted field whose quotes are not needed (it holds no
+/// separator, quote or line break): the sign of a spreadsheet that quotes every field, worth a
+/// note. Quotes around a field that needs them (a well-known text's commas) are plain CSV.
+fn needless_quotes(text: &str, sep: u8) -> Option<usize> {
+    let b = text.as_bytes();
+    let mut k = 0;
+    while let Some(off) = b[k..].iter().position(|&c| c == b'"') {
+        let start = k + off;
+        // The field's end: the next quote not doubled.
+        let mut j = start + 1;
+        let mut needed = false;
+        loop {
+            match b.get(j) {
+                None => return None, // an unclosed quote: the reader reports it
+                Some(b'"') if b.get(j + 1) == Some(&b'"') => {
+                    needed = true;
+                    j += 2;
+                }
+                Some(b'"') => break,
+                Some(&c) => {
+                    needed |= c == sep || c == b'\n' || c == b'\r';
+                    j += 1;
+                }
+            }
+        }
+        if !needed {
+            return Some(start);
+        }
+        k = j + 1;
+    }
+    None
+}
+
 /// `field` with its decimal comma made a point, when it is a number written with one comma and
 /// no point (`1,5`, `-0,25`, `,5`, `2,2%`).
 fn decimal_point(field: &str) -> Option<String> {
@@ -72,14 +105,14 @@ impl<'t> CsvInput<'t> {
             d.error(Place::line(file, 1), "the file is empty", layout.to_owned());
             return None;
         }
-        if let Some(pos) = text.find('"') {
+        let sep = separator(text);
+        if let Some(pos) = needless_quotes(text, sep) {
             let line = 1 + text[..pos].matches('\n').count();
             d.note(
                 Place::line(file, line),
                 "quoted fields; accepted (quotes removed)",
             );
         }
-        let sep = separator(text);
         if sep != b',' {
             let (name, what) = if sep == b';' {
                 (

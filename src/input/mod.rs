@@ -232,6 +232,9 @@ fn load_into(source: &dyn Source, scenario_path: &Path, d: &mut Diagnostics) -> 
     if let (Some(net), Some(families)) = (&mut network, &families) {
         check_surfaces(net, families, d);
     }
+    if let Some(net) = &network {
+        check_coordinates(net, &files, d);
+    }
     let scenario = scenario?;
     check_template_years(&templates, &scenario, d);
     if let Some(net) = &network {
@@ -396,6 +399,46 @@ fn check_template_sizes(templates: &[Template], d: &mut Diagnostics) {
             .hint =
                 Some("narrow the windows, or step through them with `every = 2` or more".into());
         }
+    }
+}
+
+/// With longitude and latitude, every point of a geometry must be on the globe: longitude from
+/// −180 to 180, latitude from −90 to 90 (a projected system's metres are far outside).
+fn check_coordinates(net: &Network, files: &scenario::ScenarioFiles, d: &mut Diagnostics) {
+    if files.coordinates != crate::model::network::Coordinates::LonLat {
+        return;
+    }
+    let mut bad = 0usize;
+    for sec in &net.sections {
+        let Some(g) = &sec.geometry else { continue };
+        let off = g
+            .iter()
+            .flatten()
+            .find(|[x, y]| !(-180.0..=180.0).contains(x) || !(-90.0..=90.0).contains(y));
+        if let Some([x, y]) = off {
+            bad += 1;
+            if bad <= 20 {
+                let e = d.error(
+                    net.place(sec, "geometry"),
+                    format!("the point ({x} {y}), which is not a longitude and latitude"),
+                    "longitude from -180 to 180 and latitude from -90 to 90, in that order",
+                );
+                if bad == 1 {
+                    e.hint = Some(
+                        "for a projected system's metres, say network_coordinates = \
+                         \"projected\" in the scenario's [files]"
+                            .into(),
+                    );
+                }
+            }
+        }
+    }
+    if bad > 20 {
+        d.error(
+            Place::file(net.file.clone()).with_field("geometry"),
+            format!("{} more sections with points off the globe", bad - 20),
+            "longitude and latitude, or network_coordinates = \"projected\"",
+        );
     }
 }
 

@@ -8,7 +8,9 @@
 //! read as text and converted here, so nothing is type-guessed. All problems of all rows are
 //! reported, each with its line and column name.
 //!
-//! Location: `from_km` and `to_km` are a section's chainage along its `road` (both or neither,
+//! Location: `geometry` is the section's centre line as well-known text (`LINESTRING (x y, …)`
+//! or `MULTILINESTRING`), in the coordinates the scenario names (`[files] network_coordinates`).
+//! `from_km` and `to_km` are a section's chainage along its `road` (both or neither,
 //! `from_km < to_km`, and a road named). Two sections of one road may touch but not overlap.
 //! With the chainage columns, `length_km` may be left out (or a cell left empty): it is then
 //! `to_km − from_km`, to the metre. Where both are given and differ by more than 5 %, a note
@@ -36,7 +38,7 @@ pub const REQUIRED: [&str; 9] = [
 ];
 
 /// The optional columns.
-pub const OPTIONAL: [&str; 9] = [
+pub const OPTIONAL: [&str; 10] = [
     "region",
     "lane_width_m",
     "surface",
@@ -46,6 +48,7 @@ pub const OPTIONAL: [&str; 9] = [
     "road",
     "from_km",
     "to_km",
+    "geometry",
 ];
 
 /// Most chainage, km: longer than any road.
@@ -84,7 +87,10 @@ pub fn parse_workbook(
 fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Network> {
     let before = d.error_count();
     input.text_columns(|c| {
-        matches!(c, "section_id" | "region" | "surface" | "carriageway") || c.starts_with("x_")
+        matches!(
+            c,
+            "section_id" | "region" | "surface" | "carriageway" | "road" | "geometry"
+        ) || c.starts_with("x_")
     });
     let cols = read_header(file, &input, d)?;
 
@@ -148,6 +154,7 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
         note_columns: cols.notes.iter().map(|(n, _)| n.clone()).collect(),
         cells,
         road_column: cols.optional[6].is_some(),
+        geometry_column: cols.optional[9].is_some(),
         chainage_columns: cols.optional[7].is_some() && cols.optional[8].is_some(),
     })
 }
@@ -235,7 +242,7 @@ fn check_chainage(
 /// Column positions.
 struct Columns {
     required: [usize; 9],
-    optional: [Option<usize>; 9],
+    optional: [Option<usize>; 10],
     notes: Vec<(String, usize)>,
 }
 
@@ -288,7 +295,7 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
             }
         }
     }
-    let mut optional = [None; 9];
+    let mut optional = [None; 10];
     for (k, name) in OPTIONAL.iter().enumerate() {
         optional[k] = pos.get(name).copied();
     }
@@ -634,6 +641,22 @@ impl<'a> Row<'a> {
             ),
             None => None,
         };
+        let geometry = match self.opt_raw(9) {
+            Some(w) => match crate::model::network::parse_wkt_line(w) {
+                Ok(g) => Some(g),
+                Err(e) => {
+                    let shown: String = w.chars().take(60).collect();
+                    self.bad(
+                        "geometry",
+                        format!("`{shown}`: {e}"),
+                        "the centre line as well-known text: LINESTRING (x y, x y, …) or \
+                         MULTILINESTRING ((x y, …), …)",
+                    );
+                    None
+                }
+            },
+            None => None,
+        };
         let notes = self
             .cols
             .notes
@@ -662,6 +685,7 @@ impl<'a> Row<'a> {
             speed_kmh: speed,
             road,
             chainage,
+            geometry,
             notes,
         })
     }

@@ -13,6 +13,7 @@
 //! [files]                   # paths relative to this file
 //! network = "network.csv"  # or a workbook, .xlsx / .xls / .ods
 //! network_sheet = "Roads"   # optional: the workbook's sheet (else its first)
+//! network_coordinates = "lonlat"   # or "projected": what a `geometry` column's x and y are
 //! treatments = "treatments.toml"
 //! strategies = ["templates.toml"]
 //!
@@ -120,6 +121,8 @@ pub struct ScenarioFiles {
     pub network: FileRef,
     /// The sheet of a workbook network, and where the scenario names it.
     pub network_sheet: Option<(String, Place)>,
+    /// What the network's geometry's coordinates are.
+    pub coordinates: crate::model::network::Coordinates,
     pub treatments: FileRef,
     pub strategies: Vec<FileRef>,
 }
@@ -406,6 +409,12 @@ fn read_files(mut t: Table<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<S
         }
         Some((s.to_owned(), v.place()))
     });
+    let coordinates = match t.get("network_coordinates") {
+        Some(v) => v
+            .word(d, &["lonlat", "projected"])
+            .and_then(crate::model::network::Coordinates::parse),
+        None => Some(crate::model::network::Coordinates::LonLat),
+    };
     let treatments = t
         .require(
             "treatments",
@@ -436,6 +445,7 @@ fn read_files(mut t: Table<'_, '_>, dir: &Path, d: &mut Diagnostics) -> Option<S
     Some(ScenarioFiles {
         network: network?,
         network_sheet,
+        coordinates: coordinates?,
         treatments: treatments?,
         strategies: strategies?,
     })

@@ -79,8 +79,12 @@ pub fn write(
     set.write_to(Work::FILE.name, head(Work::FILE).as_bytes())?;
     let mut programme = Vec::new();
     let mut text = String::new();
+    let mut work_features = Vec::new();
     for (w, row) in p.works.iter().zip(work_programme(run, p)) {
         row.write_then(&mut text, |out| carried_cells(net, &secs[w.section], out));
+        if net.geometry_column {
+            work_features.push(super::geojson::work_feature(net, &secs[w.section], &row));
+        }
         if keep.report {
             programme.push(row);
         }
@@ -94,9 +98,14 @@ pub fn write(
         super::programme::NAME,
         super::programme::text(run, &p.works).as_bytes(),
     )?;
+    if net.geometry_column {
+        let text = super::geojson::collection(work_features);
+        set.write_to(super::geojson::WORK_PROGRAMME, text.as_bytes())?;
+    }
 
     // Section plan and candidates, chunk by chunk (names rebuilt from the strategies' keys).
     set.write_to(SectionPlan::FILE.name, head(SectionPlan::FILE).as_bytes())?;
+    let mut section_features = Vec::new();
     let c = &p.candidates;
     if keep.candidates {
         let head = candidate_head(
@@ -108,28 +117,41 @@ pub fn write(
     }
     for from in (0..secs.len()).step_by(CHUNK) {
         let range = from..(from + CHUNK).min(secs.len());
-        let texts: Vec<(String, String)> = range
+        let texts: Vec<(String, String, String)> = range
             .into_par_iter()
             .map(|g| {
                 let mut sp = String::new();
-                section_plan(run, &e, p, g)
-                    .write_then(&mut sp, |out| carried_cells(net, &secs[g], out));
+                let row = section_plan(run, &e, p, g);
+                row.write_then(&mut sp, |out| carried_cells(net, &secs[g], out));
                 let mut cs = String::new();
                 if keep.candidates {
                     candidates_of(run, &e, p, g, &mut cs);
                 }
-                (sp, cs)
+                let feature = if net.geometry_column {
+                    super::geojson::section_feature(net, &secs[g], &row)
+                } else {
+                    String::new()
+                };
+                (sp, cs, feature)
             })
             .collect();
         let (mut a, mut b) = (String::new(), String::new());
-        for (x, y) in texts {
+        for (x, y, f) in texts {
             a.push_str(&x);
             b.push_str(&y);
+            if net.geometry_column {
+                section_features.push(f);
+            }
         }
         set.write_to(SectionPlan::FILE.name, a.as_bytes())?;
         if keep.candidates {
             set.write_to(CANDIDATES, b.as_bytes())?;
         }
+    }
+
+    if net.geometry_column {
+        let text = super::geojson::collection(std::mem::take(&mut section_features));
+        set.write_to(super::geojson::SECTION_PLAN, text.as_bytes())?;
     }
 
     let budget = budget_use(run, p);

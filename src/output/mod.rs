@@ -9,6 +9,7 @@ pub mod calibration;
 pub mod cashflow;
 pub mod files;
 pub mod format;
+pub mod geojson;
 pub mod programme;
 pub mod report;
 pub mod selection;
