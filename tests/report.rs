@@ -747,6 +747,50 @@ fn renders_in_a_real_browser() {
         "charts in the DOM"
     );
     assert!(doc.select(&sel("svg.chart .mark")).count() > 100);
+    // The map: a line per demo section, each coloured by the year band of its first works in
+    // work_programme.csv (the demo's centre lines are in its network's geometry column).
+    let works = rows(&read("work_programme.csv"));
+    let mut first: std::collections::HashMap<String, i32> = std::collections::HashMap::new();
+    for w in &works {
+        let y: i32 = w["year"].parse().unwrap();
+        let e = first.entry(w["section_id"].clone()).or_insert(y);
+        *e = (*e).min(y);
+    }
+    let (lo, hi) = (
+        *first.values().min().unwrap(),
+        *first.values().max().unwrap(),
+    );
+    use pavestrat::output::report::map::{band_of, year_bands, YEAR_COLOURS};
+    let bands = year_bands(lo, hi);
+    let paths: Vec<_> = doc.select(&sel("svg.map-years path.sec")).collect();
+    assert_eq!(paths.len(), 40, "a line per demo section");
+    for p in &paths {
+        let e = p.value();
+        let id = e.attr("data-section").unwrap();
+        assert!(e.attr("d").unwrap().starts_with('M'), "{id}: a drawn line");
+        match first.get(id) {
+            Some(y) => {
+                assert_eq!(
+                    e.attr("data-first-year"),
+                    Some(y.to_string().as_str()),
+                    "{id}"
+                );
+                assert_eq!(
+                    e.attr("stroke"),
+                    Some(YEAR_COLOURS[band_of(&bands, *y)]),
+                    "{id}"
+                );
+            }
+            None => assert_eq!(e.attr("data-first-year"), Some(""), "{id}"),
+        }
+    }
+    assert_eq!(doc.select(&sel("svg.map-treatments path.sec")).count(), 40);
+    assert_eq!(
+        doc.select(&sel("svg.map .north")).count(),
+        2,
+        "north arrows"
+    );
+    assert_eq!(doc.select(&sel("svg.map .scale")).count(), 2, "scale bars");
     let log = String::from_utf8_lossy(&out.stderr);
     assert!(
         !log.lines().any(|l| l.contains(":CONSOLE")),

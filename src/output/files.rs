@@ -99,7 +99,7 @@ pub fn write(
         super::programme::text(run, &p.works).as_bytes(),
     )?;
     if net.geometry_column {
-        let text = super::geojson::collection(work_features);
+        let text = super::geojson::collection(run.scenario.files.coordinates, work_features);
         set.write_to(super::geojson::WORK_PROGRAMME, text.as_bytes())?;
     }
 
@@ -150,7 +150,10 @@ pub fn write(
     }
 
     if net.geometry_column {
-        let text = super::geojson::collection(std::mem::take(&mut section_features));
+        let text = super::geojson::collection(
+            run.scenario.files.coordinates,
+            std::mem::take(&mut section_features),
+        );
         set.write_to(super::geojson::SECTION_PLAN, text.as_bytes())?;
     }
 
@@ -195,6 +198,7 @@ pub fn write(
         sensitivity: None,
         risk: None,
         risk_draws: None,
+        map: map_data(run),
     })
 }
 
@@ -249,6 +253,26 @@ pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {
         out.push(',');
         schema::value::write_text(v, out);
     }
+}
+
+/// The network's lines for the report's maps, as `section_plan.geojson` holds them (`None`
+/// without a geometry column).
+pub fn map_data(run: &Run) -> Option<crate::output::report::map::MapData> {
+    use crate::output::report::map::{MapData, MapLine};
+    let net = &run.network;
+    net.geometry_column.then(|| MapData {
+        lonlat: run.scenario.files.coordinates == crate::model::network::Coordinates::LonLat,
+        sections: net
+            .sections
+            .iter()
+            .filter_map(|s| {
+                Some(MapLine {
+                    section_id: s.id.as_str().to_owned(),
+                    lines: s.geometry.clone()?,
+                })
+            })
+            .collect(),
+    })
 }
 
 /// The work programme's rows: every treatment of the plan, by year.

@@ -8,7 +8,8 @@
 //!
 //! RFC 7946 has coordinates in longitude and latitude (WGS 84); with `network_coordinates =
 //! "projected"` they are the network's own easting and northing, and a GIS must be told the
-//! system (the standard has no member for it).
+//! system (the standard has no member for it; the collection's own `coordinate_system` member
+//! says `lonlat` or `projected`).
 
 use crate::model::network::{Network, Section};
 use crate::schema::plan::{SectionPlan, Work};
@@ -64,9 +65,16 @@ fn feature(net: &Network, sec: &Section, mut props: Map<String, Value>) -> Strin
     .to_string()
 }
 
-/// A feature collection's text around the features' texts.
-pub fn collection(features: impl IntoIterator<Item = String>) -> String {
-    let mut out = String::from("{\"type\":\"FeatureCollection\",\"features\":[\n");
+/// A feature collection's text around the features' texts. Its foreign member
+/// `coordinate_system` (`lonlat` or `projected`) says what the coordinates are.
+pub fn collection(
+    coordinates: crate::model::network::Coordinates,
+    features: impl IntoIterator<Item = String>,
+) -> String {
+    let mut out = format!(
+        "{{\"type\":\"FeatureCollection\",\"coordinate_system\":\"{}\",\"features\":[\n",
+        coordinates.name()
+    );
     for (k, f) in features.into_iter().enumerate() {
         if k > 0 {
             out.push_str(",\n");

@@ -281,7 +281,13 @@ mod tests {
             let d = dir.path();
             for name in crate::output::report::FILES_READ
                 .iter()
-                .chain(&[CANDIDATES, SectionPlan::FILE.name, Limit::FILE.name, "manifest.json"])
+                .chain(&[
+                    CANDIDATES,
+                    SectionPlan::FILE.name,
+                    Limit::FILE.name,
+                    "manifest.json",
+                    crate::output::geojson::SECTION_PLAN,
+                ])
             {
                 std::fs::write(d.join(name), &bytes).unwrap();
             }

@@ -10,6 +10,7 @@
 
 pub mod chart;
 mod extra;
+pub mod map;
 
 use crate::error::Result;
 use crate::model::money::grouped;
@@ -51,6 +52,8 @@ pub struct Inputs {
     pub sensitivity: Option<Vec<Sensitivity>>,
     pub risk: Option<Vec<Risk>>,
     pub risk_draws: Option<Vec<RiskDraw>>,
+    /// The network's lines, from `section_plan.geojson` (with a geometry column).
+    pub map: Option<map::MapData>,
 }
 
 impl Inputs {
@@ -76,8 +79,23 @@ impl Inputs {
             sensitivity: schema::read_if_there(dir)?,
             risk: schema::read_if_there(dir)?,
             risk_draws: schema::read_if_there(dir)?,
+            map: read_map(dir)?,
         })
     }
+}
+
+/// The map's lines from `dir/section_plan.geojson`, when there.
+fn read_map(dir: &Path) -> Result<Option<map::MapData>> {
+    let path = dir.join(crate::output::geojson::SECTION_PLAN);
+    let Ok(text) = std::fs::read_to_string(&path) else {
+        return Ok(None);
+    };
+    map::MapData::parse(&text).map(Some).ok_or_else(|| {
+        crate::error::Error::Usage(format!(
+            "{}: not the GeoJSON feature collection `pavestrat plan` writes; write the plan again",
+            path.display()
+        ))
+    })
 }
 
 /// Rows of the work programme shown in the report (all are in work_programme.csv).
@@ -115,6 +133,12 @@ pub fn render(inputs: &Inputs) -> Result<String> {
     body.push_str(&condition_section(&inputs.condition));
     nav.push(("spending", "Spending and budget lines"));
     body.push_str(&spending_section(&inputs.budget, sm));
+    if let Some(m) = &inputs.map {
+        if !m.sections.is_empty() {
+            nav.push(("map", "Map of the programme"));
+            body.push_str(&map::section(m, &inputs.programme));
+        }
+    }
     if let Some(w) = &inputs.widening {
         if !w.is_empty() {
             nav.push(("widening", "Widening timing"));
@@ -165,6 +189,7 @@ nav{border:1px solid #ccc;padding:.4em 1em;margin-bottom:1em;font-size:.92em}nav
 table{border-collapse:collapse;margin:.4em 0 1em;font-size:.92em}th,td{padding:.22em .6em;border-bottom:1px solid #ddd;text-align:left;vertical-align:top}\
 th{border-bottom:2px solid #888}td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}\
 svg.chart{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
+svg.map{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
 svg .grid{stroke:#e4e4e4}svg .axis{stroke:#444}svg .tick{fill:#333;font-size:11px}svg .axis-title{fill:#1a1a1a;font-size:12px;font-weight:600}\
 svg .chart-title{font-weight:700;font-size:13px;fill:#1a1a1a}svg .legend{font-size:11px;fill:#1a1a1a}svg .note,svg .price{font-size:10px;fill:#333}\
 svg rect.planned{stroke:#1a1a1a;stroke-width:2}\
