@@ -1,6 +1,6 @@
-//! Networks kept as workbooks: the demo network saved as an .xlsx (typed cells, as a spreadsheet
-//! program writes them) and as an .ods gives the CSV's plan byte for byte, and a bad cell is
-//! named as `sheet!cell`.
+//! Networks kept as workbooks or GIS layers: the demo network saved as an .xlsx (typed cells, as
+//! a spreadsheet program writes them), as an .ods and as GeoJSON gives the CSV's plan byte for
+//! byte, and a bad cell or property is named where it is (`sheet!cell`, `features[k]`).
 
 use crate::util::Workdir;
 use std::io::Write;
@@ -202,4 +202,57 @@ fn an_xlsx_network_gives_the_csv_plan_and_names_a_bad_cell() {
     wd.run(&["check", "--scenario", "scenario.toml"])
         .expect_code(2)
         .stderr_has("inventory.xlsx: 'Road list'!D8: lanes: found `2.5`");
+}
+
+/// The demo network as a GeoJSON FeatureCollection (RFC 7946), as a GIS exports a layer:
+/// properties typed (numbers as numbers), each centre line a LineString. The plan is the CSV's,
+/// byte for byte; a bad property is named by its feature.
+#[test]
+fn a_geojson_network_gives_the_csv_plan_and_names_a_bad_property() {
+    let want = csv_plan();
+    let rows = demo_rows();
+    let head = &rows[0];
+    let collection = |rows: &[Vec<String>]| -> Vec<u8> {
+        let features: Vec<serde_json::Value> = rows[1..]
+            .iter()
+            .map(|r| {
+                let mut props = serde_json::Map::new();
+                let mut geometry = serde_json::Value::Null;
+                for (h, f) in head.iter().zip(r) {
+                    if h == "geometry" {
+                        let body = f.trim_start_matches("LINESTRING (").trim_end_matches(')');
+                        let pts: Vec<[f64; 2]> = body
+                            .split(", ")
+                            .map(|p| {
+                                let mut xy = p.split(' ').map(|v| v.parse::<f64>().unwrap());
+                                [xy.next().unwrap(), xy.next().unwrap()]
+                            })
+                            .collect();
+                        geometry = serde_json::json!({"type": "LineString", "coordinates": pts});
+                    } else if f.is_empty() {
+                        props.insert(h.clone(), serde_json::Value::Null);
+                    } else if let (Ok(x), false) = (f.parse::<f64>(), h == "section_id") {
+                        props.insert(h.clone(), serde_json::json!(x));
+                    } else {
+                        props.insert(h.clone(), serde_json::json!(f));
+                    }
+                }
+                serde_json::json!({"type": "Feature", "properties": props, "geometry": geometry})
+            })
+            .collect();
+        serde_json::to_vec_pretty(&serde_json::json!({
+            "type": "FeatureCollection",
+            "features": features,
+        }))
+        .unwrap()
+    };
+    let wd = with_workbook("roads.geojson", &collection(&rows), None);
+    assert_same(&plan_files(&wd), &want, "geojson");
+    let mut bad = rows.clone();
+    assert_eq!(bad[0][4], "iri");
+    bad[4][4] = "rough".into();
+    let wd = with_workbook("roads.geojson", &collection(&bad), None);
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("roads.geojson: features[4].properties.iri: found `rough`");
 }

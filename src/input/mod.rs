@@ -9,6 +9,7 @@
 pub mod candidates;
 pub mod cashflow;
 pub mod csvfile;
+pub mod features;
 pub mod models;
 pub mod network;
 pub mod plan;
@@ -142,7 +143,8 @@ fn read_bytes(
     }
 }
 
-/// Read the network: a workbook (told by its first bytes, whatever its name) or CSV text.
+/// Read the network: a workbook or GeoJSON (told by its first bytes, whatever its name) or
+/// CSV text.
 fn read_network(
     source: &dyn Source,
     files: &scenario::ScenarioFiles,
@@ -163,6 +165,9 @@ fn read_network(
             format!("a sheet named, but `{label}` is not a workbook"),
             "network_sheet only with an .xlsx, .xls or .ods network",
         );
+    }
+    if features::is_json(&bytes) {
+        return network::parse_features(&label, &bytes, d);
     }
     let text = decode(&label, bytes, d);
     network::parse(&label, &text, d)

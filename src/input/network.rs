@@ -18,7 +18,7 @@
 
 use super::table::Rows;
 use crate::diag::{did_you_mean, Diagnostics, Place};
-use crate::model::network::{Carriageway, Network, Section};
+use crate::model::network::{Carriageway, Network, Origin, Section};
 use crate::model::Year;
 use std::collections::HashMap;
 
@@ -83,6 +83,12 @@ pub fn parse_workbook(
     parse_rows(file, Rows::Sheet(input), d)
 }
 
+/// Read the network from a GeoJSON FeatureCollection of its sections.
+pub fn parse_features(file: &str, bytes: &[u8], d: &mut Diagnostics) -> Option<Network> {
+    let input = super::features::FeatureInput::open(file, bytes, &layout(), d)?;
+    parse_rows(file, Rows::Features(input), d)
+}
+
 /// Read the network from its records.
 fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Network> {
     let before = d.error_count();
@@ -97,10 +103,7 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
     let mut sections = Vec::new();
     let mut seen: HashMap<String, usize> = HashMap::new();
     let mut regions = crate::model::region::Interner::default();
-    let row_word = match input {
-        Rows::Text(_) => "line",
-        Rows::Sheet(_) => "row",
-    };
+    let row_word = input.row_word();
     while let Some(line) = input.next_row(d) {
         let record = input.record();
         // Duplicates are checked on the raw id, so a bad row still claims its id.
@@ -110,7 +113,7 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
                 d.error(
                     input
                         .place(file, line, Some(cols.required[0]))
-                        .with_field("section_id"),
+                        .with_subfield("section_id"),
                     format!("duplicate section_id `{id}` (first on {row_word} {first})"),
                     "each section_id once",
                 );
@@ -144,15 +147,16 @@ fn parse_rows(file: &str, mut input: Rows<'_>, d: &mut Diagnostics) -> Option<Ne
     if d.error_count() > before {
         return None;
     }
-    let cells = match &input {
-        Rows::Text(_) => None,
-        Rows::Sheet(s) => Some(s.cells()),
+    let origin = match &input {
+        Rows::Text(_) => Origin::Text,
+        Rows::Sheet(s) => Origin::Sheet(s.cells()),
+        Rows::Features(_) => Origin::Features,
     };
     Some(Network {
         file: file.to_owned(),
         sections,
         note_columns: cols.notes.iter().map(|(n, _)| n.clone()).collect(),
-        cells,
+        origin,
         road_column: cols.optional[6].is_some(),
         geometry_column: cols.optional[9].is_some(),
         chainage_columns: cols.optional[7].is_some() && cols.optional[8].is_some(),
@@ -190,7 +194,7 @@ fn check_chainage(
                 d.error(
                     input
                         .place(file, s.line, cols.optional[7])
-                        .with_field("from_km"),
+                        .with_subfield("from_km"),
                     format!(
                         "km {a}–{b} of road `{road}` overlaps section `{}` ({row_word} {}, km \
                          {pa}–{pb})",
@@ -223,7 +227,7 @@ fn check_chainage(
         d.note(
             input
                 .place(file, first.line, Some(cols.required[1]))
-                .with_field("length_km"),
+                .with_subfield("length_km"),
             format!(
                 "length_km {} differs from its chainage ({} km) by more than 5 %{}; the \
                  length_km given is used",
@@ -256,7 +260,7 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
     for (i, h) in headers.iter().enumerate() {
         let place = input
             .place(file, row, Some(i))
-            .with_field(format!("column {} `{h}`", i + 1));
+            .with_subfield(&format!("column {} `{h}`", i + 1));
         if h.is_empty() {
             d.error(place, "an empty column name", "a column name");
             ok = false;
@@ -344,7 +348,7 @@ impl<'a> Row<'a> {
         self.d.error(
             self.input
                 .place(self.file, self.line, column)
-                .with_field(field),
+                .with_subfield(field),
             found,
             expected.to_owned(),
         );

@@ -2,6 +2,7 @@
 //! for the header, each record and the place of a field, and need not know which it was.
 
 use super::csvfile::CsvInput;
+use super::features::FeatureInput;
 use super::sheet::SheetInput;
 use crate::diag::{Diagnostics, Place};
 
@@ -9,6 +10,7 @@ use crate::diag::{Diagnostics, Place};
 pub enum Rows<'t> {
     Text(CsvInput<'t>),
     Sheet(SheetInput),
+    Features(FeatureInput),
 }
 
 impl Rows<'_> {
@@ -17,6 +19,7 @@ impl Rows<'_> {
         match self {
             Rows::Text(c) => &c.headers,
             Rows::Sheet(s) => &s.headers,
+            Rows::Features(f) => &f.headers,
         }
     }
 
@@ -33,6 +36,7 @@ impl Rows<'_> {
         match self {
             Rows::Text(c) => c.next_row(d),
             Rows::Sheet(s) => s.next_row(),
+            Rows::Features(f) => f.next_row(),
         }
     }
 
@@ -41,6 +45,7 @@ impl Rows<'_> {
         match self {
             Rows::Text(c) => c.record(),
             Rows::Sheet(s) => s.record(),
+            Rows::Features(f) => f.record(),
         }
     }
 
@@ -49,23 +54,36 @@ impl Rows<'_> {
         match self {
             Rows::Text(c) => c.had_rows(what, d),
             Rows::Sheet(s) => s.had_rows(what, d),
+            Rows::Features(f) => f.had_rows(what, d),
         }
     }
 
     /// The header's line or row.
     pub fn header_row(&self) -> usize {
         match self {
-            Rows::Text(_) => 1,
+            Rows::Text(_) | Rows::Features(_) => 1,
             Rows::Sheet(s) => s.header_row(),
         }
     }
 
-    /// The place of a record's `line` (CSV) or row (sheet), at a column (0-based in the
-    /// header) when given: a cell in a sheet; the line alone in a CSV.
+    /// The place of a record's `line` (CSV), row (sheet) or feature, at a column (0-based in
+    /// the header) when given: a cell in a sheet; the line alone in a CSV; the feature's
+    /// properties in GeoJSON (a field named after it is the property). For the header (line
+    /// 1 of a GeoJSON table), the collection's properties.
     pub fn place(&self, file: &str, line: usize, column: Option<usize>) -> Place {
         match self {
             Rows::Text(_) => Place::line(file, line),
             Rows::Sheet(s) => s.place(line, column),
+            Rows::Features(f) => f.place(line),
+        }
+    }
+
+    /// The word for a record's number in messages: line, row or feature.
+    pub fn row_word(&self) -> &'static str {
+        match self {
+            Rows::Text(_) => "line",
+            Rows::Sheet(_) => "row",
+            Rows::Features(_) => "feature",
         }
     }
 }

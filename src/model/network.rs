@@ -69,8 +69,8 @@ pub struct Network {
     pub sections: Vec<Section>,
     /// Names of the user's `x_` columns.
     pub note_columns: Vec<String>,
-    /// Where the columns are, when the network was read from a workbook's sheet.
-    pub cells: Option<Cells>,
+    /// What the network was read from, for the places of later findings.
+    pub origin: Origin,
     /// The network has a `road` column.
     pub road_column: bool,
     /// The network has the chainage columns `from_km` and `to_km`.
@@ -187,6 +187,18 @@ pub fn parse_wkt_line(text: &str) -> Result<Vec<Vec<[f64; 2]>>, String> {
     Ok(lines)
 }
 
+/// What a network was read from.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum Origin {
+    /// CSV text: a section's place is its line.
+    #[default]
+    Text,
+    /// A workbook's sheet: a section's field is a cell.
+    Sheet(Cells),
+    /// A GeoJSON FeatureCollection: a section's field is a property of its feature.
+    Features,
+}
+
 /// The columns of a network read from a workbook's sheet.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Cells {
@@ -201,9 +213,9 @@ impl Network {
     /// Where a section's `field` was read: its line of a CSV, or its cell of a sheet.
     pub fn place(&self, section: &Section, field: &str) -> crate::diag::Place {
         use crate::diag::Place;
-        match &self.cells {
-            None => Place::line(self.file.clone(), section.line),
-            Some(c) => {
+        match &self.origin {
+            Origin::Text => Place::line(self.file.clone(), section.line),
+            Origin::Sheet(c) => {
                 let column = c
                     .columns
                     .iter()
@@ -211,8 +223,9 @@ impl Network {
                     .map(|k| k + c.first_column);
                 Place::cell(self.file.clone(), &c.sheet, section.line, column)
             }
+            Origin::Features => crate::input::features::feature_place(&self.file, section.line),
         }
-        .with_field(field)
+        .with_subfield(field)
     }
 
     /// Total length, km (summed in file order).
