@@ -412,20 +412,32 @@ fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, lo: f64, hi: f64, 
     }
 }
 
-/// Set classes of `slot` from an optional table of numbers by vehicle class (all four or some).
+/// Set `slot` from an optional share in `lo..=hi`: a number, or a percentage (`"35%"`).
+fn share(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, lo: f64, hi: f64, slot: &mut f64) {
+    let expected = format!("a share from {lo} to {hi}");
+    if let Some(x) = t.get(key).and_then(|v| v.fraction_in(d, lo, hi, &expected)) {
+        *slot = x;
+    }
+}
+
+/// How a value is read: a number, or a share that may be a percentage.
+type Read = fn(&mut Table<'_, '_>, &str, &mut Diagnostics, f64, f64, &mut f64);
+
+/// Set classes of `slot` from an optional table by vehicle class (all four or some), each
+/// value read by `read` ([`num`], or [`share`] for shares).
 fn per_class(
     t: &mut Table<'_, '_>,
     key: &str,
     d: &mut Diagnostics,
-    lo: f64,
-    hi: f64,
+    (lo, hi): (f64, f64),
+    read: Read,
     slot: &mut PerClass<f64>,
 ) {
     let Some(mut ct) = t.get(key).and_then(|v| v.table(d)) else {
         return;
     };
     for c in VehicleClass::ALL {
-        num(&mut ct, c.key(), d, lo, hi, &mut slot.0[c as usize]);
+        read(&mut ct, c.key(), d, lo, hi, &mut slot.0[c as usize]);
     }
     ct.finish(d);
 }
@@ -523,11 +535,12 @@ pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> (Models, bool) {
     if let Some(mut t) = sub(top, "user_costs", d) {
         let u = &mut m.user_costs;
         num(&mut t, "smooth_iri", d, 0.0, 10.0, &mut u.smooth_iri);
-        per_class(&mut t, "fuel_per_iri", d, 0.0, 1.0, &mut u.fuel_per_iri);
-        per_class(&mut t, "fuel_share", d, 0.0, 1.0, &mut u.fuel_share);
-        per_class(&mut t, "repair_share", d, 0.0, 1.0, &mut u.repair_share);
-        per_class(&mut t, "repair_at_4", d, 0.0, 10.0, &mut u.repair_at_4);
-        per_class(&mut t, "repair_at_5", d, 0.0, 10.0, &mut u.repair_at_5);
+        let (unit, ten) = ((0.0, 1.0), (0.0, 10.0));
+        per_class(&mut t, "fuel_per_iri", d, unit, num, &mut u.fuel_per_iri);
+        per_class(&mut t, "fuel_share", d, unit, share, &mut u.fuel_share);
+        per_class(&mut t, "repair_share", d, unit, share, &mut u.repair_share);
+        per_class(&mut t, "repair_at_4", d, ten, num, &mut u.repair_at_4);
+        per_class(&mut t, "repair_at_5", d, ten, num, &mut u.repair_at_5);
         carriageway_pair(
             &mut t,
             "crash_rate",
@@ -564,7 +577,7 @@ pub fn read(top: &mut Table<'_, '_>, d: &mut Diagnostics) -> (Models, bool) {
 }
 
 fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams) {
-    num(
+    share(
         &mut t,
         "bus_share_of_heavy",
         d,
@@ -572,7 +585,7 @@ fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams
         1.0,
         &mut p.bus_share_of_heavy,
     );
-    num(
+    share(
         &mut t,
         "light_truck_share_of_light",
         d,
@@ -632,7 +645,7 @@ fn read_traffic(mut t: Table<'_, '_>, d: &mut Diagnostics, p: &mut TrafficParams
             }
         }
     }
-    per_class(&mut t, "pce", d, 0.1, 10.0, &mut p.pce);
+    per_class(&mut t, "pce", d, (0.1, 10.0), num, &mut p.pce);
     if let Some(v) = t.get("flow_bands") {
         if let Some(b) = read_bands(&v, d) {
             p.flow_bands = b;
@@ -800,13 +813,15 @@ fn read_family(mut t: Table<'_, '_>, d: &mut Diagnostics) -> Option<FamilyModel>
             num(&mut t, "terminal_psr", d, 0.5, 3.5, &mut a.terminal_psr);
             num(&mut t, "zr", d, -5.0, 5.0, &mut a.zr);
             // Reliability as designers state it, instead of its deviate: ZR = −Φ⁻¹(R).
-            if let Some((place, r)) = t.number_at(
-                "reliability",
-                d,
-                0.5,
-                0.9999,
-                "a reliability from 0.5 to 0.9999 (0.95 for 95 %)",
-            ) {
+            if let Some((place, r)) = t.get("reliability").map(|v| {
+                let r = v.fraction_in(
+                    d,
+                    0.5,
+                    0.9999,
+                    "a reliability from 0.5 to 0.9999 (0.95 or \"95%\" for 95 %)",
+                );
+                (v.place(), r)
+            }) {
                 if t_has_zr {
                     d.error(
                         place,
@@ -890,6 +905,18 @@ mod tests {
         assert!((p.zr + 1.645).abs() < 0.001);
         let (_, d) = read_text("[condition]\ndefault_family = \"a\"\n[condition.family.a]\nmodel = \"aashto93\"\nzr = -1\nreliability = 0.9\n");
         assert!(d.to_string().contains("both zr and reliability"), "{d}");
+        // As a percentage: the very ZR of 0.95. Shares too: "40%" is 0.4 to the bit.
+        let (m, d) = read_text("[condition.family.a]\nmodel = \"aashto93\"\nreliability = \"95%\"\n[condition]\ndefault_family = \"a\"\n[user_costs]\nfuel_share = { car = \"40%\" }\n[traffic]\nbus_share_of_heavy = \"12.5%\"\n");
+        assert!(!d.has_errors(), "{d}");
+        let FamilyModel::Aashto93(q) = m.condition.families[0].model else {
+            panic!()
+        };
+        assert_eq!(q.zr.to_bits(), p.zr.to_bits());
+        assert_eq!(m.user_costs.fuel_share.0[0].to_bits(), 0.4f64.to_bits());
+        assert_eq!(m.traffic.bus_share_of_heavy.to_bits(), 0.125f64.to_bits());
+        // A percentage is not accepted where the value is not a share.
+        let (_, d) = read_text("[capacity]\npce = { car = \"100%\" }\n");
+        assert!(d.has_errors(), "{d}");
     }
 
     #[test]

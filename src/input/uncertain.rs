@@ -13,7 +13,8 @@
 //! Parameters: uniform `min, max`; triangular and pert `min, mode, max`; normal `mean, sd` and
 //! optional `min, max` (truncation; default the input's accepted range); lognormal `median,
 //! sigma` (the standard deviation of the logarithm) and optional `min, max` likewise. Every value
-//! a draw can take must lie in the range the input accepts.
+//! a draw can take must lie in the range the input accepts. A parameter may be written as a
+//! percentage string (`min = "4%"`, read as 0.04), for an input that is a rate or a share.
 
 use super::scenario::Scenario;
 use super::tomldoc::{Table, Value};
@@ -31,14 +32,20 @@ pub struct Uncertain {
 /// The distributions' names.
 pub const DISTRIBUTIONS: [&str; 5] = ["uniform", "triangular", "normal", "lognormal", "pert"];
 
+/// A parameter: a number, or a percentage for an input that is a rate (`"4%"` is 0.04).
+fn value(v: &Value<'_, '_>, d: &mut Diagnostics, expected: &str) -> Option<f64> {
+    v.fraction_in(d, -f64::MAX, f64::MAX, expected)
+}
+
 fn num(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics, expected: &str) -> Option<f64> {
-    t.require(key, d, expected).and_then(|v| v.number(d))
+    t.require(key, d, expected)
+        .and_then(|v| value(&v, d, expected))
 }
 
 fn opt(t: &mut Table<'_, '_>, key: &str, d: &mut Diagnostics) -> Option<Option<f64>> {
     match t.get(key) {
         None => Some(None),
-        Some(v) => v.number(d).map(Some),
+        Some(v) => value(&v, d, "a number").map(Some),
     }
 }
 
@@ -380,6 +387,12 @@ max = 200000
             s.uncertain[1].place.line.is_some(),
             "each entry keeps its line"
         );
+        // A rate's parameters as percentages: the same distribution as the fractions.
+        let (a, d) = read("[[uncertain]]\ninput = \"speed.drop_per_iri\"\ndistribution = \"triangular\"\nmin = \"2%\"\nmode = \"3%\"\nmax = \"4.5%\"\n");
+        let a = a.unwrap_or_else(|| panic!("{d}"));
+        let (b, d) = read("[[uncertain]]\ninput = \"speed.drop_per_iri\"\ndistribution = \"triangular\"\nmin = 0.02\nmode = 0.03\nmax = 0.045\n");
+        let b = b.unwrap_or_else(|| panic!("{d}"));
+        assert_eq!(a.uncertain[0].distribution, b.uncertain[0].distribution);
     }
 
     proptest! {
