@@ -134,3 +134,40 @@ fn appraise_examples_run() {
     assert!(wd.join("results/yearly.csv").exists());
     assert_eq!(wd.read("big/network.csv").lines().count(), 10_001);
 }
+
+/// The fenced block of language `lang` after `marker` in the README.
+fn fenced_after(marker: &str, lang: &str) -> String {
+    let readme = include_str!("../README.md");
+    let at = readme.find(marker).expect("the marker is in the README");
+    let rest = &readme[at..];
+    let open = rest.find(&format!("```{lang}\n")).unwrap() + 4 + lang.len();
+    let body = &rest[open..];
+    let close = body.find("```").unwrap();
+    body[..close]
+        .lines()
+        .map(|l| l.trim_start())
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// The README's worked examples of the network's forms read without a problem, and the CSV's
+/// first section is the GeoJSON's, field for field.
+#[test]
+fn the_network_examples_read_the_same() {
+    use pavestrat::diag::Diagnostics;
+    let marker = "The same two sections in each form";
+    let csv = fenced_after(marker, "csv");
+    let json = fenced_after(marker, "json");
+    let mut d = Diagnostics::new();
+    let a = pavestrat::input::network::parse("example.csv", &csv, &mut d);
+    let b = pavestrat::input::network::parse_features("example.geojson", json.as_bytes(), &mut d);
+    assert!(!d.has_errors(), "{d}");
+    let (a, b) = (a.unwrap(), b.unwrap());
+    assert_eq!(a.sections.len(), 2);
+    let lengths: Vec<f64> = a.sections.iter().map(|s| s.length_km).collect();
+    assert_eq!(lengths, [2.4, 2.7], "lengths from the chainage");
+    let (mut x, mut y) = (a.sections[0].clone(), b.sections[0].clone());
+    x.line = 0;
+    y.line = 0;
+    assert_eq!(x, y);
+}
