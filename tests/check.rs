@@ -168,21 +168,7 @@ fn byte_order_mark_is_accepted_with_a_note() {
 /// The plan's files (all but the manifest, which records the input's bytes; JSON without its
 /// run ids and timings) for `network`.
 fn plan_files(network: &[u8]) -> Vec<(String, Vec<u8>)> {
-    let wd = with_network(network);
-    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res", "-q"])
-        .expect_code(0);
-    let mut files: Vec<(String, Vec<u8>)> = std::fs::read_dir(wd.join("res"))
-        .unwrap()
-        .map(|e| e.unwrap())
-        .map(|e| {
-            let name = e.file_name().to_string_lossy().into_owned();
-            let bytes = crate::golden::comparable(&name, std::fs::read(e.path()).unwrap());
-            (name, bytes)
-        })
-        .filter(|(n, _)| n != "manifest.json" && !n.starts_with('.'))
-        .collect();
-    files.sort();
-    files
+    crate::golden::plan_files(&with_network(network))
 }
 
 /// The demo network saved as spreadsheets save it in other settings: semicolons with decimal

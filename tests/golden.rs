@@ -44,6 +44,24 @@ pub fn comparable(name: &str, bytes: Vec<u8>) -> Vec<u8> {
     serde_json::to_vec_pretty(&v).unwrap()
 }
 
+/// Each file of `plan --out res` run in `wd` (but the manifest), made comparable, by name.
+pub fn plan_files(wd: &Workdir) -> Vec<(String, Vec<u8>)> {
+    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res", "-q"])
+        .expect_code(0);
+    let mut files: Vec<(String, Vec<u8>)> = std::fs::read_dir(wd.join("res"))
+        .unwrap()
+        .map(|e| e.unwrap())
+        .map(|e| {
+            let name = e.file_name().to_string_lossy().into_owned();
+            let bytes = comparable(&name, std::fs::read(e.path()).unwrap());
+            (name, bytes)
+        })
+        .filter(|(n, _)| n != "manifest.json" && !n.starts_with('.'))
+        .collect();
+    files.sort();
+    files
+}
+
 /// `dir/file size hash` for every file under the run's output directories, sorted.
 fn listing(wd: &Workdir, dirs: &[&str]) -> String {
     let mut lines = Vec::new();

@@ -2,6 +2,7 @@
 //! a spreadsheet program writes them), as an .ods and as GeoJSON gives the CSV's plan byte for
 //! byte, and a bad cell or property is named where it is (`sheet!cell`, `features[k]`).
 
+use crate::golden::plan_files;
 use crate::util::Workdir;
 use std::io::Write;
 
@@ -31,24 +32,6 @@ fn with_workbook(name: &str, bytes: &[u8], sheet: Option<&str>) -> Workdir {
         scenario.replace("network = \"network.csv\"\n", &line),
     );
     wd
-}
-
-/// Each file of a plan run in `wd`, made comparable (no run ids or timings).
-fn plan_files(wd: &Workdir) -> Vec<(String, Vec<u8>)> {
-    wd.run(&["plan", "--scenario", "scenario.toml", "--out", "res", "-q"])
-        .expect_code(0);
-    let mut files: Vec<(String, Vec<u8>)> = std::fs::read_dir(wd.join("res"))
-        .unwrap()
-        .map(|e| e.unwrap())
-        .map(|e| {
-            let name = e.file_name().to_string_lossy().into_owned();
-            let bytes = crate::golden::comparable(&name, std::fs::read(e.path()).unwrap());
-            (name, bytes)
-        })
-        .filter(|(n, _)| n != "manifest.json" && !n.starts_with('.'))
-        .collect();
-    files.sort();
-    files
 }
 
 fn csv_plan() -> Vec<(String, Vec<u8>)> {

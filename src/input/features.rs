@@ -15,10 +15,8 @@ use serde_json::Value;
 pub struct FeatureInput {
     file: String,
     pub headers: csv::StringRecord,
-    /// Each feature's record with its 1-based number.
-    rows: Vec<(usize, csv::StringRecord)>,
-    next: usize,
-    none: csv::StringRecord,
+    /// The records, each with its number (sheet row or feature).
+    pub(super) rows: super::table::Records,
 }
 
 /// Whether `bytes` look like JSON text (an object first, after any byte-order mark and white
@@ -182,23 +180,8 @@ impl FeatureInput {
         Some(FeatureInput {
             file: file.to_owned(),
             headers: names.into_iter().collect(),
-            rows,
-            next: 0,
-            none: csv::StringRecord::new(),
+            rows: super::table::Records::new(rows),
         })
-    }
-
-    pub fn next_row(&mut self) -> Option<usize> {
-        let row = self.rows.get(self.next)?.0;
-        self.next += 1;
-        Some(row)
-    }
-
-    pub fn record(&self) -> &csv::StringRecord {
-        match self.next.checked_sub(1).and_then(|k| self.rows.get(k)) {
-            Some((_, r)) => r,
-            None => &self.none,
-        }
     }
 
     pub fn had_rows(&self, what: &str, d: &mut Diagnostics) -> bool {

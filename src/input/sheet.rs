@@ -77,11 +77,8 @@ pub struct SheetInput {
     sheet: String,
     /// The header's cells, trimmed.
     pub headers: csv::StringRecord,
-    /// Each non-blank record with its 1-based sheet row.
-    rows: Vec<(usize, csv::StringRecord)>,
-    next: usize,
-    /// Returned by [`SheetInput::record`] before the first row.
-    none: csv::StringRecord,
+    /// The records, each with its number (sheet row or feature).
+    pub(super) rows: super::table::Records,
     /// The 1-based sheet column of the header's first cell.
     first_column: usize,
     /// The header's 1-based sheet row.
@@ -315,27 +312,10 @@ impl SheetInput {
             file: file.to_owned(),
             sheet,
             headers,
-            rows,
-            next: 0,
-            none: csv::StringRecord::new(),
+            rows: super::table::Records::new(rows),
             first_column: lo as usize + 1,
             header_row,
         })
-    }
-
-    /// Move to the next record and return its sheet row.
-    pub fn next_row(&mut self) -> Option<usize> {
-        let row = self.rows.get(self.next)?.0;
-        self.next += 1;
-        Some(row)
-    }
-
-    /// The current record.
-    pub fn record(&self) -> &csv::StringRecord {
-        match self.next.checked_sub(1).and_then(|k| self.rows.get(k)) {
-            Some((_, r)) => r,
-            None => &self.none,
-        }
     }
 
     /// Whether the sheet had records after its header (reported at the header row if not).

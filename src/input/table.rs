@@ -35,8 +35,8 @@ impl Rows<'_> {
     pub fn next_row(&mut self, d: &mut Diagnostics) -> Option<usize> {
         match self {
             Rows::Text(c) => c.next_row(d),
-            Rows::Sheet(s) => s.next_row(),
-            Rows::Features(f) => f.next_row(),
+            Rows::Sheet(s) => s.rows.next_row(),
+            Rows::Features(f) => f.rows.next_row(),
         }
     }
 
@@ -44,8 +44,8 @@ impl Rows<'_> {
     pub fn record(&self) -> &csv::StringRecord {
         match self {
             Rows::Text(c) => c.record(),
-            Rows::Sheet(s) => s.record(),
-            Rows::Features(f) => f.record(),
+            Rows::Sheet(s) => s.rows.record(),
+            Rows::Features(f) => f.rows.record(),
         }
     }
 
@@ -85,5 +85,43 @@ impl Rows<'_> {
             Rows::Sheet(_) => "row",
             Rows::Features(_) => "feature",
         }
+    }
+}
+
+/// Records already in memory (a sheet's, a feature collection's), each with its number (sheet
+/// row or feature), read one at a time.
+pub struct Records {
+    rows: Vec<(usize, csv::StringRecord)>,
+    next: usize,
+    /// Returned by [`Records::record`] before the first.
+    none: csv::StringRecord,
+}
+
+impl Records {
+    pub fn new(rows: Vec<(usize, csv::StringRecord)>) -> Records {
+        Records {
+            rows,
+            next: 0,
+            none: csv::StringRecord::new(),
+        }
+    }
+
+    /// Move to the next record and return its number.
+    pub fn next_row(&mut self) -> Option<usize> {
+        let row = self.rows.get(self.next)?.0;
+        self.next += 1;
+        Some(row)
+    }
+
+    /// The current record.
+    pub fn record(&self) -> &csv::StringRecord {
+        match self.next.checked_sub(1).and_then(|k| self.rows.get(k)) {
+            Some((_, r)) => r,
+            None => &self.none,
+        }
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.rows.is_empty()
     }
 }
