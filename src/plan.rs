@@ -986,8 +986,9 @@ impl Candidates {
     }
 
     /// The smallest budget level (factor on the scenario's lines picked by `scaled`) at which no
-    /// picked line can bind: each line's limit covers the most every section could put on it.
-    /// `None` when some picked line has a zero limit but could be used.
+    /// picked line can bind: each line's limit covers the most every section could put on it
+    /// (rounded up to six decimals). `None` when some picked line has a zero limit but could be
+    /// used.
     pub fn unlimited_level(&self, scaled: &dyn Fn(&Row) -> bool) -> Option<f64> {
         let most = self.largest_use();
         let mut level: f64 = 0.0;
@@ -1004,7 +1005,9 @@ impl Candidates {
             let m = row.measure(m);
             level = level.max(m * (1.0 + 1e-9) / base + 0.01 / base);
         }
-        Some(level)
+        // Rounded up to six decimals, as frontier.csv writes a level: higher still binds no
+        // line, and the level solved is the level written.
+        Some((level * 1e6).ceil() / 1e6)
     }
 }
 
