@@ -67,8 +67,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         Some(name) => {
             let lines = &run.scenario.budget_lines;
             if !lines.iter().any(|l| l.group == *name || l.name == *name) {
-                let mut names: Vec<&str> = lines.iter().map(|l| l.group.as_str()).collect();
-                names.dedup();
+                let names = run.scenario.budget_groups();
                 let hint = did_you_mean(name, &names)
                     .map(|m| format!(" (did you mean `{m}`?)"))
                     .unwrap_or_default();

@@ -152,6 +152,14 @@ impl Scenario {
     pub fn last_year(&self) -> Year {
         self.base_year + YearOffset(self.analysis_years.saturating_sub(1))
     }
+
+    /// The budget groups (the `[[budget]]` entries' names), in the scenario's order: a group's
+    /// lines are next to each other.
+    pub fn budget_groups(&self) -> Vec<&str> {
+        let mut groups: Vec<&str> = self.budget_lines.iter().map(|b| b.group.as_str()).collect();
+        groups.dedup();
+        groups
+    }
 }
 
 /// Earliest and latest base year accepted (a guard against typos such as 207).

@@ -198,60 +198,73 @@ pub fn write(
         sensitivity: None,
         risk: None,
         risk_draws: None,
-        map: map_data(run),
+        map: if keep.report { map_data(run) } else { None },
     })
 }
 
-/// The columns carried from the network into the section-level files, after their own: the
-/// location (`road`, `from_km`, `to_km`, when the network has them), then each `x_` column,
-/// as `,name…` (empty when there are none).
+/// One cell carried from the network into a section-level output: a text (the road, a note)
+/// or a chainage, to the metre.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Carried<'a> {
+    Text(&'a str),
+    Km(Option<Fixed<3>>),
+}
+
+/// The columns carried from the network into the section-level files (CSV, workbook,
+/// GeoJSON), after their own: the location (`road`, `from_km`, `to_km`, when the network has
+/// them), then each `x_` column — each with a section's value.
+pub fn carried<'a>(
+    net: &'a Network,
+    sec: &'a Section,
+) -> impl Iterator<Item = (&'a str, Carried<'a>)> + 'a {
+    let road = net
+        .road_column
+        .then(|| ("road", Carried::Text(sec.road.as_deref().unwrap_or(""))));
+    let km = |x: Option<f64>| Carried::Km(x.map(Fixed::<3>::of));
+    let chainage = net.chainage_columns.then(|| {
+        [
+            ("from_km", km(sec.chainage.map(|c| c.0))),
+            ("to_km", km(sec.chainage.map(|c| c.1))),
+        ]
+    });
+    let notes = net
+        .note_columns
+        .iter()
+        .zip(&sec.notes)
+        .map(|(n, v)| (n.as_str(), Carried::Text(v.as_str())));
+    road.into_iter()
+        .chain(chainage.into_iter().flatten())
+        .chain(notes)
+}
+
+/// The names of [`carried`]'s columns (the network's first section tells them; a network has
+/// one at least).
+pub fn carried_names(net: &Network) -> Vec<String> {
+    net.sections
+        .first()
+        .map(|sec| carried(net, sec).map(|(n, _)| n.to_owned()).collect())
+        .unwrap_or_default()
+}
+
+/// [`carried`]'s header cells, as `,name…` (empty when there are none).
 pub fn carried_head(net: &Network) -> String {
     let mut h = String::new();
-    if net.road_column {
-        h.push_str(",road");
-    }
-    if net.chainage_columns {
-        h.push_str(",from_km,to_km");
-    }
-    for n in &net.note_columns {
+    for n in carried_names(net) {
         h.push(',');
-        schema::value::write_text(n, &mut h);
+        schema::value::write_text(&n, &mut h);
     }
     h
 }
 
-/// The names of [`carried_head`]'s columns.
-pub fn carried_names(net: &Network) -> Vec<String> {
-    let mut v: Vec<String> = Vec::new();
-    if net.road_column {
-        v.push("road".into());
-    }
-    if net.chainage_columns {
-        v.push("from_km".into());
-        v.push("to_km".into());
-    }
-    v.extend(net.note_columns.iter().cloned());
-    v
-}
-
-/// A section's cells of [`carried_head`]'s columns, each after a comma; the chainage to the
-/// metre.
+/// A section's cells of [`carried`]'s columns, each after a comma.
 pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {
-    if net.road_column {
+    for (_, v) in carried(net, sec) {
         out.push(',');
-        schema::value::write_text(sec.road.as_deref().unwrap_or(""), out);
-    }
-    if net.chainage_columns {
-        for x in [sec.chainage.map(|c| c.0), sec.chainage.map(|c| c.1)] {
-            out.push(',');
-            if let Some(x) = x {
-                schema::Value::write(&Fixed::<3>::of(x), out);
-            }
+        match v {
+            Carried::Text(t) => schema::value::write_text(t, out),
+            Carried::Km(Some(x)) => schema::Value::write(&x, out),
+            Carried::Km(None) => {}
         }
-    }
-    for v in &sec.notes {
-        out.push(',');
-        schema::value::write_text(v, out);
     }
 }
 

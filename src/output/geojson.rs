@@ -37,20 +37,13 @@ fn geometry(sec: &Section) -> Value {
 
 /// The columns carried from the network, as properties.
 fn carried(net: &Network, sec: &Section, p: &mut Map<String, Value>) {
-    if net.road_column {
-        p.insert("road".into(), json!(sec.road.as_deref().unwrap_or("")));
-    }
-    if net.chainage_columns {
-        let km = |x: Option<f64>| {
-            x.map_or(Value::Null, |x| {
-                json!(crate::schema::value::Fixed::<3>::of(x).to_f64())
-            })
+    use super::files::Carried;
+    for (name, v) in super::files::carried(net, sec) {
+        let v = match v {
+            Carried::Text(t) => json!(t),
+            Carried::Km(x) => x.map_or(Value::Null, |x| json!(x.to_f64())),
         };
-        p.insert("from_km".into(), km(sec.chainage.map(|c| c.0)));
-        p.insert("to_km".into(), km(sec.chainage.map(|c| c.1)));
-    }
-    for (name, v) in net.note_columns.iter().zip(&sec.notes) {
-        p.insert(name.clone(), json!(v));
+        p.insert(name.to_owned(), v);
     }
 }
 

@@ -214,13 +214,7 @@ pub fn rows(run: &Run, works: &[PlannedWork]) -> Vec<Row> {
             }
         };
     total("total", "all", &|_| true, &mut out);
-    let mut groups: Vec<&str> = Vec::new();
-    for b in &s.budget_lines {
-        if !groups.contains(&b.group.as_str()) {
-            groups.push(&b.group);
-        }
-    }
-    for g in groups {
+    for g in s.budget_groups() {
         let counts = |i: &Item| {
             let t = &cat.treatments[i.treatment];
             let region = net.sections[i.section].region.as_ref();

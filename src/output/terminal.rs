@@ -355,8 +355,7 @@ pub fn check(run: &Run, notes: usize) -> String {
         .map(|t| t.max_strategies())
         .fold(0u64, u64::saturating_add);
     let total: Money = s.budget_lines.iter().map(|b| b.limit).sum();
-    let mut groups: Vec<&str> = s.budget_lines.iter().map(|b| b.group.as_str()).collect();
-    groups.dedup();
+    let groups = s.budget_groups();
     let money = if s.money_label.is_empty() {
         String::new()
     } else {

@@ -294,16 +294,13 @@ mod imp {
         let net = &run.network;
         let carried = crate::output::files::carried_names(net);
         let carry = |sec: &crate::model::network::Section, cells: &mut Vec<Cell<'_>>| {
-            if net.road_column {
-                cells.push(Cell::Owned(sec.road.clone().unwrap_or_default()));
+            use crate::output::files::Carried;
+            for (_, v) in crate::output::files::carried(net, sec) {
+                cells.push(match v {
+                    Carried::Text(t) => Cell::Owned(t.to_owned()),
+                    Carried::Km(x) => Cell::Ratio(x.map_or(f64::NAN, |x| x.to_f64())),
+                });
             }
-            if net.chainage_columns {
-                for x in [sec.chainage.map(|c| c.0), sec.chainage.map(|c| c.1)] {
-                    let x = x.map(|x| crate::schema::value::Fixed::<3>::of(x).to_f64());
-                    cells.push(Cell::Ratio(x.unwrap_or(f64::NAN)));
-                }
-            }
-            cells.extend(sec.notes.iter().map(|n| Cell::Owned(n.clone())));
         };
         let with_carried = |cols: &[&str]| -> Vec<String> {
             cols.iter()
