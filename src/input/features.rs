@@ -102,6 +102,14 @@ impl FeatureInput {
             );
             return None;
         };
+        if features.is_empty() {
+            d.error(
+                Place::file(file).with_field("features"),
+                "no features",
+                format!("a feature per section: {layout}"),
+            );
+            return None;
+        }
         let place = |k: usize| Place::file(file).with_field(format!("features[{k}]"));
         // The columns: every property's name, in order of first appearance, then `geometry`.
         let mut names: Vec<String> = Vec::new();
@@ -209,6 +217,23 @@ pub fn feature_place(file: &str, n: usize) -> Place {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn an_empty_collection_is_one_error() {
+        let mut d = Diagnostics::new();
+        let got = FeatureInput::open(
+            "n.geojson",
+            br#"{"type": "FeatureCollection", "features": []}"#,
+            "sections",
+            &mut d,
+        );
+        assert!(got.is_none());
+        assert_eq!(d.error_count(), 1, "{d}");
+        assert!(
+            d.to_string().contains("n.geojson: features: no features"),
+            "{d}"
+        );
+    }
 
     #[test]
     fn lines_become_well_known_text_of_the_same_numbers() {
