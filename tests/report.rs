@@ -652,6 +652,9 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
     assert_eq!(sheet.len(), appraisal.len());
     for (r, a) in sheet.iter().zip(&appraisal) {
         assert_eq!(r[1].to_string(), a["strategy"]);
+        // The columns carried from the network follow, as in appraisal.csv.
+        assert_eq!(r[14].to_string(), a["road"]);
+        assert_eq!(r[15], Data::Float(a["from_km"].parse().unwrap()));
         assert_eq!(r[10].to_string(), a["irr_status"], "{}", a["strategy"]);
         match &r[9] {
             Data::Float(x) => assert!(

@@ -3,6 +3,7 @@
 
 mod appraise;
 mod calibrate;
+mod carried;
 mod cashflow;
 mod check;
 mod golden;

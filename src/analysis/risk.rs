@@ -56,6 +56,13 @@ pub struct Layout {
     /// The uncertain inputs, in sampling order, with their distributions' names.
     pub inputs: Vec<String>,
     pub money: String,
+    /// The names of the columns carried from the network, and each section's cells of them
+    /// (`,cell…`), so that a merged run writes what a whole one does without the network.
+    /// Absent from slices written before.
+    #[serde(default)]
+    pub carried_names: Vec<String>,
+    #[serde(default)]
+    pub carried: Vec<String>,
 }
 
 impl Layout {
@@ -79,6 +86,12 @@ impl Layout {
                     list.len()
                 ));
             }
+        }
+        if !self.carried.is_empty() && self.carried.len() != n {
+            return Err(format!(
+                "{n} sections but {} rows of carried columns",
+                self.carried.len()
+            ));
         }
         if self.limits.len() != self.lines.len() {
             return Err(format!(
@@ -201,6 +214,17 @@ pub fn layout(run: &Run, held: &Every) -> Result<Layout, crate::error::Error> {
             .map(|u| format!("{} ({})", u.input, u.distribution.name()))
             .collect(),
         money: run.scenario.money_label.clone(),
+        carried_names: crate::schema::carried::carried_names(&run.network),
+        carried: run
+            .network
+            .sections
+            .iter()
+            .map(|sec| {
+                let mut cells = String::new();
+                crate::schema::carried::carried_cells(&run.network, sec, &mut cells);
+                cells
+            })
+            .collect(),
     })
 }
 
@@ -769,6 +793,38 @@ impl Slice {
         out
     }
 
+    /// `risk.csv`: [`Slice::rows`], each section's strategy rows ending with the columns
+    /// carried from the network, the plan and budget rows with those cells empty.
+    pub fn csv(&self) -> String {
+        use crate::schema::analysis::Risk;
+        use crate::schema::Record as _;
+        let l = &self.layout;
+        let mut s = Risk::FILE.head();
+        s.pop();
+        for name in &l.carried_names {
+            s.push(',');
+            crate::schema::value::write_text(name, &mut s);
+        }
+        s.push('\n');
+        let blank = ",".repeat(l.carried_names.len());
+        // The strategy rows come first, section by section.
+        let mut of_section = l
+            .strategies
+            .iter()
+            .enumerate()
+            .flat_map(|(g, names)| std::iter::repeat_n(g, names.len()));
+        for r in self.rows() {
+            let g = if r.kind == "strategy" {
+                of_section.next()
+            } else {
+                None
+            };
+            let tail = g.and_then(|g| l.carried.get(g)).unwrap_or(&blank);
+            r.write_then(&mut s, |out| out.push_str(tail));
+        }
+        s
+    }
+
     /// `risk_draws.csv`: `draw,plan_npv` and one `spend:<line>` column per budget line.
     pub fn draws_csv(&self) -> String {
         use crate::schema::analysis::RiskDraw;
@@ -879,6 +935,8 @@ mod tests {
             limits: vec![100.0],
             inputs: vec![],
             money: String::new(),
+            carried_names: vec!["road".into()],
+            carried: vec![",North Road".into(), ",North Road".into()],
         };
         assert!(layout.consistent().is_ok());
         let slice = Slice {
@@ -894,6 +952,7 @@ mod tests {
             ("fewer limits", 0),
             ("fewer sections", 1),
             ("fewer strategies", 2),
+            ("fewer rows of carried columns", 3),
         ] {
             let mut bad = slice.clone();
             match change {
@@ -901,7 +960,10 @@ mod tests {
                 1 => {
                     bad.layout.sections.pop();
                 }
-                _ => bad.layout.strategies[0].truncate(1),
+                2 => bad.layout.strategies[0].truncate(1),
+                _ => {
+                    bad.layout.carried.pop();
+                }
             }
             bad.values = vec![0.0; bad.layout.width()];
             let p = dir.path().join(format!("{change}.bin"));

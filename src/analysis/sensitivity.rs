@@ -728,13 +728,16 @@ pub fn record(run: &Run, names: &mut Names, r: &Row) -> crate::schema::analysis:
 }
 
 /// `sensitivity.csv`: the network plan's rows first, then each section's, each made and
-/// written in turn (no table of every row is held beside the text).
+/// written in turn (no table of every row is held beside the text); a section's rows end with
+/// the columns carried from the network, the network's rows with those cells empty.
 pub fn text(run: &Run, rows: &[Row]) -> String {
+    use crate::schema::carried::{carried_cells_of, head_carrying};
     use crate::schema::Record as _;
+    let net = &run.network;
     let mut names = Names::new(run);
-    let mut s = crate::schema::analysis::Sensitivity::FILE.head();
+    let mut s = head_carrying(crate::schema::analysis::Sensitivity::FILE, net);
     for r in rows {
-        record(run, &mut names, r).write(&mut s);
+        record(run, &mut names, r).write_then(&mut s, |out| carried_cells_of(net, r.section, out));
     }
     s
 }

@@ -17,6 +17,7 @@ use pavestrat::model::network::Section;
 use pavestrat::output::appraisal::{
     appraisal_rows, incremental_rows, widening_rows, yearly_rows, Summary,
 };
+use pavestrat::schema::carried::head_carrying;
 use pavestrat::schema::others::appraise::{APPRAISAL, INCREMENTAL, WIDENING, YEARLY};
 use std::path::PathBuf;
 
@@ -62,7 +63,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
             let names: Vec<&str> = specs.iter().map(|f| f.name).collect();
             let mut set = StreamSet::create(dir, "appraise", &names)?;
             for (i, spec) in specs.iter().enumerate() {
-                set.write(i, spec.head().as_bytes())?;
+                set.write(i, head_carrying(*spec, &run.network).as_bytes())?;
             }
             Some(set)
         }
@@ -83,11 +84,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let results = appraise::network(&run, chunk, keep, scope);
         bar.inc(chunk.len() as u64);
         if let Some(set) = &mut files {
-            set.write(0, appraisal_rows(&results).as_bytes())?;
-            set.write(1, incremental_rows(&results).as_bytes())?;
-            set.write(2, widening_rows(&results).as_bytes())?;
+            let net = &run.network;
+            set.write(0, appraisal_rows(net, chunk, &results).as_bytes())?;
+            set.write(1, incremental_rows(net, chunk, &results).as_bytes())?;
+            set.write(2, widening_rows(net, chunk, &results).as_bytes())?;
             if keep {
-                set.write(3, yearly_rows(&run, &results).as_bytes())?;
+                set.write(3, yearly_rows(&run, chunk, &results).as_bytes())?;
             }
         }
         summary.add(chunk, &results, &run.scenario.models.condition);

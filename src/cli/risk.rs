@@ -156,7 +156,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         let files = if keep_raw { &FILES[..] } else { &FILES[..2] };
         let mut set = StreamSet::create(dir, "risk", files)?;
         set.made_for(plan_run);
-        set.write(0, pavestrat::schema::text(&slice.rows()).as_bytes())?;
+        set.write(0, slice.csv().as_bytes())?;
         set.write(1, slice.draws_csv().as_bytes())?;
         if keep_raw {
             set.write(2, &slice.to_bytes())?;

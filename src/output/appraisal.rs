@@ -6,18 +6,20 @@ use crate::appraise::SectionResult;
 use crate::input::models::ConditionParams;
 use crate::input::Run;
 use crate::model::money::grouped;
-use crate::model::network::Section;
+use crate::model::network::{Network, Section};
 use crate::output::format::{irr_text, pct, Amount, Field, Fixed, Rates};
+use crate::schema::carried::carried_cells;
 use crate::simulate::condition::{classify, ConditionClass};
 use std::fmt::Write as _;
 
-/// Rows of `appraisal.csv`.
-pub fn appraisal_rows(results: &[SectionResult]) -> String {
+/// Rows of `appraisal.csv`: `results` are those of `secs`, in order; each row ends with the
+/// columns carried from the network ([`carried_cells`]).
+pub fn appraisal_rows(net: &Network, secs: &[&Section], results: &[SectionResult]) -> String {
     let mut s = String::new();
-    for r in results {
+    for (sec, r) in secs.iter().zip(results) {
         for st in &r.strategies {
             let i = &st.indicators;
-            let _ = writeln!(
+            let _ = write!(
                 s,
                 "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
                 Field(&r.section),
@@ -39,16 +41,24 @@ pub fn appraisal_rows(results: &[SectionResult]) -> String {
                 Fixed(Some(st.final_iri), 3),
                 st.strategy == r.best,
             );
+            end_row(net, sec, &mut s);
         }
     }
     s
 }
 
-pub fn incremental_rows(results: &[SectionResult]) -> String {
+/// The end of a section's row: the columns carried from the network, and the line break.
+fn end_row(net: &Network, sec: &Section, s: &mut String) {
+    carried_cells(net, sec, s);
+    s.push('\n');
+}
+
+/// Rows of `incremental.csv` (as [`appraisal_rows`]).
+pub fn incremental_rows(net: &Network, secs: &[&Section], results: &[SectionResult]) -> String {
     let mut s = String::new();
-    for r in results {
+    for (sec, r) in secs.iter().zip(results) {
         for (k, st) in r.incremental.steps.iter().enumerate() {
-            let _ = writeln!(
+            let _ = write!(
                 s,
                 "{},{},{},{},{},{},{},{},{},{},{}",
                 Field(&r.section),
@@ -63,17 +73,19 @@ pub fn incremental_rows(results: &[SectionResult]) -> String {
                 st.d_irr.status(),
                 st.accepted
             );
+            end_row(net, sec, &mut s);
         }
     }
     s
 }
 
-pub fn widening_rows(results: &[SectionResult]) -> String {
+/// Rows of `widening.csv` (as [`appraisal_rows`]).
+pub fn widening_rows(net: &Network, secs: &[&Section], results: &[SectionResult]) -> String {
     let mut s = String::new();
-    for r in results {
+    for (sec, r) in secs.iter().zip(results) {
         let Some(w) = &r.widening else { continue };
         for y in &w.years {
-            let _ = writeln!(
+            let _ = write!(
                 s,
                 "{},{},{},{},{},{},{}",
                 Field(&r.section),
@@ -84,19 +96,22 @@ pub fn widening_rows(results: &[SectionResult]) -> String {
                 w.by_fyrr == Some(y.year),
                 w.by_npv == Some(y.year),
             );
+            end_row(net, sec, &mut s);
         }
     }
     s
 }
 
-pub fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
+/// Rows of `yearly.csv` (as [`appraisal_rows`]).
+pub fn yearly_rows(run: &Run, secs: &[&Section], results: &[SectionResult]) -> String {
     let mut s = String::new();
+    let net = &run.network;
     let y0 = run.scenario.base_year;
     let cp = &run.scenario.models.condition;
-    for r in results {
+    for (sec, r) in secs.iter().zip(results) {
         for (name, t) in &r.traces {
             for i in 0..t.iri.len() {
-                let _ = writeln!(
+                let _ = write!(
                     s,
                     "{},{},{},{},{},{},{},{},{},{},{},{},0.00",
                     Field(&r.section),
@@ -112,9 +127,10 @@ pub fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
                     Amount(t.crashes[i]),
                     Amount(t.delay[i]),
                 );
+                end_row(net, sec, &mut s);
             }
             // The residual value is credited the year after the period ends.
-            let _ = writeln!(
+            let _ = write!(
                 s,
                 "{},{},{},,,,0.00,0.00,0.00,0.00,0.00,0.00,{}",
                 Field(&r.section),
@@ -122,6 +138,7 @@ pub fn yearly_rows(run: &Run, results: &[SectionResult]) -> String {
                 y0 + crate::model::YearOffset::at(t.iri.len()),
                 Amount(t.residual)
             );
+            end_row(net, sec, &mut s);
         }
     }
     s

@@ -13,10 +13,11 @@ use crate::input::scenario::VehicleClass;
 use crate::input::Run;
 use crate::io::StreamSet;
 use crate::model::catalogue::Category;
-use crate::model::network::{Network, Section};
+
 use crate::model::YearOffset;
 use crate::output::report::Inputs;
 use crate::plan::{ConditionSeries, Plan, RowKind, CASES};
+use crate::schema::carried::{carried_cells, head_carrying};
 use crate::schema::plan::{
     candidate_head, row_column, write_candidate, BudgetUse, Condition, Limit, SectionPlan,
     TargetUse, Widening, Work, CANDIDATES, SUMMARY,
@@ -68,14 +69,8 @@ pub fn write(
     let secs = &run.network.sections;
 
     let net = &run.network;
+    let head = |spec: schema::FileSpec| head_carrying(spec, net);
     // Work programme: the works the exact re-check simulated, by year.
-    let head = |spec: schema::FileSpec| {
-        let mut h = spec.head();
-        h.pop();
-        h.push_str(&carried_head(net));
-        h.push('\n');
-        h
-    };
     set.write_to(Work::FILE.name, head(Work::FILE).as_bytes())?;
     let mut programme = Vec::new();
     let mut text = String::new();
@@ -167,7 +162,7 @@ pub fn write(
     set.write_to(Condition::FILE.name, schema::text(&condition).as_bytes())?;
 
     // The widening table, chunk by chunk (kept whole only for the report).
-    set.write_to(Widening::FILE.name, Widening::FILE.head().as_bytes())?;
+    set.write_to(Widening::FILE.name, head(Widening::FILE).as_bytes())?;
     let mut widening = Vec::new();
     for from in (0..secs.len()).step_by(CHUNK) {
         let rows = widening_rows(
@@ -178,12 +173,12 @@ pub fn write(
             keep.every_widening_year,
         );
         let mut text = String::new();
-        for r in &rows {
-            r.write(&mut text);
+        for (g, r) in &rows {
+            r.write_then(&mut text, |out| carried_cells(net, &secs[*g], out));
         }
         set.write_to(Widening::FILE.name, text.as_bytes())?;
         if keep.report {
-            widening.extend(rows);
+            widening.extend(rows.into_iter().map(|(_, r)| r));
         }
     }
     set.write_to(Limit::FILE.name, schema::text(&limits(p)).as_bytes())?;
@@ -200,72 +195,6 @@ pub fn write(
         risk_draws: None,
         map: if keep.report { map_data(run) } else { None },
     })
-}
-
-/// One cell carried from the network into a section-level output: a text (the road, a note)
-/// or a chainage, to the metre.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Carried<'a> {
-    Text(&'a str),
-    Km(Option<Fixed<3>>),
-}
-
-/// The columns carried from the network into the section-level files (CSV, workbook,
-/// GeoJSON), after their own: the location (`road`, `from_km`, `to_km`, when the network has
-/// them), then each `x_` column — each with a section's value.
-pub fn carried<'a>(
-    net: &'a Network,
-    sec: &'a Section,
-) -> impl Iterator<Item = (&'a str, Carried<'a>)> + 'a {
-    let road = net
-        .road_column
-        .then(|| ("road", Carried::Text(sec.road.as_deref().unwrap_or(""))));
-    let km = |x: Option<f64>| Carried::Km(x.map(Fixed::<3>::of));
-    let chainage = net.chainage_columns.then(|| {
-        [
-            ("from_km", km(sec.chainage.map(|c| c.0))),
-            ("to_km", km(sec.chainage.map(|c| c.1))),
-        ]
-    });
-    let notes = net
-        .note_columns
-        .iter()
-        .zip(&sec.notes)
-        .map(|(n, v)| (n.as_str(), Carried::Text(v.as_str())));
-    road.into_iter()
-        .chain(chainage.into_iter().flatten())
-        .chain(notes)
-}
-
-/// The names of [`carried`]'s columns (the network's first section tells them; a network has
-/// one at least).
-pub fn carried_names(net: &Network) -> Vec<String> {
-    net.sections
-        .first()
-        .map(|sec| carried(net, sec).map(|(n, _)| n.to_owned()).collect())
-        .unwrap_or_default()
-}
-
-/// [`carried`]'s header cells, as `,name…` (empty when there are none).
-pub fn carried_head(net: &Network) -> String {
-    let mut h = String::new();
-    for n in carried_names(net) {
-        h.push(',');
-        schema::value::write_text(&n, &mut h);
-    }
-    h
-}
-
-/// A section's cells of [`carried`]'s columns, each after a comma.
-pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {
-    for (_, v) in carried(net, sec) {
-        out.push(',');
-        match v {
-            Carried::Text(t) => schema::value::write_text(t, out),
-            Carried::Km(Some(x)) => schema::Value::write(&x, out),
-            Carried::Km(None) => {}
-        }
-    }
 }
 
 /// The network's lines for the report's maps, as `section_plan.geojson` holds them (`None`
@@ -426,19 +355,19 @@ pub fn condition(cs: &ConditionSeries) -> Vec<Condition> {
     out
 }
 
-/// The widening table's rows of the sections `range`: every widening year when `every`, else
-/// only the years the plan or a timing rule picks.
+/// The widening table's rows of the sections `range`, each with its section's index: every
+/// widening year when `every`, else only the years the plan or a timing rule picks.
 pub fn widening_rows(
     run: &Run,
     e: &Enumerator<'_>,
     p: &Plan,
     range: std::ops::Range<usize>,
     every: bool,
-) -> Vec<Widening> {
+) -> Vec<(usize, Widening)> {
     let c = &p.candidates;
     let cat = &run.catalogue;
     let y0 = run.scenario.base_year;
-    let per: Vec<Vec<Widening>> = range
+    let per: Vec<Vec<(usize, Widening)>> = range
         .into_par_iter()
         .map(|g| {
             let best = c.widening_of(g);
@@ -454,15 +383,18 @@ pub fn widening_rows(
             best.iter()
                 .filter_map(|wy| {
                     let picks = [by_fyrr, by_npv, planned].map(|y| y == Some(wy.year));
-                    (every || picks.contains(&true)).then(|| Widening {
-                        section_id: sec.id.as_str().to_owned(),
-                        year: wy.year,
-                        strategy: e.name(wy.strategy),
-                        npv: Cents::of(wy.npv),
-                        fyrr: wy.fyrr.and_then(Fixed::of_f64),
-                        by_fyrr: picks[0],
-                        by_npv: picks[1],
-                        planned: picks[2],
+                    (every || picks.contains(&true)).then(|| {
+                        let row = Widening {
+                            section_id: sec.id.as_str().to_owned(),
+                            year: wy.year,
+                            strategy: e.name(wy.strategy),
+                            npv: Cents::of(wy.npv),
+                            fyrr: wy.fyrr.and_then(Fixed::of_f64),
+                            by_fyrr: picks[0],
+                            by_npv: picks[1],
+                            planned: picks[2],
+                        };
+                        (g, row)
                     })
                 })
                 .collect()

@@ -37,8 +37,8 @@ fn geometry(sec: &Section) -> Value {
 
 /// The columns carried from the network, as properties.
 fn carried(net: &Network, sec: &Section, p: &mut Map<String, Value>) {
-    use super::files::Carried;
-    for (name, v) in super::files::carried(net, sec) {
+    use crate::schema::carried::Carried;
+    for (name, v) in crate::schema::carried::carried(net, sec) {
         let v = match v {
             Carried::Text(t) => json!(t),
             Carried::Km(x) => x.map_or(Value::Null, |x| json!(x.to_f64())),

@@ -13,6 +13,7 @@
 use crate::input::Run;
 use crate::model::catalogue::{Action, Category};
 use crate::plan::PlannedWork;
+use crate::schema::carried::{carried_cells_of, carried_head};
 use crate::schema::value::{write_text, Fixed};
 use crate::schema::Value;
 
@@ -259,8 +260,7 @@ pub fn text(run: &Run, works: &[PlannedWork]) -> String {
         let year = s.base_year.0 + y as i32;
         out.push_str(&format!(",cost_{year},treatment_{year}"));
     }
-    let carried = super::files::carried_head(net);
-    out.push_str(&carried);
+    out.push_str(&carried_head(net));
     out.push('\n');
     for r in rows(run, works) {
         match r.section {
@@ -268,15 +268,11 @@ pub fn text(run: &Run, works: &[PlannedWork]) -> String {
                 let sec = &net.sections[g];
                 let region = sec.region.as_deref().unwrap_or("");
                 row(&mut out, r.kind, "", sec.id.as_str(), region, &r);
-                super::files::carried_cells(net, sec, &mut out);
             }
-            None => {
-                row(&mut out, r.kind, &r.name, "", "", &r);
-                for _ in carried.matches(',') {
-                    out.push(',');
-                }
-            }
+            None => row(&mut out, r.kind, &r.name, "", "", &r),
         }
+        // A totals row is no section's: its carried cells are empty.
+        carried_cells_of(net, r.section, &mut out);
         out.push('\n');
     }
     out

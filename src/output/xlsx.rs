@@ -32,7 +32,8 @@ pub fn available() -> Result<()> {
     }
 }
 
-/// The workbook for a plan and its sections' appraisal, as bytes.
+/// The workbook for a plan and its sections' appraisal (every section's, in network order), as
+/// bytes.
 #[cfg(feature = "xlsx")]
 pub fn plan_bytes(run: &Run, p: &Plan, appraisal: &[SectionResult]) -> Result<Vec<u8>> {
     imp::workbook(run, p, appraisal)
@@ -292,10 +293,10 @@ mod imp {
         // The columns carried from the network: the road as text, the chainage as numbers,
         // the user's notes as text.
         let net = &run.network;
-        let carried = crate::output::files::carried_names(net);
+        let carried = crate::schema::carried::carried_names(net);
         let carry = |sec: &crate::model::network::Section, cells: &mut Vec<Cell<'_>>| {
-            use crate::output::files::Carried;
-            for (_, v) in crate::output::files::carried(net, sec) {
+            use crate::schema::carried::Carried;
+            for (_, v) in crate::schema::carried::carried(net, sec) {
                 cells.push(match v {
                     Carried::Text(t) => Cell::Owned(t.to_owned()),
                     Carried::Km(x) => Cell::Ratio(x.map_or(f64::NAN, |x| x.to_f64())),
@@ -416,7 +417,7 @@ mod imp {
         sh.finish(true)?;
 
         let mut sh = sheet(&mut wb, "Appraisal", &money)?;
-        sh.head(&[
+        sh.head(&with_carried(&[
             "section_id",
             "strategy",
             "template",
@@ -431,15 +432,16 @@ mod imp {
             "fyrr",
             "mean_iri",
             "preferred",
-        ])?;
-        for r in appraisal {
+        ]))?;
+        // Every section's appraisal, in network order.
+        for (sec, r) in secs.iter().zip(appraisal) {
             for st in &r.strategies {
                 let i = &st.indicators;
                 let irr = match &i.irr {
                     crate::economics::irr::Irr::Unique(x) => Some(*x),
                     _ => None,
                 };
-                sh.line(&[
+                let mut cells = vec![
                     Cell::Text(&r.section),
                     Cell::Text(&st.strategy),
                     Cell::Text(st.template.as_deref().unwrap_or("")),
@@ -454,7 +456,9 @@ mod imp {
                     Cell::Rate(i.fyrr),
                     Cell::Ratio(st.mean_iri),
                     Cell::Flag(st.strategy == r.best),
-                ])?;
+                ];
+                carry(sec, &mut cells);
+                sh.line(&cells)?;
             }
         }
         // Strategies of one section are alternatives: their money does not add up.

@@ -19,6 +19,7 @@
 //! held plan of [`crate::analysis::held`], `explain`), so that neither reaches into the other.
 
 pub mod analysis;
+pub mod carried;
 pub mod others;
 pub mod plan;
 pub mod readback;
