@@ -15,6 +15,8 @@ use serde_json::Value;
 pub struct FeatureInput {
     file: String,
     pub headers: csv::StringRecord,
+    /// For each column, the first feature that has it (a property set, or a geometry).
+    first_with: Vec<usize>,
     /// The records, each with its number (sheet row or feature).
     pub(super) rows: super::table::Records,
 }
@@ -71,7 +73,8 @@ fn geometry_text(g: &Value) -> Result<String, String> {
 }
 
 impl FeatureInput {
-    /// Read `bytes` as a FeatureCollection; `layout` says what it should hold.
+    /// Read `bytes` as a FeatureCollection; `layout` says what it should hold (its features
+    /// and their properties).
     pub fn open(
         file: &str,
         bytes: &[u8],
@@ -106,25 +109,29 @@ impl FeatureInput {
             d.error(
                 Place::file(file).with_field("features"),
                 "no features",
-                format!("a feature per section: {layout}"),
+                layout.to_owned(),
             );
             return None;
         }
         let place = |k: usize| Place::file(file).with_field(format!("features[{k}]"));
         // The columns: every property's name, in order of first appearance, then `geometry`.
         let mut names: Vec<String> = Vec::new();
-        let mut lines = false;
-        for f in features {
+        let mut first_with = Vec::new();
+        let mut lines = None;
+        for (k, f) in features.iter().enumerate() {
             if let Some(p) = f.get("properties").and_then(Value::as_object) {
-                for k in p.keys() {
-                    if !names.contains(k) {
-                        names.push(k.clone());
+                for name in p.keys() {
+                    if !names.contains(name) {
+                        names.push(name.clone());
+                        first_with.push(k + 1);
                     }
                 }
             }
-            lines |= f.get("geometry").is_some_and(|g| !g.is_null());
+            if lines.is_none() && f.get("geometry").is_some_and(|g| !g.is_null()) {
+                lines = Some(k + 1);
+            }
         }
-        if lines {
+        if let Some(first) = lines {
             if names.iter().any(|n| n == "geometry") {
                 d.error(
                     Place::file(file).with_field("properties.geometry"),
@@ -134,7 +141,9 @@ impl FeatureInput {
                 return None;
             }
             names.push("geometry".into());
+            first_with.push(first);
         }
+        let lines = lines.is_some();
         let mut rows = Vec::with_capacity(features.len());
         for (k, f) in features.iter().enumerate() {
             let n = k + 1;
@@ -188,6 +197,7 @@ impl FeatureInput {
         Some(FeatureInput {
             file: file.to_owned(),
             headers: names.into_iter().collect(),
+            first_with,
             rows: super::table::Records::new(rows),
         })
     }
@@ -206,6 +216,19 @@ impl FeatureInput {
     /// The place of feature `n`'s properties (the field named after it is the property).
     pub fn place(&self, n: usize) -> Place {
         feature_place(&self.file, n)
+    }
+
+    /// Where column `column` first appears (the first feature with that property, or with a
+    /// geometry), or, for a column none has, the features as a whole.
+    pub fn column_place(&self, column: Option<usize>) -> Place {
+        let name = column.and_then(|i| Some((self.first_with.get(i)?, self.headers.get(i)?)));
+        match name {
+            Some((&n, "geometry")) => Place::file(&self.file)
+                .with_field(format!("features[{n}]"))
+                .with_subfield("geometry"),
+            Some((&n, name)) => feature_place(&self.file, n).with_subfield(name),
+            None => Place::file(&self.file).with_field("features"),
+        }
     }
 }
 

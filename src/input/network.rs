@@ -85,7 +85,11 @@ pub fn parse_workbook(
 
 /// Read the network from a GeoJSON FeatureCollection of its sections.
 pub fn parse_features(file: &str, bytes: &[u8], d: &mut Diagnostics) -> Option<Network> {
-    let input = super::features::FeatureInput::open(file, bytes, &layout(), d)?;
+    let layout = format!(
+        "a feature per section, with the properties {}",
+        REQUIRED.join(", ")
+    );
+    let input = super::features::FeatureInput::open(file, bytes, &layout, d)?;
     parse_rows(file, Rows::Features(input), d)
 }
 
@@ -252,15 +256,13 @@ struct Columns {
 
 fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Columns> {
     let headers = input.headers();
-    let row = input.header_row();
+    let (word, words) = input.column_word();
     let mut pos: HashMap<&str, usize> = HashMap::new();
     let mut notes = Vec::new();
     let mut ok = true;
     let known: Vec<&str> = REQUIRED.iter().chain(OPTIONAL.iter()).copied().collect();
     for (i, h) in headers.iter().enumerate() {
-        let place = input
-            .place(file, row, Some(i))
-            .with_subfield(&format!("column {} `{h}`", i + 1));
+        let place = input.header_place(file, Some(i));
         if h.is_empty() {
             d.error(place, "an empty column name", "a column name");
             ok = false;
@@ -274,8 +276,8 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
         } else {
             let e = d.error(
                 place,
-                format!("unknown column `{h}`"),
-                "a documented column, or a name starting `x_` for your own notes",
+                format!("unknown {word} `{h}`"),
+                format!("a documented {word}, or a name starting `x_` for your own notes"),
             );
             if let Some(m) = did_you_mean(h, &known) {
                 e.hint = Some(format!("did you mean `{m}`?"));
@@ -291,9 +293,9 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
             None if *name == "length_km" && chainage => required[k] = NO_COLUMN,
             None => {
                 d.error(
-                    input.place(file, row, None),
-                    format!("no `{name}` column"),
-                    format!("the required columns {}", REQUIRED.join(", ")),
+                    input.header_place(file, None),
+                    format!("no `{name}` {word}"),
+                    format!("the required {words} {}", REQUIRED.join(", ")),
                 );
                 ok = false;
             }
@@ -310,9 +312,9 @@ fn read_header(file: &str, input: &Rows<'_>, d: &mut Diagnostics) -> Option<Colu
             ("to_km", "from_km")
         };
         d.error(
-            input.place(file, row, None),
-            format!("a `{has}` column but no `{lacks}`"),
-            "both chainage columns, from_km and to_km, or neither",
+            input.header_place(file, None),
+            format!("a `{has}` {word} but no `{lacks}`"),
+            format!("both chainage {words}, from_km and to_km, or neither"),
         );
         ok = false;
     }
@@ -861,6 +863,29 @@ mod tests {
             d.to_string().contains("a `from_km` column but no `to_km`"),
             "{d}"
         );
+    }
+
+    #[test]
+    fn a_geojson_header_problem_is_placed_at_a_feature_or_the_features() {
+        // Feature 2 alone has a misspelt property; no feature has `iri`.
+        let props = r#""section_id": "A", "length_km": 1, "lanes": 2, "carriageway": "single",
+            "structural_number": 4, "aadt": 5000, "heavy_share": 0.1, "growth_rate": 0.02"#;
+        let doc = format!(
+            r#"{{"type": "FeatureCollection", "features": [
+                {{"type": "Feature", "geometry": null, "properties": {{{props}}}}},
+                {{"type": "Feature", "geometry": null, "properties": {{{props}, "surfce": "asphalt"}}}}
+            ]}}"#
+        );
+        let mut d = Diagnostics::new();
+        assert!(parse_features("n.geojson", doc.as_bytes(), &mut d).is_none());
+        let t = d.to_string();
+        for want in [
+            "n.geojson: features[2].properties.surfce: unknown property `surfce`",
+            "n.geojson: features: no `iri` property; expected the required properties",
+        ] {
+            assert!(t.contains(want), "missing `{want}` in\n{t}");
+        }
+        assert_eq!(d.error_count(), 2, "{t}");
     }
 
     #[test]

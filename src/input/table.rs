@@ -78,6 +78,32 @@ impl Rows<'_> {
         }
     }
 
+    /// The place of the header's column `column` (0-based; `None` for the header as a whole,
+    /// where a missing column is reported): the header line or its cell in a CSV or sheet,
+    /// with the column's number and name; in GeoJSON the first feature with the property, or
+    /// the features as a whole.
+    pub fn header_place(&self, file: &str, column: Option<usize>) -> Place {
+        match self {
+            Rows::Features(f) => f.column_place(column),
+            _ => {
+                let place = self.place(file, self.header_row(), column);
+                match column.and_then(|i| Some((i, self.headers().get(i)?))) {
+                    Some((i, h)) => place.with_subfield(&format!("column {} `{h}`", i + 1)),
+                    None => place,
+                }
+            }
+        }
+    }
+
+    /// The word for a column in messages, and its plural: a column, or a GeoJSON feature's
+    /// property.
+    pub fn column_word(&self) -> (&'static str, &'static str) {
+        match self {
+            Rows::Features(_) => ("property", "properties"),
+            _ => ("column", "columns"),
+        }
+    }
+
     /// The word for a record's number in messages: line, row or feature.
     pub fn row_word(&self) -> &'static str {
         match self {
