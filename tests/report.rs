@@ -592,6 +592,23 @@ fn workbook_has_typed_cells_matching_the_csv_files() {
     // The programme sheet is programme.csv, cell for cell, typed.
     let prog = rows(&read("programme.csv"));
     let ws = wb.worksheet_range("Programme").unwrap();
+    // Headings are titles; a year's columns read `2027 cost`, and `cost_per_lane_km` is no
+    // year's (it read `per_lane_km cost` before).
+    let head: Vec<String> = ws
+        .rows()
+        .next()
+        .unwrap()
+        .iter()
+        .map(|c| c.to_string())
+        .collect();
+    for want in [
+        "Cost per lane-km",
+        "Cost per m²",
+        "2027 cost",
+        "2027 treatment",
+    ] {
+        assert!(head.iter().any(|h| h == want), "no `{want}` in {head:?}");
+    }
     let sheet: Vec<_> = ws.rows().skip(1).collect();
     assert_eq!(sheet.len(), prog.len());
     for (r, p) in sheet.iter().zip(&prog) {
@@ -799,4 +816,59 @@ fn renders_in_a_real_browser() {
         !log.lines().any(|l| l.contains(":CONSOLE")),
         "console messages while dumping the DOM:\n{log}"
     );
+}
+
+/// One name per idea: every column heading of the report's tables, with every analysis in it,
+/// is the title the workbook gives the same CSV column (`output::titles`), or one of the few
+/// headings only the report has.
+#[test]
+fn report_headings_are_the_workbooks_titles() {
+    let wd = Workdir::new();
+    for args in [
+        &["-q", "plan", "--out", "p", "--time-limit", "1"][..],
+        &["-q", "sensitivity", "--from", "p", "--out", "p"],
+        &["-q", "risk", "--from", "p", "--draws", "16", "--out", "p"],
+        &["-q", "frontier", "--levels", "0.8,1", "--out", "p"],
+        &["-q", "report", "--from", "p"],
+    ] {
+        wd.run(args).expect_code(0);
+    }
+    let doc = Html::parse_document(&wd.read("p/report.html"));
+    let titles: Vec<&str> = pavestrat::output::titles::TITLES
+        .iter()
+        .map(|(_, t)| *t)
+        .collect();
+    // Headings of the report's own, with no CSV column behind them.
+    let own = [
+        "",
+        "The plan's NPV reaches zero at",
+        "At",
+        "Best at the scenario's values",
+        "Then best",
+        "P50 of NPV",
+        "Coefficient",
+        "Standing",
+    ];
+    let mut seen = std::collections::BTreeSet::new();
+    for th in doc.select(&sel("thead th")) {
+        let text = th.text().collect::<String>();
+        assert!(
+            titles.contains(&text.as_str()) || own.contains(&text.as_str()),
+            "heading `{text}` is neither a title of output::titles nor one of the report's own"
+        );
+        seen.insert(text);
+    }
+    // The tables of every section were there to be checked.
+    for want in [
+        "Section",
+        "Budget line",
+        "Used",
+        "Budget price",
+        "Budget level",
+        "Input",
+        "Draws over the limit",
+        "P50 of NPV",
+    ] {
+        assert!(seen.contains(want), "no `{want}` heading in {seen:?}");
+    }
 }

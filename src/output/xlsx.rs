@@ -76,62 +76,6 @@ mod imp {
         Flag(bool),
     }
 
-    /// The heading of a column named `key` in the CSV files: one title per name, the same on
-    /// every sheet. A year's columns of the programme read `2027 cost`, `2027 treatment`; a
-    /// name not listed (the user's `x_` columns) is kept.
-    pub(super) fn title(key: &str) -> String {
-        if let Some(y) = key.strip_prefix("cost_") {
-            return format!("{y} cost");
-        }
-        if let Some(y) = key.strip_prefix("treatment_") {
-            return format!("{y} treatment");
-        }
-        let t = match key {
-            "year" => "Year",
-            "section_id" => "Section",
-            "treatment" => "Treatment",
-            "cost" => "Cost",
-            "region" => "Region",
-            "category" => "Category",
-            "strategy" => "Strategy",
-            "npv" => "NPV",
-            "pv_agency_cost" => "PV agency cost",
-            "pv_user_cost" => "PV road-user cost",
-            "unconstrained_strategy" => "Best strategy with no limits",
-            "unconstrained_npv" => "NPV with no limits",
-            "same" => "Same as with no limits",
-            "line" => "Budget line",
-            "limit" => "Limit",
-            "used" => "Used",
-            "price" => "Budget price",
-            "slack" => "Slack",
-            "template" => "Template",
-            "bcr" => "BCR",
-            "bcr_capital" => "BCR on capital",
-            "npv_per_capital" => "NPV per unit of capital",
-            "irr" => "IRR",
-            "irr_status" => "IRR status",
-            "fyrr" => "FYRR",
-            "mean_iri" => "Mean IRI (m/km)",
-            "preferred" => "Preferred",
-            "kind" => "Row",
-            "name" => "Total of",
-            "works" => "Works",
-            "km" => "Km",
-            "lane_km" => "Lane-km",
-            "area_m2" => "Area (m²)",
-            "cost_per_lane_km" => "Cost per lane-km",
-            "cost_per_m2" => "Cost per m²",
-            "road" => "Road",
-            "item" => "Item",
-            "value" => "Value",
-            "from_km" => "From km",
-            "to_km" => "To km",
-            other => other,
-        };
-        t.to_owned()
-    }
-
     struct Sheet<'w> {
         ws: &'w mut Worksheet,
         row: u32,
@@ -148,7 +92,7 @@ mod imp {
         fn head<S: AsRef<str>>(&mut self, names: &[S]) -> Result<()> {
             let bold = Format::new().set_bold();
             for (c, n) in names.iter().enumerate() {
-                let t = title(n.as_ref());
+                let t = crate::output::titles::title(n.as_ref());
                 self.ws
                     .write_string_with_format(0, c as u16, &t, &bold)
                     .map_err(fault)?;

@@ -2,6 +2,7 @@
 //! `risk_draws.csv` when they are in the plan's directory.
 
 use super::chart::{esc, Chart, Spec, Units, BLUE, GREY, ORANGE, SKY, VERMILLION};
+use super::table_head;
 use crate::model::money::grouped;
 use crate::schema::analysis::{Risk, RiskDraw, Sensitivity};
 use crate::schema::value::{Cents, Fixed};
@@ -151,7 +152,14 @@ pub fn sensitivity_section(rows: &[Sensitivity], m: &str) -> String {
         ));
         s.push_str(&c.finish(&[("input lower", ORANGE, ""), ("input higher", BLUE, "")]));
     }
-    s.push_str(r#"<table><thead><tr><th>input</th><th>direction</th><th class="num">the plan's NPV reaches zero at</th></tr></thead><tbody>"#);
+    s.push_str(&table_head(
+        r#"<table>"#,
+        &[
+            ("input", false),
+            ("direction", false),
+            ("The plan's NPV reaches zero at", true),
+        ],
+    ));
     for (input, dir, v) in &switching {
         let _ = write!(
             s,
@@ -183,7 +191,16 @@ pub fn sensitivity_section(rows: &[Sensitivity], m: &str) -> String {
         within.len()
     );
     if !within.is_empty() {
-        s.push_str(r#"<table class="fragile"><thead><tr><th>section</th><th>input</th><th class="num">at</th><th>best at the scenario's values</th><th>then best</th></tr></thead><tbody>"#);
+        s.push_str(&table_head(
+            r#"<table class="fragile">"#,
+            &[
+                ("section_id", false),
+                ("input", false),
+                ("At", true),
+                ("Best at the scenario's values", false),
+                ("Then best", false),
+            ],
+        ));
         for (_, (sec, input, v, best, other)) in within.iter().take(15) {
             let _ = write!(
                 s,
@@ -370,7 +387,17 @@ pub fn risk_section(rows: &[Risk], draws: Option<&[RiskDraw]>, m: &str) -> Strin
             ]));
         }
         s.push_str("</div>");
-        s.push_str(r#"<table><thead><tr><th>line</th><th class="num">limit</th><th class="num">P10</th><th class="num">P50</th><th class="num">P90</th><th class="num">draws over the limit</th></tr></thead><tbody>"#);
+        s.push_str(&table_head(
+            r#"<table>"#,
+            &[
+                ("line", false),
+                ("limit", true),
+                ("p10", true),
+                ("p50", true),
+                ("p90", true),
+                ("prob_over", true),
+            ],
+        ));
         for (name, limit, p10, p50, p90, over) in &budget {
             let _ = write!(
                 s,
@@ -393,7 +420,16 @@ pub fn risk_section(rows: &[Risk], draws: Option<&[RiskDraw]>, m: &str) -> Strin
             "<h3>How often each section's planned strategy is its best</h3><p>In {firm} of {} sections the plan's strategy has the highest NPV of the section's strategies in at least half of the draws. The ten least often best:</p>",
             planned.len()
         );
-        s.push_str(r#"<table class="robustness"><thead><tr><th>section</th><th>planned strategy</th><th class="num">P50 of NPV</th><th class="num">NPV above zero</th><th class="num">best in</th></tr></thead><tbody>"#);
+        s.push_str(&table_head(
+            r#"<table class="robustness">"#,
+            &[
+                ("section_id", false),
+                ("strategy", false),
+                ("P50 of NPV", true),
+                ("prob_positive", true),
+                ("prob_best", true),
+            ],
+        ));
         for (sec, st, pos, best, p50) in planned.iter().take(10) {
             let _ = write!(
                 s,

@@ -14,6 +14,7 @@ pub mod map;
 
 use crate::error::Result;
 use crate::model::money::grouped;
+use crate::output::titles::title;
 use crate::schema::analysis::{FrontierLevel, Risk, RiskDraw, Sensitivity};
 use crate::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMARY};
 use crate::schema::summary::Summary;
@@ -212,7 +213,10 @@ fn numbers(sm: &Summary, targets: Option<&[TargetUse]>) -> String {
         sm.gap * 100.0,
         money(sm.bound, m)
     );
-    s.push_str(r#"<table class="numbers"><thead><tr><th></th><th class="num">NPV</th><th class="num">PV agency cost</th></tr></thead><tbody>"#);
+    s.push_str(&table_head(
+        r#"<table class="numbers">"#,
+        &[("", false), ("npv", true), ("pv_agency_cost", true)],
+    ));
     for (label, npv, pv) in [
         ("This plan", sm.npv.plan, sm.pv_agency_cost.plan),
         (
@@ -251,7 +255,15 @@ fn numbers(sm: &Summary, targets: Option<&[TargetUse]>) -> String {
     }
     if let Some(t) = targets {
         if !t.is_empty() {
-            s.push_str(r#"<h3>Condition targets</h3><table><thead><tr><th>target</th><th>measure</th><th class="num">at most</th><th class="num">plan</th></tr></thead><tbody>"#);
+            s.push_str(&table_head(
+                r#"<h3>Condition targets</h3><table>"#,
+                &[
+                    ("target", false),
+                    ("measure", false),
+                    ("at_most", true),
+                    ("achieved", true),
+                ],
+            ));
             for r in t {
                 let _ = write!(
                     s,
@@ -435,11 +447,20 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
             };
             c.label("price", *year, limit.max(*used), 6.0, &text, Some(*price));
         }
-        s.push_str(&c.finish(&[("spent", BLUE, ""), ("limit", "#1a1a1a", "")]));
+        s.push_str(&c.finish(&[("used", BLUE, ""), ("limit", "#1a1a1a", "")]));
     }
     s.push_str("</div>");
     // The same as a table.
-    s.push_str(r#"<table><thead><tr><th>line</th><th class="num">limit</th><th class="num">spent</th><th class="num">use</th><th class="num">price</th></tr></thead><tbody>"#);
+    s.push_str(&table_head(
+        r#"<table>"#,
+        &[
+            ("line", false),
+            ("limit", true),
+            ("used", true),
+            ("used_share", true),
+            ("price", true),
+        ],
+    ));
     for (_, _, _, lines) in &groups {
         for (_, limit, used, price, name) in lines {
             let _ = write!(
@@ -462,6 +483,21 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
         }
     }
     s.push_str("</tbody></table></section>");
+    s
+}
+
+/// A table's start: `open` (the `<table>` tag, and anything before it), then a heading row
+/// of `columns` — each a CSV column name, shown by its title ([`title`]; one name per idea
+/// across the files, the workbook and the report), or a heading of the report's own — right
+/// aligned when the column holds numbers.
+pub(super) fn table_head(open: &str, columns: &[(&str, bool)]) -> String {
+    let mut s = String::from(open);
+    s.push_str("<thead><tr>");
+    for (key, num) in columns {
+        let class = if *num { r#" class="num""# } else { "" };
+        let _ = write!(s, "<th{class}>{}</th>", esc(&title(key)));
+    }
+    s.push_str("</tr></thead><tbody>");
     s
 }
 
@@ -737,7 +773,17 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
         }
         s.push_str(&c.finish(&legend));
     }
-    s.push_str(r#"<table><thead><tr><th class="num">level</th><th class="num">total budget</th><th class="num">objective</th><th class="num">bound</th><th class="num">gap</th><th>status</th></tr></thead><tbody>"#);
+    s.push_str(&table_head(
+        r#"<table>"#,
+        &[
+            ("level", true),
+            ("total_budget", true),
+            ("objective", true),
+            ("bound", true),
+            ("gap", true),
+            ("status", false),
+        ],
+    ));
     for p in &pts {
         let _ = write!(
             s,
@@ -774,7 +820,10 @@ fn programme_section(rows: &[Work], sm: &Summary) -> String {
         e.1 += 1;
     }
     let mut s = String::from(r#"<section id="programme"><h2>Work programme by year</h2>"#);
-    s.push_str(r#"<table class="years"><thead><tr><th>year</th><th class="num">treatments</th><th class="num">cost</th></tr></thead><tbody>"#);
+    s.push_str(&table_head(
+        r#"<table class="years">"#,
+        &[("year", false), ("works", true), ("cost", true)],
+    ));
     for (y, (cost, n)) in &years {
         let _ = write!(
             s,
@@ -797,10 +846,16 @@ fn programme_section(rows: &[Work], sm: &Summary) -> String {
             if current.is_some() {
                 s.push_str("</tbody></table>");
             }
-            let _ = write!(
-                s,
-                r#"<h3>{y}</h3><table class="programme" data-year="{y}"><thead><tr><th>section</th><th>treatment</th><th>region</th><th>category</th><th class="num">cost</th></tr></thead><tbody>"#
-            );
+            s.push_str(&table_head(
+                &format!(r#"<h3>{y}</h3><table class="programme" data-year="{y}">"#),
+                &[
+                    ("section_id", false),
+                    ("treatment", false),
+                    ("region", false),
+                    ("category", false),
+                    ("cost", true),
+                ],
+            ));
             current = Some(y);
         }
         let _ = write!(
@@ -912,7 +967,7 @@ fn assumptions_section(sm: &Summary) -> String {
     if !list.is_empty() {
         let _ = write!(
             s,
-            "<h3>Coefficients not yet backed by local evidence</h3><p>{} model coefficients still stand at a calibration default (no published value fits every place) or at a published value quoted from memory. Replace them with local values; the roughness families can be fitted to the agency's surveys with <code>pavestrat calibrate</code>.</p><table class=\"assumptions\"><thead><tr><th>coefficient</th><th>value</th><th>standing</th></tr></thead><tbody>",
+            "<h3>Coefficients not yet backed by local evidence</h3><p>{} model coefficients still stand at a calibration default (no published value fits every place) or at a published value quoted from memory. Replace them with local values; the roughness families can be fitted to the agency's surveys with <code>pavestrat calibrate</code>.</p><table class=\"assumptions\"><thead><tr><th>Coefficient</th><th>Value</th><th>Standing</th></tr></thead><tbody>",
             list.len()
         );
         for u in list {
