@@ -401,6 +401,32 @@ fn frontier_is_monotone_reaches_the_unconstrained_plan_and_is_plotted() {
     assert!(close(num(&ceiling, "data-y"), o, 1e-12));
 }
 
+/// section_plan.csv's first works year is each section's earliest year in work_programme.csv,
+/// and empty for a section with none.
+#[test]
+fn first_works_year_is_the_earliest_in_the_work_programme() {
+    let mut first: std::collections::HashMap<String, i32> = std::collections::HashMap::new();
+    for w in rows(&read("work_programme.csv")) {
+        let y: i32 = w["year"].parse().unwrap();
+        let e = first.entry(w["section_id"].clone()).or_insert(y);
+        *e = (*e).min(y);
+    }
+    let plan = rows(&read("section_plan.csv"));
+    assert_eq!(plan.len(), 40);
+    let mut without = 0;
+    for r in &plan {
+        match first.get(&r["section_id"]) {
+            Some(y) => assert_eq!(r["first_works_year"], y.to_string(), "{}", r["section_id"]),
+            None => {
+                without += 1;
+                assert_eq!(r["first_works_year"], "", "{}", r["section_id"]);
+            }
+        }
+    }
+    // The demo plan treats every section (the empty cell is written by the same code).
+    assert!(without < plan.len(), "{without} without works");
+}
+
 #[test]
 fn work_programme_table_lists_every_treatment() {
     let doc = Html::parse_document(&read("report.html"));
@@ -768,14 +794,17 @@ fn renders_in_a_real_browser() {
     );
     assert!(doc.select(&sel("svg.chart .mark")).count() > 100);
     // The map: a line per demo section, each coloured by the year band of its first works in
-    // work_programme.csv (the demo's centre lines are in its network's geometry column).
-    let works = rows(&read("work_programme.csv"));
-    let mut first: std::collections::HashMap<String, i32> = std::collections::HashMap::new();
-    for w in &works {
-        let y: i32 = w["year"].parse().unwrap();
-        let e = first.entry(w["section_id"].clone()).or_insert(y);
-        *e = (*e).min(y);
-    }
+    // section_plan.csv (the demo's centre lines are in its network's geometry column).
+    let first: std::collections::HashMap<String, i32> = rows(&read("section_plan.csv"))
+        .into_iter()
+        .filter(|r| !r["first_works_year"].is_empty())
+        .map(|r| {
+            (
+                r["section_id"].clone(),
+                r["first_works_year"].parse().unwrap(),
+            )
+        })
+        .collect();
     let (lo, hi) = (
         *first.values().min().unwrap(),
         *first.values().max().unwrap(),

@@ -110,13 +110,14 @@ pub fn write(
         );
         set.write_to(CANDIDATES, head.as_bytes())?;
     }
+    let first = first_works(p, secs.len());
     for from in (0..secs.len()).step_by(CHUNK) {
         let range = from..(from + CHUNK).min(secs.len());
         let texts: Vec<(String, String, String)> = range
             .into_par_iter()
             .map(|g| {
                 let mut sp = String::new();
-                let row = section_plan(run, &e, p, g);
+                let row = section_plan(run, &e, p, g, first[g]);
                 row.write_then(&mut sp, |out| carried_cells(net, &secs[g], out));
                 let mut cs = String::new();
                 if keep.candidates {
@@ -235,8 +236,24 @@ pub fn work_programme<'a>(run: &'a Run, p: &'a Plan) -> impl Iterator<Item = Wor
     })
 }
 
-/// Section `g`'s row of the section plan.
-pub fn section_plan(run: &Run, e: &Enumerator<'_>, p: &Plan, g: usize) -> SectionPlan {
+/// Each of the `n` sections' first works under the plan: the year of its earliest, or `None`.
+pub fn first_works(p: &Plan, n: usize) -> Vec<Option<YearOffset>> {
+    let mut first: Vec<Option<YearOffset>> = vec![None; n];
+    for w in &p.works {
+        let f = &mut first[w.section];
+        *f = Some(f.map_or(w.year, |y| y.min(w.year)));
+    }
+    first
+}
+
+/// Section `g`'s row of the section plan (`first` its first works, from [`first_works`]).
+pub fn section_plan(
+    run: &Run,
+    e: &Enumerator<'_>,
+    p: &Plan,
+    g: usize,
+    first: Option<YearOffset>,
+) -> SectionPlan {
     let c = &p.candidates;
     let sec = &run.network.sections[g];
     let k = c.chosen(&p.outcome.plan, g);
@@ -250,6 +267,7 @@ pub fn section_plan(run: &Run, e: &Enumerator<'_>, p: &Plan, g: usize) -> Sectio
         unconstrained_strategy: e.name(u.strategy),
         unconstrained_npv: Cents::of(u.npv),
         same: c.strategy[k] == u.strategy,
+        first_works_year: first.map(|y| run.scenario.base_year + y),
     }
 }
 

@@ -95,6 +95,10 @@ pub fn section_feature(net: &Network, sec: &Section, r: &SectionPlan) -> String 
         json!(r.unconstrained_npv.to_f64()),
     );
     p.insert("same".into(), json!(r.same));
+    p.insert(
+        "first_works_year".into(),
+        r.first_works_year.map_or(Value::Null, |y| json!(y.0)),
+    );
     feature(net, sec, p)
 }
 

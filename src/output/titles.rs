@@ -18,6 +18,7 @@ pub const TITLES: &[(&str, &str)] = &[
     ("unconstrained_strategy", "Best strategy with no limits"),
     ("unconstrained_npv", "NPV with no limits"),
     ("same", "Same as with no limits"),
+    ("first_works_year", "First works"),
     ("line", "Budget line"),
     ("limit", "Limit"),
     ("used", "Used"),

@@ -316,6 +316,7 @@ mod imp {
         sh.finish(false)?;
 
         let e = Enumerator::for_run(run);
+        let first = crate::output::files::first_works(p, secs.len());
         let mut sh = sheet(&mut wb, "Section plan", &money)?;
         sh.head(&with_carried(SectionPlan::FILE.columns))?;
         for (g, sec) in secs.iter().enumerate() {
@@ -332,6 +333,7 @@ mod imp {
                 Cell::Text(un),
                 Cell::Money(unpv),
                 Cell::Flag(chosen == un),
+                Cell::Number(first[g].map_or(f64::NAN, |y| f64::from((s.base_year + y).0))),
             ];
             carry(sec, &mut cells);
             sh.line(&cells)?;

@@ -35,6 +35,7 @@ record! {
         unconstrained_strategy: String = "unconstrained_strategy",
         unconstrained_npv: Cents = "unconstrained_npv",
         same: bool = "same",
+        first_works_year: Option<Year> = "first_works_year",
     }
 }
 

@@ -5,7 +5,8 @@ geometry library) for the geometries.
 for section_plan.geojson and work_programme.geojson: the RFC 7946 structure (a FeatureCollection
 of Features, each with a geometry object or null and a properties object; LineString
 coordinates of two or more positions of two numbers); one feature per row of the CSV of the same
-name, with its section_id; each geometry valid in shapely and exactly the geometry shapely
+name, every cell of the row the feature's property of that name (empty as null, flags as
+booleans, numbers equal); each geometry valid in shapely and exactly the geometry shapely
 reads from the network's own well-known text for that section.
 
 Usage: python3 check_geojson.py PATH/TO/pavestrat WORKDIR
@@ -20,6 +21,18 @@ import sys
 
 import shapely
 from shapely.geometry import shape
+
+
+def same_cell(prop, text):
+    """A property and the CSV cell of the same name: empty is null, a flag a boolean, a number
+    the same number (the CSV writes money to the cent, as the property holds it)."""
+    if text == "":
+        return prop is None or prop == ""
+    if isinstance(prop, bool):
+        return str(prop).lower() == text
+    if isinstance(prop, (int, float)):
+        return abs(prop - float(text)) <= 1e-9 * max(1.0, abs(prop))
+    return prop == text
 
 
 def main():
@@ -56,7 +69,7 @@ def main():
         check(doc.get("type") == "FeatureCollection" and isinstance(doc.get("features"), list), f"{name}: a FeatureCollection")
         feats = doc["features"]
         check(len(feats) == len(rows), f"{name}: {len(feats)} features against {len(rows)} rows")
-        structure, same, valid = True, True, True
+        structure, same, valid, cells = True, True, True, True
         for feat, row in zip(feats, rows):
             structure &= feat.get("type") == "Feature" and isinstance(feat.get("properties"), dict) and "geometry" in feat
             g = feat["geometry"]
@@ -64,10 +77,12 @@ def main():
             if g and g["type"] == "LineString":
                 structure &= len(g["coordinates"]) >= 2 and all(len(p) == 2 and all(isinstance(v, (int, float)) for v in p) for p in g["coordinates"])
             structure &= feat["properties"].get("section_id") == row["section_id"]
+            cells &= all(same_cell(feat["properties"].get(k, "missing"), v) for k, v in row.items())
             geom = shape(g)
             valid &= geom.is_valid
             same &= geom.equals_exact(wkt[row["section_id"]], 0.0)
         check(structure, f"{name}: RFC 7946 structure, one feature per row in order")
+        check(cells, f"{name}: every cell of the CSV row is the feature's property of that name")
         check(valid, f"{name}: every geometry valid in shapely")
         check(same, f"{name}: every geometry exactly the network's own well-known text")
         print(f"{name}: {len(feats)} features")
