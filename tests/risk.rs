@@ -635,3 +635,47 @@ fn a_run_too_large_to_hold_is_refused_before_it_starts() {
         .stderr_has("use fewer draws");
     assert!(!wd.join("r").exists());
 }
+
+/// `--rates R1,R2` as the README writes it: two rates in one argument, fractions or
+/// percentages; a single rate is refused with the form expected.
+#[test]
+fn sensitivity_takes_two_rates_in_one_argument() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p"]).expect_code(0);
+    wd.run(&[
+        "sensitivity",
+        "--from",
+        "p",
+        "--rates",
+        "3%,10%",
+        "--out",
+        "s",
+    ])
+    .expect_code(0);
+    let rows = rows(&wd.read("s/sensitivity.csv"));
+    let mut rates: Vec<&str> = rows
+        .iter()
+        .filter(|r| r["scope"] == "network" && r["input"] == "discount_rate" && r["value"] != "")
+        .map(|r| r["value"].as_str())
+        .collect();
+    rates.sort_unstable();
+    rates.dedup();
+    assert!(
+        rates.contains(&"0.030000") && rates.contains(&"0.100000"),
+        "{rates:?}"
+    );
+    wd.run(&[
+        "sensitivity",
+        "--from",
+        "p",
+        "--rates",
+        "0.1,0.03",
+        "--out",
+        "t",
+    ])
+    .expect_code(0);
+    assert_eq!(wd.read("s/sensitivity.csv"), wd.read("t/sensitivity.csv"));
+    wd.run(&["sensitivity", "--from", "p", "--rates", "3%"])
+        .expect_code(2)
+        .stderr_has("expected two rates separated by a comma");
+}

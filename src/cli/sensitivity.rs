@@ -39,8 +39,8 @@ pub struct Args {
     pub growth_change: f64,
 
     /// The two other discount rates (default: two points either side of the scenario's).
-    #[arg(long, value_name = "R1,R2", value_delimiter = ',', num_args = 2, value_parser = parse_rate)]
-    pub rates: Vec<f64>,
+    #[arg(long, value_name = "R1,R2", value_parser = parse_rates, allow_hyphen_values = true)]
+    pub rates: Option<[f64; 2]>,
 
     /// Most seconds the plan's selection may take (when there is no --from).
     #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
@@ -48,6 +48,17 @@ pub struct Args {
 
     #[command(flatten)]
     pub out: OutArg,
+}
+
+/// Two discount rates, `R1,R2` (each a fraction or a percentage).
+fn parse_rates(s: &str) -> std::result::Result<[f64; 2], String> {
+    match s.split(',').collect::<Vec<_>>()[..] {
+        [a, b] => Ok([parse_rate(a.trim())?, parse_rate(b.trim())?]),
+        _ => Err(format!(
+            "`{s}` is not two rates; expected two rates separated by a comma, e.g. 3%,10% or \
+             0.03,0.10"
+        )),
+    }
 }
 
 fn parse_change(s: &str) -> std::result::Result<f64, String> {
@@ -97,7 +108,7 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     tests.cost = args.cost_change;
     tests.values = args.value_change;
     tests.growth = args.growth_change;
-    if let [a, b] = args.rates[..] {
+    if let Some([a, b]) = args.rates {
         tests.rates = [a.min(b), a.max(b)];
     }
     let bar = ctx
