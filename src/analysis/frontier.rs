@@ -100,12 +100,16 @@ pub fn frontier(
     let mut carried: Option<(Vec<u16>, f64)> = None;
     for &(level, unlimited) in &wanted {
         c.set_budget_level(run, level, &scaled)?;
-        let total_budget: f64 = c
-            .rows
-            .iter()
-            .filter_map(|r| r.money)
-            .map(|m| m.to_f64())
-            .sum();
+        // Each year's money counted once (a ring-fenced line's is part of its wider line's).
+        let total_budget =
+            crate::input::scenario::total_limit(c.rows.iter().filter_map(|r| {
+                match (&r.kind, r.money) {
+                    (crate::plan::RowKind::Budget(b), Some(m)) => {
+                        Some((&run.scenario.budget_lines[*b], m.to_f64()))
+                    }
+                    _ => None,
+                }
+            }));
         let solved = match solve_checked(run, c, options, crate::plan::Series::None) {
             Ok((o, _)) => {
                 let (plan, value, kept) = match &carried {

@@ -160,6 +160,136 @@ impl Scenario {
         groups.dedup();
         groups
     }
+
+    /// How the budget groups overlap: a group whose every line lies within wider lines of its
+    /// year — network-wide where it is a region's, or of category `all` where it is capital's
+    /// or routine's — so that spending counted against it also counts against those (a
+    /// ring-fenced budget), with the groups of the wider lines; and pairs of groups with the
+    /// same scope year by year, whose limits both hold on the same spending.
+    pub fn budget_overlaps(&self) -> Vec<BudgetOverlap<'_>> {
+        let groups = self.budget_groups();
+        let lines = |g: &str| -> Vec<&BudgetLine> {
+            self.budget_lines.iter().filter(|b| b.group == g).collect()
+        };
+        let mut out = Vec::new();
+        for (i, a) in groups.iter().enumerate() {
+            let la = lines(a);
+            // The wider lines over each of a's lines, if every one has some.
+            let mut outer: Vec<&str> = Vec::new();
+            let within = la.iter().all(|x| {
+                let wide: Vec<&BudgetLine> = self
+                    .budget_lines
+                    .iter()
+                    .filter(|y| covers(y, x) && !covers(x, y))
+                    .collect();
+                for y in &wide {
+                    if !outer.contains(&y.group.as_str()) {
+                        outer.push(&y.group);
+                    }
+                }
+                !wide.is_empty()
+            });
+            if within {
+                out.push(BudgetOverlap::Within { inner: a, outer });
+            }
+            for b in &groups[i + 1..] {
+                let lb = lines(b);
+                let same = |x: &BudgetLine, y: &BudgetLine| covers(x, y) && covers(y, x);
+                if la.iter().all(|x| lb.iter().any(|y| same(x, y)))
+                    && lb.iter().all(|y| la.iter().any(|x| same(x, y)))
+                {
+                    out.push(BudgetOverlap::Same { a, b });
+                }
+            }
+        }
+        out
+    }
+}
+
+/// Whether every spending `inner` limits also counts against `outer`: the same year, `outer`'s
+/// category the same or `all`, its region the same or none (the whole network).
+fn covers(outer: &BudgetLine, inner: &BudgetLine) -> bool {
+    outer.year == inner.year
+        && (outer.category == Category::All || outer.category == inner.category)
+        && (outer.region.is_none() || outer.region == inner.region)
+}
+
+/// Budget groups that limit some of the same spending ([`Scenario::budget_overlaps`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum BudgetOverlap<'s> {
+    /// Every line of `inner` is a region's share of network-wide lines of the `outer` groups.
+    Within { inner: &'s str, outer: Vec<&'s str> },
+    /// The two groups limit the same spending, year by year.
+    Same { a: &'s str, b: &'s str },
+}
+
+impl std::fmt::Display for BudgetOverlap<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            BudgetOverlap::Within { inner, outer } => {
+                let outer = outer.join(" and ");
+                write!(
+                    f,
+                    "{inner} lies within {outer}: its spending also counts against {outer}, so \
+                     its money is counted once, in {outer}"
+                )
+            }
+            BudgetOverlap::Same { a, b } => write!(
+                f,
+                "{a} and {b} limit the same spending in the same years: the smaller limit holds, \
+                 and only it is counted"
+            ),
+        }
+    }
+}
+
+/// The most the budget lines let be spent, each year's money counted once. A year's money is
+/// the least of what its `all` lines allow and what its capital and routine lines allow
+/// together; what lines of one category allow is the network-wide lines' limit where there is
+/// one (the smallest, if several), else the sum over regions of each region's (smallest)
+/// limit. So a ring-fenced line inside a wider one adds nothing: its money is part of the
+/// wider line's. `lines` are each line with the limit to count (the scenario's, or a scaled
+/// one).
+pub fn total_limit<'a>(lines: impl IntoIterator<Item = (&'a BudgetLine, f64)>) -> f64 {
+    // Per year, per category: the network-wide limit, and each region's.
+    type Caps<'a> = (Option<f64>, Vec<(&'a str, f64)>);
+    let mut years: Vec<(Year, [Caps<'a>; 3])> = Vec::new();
+    for (line, limit) in lines {
+        let k = match years.iter().position(|e| e.0 == line.year) {
+            Some(k) => k,
+            None => {
+                years.push((line.year, Default::default()));
+                years.len() - 1
+            }
+        };
+        let caps = &mut years[k].1[line.category as usize];
+        match line.region.as_ref() {
+            None => caps.0 = Some(caps.0.map_or(limit, |x: f64| x.min(limit))),
+            Some(r) => match caps.1.iter_mut().find(|(n, _)| *n == r.as_str()) {
+                Some((_, x)) => *x = x.min(limit),
+                None => caps.1.push((r.as_str(), limit)),
+            },
+        }
+    }
+    // What one category's lines allow (`None`: no line of it, so no limit from it).
+    let allow = |(wide, regions): &Caps<'_>| -> Option<f64> {
+        wide.or_else(|| (!regions.is_empty()).then(|| regions.iter().map(|(_, x)| x).sum()))
+    };
+    years
+        .iter()
+        .map(|(_, [capital, routine, all])| {
+            let parts = match (allow(capital), allow(routine)) {
+                (Some(c), Some(r)) => Some(c + r),
+                (c, r) if all.0.is_some() || !all.1.is_empty() => c.and(r),
+                (c, r) => c.or(r),
+            };
+            match (allow(all), parts) {
+                (Some(a), Some(p)) => a.min(p),
+                (Some(a), None) => a,
+                (None, p) => p.unwrap_or(0.0),
+            }
+        })
+        .sum()
 }
 
 /// Earliest and latest base year accepted (a guard against typos such as 207).
@@ -700,6 +830,115 @@ years = { 2028 = "6500000.50" }
         assert_eq!(names, ["works-2027", "works-2028", "works-2029"]);
         assert_eq!(s.budget_lines[1].limit.to_string(), "6500000.5");
         assert_eq!(s.budget_lines[2].limit.to_string(), "5000000");
+    }
+
+    #[test]
+    fn ring_fenced_money_is_counted_once_and_overlaps_are_named() {
+        let more = r#"
+[[budget]]
+name = "river-works"
+category = "capital"
+region = "river"
+first_year = 2027
+last_year = 2029
+per_year = "1000000"
+
+[[budget]]
+name = "hill-works"
+category = "capital"
+region = "hill"
+first_year = 2028
+last_year = 2030
+per_year = "700000"
+
+[[budget]]
+name = "north-upkeep"
+category = "routine"
+region = "north"
+first_year = 2027
+last_year = 2027
+per_year = "300000"
+
+[[budget]]
+name = "south-upkeep"
+category = "routine"
+region = "south"
+first_year = 2027
+last_year = 2027
+per_year = "200000"
+
+[[budget]]
+name = "north-upkeep-cap"
+category = "routine"
+region = "north"
+first_year = 2027
+last_year = 2027
+per_year = "250000"
+"#;
+        let mut d = Diagnostics::new();
+        let text = format!("{GOOD}{more}");
+        let s = parse("s.toml", &text, Path::new("/data"), &mut d).expect("parses");
+        // Capital: works each year (5 M, 6.5 M, 5 M; river-works inside them adds nothing),
+        // then hill-works alone in 2030 (0.7 M); routine in 2027: north's smaller limit
+        // (0.25 M) and south's (0.2 M). Worked by hand.
+        let total = total_limit(s.budget_lines.iter().map(|b| (b, b.limit.to_f64())));
+        assert!(
+            (total - (5e6 + 6_500_000.5 + 5e6 + 7e5 + 2.5e5 + 2e5)).abs() < 1e-6,
+            "{total}"
+        );
+        let o = s.budget_overlaps();
+        assert_eq!(
+            o,
+            [
+                BudgetOverlap::Within {
+                    inner: "river-works",
+                    outer: vec!["works"]
+                },
+                BudgetOverlap::Same {
+                    a: "north-upkeep",
+                    b: "north-upkeep-cap"
+                }
+            ],
+            "hill-works reaches 2030, where no network-wide line is"
+        );
+        assert!(o[0].to_string().contains("counted once, in works"));
+        // Scaled limits count the same way.
+        let half = total_limit(s.budget_lines.iter().map(|b| (b, b.limit.to_f64() / 2.0)));
+        assert!((half - total / 2.0).abs() < 1e-6);
+    }
+
+    #[test]
+    fn a_line_of_every_category_caps_the_capital_and_routine_lines_of_its_year() {
+        let more = r#"
+[[budget]]
+name = "upkeep"
+category = "routine"
+first_year = 2027
+last_year = 2027
+per_year = "500000"
+
+[[budget]]
+name = "cap"
+category = "all"
+first_year = 2027
+last_year = 2027
+per_year = "5200000"
+"#;
+        let mut d = Diagnostics::new();
+        let text = format!("{GOOD}{more}");
+        let s = parse("s.toml", &text, Path::new("/data"), &mut d).expect("parses");
+        // 2027: the least of 5.2 M (all) and 5 M + 0.5 M (capital and routine); then works
+        // alone in 2028 and 2029.
+        let total = total_limit(s.budget_lines.iter().map(|b| (b, b.limit.to_f64())));
+        assert!((total - (5.2e6 + 6_500_000.5 + 5e6)).abs() < 1e-6, "{total}");
+        // upkeep lies within cap; works does not (cap holds in 2027 only).
+        assert_eq!(
+            s.budget_overlaps(),
+            [BudgetOverlap::Within {
+                inner: "upkeep",
+                outer: vec!["cap"]
+            }]
+        );
     }
 
     #[test]

@@ -9,7 +9,7 @@ use crate::analysis::risk::{precision, stats, Slice};
 use crate::analysis::sensitivity::INPUTS;
 use crate::input::plan::Objective;
 use crate::input::Run;
-use crate::model::money::{grouped, Money};
+use crate::model::money::grouped;
 use crate::output::files::Facts;
 use crate::plan::{Plan, RowKind};
 use std::fmt::Write as _;
@@ -354,7 +354,8 @@ pub fn check(run: &Run, notes: usize) -> String {
         .iter()
         .map(|t| t.max_strategies())
         .fold(0u64, u64::saturating_add);
-    let total: Money = s.budget_lines.iter().map(|b| b.limit).sum();
+    let total =
+        crate::input::scenario::total_limit(s.budget_lines.iter().map(|b| (b, b.limit.to_f64())));
     let groups = s.budget_groups();
     let money = if s.money_label.is_empty() {
         String::new()
@@ -408,8 +409,11 @@ pub fn check(run: &Run, notes: usize) -> String {
     let steps = strategies as f64 * f64::from(s.analysis_years);
     let (seconds, bytes) = crate::resources::plan_cost(strategies as f64, s.analysis_years);
     out.push_str(&format!(
-        "  work        `plan` simulates {steps:.0} section-years of strategies: about {} on {} threads and {} at its peak (estimates from measured rates)\n",
-        crate::resources::duration(seconds),
+        "  work        `plan` simulates {steps:.0} section-years of strategies: {} on {} threads and {} at its peak (estimates from measured rates)\n",
+        match crate::resources::duration(seconds) {
+            d if d.starts_with("under") => d,
+            d => format!("about {d}"),
+        },
         rayon::current_num_threads(),
         crate::resources::bytes(bytes)
     ));
@@ -434,8 +438,11 @@ pub fn check(run: &Run, notes: usize) -> String {
             groups.len(),
             if groups.len() == 1 { "" } else { "s" },
             groups.join(", "),
-            grouped(total.to_f64(), 0),
+            grouped(total, 0),
         ));
+        for o in s.budget_overlaps() {
+            out.push_str(&format!("              {o}\n"));
+        }
     }
     out
 }
