@@ -655,7 +655,9 @@ fn sensitivity_takes_two_rates_in_one_argument() {
     let rows = rows(&wd.read("s/sensitivity.csv"));
     let mut rates: Vec<&str> = rows
         .iter()
-        .filter(|r| r["scope"] == "network" && r["input"] == "discount_rate" && r["value"] != "")
+        .filter(|r| {
+            r["scope"] == "network" && r["input"] == "discount_rate" && !r["value"].is_empty()
+        })
         .map(|r| r["value"].as_str())
         .collect();
     rates.sort_unstable();

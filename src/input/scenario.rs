@@ -930,7 +930,10 @@ per_year = "5200000"
         // 2027: the least of 5.2 M (all) and 5 M + 0.5 M (capital and routine); then works
         // alone in 2028 and 2029.
         let total = total_limit(s.budget_lines.iter().map(|b| (b, b.limit.to_f64())));
-        assert!((total - (5.2e6 + 6_500_000.5 + 5e6)).abs() < 1e-6, "{total}");
+        assert!(
+            (total - (5.2e6 + 6_500_000.5 + 5e6)).abs() < 1e-6,
+            "{total}"
+        );
         // upkeep lies within cap; works does not (cap holds in 2027 only).
         assert_eq!(
             s.budget_overlaps(),
