@@ -50,6 +50,37 @@ pub enum RowKind {
     Target(usize),
 }
 
+/// Whether the plan uses a line up to its limit. Told from the plan's use, never from a price:
+/// a line is binding when what it leaves (a budget's money left, a target's room under its
+/// ceiling) is at most a share of its limit ([`crate::input::plan::PlanRules::binding_within`],
+/// 5 % by default), and slack otherwise. The bound's price of a line is reported beside its
+/// state; a slack line with a price has it from the bound's relaxation, which the plan's whole
+/// choices need not follow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LineState {
+    Binding,
+    Slack,
+}
+
+impl LineState {
+    /// The state of a line of limit `limit` the plan uses `used` of (a budget's money, a
+    /// target's measure), binding when `limit − used ≤ within × |limit|`.
+    pub fn of(limit: f64, used: f64, within: f64) -> LineState {
+        if limit - used <= within * limit.abs() {
+            LineState::Binding
+        } else {
+            LineState::Slack
+        }
+    }
+
+    pub fn name(self) -> &'static str {
+        match self {
+            LineState::Binding => "binding",
+            LineState::Slack => "slack",
+        }
+    }
+}
+
 /// Row units per money unit: budget lines count cents.
 pub const MONEY_UNITS: f64 = 100.0;
 /// Decimal places of [`MONEY_UNITS`].
@@ -176,6 +207,35 @@ pub struct Totals {
 }
 
 impl Plan {
+    /// Each row's state under the plan ([`LineState`]), in the order of the candidates' rows:
+    /// a budget line's from its money to the cent, a target's from its measure.
+    pub fn line_states(&self, run: &Run) -> Vec<LineState> {
+        let within = run.scenario.plan.binding_within();
+        let mut target = 0;
+        self.candidates
+            .rows
+            .iter()
+            .map(|row| match row.kind {
+                RowKind::Budget(b) => {
+                    let cents = |m: Money| Money(m.0.round_dp(MONEY_PLACES)).to_f64();
+                    LineState::of(
+                        cents(row.money.unwrap_or_default()),
+                        cents(self.spent[b]),
+                        within,
+                    )
+                }
+                RowKind::Target(k) => {
+                    target += 1;
+                    LineState::of(
+                        run.scenario.plan.targets[k].at_most,
+                        self.achieved[target - 1],
+                        within,
+                    )
+                }
+            })
+            .collect()
+    }
+
     /// The plan's totals beside the unconstrained choice and the base.
     pub fn totals(&self) -> Totals {
         let c = &self.candidates;

@@ -869,3 +869,46 @@ fn geojson_files_hold_the_csv_rows_on_the_networks_lines() {
         }
     }
 }
+
+/// `[plan] binding_within` sets how close to its limit a line must be used to be binding: the
+/// demo's works-2027, 95.7 % used, is binding at the default 5 % and slack at 2 % (its price
+/// then in brackets); a share over a half is refused where it is written.
+#[test]
+fn binding_within_moves_a_line_between_binding_and_slack() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let base = wd.read("scenario.toml");
+    assert!(!base.contains("[plan]"));
+    let with = |share: &str| {
+        base.replacen(
+            "[unit_values]",
+            &format!("[plan]\nbinding_within = \"{share}\"\n\n[unit_values]"),
+            1,
+        )
+    };
+    let state = |dir: &str| {
+        crate::util::rows(&wd.read(&format!("{dir}/budget_use.csv")))
+            .into_iter()
+            .find(|r| r["line"] == "works-2027")
+            .map(|r| r["state"].clone())
+            .unwrap()
+    };
+    wd.run(&["-q", "plan", "--scenario", "scenario.toml", "--out", "five"])
+        .expect_code(0);
+    assert_eq!(state("five"), "binding");
+    wd.write("scenario.toml", with("2%"));
+    let out = wd.run(&["plan", "--scenario", "scenario.toml", "--out", "two"]);
+    out.expect_code(0)
+        .stdout_has("binding = used to within 2 % of the limit");
+    assert_eq!(state("two"), "slack");
+    let line = out
+        .stdout
+        .lines()
+        .find(|l| l.starts_with("works-2027 "))
+        .unwrap();
+    assert!(line.trim_end().ends_with(')'), "a bracketed price: {line}");
+    wd.write("scenario.toml", with("70%"));
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("plan.binding_within: found \"70%\"");
+}

@@ -901,3 +901,134 @@ fn report_headings_are_the_workbooks_titles() {
         assert!(seen.contains(want), "no `{want}` heading in {seen:?}");
     }
 }
+
+/// One truth about budget lines: for the demo and a synthetic network, the terminal, budget_use.csv,
+/// the workbook, the report and summary.json give every line the same state, price and use; the
+/// state follows the use (binding exactly when the plan leaves at most 5 % of the limit), and
+/// a price is shown bare only beside a binding line.
+#[test]
+fn terminal_csv_workbook_and_report_agree_on_every_budget_line() {
+    use calamine::{open_workbook, Data, Reader, Xlsx};
+    use pavestrat::output::format::price_beside_state;
+    let wd = Workdir::new();
+    wd.run(&["-q", "init", "net", "--sections", "300", "--seed", "4"])
+        .expect_code(0);
+    let cases: [(&str, &[&str]); 2] =
+        [("demo", &[]), ("net", &["--scenario", "net/scenario.toml"])];
+    for (name, scenario) in cases {
+        let out = format!("{name}-plan");
+        let xlsx = format!("{out}/plan.xlsx");
+        let mut args = vec!["plan", "--out", &out, "--report", "--time-limit", "5"];
+        args.extend_from_slice(scenario);
+        if cfg!(feature = "xlsx") {
+            args.extend(["--xlsx", &xlsx]);
+        }
+        let run = wd.run(&args);
+        run.expect_code(0);
+        let csv = rows(&wd.read(&format!("{out}/budget_use.csv")));
+        assert!(csv.len() >= 10, "{name}: {} lines", csv.len());
+        let cents = |x: &str| (x.parse::<f64>().unwrap() * 100.0).round() as i64;
+        // The terminal's table of budget lines.
+        let terminal: HashMap<String, Vec<String>> = run
+            .stdout
+            .lines()
+            .filter_map(|l| {
+                let cells: Vec<String> = l.split_whitespace().map(str::to_owned).collect();
+                let known = cells
+                    .first()
+                    .is_some_and(|c| csv.iter().any(|r| &r["line"] == c));
+                (known && cells.len() == 6).then(|| (cells[0].clone(), cells))
+            })
+            .collect();
+        assert_eq!(
+            terminal.len(),
+            csv.len(),
+            "{name}: terminal lines\n{}",
+            run.stdout
+        );
+        // The report's table of budget lines.
+        let doc = Html::parse_document(&wd.read(&format!("{out}/report.html")));
+        let report: HashMap<String, Vec<String>> = doc
+            .select(&sel("#spending table tbody tr"))
+            .map(|tr| {
+                let cells: Vec<String> = tr
+                    .select(&sel("td"))
+                    .map(|td| td.text().collect::<String>())
+                    .collect();
+                (cells[0].clone(), cells)
+            })
+            .collect();
+        assert_eq!(report.len(), csv.len(), "{name}: report lines");
+        let summary: serde_json::Value =
+            serde_json::from_str(&wd.read(&format!("{out}/summary.json"))).unwrap();
+        let in_summary: Vec<&str> = summary["binding"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|b| b["line"].as_str().unwrap())
+            .collect();
+        let mut binding = 0;
+        for r in &csv {
+            let line = &r["line"];
+            let (limit, used) = (cents(&r["limit"]), cents(&r["used"]));
+            let state = r["state"].as_str();
+            // The state follows the use, to the cent.
+            let want = if (limit - used) as f64 <= 0.05 * limit as f64 {
+                "binding"
+            } else {
+                "slack"
+            };
+            assert_eq!(state, want, "{name} {line}: limit {limit} used {used}");
+            binding += usize::from(state == "binding");
+            assert_eq!(
+                in_summary.contains(&line.as_str()),
+                state == "binding",
+                "{name} {line}: summary.json's binding lines"
+            );
+            let price: f64 = r["price"].parse().unwrap();
+            let shown = price_beside_state(price, state == "binding");
+            let t = &terminal[line];
+            assert_eq!(t[4], state, "{name} {line}: terminal state");
+            assert_eq!(t[5], shown, "{name} {line}: terminal price");
+            // The terminal shows whole units of money.
+            let whole: f64 = t[2].replace(',', "").parse().unwrap();
+            assert!(
+                (whole - used as f64 / 100.0).abs() <= 0.5 + 1e-9,
+                "{name} {line}: terminal use {whole} against {used} cents"
+            );
+            let h = &report[line];
+            assert_eq!(h[4], state, "{name} {line}: report state");
+            assert_eq!(h[5], shown, "{name} {line}: report price");
+        }
+        assert!(binding > 0, "{name}: no binding line to compare");
+        if cfg!(feature = "xlsx") {
+            let mut wb: Xlsx<_> = open_workbook(wd.join(&xlsx)).unwrap();
+            let ws = wb.worksheet_range("Budget use").unwrap();
+            let all: Vec<_> = ws.rows().collect();
+            let head: Vec<String> = all[0].iter().map(|c| c.to_string()).collect();
+            let col = |t: &str| head.iter().position(|h| h == t).unwrap();
+            let (l, u, p, st) = (
+                col("Budget line"),
+                col("Used"),
+                col("Budget price"),
+                col("State"),
+            );
+            for (w, r) in all[1..=csv.len()].iter().zip(&csv) {
+                assert_eq!(w[l].to_string(), r["line"]);
+                assert_eq!(
+                    w[st].to_string(),
+                    r["state"],
+                    "{name} {}: workbook state",
+                    r["line"]
+                );
+                match (&w[u], &w[p]) {
+                    (Data::Float(used), Data::Float(price)) => {
+                        assert_eq!((used * 100.0).round() as i64, cents(&r["used"]));
+                        assert_eq!(*price, r["price"].parse::<f64>().unwrap(), "{}", r["line"]);
+                    }
+                    other => panic!("{name}: used and price cells {other:?}"),
+                }
+            }
+        }
+    }
+}

@@ -5,6 +5,8 @@
 //! [plan]
 //! objective = "npv"          # largest total NPV (default), or "least-cost": least PV agency
 //!                            # cost that meets the targets
+//! binding_within = "5%"      # a line is binding when the plan leaves at most this share of
+//!                            # its limit (default 5 %)
 //!
 //! [[commit]]                 # works already decided; the selection must keep them
 //! section = "OR-03"
@@ -107,8 +109,22 @@ pub struct TargetLine {
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct PlanRules {
     pub objective: Objective,
+    /// `binding_within`: the share of a line's limit within which a line the plan uses is
+    /// binding (see [`crate::plan::LineState`]); `None` for the default.
+    pub binding_within: Option<f64>,
     pub commitments: Vec<Commitment>,
     pub targets: Vec<TargetLine>,
+}
+
+/// A line is binding when the plan leaves at most this share of its limit, unless the scenario
+/// says otherwise (common practice: a budget 95 % spent is spoken of as fully used).
+pub const DEFAULT_BINDING_WITHIN: f64 = 0.05;
+
+impl PlanRules {
+    /// The share of a line's limit within which a line is binding.
+    pub fn binding_within(&self) -> f64 {
+        self.binding_within.unwrap_or(DEFAULT_BINDING_WITHIN)
+    }
 }
 
 /// Read the plan rules from the scenario's top table. `period` is the analysis period when known.
@@ -120,6 +136,14 @@ pub fn read(top: &mut Table<'_, '_>, period: Option<(i64, i64)>, d: &mut Diagnos
                 if let Some(o) = o.word(d, &["npv", "least-cost"]).and_then(Objective::parse) {
                     rules.objective = o;
                 }
+            }
+            if let Some(w) = t.get("binding_within") {
+                rules.binding_within = w.fraction_in(
+                    d,
+                    0.0,
+                    0.5,
+                    "a share of a line's limit from 0 to 0.5 (50 %)",
+                );
             }
             t.finish(d);
         }

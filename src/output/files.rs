@@ -305,6 +305,7 @@ fn candidates_of(run: &Run, e: &Enumerator<'_>, p: &Plan, g: usize, out: &mut St
 pub fn budget_use(run: &Run, p: &Plan) -> Vec<BudgetUse> {
     let s = &run.scenario;
     let c = &p.candidates;
+    let states = p.line_states(run);
     c.rows
         .iter()
         .enumerate()
@@ -321,6 +322,7 @@ pub fn budget_use(run: &Run, p: &Plan) -> Vec<BudgetUse> {
                 limit: Dec(limit.0.round_dp(2)),
                 used: Dec(used.0.round_dp(2)),
                 price: Price(p.outcome.prices[j]),
+                state: states[j].name().to_owned(),
                 category: line.category.name().to_owned(),
                 region: line.region.as_deref().unwrap_or_default().to_owned(),
                 slack: Dec((limit.0 - used.0).round_dp(2)),
@@ -334,6 +336,7 @@ pub fn budget_use(run: &Run, p: &Plan) -> Vec<BudgetUse> {
 pub fn target_use(run: &Run, p: &Plan) -> Vec<TargetUse> {
     let s = &run.scenario;
     let c = &p.candidates;
+    let states = p.line_states(run);
     let mut out = Vec::new();
     for (j, row) in c.rows.iter().enumerate() {
         let RowKind::Target(k) = row.kind else {
@@ -347,6 +350,7 @@ pub fn target_use(run: &Run, p: &Plan) -> Vec<TargetUse> {
             at_most: Real(t.at_most),
             achieved: Fixed::of(p.achieved[out.len()]),
             price: Price(p.outcome.prices[j]),
+            state: states[j].name().to_owned(),
             region: t.region.as_deref().unwrap_or_default().to_owned(),
             length_km: Fixed::of(crate::plan::target_length(run, t)),
         });
@@ -460,12 +464,14 @@ pub fn summary(run: &Run, p: &Plan, f: &Facts, run_id: &str) -> Summary {
             .rows
             .iter()
             .zip(&o.prices)
-            .filter(|(_, x)| **x > 0.0)
-            .map(|(r, x)| summary::Binding {
+            .zip(p.line_states(run))
+            .filter(|(_, state)| *state == crate::plan::LineState::Binding)
+            .map(|((r, x), _)| summary::Binding {
                 line: r.name.clone(),
                 price: *x,
             })
             .collect(),
+        binding_within: run.scenario.plan.binding_within(),
         bound: c.objective_of(o.bound),
         budget_scale: f.budget_scale,
         candidate_seconds: f.candidate_seconds,

@@ -39,6 +39,13 @@ pub fn pct(x: Option<f64>) -> String {
     x.map_or("n/a".to_owned(), |r| format!("{:.2} %", r * 100.0))
 }
 
+/// A share as a percentage with as few decimals as it needs: `5 %`, `2.5 %`.
+pub fn share_text(x: f64) -> String {
+    let t = format!("{:.4}", x * 100.0);
+    let t = t.trim_end_matches('0').trim_end_matches('.');
+    format!("{t} %")
+}
+
 /// An IRR for a terminal table: the rate, `ambiguous: …` with every rate, or `none`.
 pub fn irr_text(irr: &Irr) -> String {
     match irr {
@@ -136,5 +143,49 @@ mod tests {
         assert_eq!(Field("a,b").to_string(), "\"a,b\"");
         assert_eq!(Field("plain").to_string(), "plain");
         assert_eq!(Field("a\"b,").to_string(), "\"a\"\"b,\"");
+    }
+}
+
+/// A budget price as shown: four decimals, or two significant figures below 0.001 (never
+/// `0.0000` for a price above zero); `0` for none.
+pub fn price_figure(price: f64) -> String {
+    if price == 0.0 {
+        "0".to_owned()
+    } else if price.abs() >= 0.001 {
+        format!("{price:.4}")
+    } else {
+        let places = (-price.abs().log10().floor()) as usize + 1;
+        format!("{price:.places$}")
+    }
+}
+
+/// A line's price beside its state, as the terminal, the workbook and the report show it: a
+/// binding line's price; a slack line's price in brackets when the bound prices it (a price of
+/// the relaxation, which the plan's whole choices leave room under); `—` for a slack line with
+/// no price.
+pub fn price_beside_state(price: f64, binding: bool) -> String {
+    if binding {
+        price_figure(price)
+    } else if price > 0.0 {
+        format!("({})", price_figure(price))
+    } else {
+        "—".to_owned()
+    }
+}
+
+#[cfg(test)]
+mod price_tests {
+    use super::*;
+
+    #[test]
+    fn a_price_is_never_shown_as_zero_and_a_slack_line_never_as_priced() {
+        assert_eq!(price_figure(0.16409), "0.1641");
+        assert_eq!(price_figure(0.00004), "0.000040");
+        assert_eq!(price_figure(0.0004999), "0.00050");
+        assert_eq!(price_figure(0.0), "0");
+        assert_eq!(price_beside_state(0.0015, true), "0.0015");
+        assert_eq!(price_beside_state(0.0, true), "0");
+        assert_eq!(price_beside_state(0.0015, false), "(0.0015)");
+        assert_eq!(price_beside_state(0.0, false), "—");
     }
 }

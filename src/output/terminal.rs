@@ -11,7 +11,8 @@ use crate::input::plan::Objective;
 use crate::input::Run;
 use crate::model::money::grouped;
 use crate::output::files::Facts;
-use crate::plan::{Plan, RowKind};
+use crate::output::format::{price_beside_state, share_text};
+use crate::plan::{LineState, Plan, RowKind};
 use std::fmt::Write as _;
 
 /// The terminal summary of a plan.
@@ -60,36 +61,38 @@ pub fn plan(run: &Run, p: &Plan, f: &Facts) -> String {
             100.0 * t.plan.npv / t.unconstrained.npv
         );
     }
-    let _ = writeln!(s, "\nBudget lines (money in {money}; price = gain in the objective per unit of money added to the line):");
+    let states = p.line_states(run);
+    let within = sc.plan.binding_within();
     let _ = writeln!(
         s,
-        "{:<26} {:>16} {:>16} {:>7} {:>10}",
-        "line", "limit", "used", "use", "price"
+        "\nBudget lines (money in {money}; binding = used to within {} of the limit; price = the \
+         bound's gain in the objective per unit of money added to the line):",
+        share_text(within)
     );
+    let _ = writeln!(
+        s,
+        "{:<26} {:>16} {:>16} {:>7}  {:<8} {:>10}",
+        "line", "limit", "used", "use", "state", "price"
+    );
+    let bracketed = |j: usize| states[j] == LineState::Slack && o.prices[j] > 0.0;
     for (j, row) in c.rows.iter().enumerate() {
-        match row.kind {
-            RowKind::Budget(b) => {
-                let limit = row.money.unwrap_or_default().to_f64();
-                let used = p.spent[b].to_f64();
-                let _ = writeln!(
-                    s,
-                    "{:<26} {:>16} {:>16} {:>6.1}% {:>10}",
-                    row.name,
-                    grouped(limit, 0),
-                    grouped(used, 0),
-                    if limit > 0.0 {
-                        100.0 * used / limit
-                    } else {
-                        0.0
-                    },
-                    if o.prices[j] > 0.0 {
-                        format!("{:.4}", o.prices[j])
-                    } else {
-                        "slack".to_owned()
-                    }
-                );
-            }
-            RowKind::Target(_) => {}
+        if let RowKind::Budget(b) = row.kind {
+            let limit = row.money.unwrap_or_default().to_f64();
+            let used = p.spent[b].to_f64();
+            let _ = writeln!(
+                s,
+                "{:<26} {:>16} {:>16} {:>6.1}%  {:<8} {:>10}",
+                row.name,
+                grouped(limit, 0),
+                grouped(used, 0),
+                if limit > 0.0 {
+                    100.0 * used / limit
+                } else {
+                    0.0
+                },
+                states[j].name(),
+                price_beside_state(o.prices[j], states[j] == LineState::Binding)
+            );
         }
     }
     if !sc.plan.targets.is_empty() {
@@ -100,27 +103,49 @@ pub fn plan(run: &Run, p: &Plan, f: &Facts) -> String {
                 let tl = &sc.plan.targets[k];
                 let _ = writeln!(
                     s,
-                    "{:<26} {:<11} at most {:<8} achieved {:<10.4} price {}",
+                    "{:<26} {:<11} at most {:<8} achieved {:<10.4} {:<8} price {}",
                     row.name,
                     tl.measure.name(),
                     tl.at_most,
                     p.achieved[ti],
-                    if o.prices[j] > 0.0 {
-                        format!("{:.4}", o.prices[j])
-                    } else {
-                        "slack".to_owned()
-                    }
+                    states[j].name(),
+                    price_beside_state(o.prices[j], states[j] == LineState::Binding)
                 );
                 ti += 1;
             }
         }
     }
-    let binding = o.prices.iter().filter(|x| **x > 0.0).count();
-    let _ = writeln!(
-        s,
-        "\n{binding} of {} lines bind (price above zero).",
-        c.rows.len()
-    );
+    let count = |budget: bool| {
+        let rows = || {
+            c.rows
+                .iter()
+                .enumerate()
+                .filter(move |(_, r)| matches!(r.kind, RowKind::Budget(_)) == budget)
+        };
+        (
+            rows()
+                .filter(|(j, _)| states[*j] == LineState::Binding)
+                .count(),
+            rows().count(),
+        )
+    };
+    let (b, nb) = count(true);
+    let _ = write!(s, "\n{b} of {nb} budget lines are binding");
+    if !sc.plan.targets.is_empty() {
+        let (t, nt) = count(false);
+        let _ = write!(s, ", {t} of {nt} condition targets");
+    }
+    let _ = writeln!(s, ".");
+    let slack_priced = (0..c.rows.len()).filter(|j| bracketed(*j)).count();
+    if slack_priced > 0 {
+        let _ = writeln!(
+            s,
+            "Prices in brackets: {slack_priced} slack line{} the bound prices all the same. That \
+             price is the relaxation's, where a section's strategy may be taken in part; the \
+             plan's whole choices leave room under the line.",
+            if slack_priced == 1 { "" } else { "s" }
+        );
+    }
     let _ = writeln!(
         s,
         "Certificate: plan {} {money}, bound {} {money}, gap {:.4} % — {} ({} path, {} price updates, {} contested sections, {:.2} s selection, {:.2} s simulation)",

@@ -24,6 +24,7 @@ pub const TITLES: &[(&str, &str)] = &[
     ("used", "Used"),
     ("used_share", "Used (% of limit)"),
     ("price", "Budget price"),
+    ("state", "State"),
     ("slack", "Slack"),
     ("template", "Template"),
     ("bcr", "BCR"),
@@ -52,6 +53,7 @@ pub const TITLES: &[(&str, &str)] = &[
     ("measure", "Measure"),
     ("at_most", "At most"),
     ("achieved", "Achieved"),
+    ("target_price", "Target price"),
     // frontier.csv
     ("level", "Budget level"),
     ("total_budget", "Total budget"),

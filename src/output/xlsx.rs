@@ -342,7 +342,8 @@ mod imp {
 
         let mut sh = sheet(&mut wb, "Budget use", &money)?;
         // budget_use.csv's columns but its budget group.
-        sh.head(&BudgetUse::FILE.columns[..8])?;
+        sh.head(&BudgetUse::FILE.columns[..9])?;
+        let states = p.line_states(run);
         for (j, row) in c.rows.iter().enumerate() {
             if let RowKind::Budget(b) = row.kind {
                 let line = &s.budget_lines[b];
@@ -354,6 +355,7 @@ mod imp {
                     Cell::Money(limit),
                     Cell::Money(used),
                     Cell::Price(p.outcome.prices[j]),
+                    Cell::Text(states[j].name()),
                     Cell::Text(line.category.name()),
                     Cell::Text(line.region.as_deref().unwrap_or("")),
                     Cell::Money(limit - used),

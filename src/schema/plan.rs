@@ -48,6 +48,7 @@ record! {
         limit: Dec = "limit",
         used: Dec = "used",
         price: Price = "price",
+        state: String = "state",
         category: String = "category",
         region: String = "region",
         slack: Dec = "slack",
@@ -65,6 +66,7 @@ record! {
         at_most: Real = "at_most",
         achieved: Fixed<6> = "achieved",
         price: Price = "price",
+        state: String = "state",
         region: String = "region",
         length_km: Fixed<3> = "length_km",
     }

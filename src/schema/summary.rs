@@ -16,8 +16,11 @@ use serde::{Deserialize, Serialize};
 pub struct Summary {
     pub assumptions: Assumptions,
     pub bcr_capital: Option<f64>,
-    /// The lines whose budget price is above zero.
+    /// The lines the plan uses to within `binding_within` of their limit, each with its price
+    /// in the bound.
     pub binding: Vec<Binding>,
+    /// The share of a line's limit within which a line is binding.
+    pub binding_within: f64,
     #[serde(deserialize_with = "nan_if_null")]
     pub bound: f64,
     #[serde(deserialize_with = "nan_if_null")]

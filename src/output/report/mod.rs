@@ -262,16 +262,21 @@ fn numbers(sm: &Summary, targets: Option<&[TargetUse]>) -> String {
                     ("measure", false),
                     ("at_most", true),
                     ("achieved", true),
+                    ("state", false),
+                    ("target_price", true),
                 ],
             ));
             for r in t {
+                let binding = r.state == "binding";
                 let _ = write!(
                     s,
-                    r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td class="num">{:.4}</td></tr>"#,
+                    r#"<tr><td>{}</td><td>{}</td><td class="num">{}</td><td class="num">{:.4}</td><td>{}</td><td class="num">{}</td></tr>"#,
                     esc(&r.line),
                     esc(&r.measure),
                     r.at_most.0,
-                    r.achieved.to_f64()
+                    r.achieved.to_f64(),
+                    esc(&r.state),
+                    crate::output::format::price_beside_state(r.price.0, binding)
                 );
             }
             s.push_str("</tbody></table>");
@@ -376,8 +381,8 @@ fn condition_section(rows: &[Condition]) -> String {
 }
 
 fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
-    // group → (category, region, [(year, limit, used, price, line)])
-    type Line<'r> = (f64, f64, f64, f64, &'r str);
+    // group → (category, region, [(year, limit, used, price, line, binding)])
+    type Line<'r> = (f64, f64, f64, f64, &'r str, bool);
     let mut groups: Vec<(&str, &str, &str, Vec<Line<'_>>)> = Vec::new();
     for r in rows {
         let entry = (
@@ -386,6 +391,7 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
             r.used.to_f64(),
             r.price.0,
             r.line.as_str(),
+            r.state == "binding",
         );
         match groups.iter_mut().find(|x| x.0 == r.group) {
             Some(x) => x.3.push(entry),
@@ -397,7 +403,8 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
         String::from(r#"<section id="spending"><h2>Spending against each budget line</h2>"#);
     let _ = write!(
         s,
-        "<p>Bars: what the plan spends in each line and year; black marks: the line's limit. The figure above each bar is the line's budget price: how much the objective would gain per unit of money added to that line (“slack” when the line does not bind). Money in {}.</p><div class=\"charts\">",
+        "<p>Bars: what the plan spends in each line and year; black marks: the line's limit. A line is binding when the plan uses it to within {} of its limit; the figure above a binding line's bar is its budget price, how much the objective would gain per unit of money added to it, and a slack line says “slack”. In the table, a slack line's price in brackets is the bound's relaxation's, which the plan's whole choices leave room under. Money in {}.</p><div class=\"charts\">",
+        esc(&crate::output::format::share_text(sm.binding_within)),
         esc(m)
     );
     for (g, cat, region, lines) in &groups {
@@ -437,11 +444,11 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
             y_units: units,
             y2: None,
         });
-        for (year, limit, used, price, _) in lines {
+        for (year, limit, used, price, _, binding) in lines {
             c.bar("used", BLUE, *year, 0.6, 0.0, *used, "");
             c.level("limit", "#1a1a1a", *year, 0.8, *limit);
-            let text = if *price > 0.0 {
-                format!("{price:.3}")
+            let text = if *binding {
+                crate::output::format::price_figure(*price)
             } else {
                 "slack".to_owned()
             };
@@ -458,14 +465,15 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
             ("limit", true),
             ("used", true),
             ("used_share", true),
+            ("state", false),
             ("price", true),
         ],
     ));
     for (_, _, _, lines) in &groups {
-        for (_, limit, used, price, name) in lines {
+        for (_, limit, used, price, name, binding) in lines {
             let _ = write!(
                 s,
-                r#"<tr><td>{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{:.1} %</td><td class="num">{}</td></tr>"#,
+                r#"<tr><td>{}</td><td class="num">{}</td><td class="num">{}</td><td class="num">{:.1} %</td><td>{}</td><td class="num">{}</td></tr>"#,
                 esc(name),
                 money(*limit, m),
                 money(*used, m),
@@ -474,11 +482,8 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
                 } else {
                     0.0
                 },
-                if *price > 0.0 {
-                    format!("{price:.4}")
-                } else {
-                    "slack".to_owned()
-                }
+                if *binding { "binding" } else { "slack" },
+                crate::output::format::price_beside_state(*price, *binding)
             );
         }
     }
