@@ -912,3 +912,73 @@ fn binding_within_moves_a_line_between_binding_and_slack() {
         .expect_code(2)
         .stderr_has("plan.binding_within: found \"70%\"");
 }
+
+/// The programme on screen: `plan` prints each year's works (their counts and costs add up to
+/// work_programme.csv), marks the years no budget line limits, sums budget groups to
+/// budget_use.csv, and with `--full` lists every works; `check` names the years with no line.
+#[test]
+fn plan_shows_the_programme_by_year_and_full_lists_every_works() {
+    let wd = Workdir::new();
+    let out = wd.run(&["plan", "--out", "p"]);
+    out.expect_code(0)
+        .stdout_has("Programme by year (--full lists every works):");
+    let works = rows(&wd.read("p/work_programme.csv"));
+    let cents = |x: &str| (x.replace(',', "").parse::<f64>().unwrap() * 100.0).round() as i64;
+    // The table's rows: year (or range), works, km, cost, largest works.
+    let table: Vec<Vec<&str>> = out
+        .stdout
+        .lines()
+        .skip_while(|l| !l.starts_with("Programme by year"))
+        .skip(2)
+        .take_while(|l| l.starts_with("20"))
+        .map(|l| l.split_whitespace().collect())
+        .collect();
+    assert!(table.len() >= 10, "{}", out.stdout);
+    let n: usize = table.iter().map(|r| r[1].parse::<usize>().unwrap()).sum();
+    assert_eq!(n, works.len(), "works counted once each");
+    let cost: i64 = table.iter().map(|r| cents(r[3])).sum();
+    let want: i64 = works.iter().map(|w| cents(&w["cost"])).sum();
+    // The screen shows whole units: each row within half a unit.
+    assert!(
+        (cost - want).abs() <= 50 * table.len() as i64,
+        "{cost} against {want}"
+    );
+    // The demo's lines end in 2036: later years are marked, earlier ones not.
+    for r in &table {
+        let first: i32 = r[0][..4].parse().unwrap();
+        assert_eq!(r[0].ends_with('*'), first > 2036, "{}", r[0]);
+    }
+    out.stdout_has("* no budget line limits capital works in these years");
+    // Spending by budget group: each group's use is budget_use.csv's sum.
+    let budget = rows(&wd.read("p/budget_use.csv"));
+    let group_line = out
+        .stdout
+        .lines()
+        .find(|l| l.starts_with("works-later "))
+        .unwrap()
+        .to_owned();
+    let used: i64 = budget
+        .iter()
+        .filter(|r| r["group"] == "works-later")
+        .map(|r| cents(&r["used"]))
+        .sum();
+    let shown = cents(group_line.split_whitespace().nth(3).unwrap());
+    assert!(
+        (shown - used).abs() <= 50,
+        "{group_line} against {used} cents"
+    );
+    // --full: every works, one line each.
+    let full = wd.run(&["plan", "--full"]);
+    full.expect_code(0);
+    let listed = full
+        .stdout
+        .lines()
+        .skip_while(|l| !l.starts_with("Every works:"))
+        .skip(2)
+        .take_while(|l| l.starts_with("20"))
+        .count();
+    assert_eq!(listed, works.len());
+    wd.run(&["check"])
+        .expect_code(0)
+        .stdout_has("no line limits capital works in 2037–2056");
+}

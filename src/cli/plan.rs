@@ -94,6 +94,11 @@ pub struct Args {
     #[arg(long, requires = "out")]
     pub candidates: bool,
 
+    /// List every works of the programme on screen, not only each year's totals and largest
+    /// works (the files of --out hold them all in any case).
+    #[arg(long)]
+    pub full: bool,
+
     /// Also write the work programme, section plan, budget use and appraisal into one
     /// spreadsheet workbook (.xlsx) at FILE.
     #[arg(long, value_name = "FILE")]
@@ -262,7 +267,9 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         ctx.say(&format!("wrote {}", file.display()));
     }
     if args.out.out.is_none() || !ctx.quiet {
-        print_stdout(&pavestrat::output::terminal::plan(&run, &plan, &facts))?;
+        print_stdout(&pavestrat::output::terminal::plan(
+            &run, &plan, &facts, args.full,
+        ))?;
     }
     Ok(())
 }

@@ -16,7 +16,7 @@ use crate::plan::{LineState, Plan, RowKind};
 use std::fmt::Write as _;
 
 /// The terminal summary of a plan.
-pub fn plan(run: &Run, p: &Plan, f: &Facts) -> String {
+pub fn plan(run: &Run, p: &Plan, f: &Facts, full: bool) -> String {
     let sc = &run.scenario;
     let c = &p.candidates;
     let o = &p.outcome;
@@ -61,6 +61,7 @@ pub fn plan(run: &Run, p: &Plan, f: &Facts) -> String {
             100.0 * t.plan.npv / t.unconstrained.npv
         );
     }
+    s.push_str(&programme(run, p, full));
     let states = p.line_states(run);
     let within = sc.plan.binding_within();
     let _ = writeln!(
@@ -308,6 +309,197 @@ fn show(i: usize, v: Option<f64>) -> String {
     }
 }
 
+/// Years listed one by one in the programme on screen; later years with works are summed in one
+/// row (`--full` lists every works).
+const PROGRAMME_YEARS: usize = 12;
+
+/// The programme on screen: the money spent on works and the km treated, then each year's works
+/// (sections, km, cost and the largest works), and with `full` every works by year.
+fn programme(run: &Run, p: &Plan, full: bool) -> String {
+    let secs = &run.network.sections;
+    let y0 = run.scenario.base_year;
+    let mut s = String::new();
+    let total: f64 = p.works.iter().map(|w| w.cost).sum();
+    let mut treated: Vec<usize> = p.works.iter().map(|w| w.section).collect();
+    treated.sort_unstable();
+    treated.dedup();
+    let km: f64 = treated.iter().map(|&g| secs[g].length_km).sum();
+    let _ = writeln!(
+        s,
+        "works: {} on {} of {} sections ({} of {} km), {} {} in all",
+        p.works.len(),
+        treated.len(),
+        secs.len(),
+        grouped(km, 1),
+        grouped(run.network.length_km(), 1),
+        grouped(total, 0),
+        run.scenario.money_label
+    );
+    if p.works.is_empty() {
+        return s;
+    }
+    // Each year's works, in the plan's order (by year).
+    let mut years: Vec<(i32, Vec<&crate::plan::PlannedWork>)> = Vec::new();
+    for w in &p.works {
+        let y = (y0 + w.year).0;
+        match years.last_mut() {
+            Some((yy, v)) if *yy == y => v.push(w),
+            _ => years.push((y, vec![w])),
+        }
+    }
+    years.sort_by_key(|(y, _)| *y);
+    let label = |w: &crate::plan::PlannedWork| {
+        format!(
+            "{} {} {}",
+            secs[w.section].id.as_str(),
+            run.catalogue.treatments[w.treatment].id,
+            grouped(w.cost, 0)
+        )
+    };
+    let _ = writeln!(
+        s,
+        "\nProgramme by year{}:\n{:<11} {:>6} {:>9} {:>14}   largest works",
+        if full {
+            ""
+        } else {
+            " (--full lists every works)"
+        },
+        "year",
+        "works",
+        "km",
+        "cost"
+    );
+    let row = |s: &mut String, label_year: String, ws: &[&crate::plan::PlannedWork]| {
+        let cost: f64 = ws.iter().map(|w| w.cost).sum();
+        let km: f64 = ws.iter().map(|w| secs[w.section].length_km).sum();
+        let mut by_cost = ws.to_vec();
+        by_cost.sort_by(|a, b| b.cost.total_cmp(&a.cost));
+        let largest = match by_cost.len() {
+            1 => label(by_cost[0]),
+            n => format!("{}, +{} more", label(by_cost[0]), n - 1),
+        };
+        let _ = writeln!(
+            s,
+            "{label_year:<11} {:>6} {:>9} {:>14}   {largest}",
+            ws.len(),
+            grouped(km, 1),
+            grouped(cost, 0)
+        );
+    };
+    // Years whose capital works no budget line limits.
+    let unlimited = |y: i32| {
+        !run.scenario.budget_lines.iter().any(|b| {
+            b.year.0 == y
+                && matches!(
+                    b.category,
+                    crate::model::catalogue::Category::Capital
+                        | crate::model::catalogue::Category::All
+                )
+        })
+    };
+    let mark = |a: i32, b: i32| if (a..=b).any(unlimited) { "*" } else { "" };
+    let shown = if full {
+        years.len()
+    } else {
+        years.len().min(PROGRAMME_YEARS)
+    };
+    for (y, ws) in &years[..shown] {
+        row(&mut s, format!("{y}{}", mark(*y, *y)), ws);
+    }
+    if shown < years.len() {
+        let rest: Vec<&crate::plan::PlannedWork> = years[shown..]
+            .iter()
+            .flat_map(|(_, v)| v.iter().copied())
+            .collect();
+        let (a, b) = (years[shown].0, years[years.len() - 1].0);
+        row(&mut s, format!("{a}–{b}{}", mark(a, b)), &rest);
+    }
+    if years.iter().any(|(y, _)| unlimited(*y)) {
+        let _ = writeln!(
+            s,
+            "* no budget line limits capital works in these years: the plan spends there as \
+             much as pays"
+        );
+    }
+    // Spending by budget group, over its years.
+    let sc = &run.scenario;
+    let groups = sc.budget_groups();
+    if !groups.is_empty() {
+        let _ = writeln!(
+            s,
+            "\nSpending by budget group ({}):\n{:<20} {:<11} {:>16} {:>16} {:>7}",
+            sc.money_label, "group", "years", "limit", "used", "use"
+        );
+        for g in groups {
+            let lines: Vec<usize> = (0..sc.budget_lines.len())
+                .filter(|&b| sc.budget_lines[b].group == g)
+                .collect();
+            // The limits as the selection held them (scaled by --budget-scale).
+            let limit: f64 = p
+                .candidates
+                .rows
+                .iter()
+                .filter_map(|r| match r.kind {
+                    RowKind::Budget(b) if lines.contains(&b) => r.money,
+                    _ => None,
+                })
+                .map(|m| m.to_f64())
+                .sum();
+            let used: f64 = lines.iter().map(|&b| p.spent[b].to_f64()).sum();
+            let first = lines
+                .iter()
+                .map(|&b| sc.budget_lines[b].year.0)
+                .min()
+                .unwrap_or(0);
+            let last = lines
+                .iter()
+                .map(|&b| sc.budget_lines[b].year.0)
+                .max()
+                .unwrap_or(0);
+            let _ = writeln!(
+                s,
+                "{g:<20} {:<11} {:>16} {:>16} {:>6.1}%",
+                if first == last {
+                    first.to_string()
+                } else {
+                    format!("{first}–{last}")
+                },
+                grouped(limit, 0),
+                grouped(used, 0),
+                if limit > 0.0 {
+                    100.0 * used / limit
+                } else {
+                    0.0
+                }
+            );
+        }
+        for o in sc.budget_overlaps() {
+            let _ = writeln!(s, "{o}");
+        }
+    }
+    if full {
+        let _ = writeln!(
+            s,
+            "\nEvery works:\n{:<6} {:<16} {:<18} {:>14}  region",
+            "year", "section", "treatment", "cost"
+        );
+        for (y, ws) in &years {
+            for w in ws {
+                let sec = &secs[w.section];
+                let _ = writeln!(
+                    s,
+                    "{y:<6} {:<16} {:<18} {:>14}  {}",
+                    sec.id.as_str(),
+                    run.catalogue.treatments[w.treatment].id,
+                    grouped(w.cost, 0),
+                    sec.region.as_deref().unwrap_or("")
+                );
+            }
+        }
+    }
+    s
+}
+
 /// What `frontier` prints: each budget level's total budget, objective, bound, gap and status
 /// (money in `m`).
 pub fn frontier(points: &[Point], lines: &Lines, m: &str, objective: Objective) -> String {
@@ -467,6 +659,45 @@ pub fn check(run: &Run, notes: usize) -> String {
         ));
         for o in s.budget_overlaps() {
             out.push_str(&format!("              {o}\n"));
+        }
+        // Years of the analysis no line limits, as ranges.
+        use crate::model::catalogue::Category;
+        for (cat, word) in [
+            (Category::Capital, "capital works"),
+            (Category::Routine, "routine maintenance"),
+        ] {
+            let limited = |y: i32| {
+                s.budget_lines
+                    .iter()
+                    .any(|b| b.year.0 == y && (b.category == cat || b.category == Category::All))
+            };
+            let free: Vec<i32> = (s.base_year.0..=s.last_year().0)
+                .filter(|y| !limited(*y))
+                .collect();
+            if free.is_empty() {
+                continue;
+            }
+            let mut ranges: Vec<(i32, i32)> = Vec::new();
+            for y in free {
+                match ranges.last_mut() {
+                    Some((_, b)) if *b + 1 == y => *b = y,
+                    _ => ranges.push((y, y)),
+                }
+            }
+            let text: Vec<String> = ranges
+                .iter()
+                .map(|(a, b)| {
+                    if a == b {
+                        a.to_string()
+                    } else {
+                        format!("{a}–{b}")
+                    }
+                })
+                .collect();
+            out.push_str(&format!(
+                "              no line limits {word} in {}: spending there is not limited\n",
+                text.join(", ")
+            ));
         }
     }
     out
