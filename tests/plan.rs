@@ -982,3 +982,74 @@ fn plan_shows_the_programme_by_year_and_full_lists_every_works() {
         .expect_code(0)
         .stdout_has("no line limits capital works in 2037–2056");
 }
+
+/// `[plan] years_without_lines`: by default the years after the demo's lines end (2037 on) are
+/// unlimited, and the report lists the capital works there, summing to work_programme.csv's;
+/// `last-limit` holds each scope's last line on to 2056; `error` names each `[[budget]]` whose
+/// lines end early.
+#[test]
+fn years_without_lines_are_unlimited_held_on_or_an_error() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    let base = wd.read("scenario.toml");
+    let with = |rule: &str| {
+        base.replacen(
+            "[unit_values]",
+            &format!("[plan]\nyears_without_lines = \"{rule}\"\n\n[unit_values]"),
+            1,
+        )
+    };
+    let cents = |x: &str| (x.parse::<f64>().unwrap() * 100.0).round() as i64;
+    wd.run(&[
+        "-q",
+        "plan",
+        "--scenario",
+        "scenario.toml",
+        "--out",
+        "free",
+        "--report",
+    ])
+    .expect_code(0);
+    let after: i64 = rows(&wd.read("free/work_programme.csv"))
+        .iter()
+        .filter(|w| w["year"].parse::<i32>().unwrap() > 2036)
+        .map(|w| cents(&w["cost"]))
+        .sum();
+    assert!(after > 0, "the demo plan has works after 2036");
+    let doc = scraper::Html::parse_document(&wd.read("free/report.html"));
+    let sel = |s: &str| scraper::Selector::parse(s).unwrap();
+    let listed: i64 = doc
+        .select(&sel("table.unlimited-years tbody tr td:nth-child(3)"))
+        .map(|td| {
+            let t: String = td.text().collect::<String>().replace(',', "");
+            cents(t.split_whitespace().next().unwrap())
+        })
+        .sum();
+    assert_eq!(
+        listed, after,
+        "the report's unlimited years hold every capital works after 2036"
+    );
+
+    wd.write("scenario.toml", with("last-limit"));
+    wd.run(&["-q", "plan", "--scenario", "scenario.toml", "--out", "held"])
+        .expect_code(0);
+    let budget = rows(&wd.read("held/budget_use.csv"));
+    let limit = |line: &str| {
+        budget
+            .iter()
+            .find(|r| r["line"] == line)
+            .map(|r| r["limit"].clone())
+            .unwrap_or_else(|| panic!("no line {line}"))
+    };
+    assert_eq!(limit("works-later-2056"), "8000000");
+    assert_eq!(limit("river-works-2040"), "2500000");
+    assert_eq!(limit("north-upkeep-2056"), "560000");
+    // works stops where works-later, of the same scope, takes over.
+    assert!(!budget.iter().any(|r| r["line"] == "works-2032"));
+
+    wd.write("scenario.toml", with("error"));
+    wd.run(&["check", "--scenario", "scenario.toml"])
+        .expect_code(2)
+        .stderr_has("budget[2].last_year: the `works-later` lines end in 2036")
+        .stderr_has("5 problems");
+}

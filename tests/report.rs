@@ -949,7 +949,7 @@ fn terminal_csv_workbook_and_report_agree_on_every_budget_line() {
         // The report's table of budget lines.
         let doc = Html::parse_document(&wd.read(&format!("{out}/report.html")));
         let report: HashMap<String, Vec<String>> = doc
-            .select(&sel("#spending table tbody tr"))
+            .select(&sel("#spending table.budget-lines tbody tr"))
             .map(|tr| {
                 let cells: Vec<String> = tr
                     .select(&sel("td"))

@@ -7,6 +7,8 @@
 //!                            # cost that meets the targets
 //! binding_within = "5%"      # a line is binding when the plan leaves at most this share of
 //!                            # its limit (default 5 %)
+//! years_without_lines = "unlimited"  # after a scope's lines end: no limit (default),
+//!                            # "last-limit" (its last line holds on), or "error"
 //!
 //! [[commit]]                 # works already decided; the selection must keep them
 //! section = "OR-03"
@@ -112,8 +114,41 @@ pub struct PlanRules {
     /// `binding_within`: the share of a line's limit within which a line the plan uses is
     /// binding (see [`crate::plan::LineState`]); `None` for the default.
     pub binding_within: Option<f64>,
+    /// `years_without_lines`: what holds in a year of the analysis that no budget line of a
+    /// scope limits.
+    pub years_without_lines: YearsWithoutLines,
     pub commitments: Vec<Commitment>,
     pub targets: Vec<TargetLine>,
+}
+
+/// What holds in the years of the analysis period after a scope's budget lines end (a scope:
+/// a category and a region, or the whole network).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum YearsWithoutLines {
+    /// Spending there is not limited (said by `check` and `plan`).
+    #[default]
+    Unlimited,
+    /// The scope's last line holds on, year by year, to the end of the period: its group's
+    /// lines are extended with its last limit.
+    LastLimit,
+    /// A year of the analysis period without a line limiting capital works is an error.
+    Error,
+}
+
+impl YearsWithoutLines {
+    pub const WORDS: [&'static str; 3] = ["unlimited", "last-limit", "error"];
+
+    pub fn parse(s: &str) -> Option<YearsWithoutLines> {
+        let all = [
+            YearsWithoutLines::Unlimited,
+            YearsWithoutLines::LastLimit,
+            YearsWithoutLines::Error,
+        ];
+        Self::WORDS
+            .iter()
+            .position(|w| w.eq_ignore_ascii_case(s))
+            .map(|k| all[k])
+    }
 }
 
 /// A line is binding when the plan leaves at most this share of its limit, unless the scenario
@@ -135,6 +170,14 @@ pub fn read(top: &mut Table<'_, '_>, period: Option<(i64, i64)>, d: &mut Diagnos
             if let Some(o) = t.get("objective") {
                 if let Some(o) = o.word(d, &["npv", "least-cost"]).and_then(Objective::parse) {
                     rules.objective = o;
+                }
+            }
+            if let Some(w) = t.get("years_without_lines") {
+                if let Some(w) = w
+                    .word(d, &YearsWithoutLines::WORDS)
+                    .and_then(YearsWithoutLines::parse)
+                {
+                    rules.years_without_lines = w;
                 }
             }
             if let Some(w) = t.get("binding_within") {

@@ -214,6 +214,76 @@ fn covers(outer: &BudgetLine, inner: &BudgetLine) -> bool {
         && (outer.region.is_none() || outer.region == inner.region)
 }
 
+/// What `[plan] years_without_lines` makes of the years after each scope's lines end (a scope:
+/// a category and a region, or the whole network), to the end of the analysis period: nothing
+/// (`unlimited`); the scope's last line held on year by year, its group's lines extended with
+/// its last limit (`last-limit`); or an error at the `[[budget]]` whose lines end early
+/// (`error`).
+fn after_lines_end(
+    lines: Vec<BudgetLine>,
+    rule: super::plan::YearsWithoutLines,
+    period: Option<(i64, i64)>,
+    d: &mut Diagnostics,
+) -> Vec<BudgetLine> {
+    use super::plan::YearsWithoutLines;
+    let Some((_, last)) = period else {
+        return lines;
+    };
+    if rule == YearsWithoutLines::Unlimited {
+        return lines;
+    }
+    // Each scope's last line.
+    let mut ends: Vec<usize> = Vec::new();
+    for (i, b) in lines.iter().enumerate() {
+        let same = |k: &usize| lines[*k].category == b.category && lines[*k].region == b.region;
+        match ends.iter_mut().find(|k| same(k)) {
+            Some(k) if b.year > lines[*k].year => *k = i,
+            Some(_) => {}
+            None => ends.push(i),
+        }
+    }
+    let ends: Vec<usize> = ends
+        .into_iter()
+        .filter(|&k| i64::from(lines[k].year.0) < last)
+        .collect();
+    if rule == YearsWithoutLines::Error {
+        for &k in &ends {
+            let b = &lines[k];
+            d.error(
+                b.place.clone().with_subfield("last_year"),
+                format!(
+                    "the `{}` lines end in {}, and no other line of its scope ({}{}) runs on \
+                     to the period's end in {last}",
+                    b.group,
+                    b.year.0,
+                    b.category.name(),
+                    b.region
+                        .as_deref()
+                        .map(|r| format!(", {r}"))
+                        .unwrap_or_default()
+                ),
+                "budget lines to the end of the analysis period, or [plan] years_without_lines \
+                 = \"unlimited\" or \"last-limit\"",
+            );
+        }
+        return lines;
+    }
+    let mut out = Vec::with_capacity(lines.len());
+    for (i, b) in lines.iter().enumerate() {
+        out.push(b.clone());
+        if ends.contains(&i) {
+            for y in (b.year.0 + 1)..=(last as i32) {
+                out.push(BudgetLine {
+                    name: format!("{}-{y}", b.group),
+                    year: Year(y),
+                    ..b.clone()
+                });
+            }
+        }
+    }
+    out
+}
+
 /// Budget groups that limit some of the same spending ([`Scenario::budget_overlaps`]).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum BudgetOverlap<'s> {
@@ -364,6 +434,7 @@ pub fn parse_partial(file: &str, text: &str, dir: &Path, d: &mut Diagnostics) ->
         Some(v) => read_budgets(&v, period, d),
         None => Vec::new(),
     };
+    let budget_lines = after_lines_end(budget_lines, plan.years_without_lines, period, d);
     for t in &plan.targets {
         if let Some(b) = budget_lines.iter().find(|b| b.group == t.group) {
             d.error(

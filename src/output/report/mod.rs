@@ -133,7 +133,7 @@ pub fn render(inputs: &Inputs) -> Result<String> {
     nav.push(("condition", "Network condition"));
     body.push_str(&condition_section(&inputs.condition));
     nav.push(("spending", "Spending and budget lines"));
-    body.push_str(&spending_section(&inputs.budget, sm));
+    body.push_str(&spending_section(&inputs.budget, &inputs.programme, sm));
     if let Some(m) = &inputs.map {
         if !m.sections.is_empty() {
             nav.push(("map", "Map of the programme"));
@@ -380,7 +380,7 @@ fn condition_section(rows: &[Condition]) -> String {
     s
 }
 
-fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
+fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String {
     // group → (category, region, [(year, limit, used, price, line, binding)])
     type Line<'r> = (f64, f64, f64, f64, &'r str, bool);
     let mut groups: Vec<(&str, &str, &str, Vec<Line<'_>>)> = Vec::new();
@@ -458,8 +458,42 @@ fn spending_section(rows: &[BudgetUse], sm: &Summary) -> String {
     }
     s.push_str("</div>");
     // The same as a table.
+    // Capital works in years no line limits: spent without a limit, said and listed.
+    let limited = |y: i32| {
+        rows.iter()
+            .any(|r| r.year.0 == y && (r.category == "capital" || r.category == "all"))
+    };
+    let mut free: BTreeMap<i32, (usize, f64)> = BTreeMap::new();
+    for w in works.iter().filter(|w| w.category != "routine") {
+        if !limited(w.year.0) {
+            let e = free.entry(w.year.0).or_default();
+            e.0 += 1;
+            e.1 += w.cost.to_f64();
+        }
+    }
+    if !free.is_empty() {
+        let total: f64 = free.values().map(|v| v.1).sum();
+        let _ = write!(
+            s,
+            r#"<p class="unlimited">No budget line limits capital works in {} of the years the plan has works in; the plan spends {} there with no limit (the scenario's <code>[plan] years_without_lines</code> can hold the last limits on instead):</p>"#,
+            free.len(),
+            money(total, m)
+        );
+        s.push_str(&table_head(
+            r#"<table class="unlimited-years">"#,
+            &[("year", false), ("works", true), ("cost", true)],
+        ));
+        for (y, (n, cost)) in &free {
+            let _ = write!(
+                s,
+                r#"<tr><td>{y}</td><td class="num">{n}</td><td class="num">{}</td></tr>"#,
+                money(*cost, m)
+            );
+        }
+        s.push_str("</tbody></table>");
+    }
     s.push_str(&table_head(
-        r#"<table>"#,
+        r#"<table class="budget-lines">"#,
         &[
             ("line", false),
             ("limit", true),
