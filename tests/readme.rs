@@ -171,3 +171,23 @@ fn the_network_examples_read_the_same() {
     y.line = 0;
     assert_eq!(x, y);
 }
+
+/// The commands of "Using the installed binary" run as written, one after the other.
+#[test]
+fn installed_binary_examples_run() {
+    let wd = Workdir::new();
+    let block = block_after("### Using the installed binary");
+    let mut ran = 0;
+    for line in block.lines().filter(|l| !l.trim().is_empty()) {
+        let command = line.split('#').next().unwrap().trim();
+        let args: Vec<&str> = command
+            .strip_prefix("pavestrat ")
+            .unwrap_or_else(|| panic!("not a pavestrat command: {line}"))
+            .split_whitespace()
+            .collect();
+        wd.run(&args).expect_code(0);
+        ran += 1;
+    }
+    assert_eq!(ran, 3);
+    assert!(wd.join("mydistrict/plan/report.html").is_file());
+}
