@@ -395,10 +395,12 @@ impl StreamSet {
         }
         let run = new_run_id();
         let stage = dir.join(format!("{STAGE_PREFIX}{run}"));
+        // The staging directory is made, registered and filled with its files under the lock
+        // the signal handler takes: it sees no directory, or one it can remove whole.
+        let live = LIVE.lock();
+        let mut live = live.unwrap_or_else(|p| p.into_inner());
         std::fs::create_dir(&stage).map_err(werr(&stage))?;
-        LIVE.lock()
-            .unwrap_or_else(|p| p.into_inner())
-            .push(stage.clone());
+        live.push(stage.clone());
         let mut set = StreamSet {
             dir: dir.to_owned(),
             created,
@@ -413,16 +415,24 @@ impl StreamSet {
             committed: false,
             _lock: lock,
         };
+        let mut made = Ok(());
         for name in names {
             let p = set.stage.join(name);
-            let f = File::create(&p).map_err(werr(&p))?;
-            set.files.push((
-                std::io::BufWriter::with_capacity(1 << 20, f),
-                Fnv::default(),
-                0,
-            ));
+            match File::create(&p) {
+                Ok(f) => set.files.push((
+                    std::io::BufWriter::with_capacity(1 << 20, f),
+                    Fnv::default(),
+                    0,
+                )),
+                Err(e) => {
+                    made = Err(werr(&p)(e));
+                    break;
+                }
+            }
         }
-        Ok(set)
+        // Unlocked before a failure drops the set (whose clean-up takes the lock again).
+        drop(live);
+        made.map(|()| set)
     }
 
     /// This run's id (written into the set's manifest, and by `plan` into summary.json).
@@ -516,6 +526,10 @@ impl StreamSet {
             }
         }
         manifest.files.extend(entries);
+        // From here the staging directory gains entries: the signal handler, which removes it
+        // under this lock, must not race them (a removal that meets a new entry fails and
+        // leaves the directory behind).
+        let live = LIVE.lock().unwrap_or_else(|p| p.into_inner());
         let write_small = |name: &str, bytes: &[u8]| -> Result<()> {
             let p = self.stage.join(name);
             let mut f = File::create(&p).map_err(werr(&p))?;
@@ -530,7 +544,6 @@ impl StreamSet {
         let text =
             serde_json::to_vec(&journal).map_err(|e| Error::Internal(format!("journal: {e}")))?;
         write_small("JOURNAL.tmp", &text)?;
-        let live = LIVE.lock().unwrap_or_else(|p| p.into_inner());
         // The commit point.
         let jp = self.stage.join(JOURNAL);
         std::fs::rename(self.stage.join("JOURNAL.tmp"), &jp).map_err(werr(&jp))?;
