@@ -348,6 +348,20 @@ fn frontier_is_monotone_reaches_the_unconstrained_plan_and_is_plotted() {
         let l: f64 = r["level"].parse().unwrap();
         assert!(l > level, "levels ascend");
         level = l;
+        // A level with no plan says why, naming lines of the scenario; a solved one does not.
+        assert_eq!(
+            r["objective"].is_empty(),
+            !r["reason"].is_empty(),
+            "level {l}"
+        );
+        if r["objective"].is_empty() {
+            assert!(
+                r["reason"].starts_with("the least spending the sections allow exceeds: ")
+                    && r["reason"].contains("-upkeep-20"),
+                "level {l}: {}",
+                r["reason"]
+            );
+        }
         if let Ok(o) = r["objective"].parse::<f64>() {
             assert!(o >= last, "the frontier never falls: {o} after {last}");
             let b: f64 = r["bound"].parse().unwrap();

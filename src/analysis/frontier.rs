@@ -36,6 +36,34 @@ pub struct Point {
     /// The plan's objective and the bound as reported (NPV, or PV agency cost for least-cost),
     /// with the relative gap; `None` when no plan meets the lines at this level.
     pub solved: Option<Solved>,
+    /// Why no plan meets the lines at this level (empty when one does).
+    pub reason: String,
+}
+
+/// A level's reason for having no plan, in one line, from the error `plan` gives: what kind of
+/// impossibility, and the first lines it names.
+fn reason(text: &str) -> String {
+    let mut lines = text.lines();
+    let head = lines.next().unwrap_or_default();
+    let kind = if head.contains("least spending") {
+        "the least spending the sections allow exceeds"
+    } else if head.contains("proved that no plan") {
+        "no plan meets these together"
+    } else {
+        "no plan found in time meets"
+    };
+    let names: Vec<&str> = lines
+        .filter_map(|l| l.strip_prefix("  "))
+        .filter_map(|l| l.rsplit_once(": limit ").or_else(|| l.split_once(": ")))
+        .map(|(name, _)| name)
+        .collect();
+    // Four names at most; `;` between them, so that the CSV cell needs no quotes.
+    let shown = names.len().min(4);
+    let more = match names.len() - shown {
+        0 => String::new(),
+        n => format!("; and {n} more"),
+    };
+    format!("{kind}: {}{more}", names[..shown].join("; "))
 }
 
 /// A solved level.
@@ -95,6 +123,7 @@ pub fn frontier(
         }
     });
     let mut points = Vec::with_capacity(wanted.len());
+    let mut reasons: Vec<(usize, String)> = Vec::new();
     let mut raw_bounds = Vec::with_capacity(wanted.len());
     // The best plan so far and its value (internal sign: larger is better).
     let mut carried: Option<(Vec<u16>, f64)> = None;
@@ -120,8 +149,9 @@ pub fn frontier(
                 raw_bounds.push(Some(o.bound));
                 Some((value, o.bound, o.status, kept))
             }
-            Err(Error::Infeasible(_)) => {
+            Err(Error::Infeasible(text)) => {
                 raw_bounds.push(None);
+                reasons.push((points.len(), reason(&text)));
                 None
             }
             Err(e) => return Err(e),
@@ -141,31 +171,39 @@ pub fn frontier(
     Ok(points
         .into_iter()
         .zip(capped)
-        .map(|((level, unlimited, total_budget, solved), cap)| Point {
-            level,
-            unlimited,
-            total_budget,
-            solved: solved.map(|(value, bound, status, kept)| {
-                let bound = bound.min(cap).max(value);
-                let gap = relative_gap(value, bound);
-                let status = if gap <= options.gap {
-                    if gap <= 1e-12 {
-                        Status::Optimal
+        .enumerate()
+        .map(
+            |(k, ((level, unlimited, total_budget, solved), cap))| Point {
+                level,
+                unlimited,
+                total_budget,
+                reason: reasons
+                    .iter()
+                    .find(|(at, _)| *at == k)
+                    .map(|(_, r)| r.clone())
+                    .unwrap_or_default(),
+                solved: solved.map(|(value, bound, status, kept)| {
+                    let bound = bound.min(cap).max(value);
+                    let gap = relative_gap(value, bound);
+                    let status = if gap <= options.gap {
+                        if gap <= 1e-12 {
+                            Status::Optimal
+                        } else {
+                            Status::WithinGap
+                        }
                     } else {
-                        Status::WithinGap
+                        status
+                    };
+                    Solved {
+                        objective: c.objective_of(value),
+                        bound: c.objective_of(bound),
+                        gap,
+                        status: status.name(),
+                        carried: kept,
                     }
-                } else {
-                    status
-                };
-                Solved {
-                    objective: c.objective_of(value),
-                    bound: c.objective_of(bound),
-                    gap,
-                    status: status.name(),
-                    carried: kept,
-                }
-            }),
-        })
+                }),
+            },
+        )
         .collect())
 }
 
@@ -185,6 +223,39 @@ pub fn rows(points: &[Point]) -> Vec<FrontierLevel> {
                 .as_ref()
                 .map_or("infeasible".to_owned(), |v| v.status.to_string()),
             unlimited: p.unlimited,
+            reason: p.reason.clone(),
         })
         .collect()
+}
+
+#[cfg(test)]
+mod reason_tests {
+    use super::reason;
+
+    #[test]
+    fn a_reason_names_the_kind_and_the_first_lines() {
+        let least = "these lines cannot be met even with the least spending (and best condition) \
+                     every section's commitments allow:\n  up-2027: limit 1.00 CR, least possible \
+                     2.00 CR\n  up-2028: limit 1.00 CR, least possible 2.00 CR";
+        assert_eq!(
+            reason(least),
+            "the least spending the sections allow exceeds: up-2027; up-2028"
+        );
+        let together = format!(
+            "each line can be met on its own, but a complete search proved that no plan meets \
+             them all together; the closest plan found breaks:\n{}",
+            (1..=6)
+                .map(|k| format!("  w-{k}: limit 1.00 CR, closest plan found 2.00 CR"))
+                .collect::<Vec<_>>()
+                .join("\n")
+        );
+        assert_eq!(
+            reason(&together),
+            "no plan meets these together: w-1; w-2; w-3; w-4; and 2 more"
+        );
+        let target = "no plan meeting every line together was found within the time limit, \
+                      though none was proven impossible (...):\n  smooth-2030: mean-iri at most \
+                      3.2, closest plan found 3.300000";
+        assert_eq!(reason(target), "no plan found in time meets: smooth-2030");
+    }
 }

@@ -538,11 +538,12 @@ pub fn frontier(points: &[Point], lines: &Lines, m: &str, objective: Objective) 
             None => {
                 let _ = writeln!(
                     s,
-                    "{level:>10} {:>20} {:>20} {:>20} {:>9}  infeasible",
+                    "{level:>10} {:>20} {:>20} {:>20} {:>9}  infeasible: {}",
                     grouped(p.total_budget, 0),
                     "—",
                     "—",
-                    "—"
+                    "—",
+                    p.reason
                 );
             }
         }

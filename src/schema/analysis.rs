@@ -12,7 +12,8 @@ pub const SENSITIVITY: &str = "sensitivity.csv";
 record! {
     /// `frontier.csv`: one budget level — the total budget over the scaled lines, and the
     /// best plan's objective, bound, gap and status (empty but for `infeasible` when no plan
-    /// fits); `unlimited` marks the level at which no line binds.
+    /// fits, with its `reason`: the kind of impossibility and the lines it names); `unlimited`
+    /// marks the level at which no line binds.
     FrontierLevel in "frontier.csv" by "pavestrat frontier" {
         level: Real = "level",
         total_budget: Cents = "total_budget",
@@ -21,6 +22,7 @@ record! {
         gap: Option<Sci6> = "gap",
         status: String = "status",
         unlimited: bool = "unlimited",
+        reason: String = "reason",
     }
 }
 

@@ -694,6 +694,7 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
         bound: Option<f64>,
         gap: Option<f64>,
         status: &'r str,
+        reason: &'r str,
         unlimited: bool,
     }
     let pts: Vec<P<'_>> = levels
@@ -705,6 +706,7 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
             bound: r.bound.map(|x| x.to_f64()),
             gap: r.gap.map(|x| x.to_f64()),
             status: &r.status,
+            reason: &r.reason,
             unlimited: r.unlimited,
         })
         .collect();
@@ -837,7 +839,11 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
             p.gap
                 .map(|g| format!("{:.4} %", g * 100.0))
                 .unwrap_or_else(|| "—".into()),
-            esc(p.status)
+            if p.reason.is_empty() {
+                esc(p.status)
+            } else {
+                format!("{} — {}", esc(p.status), esc(p.reason))
+            }
         );
     }
     s.push_str("</tbody></table></section>");
