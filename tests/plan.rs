@@ -1053,3 +1053,77 @@ fn years_without_lines_are_unlimited_held_on_or_an_error() {
         .stderr_has("budget[2].last_year: the `works-later` lines end in 2036")
         .stderr_has("5 problems");
 }
+
+/// `explain` explains: on every demo section whose choice differs from its best with no limits,
+/// it names the lines (each a group and year) where that best would have used more, and their
+/// worth at the prices is the difference of the two candidates' priced use in its own table.
+#[test]
+fn explain_names_the_lines_and_years_behind_every_changed_choice() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p", "--candidates"])
+        .expect_code(0);
+    let plan = rows(&wd.read("p/section_plan.csv"));
+    let lines: Vec<String> = rows(&wd.read("p/budget_use.csv"))
+        .into_iter()
+        .chain(rows(&wd.read("p/target_use.csv")))
+        .map(|r| r["line"].clone())
+        .collect();
+    let num = |t: &str| t.replace(',', "").parse::<f64>().unwrap();
+    let mut changed = 0;
+    for r in &plan {
+        let id = &r["section_id"];
+        let out = wd.run(&["explain", id, "--from", "p"]);
+        out.expect_code(0);
+        let text = &out.stdout;
+        if r["same"] == "true" {
+            // Held against the runner-up, when there is one.
+            assert!(
+                text.contains("Against the runner-up") || text.contains("the only candidate left"),
+                "{id}\n{text}"
+            );
+            continue;
+        }
+        changed += 1;
+        let (chosen, best) = (&r["strategy"], &r["unconstrained_strategy"]);
+        assert!(
+            text.contains(&format!(
+                "Why not `{best}` (its best with no budget limits)?"
+            )),
+            "{id}\n{text}"
+        );
+        // The table of lines: each row a line of the plan, named with its year.
+        let table: Vec<Vec<&str>> = text
+            .lines()
+            .skip_while(|l| !l.starts_with("What it would use beyond"))
+            .skip(2)
+            .take_while(|l| l.starts_with("  "))
+            .map(|l| l.split_whitespace().collect())
+            .collect();
+        assert!(!table.is_empty(), "{id}: no line named\n{text}");
+        for row in &table {
+            assert!(lines.contains(&row[0].to_owned()), "{id}: {row:?}");
+            assert!(row[0].rsplit('-').next().unwrap().parse::<i32>().is_ok());
+        }
+        // Σ worth = priced use of the best − priced use of the chosen (the candidates table),
+        // each shown to the unit.
+        let priced = |s: &str| {
+            let l = text
+                .lines()
+                .find(|l| {
+                    l.split_whitespace()
+                        .nth(if l.starts_with('*') { 1 } else { 0 })
+                        == Some(s)
+                })
+                .unwrap();
+            let cells: Vec<&str> = l.split_whitespace().collect();
+            num(cells[cells.len() - 2])
+        };
+        let worth: f64 = table.iter().map(|r| num(r[r.len() - 1])).sum();
+        let want = priced(best) - priced(chosen);
+        assert!(
+            (worth - want).abs() <= table.len() as f64 + 2.0,
+            "{id}: worth {worth} against {want}\n{text}"
+        );
+    }
+    assert!(changed > 0, "the demo has sections the budgets move");
+}

@@ -26,6 +26,30 @@ pub struct Candidate {
     pub npv: f64,
     /// Σ price × use over the plan's budget lines and targets.
     pub priced: f64,
+    /// Its use of each line, by the line's column in candidates.csv (`cost:LINE`, `use:LINE`).
+    pub uses: Vec<(String, f64)>,
+}
+
+/// A line of the plan as `explain` shows it: its name, price in the bound and state under the
+/// plan (`binding` or `slack`).
+#[derive(Debug, Clone)]
+pub struct Line {
+    pub name: String,
+    pub price: f64,
+    pub state: String,
+}
+
+/// What another candidate would have used beyond the chosen one: each line where the two
+/// differ, with the difference (positive: more than the chosen) and its worth at the line's
+/// price, largest worth first.
+#[derive(Debug, Clone)]
+pub struct Difference {
+    pub other: String,
+    /// Why this candidate: the section's best with no limits, or the runner-up.
+    pub unconstrained: bool,
+    /// Its objective value less the chosen one's.
+    pub more_value: f64,
+    pub lines: Vec<(Line, f64, f64)>,
 }
 
 impl Candidate {
@@ -45,6 +69,52 @@ pub struct Explanation {
     pub least_cost: bool,
     /// The money label.
     pub money: String,
+    /// What the section's best with no limits (or, when that is the chosen one, the runner-up)
+    /// would have used beyond the chosen one.
+    pub difference: Option<Difference>,
+}
+
+/// The difference between candidate `other` and `chosen`, line by line (`lines` by column).
+fn difference(
+    chosen: &Candidate,
+    other: &Candidate,
+    unconstrained: bool,
+    lines: &HashMap<String, Line>,
+) -> Difference {
+    let use_of = |c: &Candidate, col: &str| {
+        c.uses
+            .iter()
+            .find(|(k, _)| k == col)
+            .map_or(0.0, |(_, u)| *u)
+    };
+    let mut columns: Vec<&str> = chosen
+        .uses
+        .iter()
+        .chain(&other.uses)
+        .map(|(k, _)| k.as_str())
+        .collect();
+    columns.sort_unstable();
+    columns.dedup();
+    let mut out: Vec<(Line, f64, f64)> = columns
+        .into_iter()
+        .filter_map(|col| {
+            let line = lines.get(col)?;
+            let d = use_of(other, col) - use_of(chosen, col);
+            (d.abs() >= 0.005).then(|| (line.clone(), d, d * line.price))
+        })
+        .collect();
+    out.sort_by(|a, b| {
+        b.2.abs()
+            .total_cmp(&a.2.abs())
+            .then(b.1.abs().total_cmp(&a.1.abs()))
+            .then(a.0.name.cmp(&b.0.name))
+    });
+    Difference {
+        other: other.strategy.clone(),
+        unconstrained,
+        more_value: other.value - chosen.value,
+        lines: out,
+    }
 }
 
 /// Read the plan in `dir` (written with `--candidates`) and value section `id`'s candidates at
@@ -83,13 +153,23 @@ pub fn read(dir: &Path, id: &str) -> Result<Explanation> {
     let least_cost = summary.objective_kind == "least-cost";
     let money = summary.money;
 
-    // Each selection row's price, by its column in candidates.csv.
-    let mut prices: HashMap<String, f64> = HashMap::new();
+    // Each selection row's price and state, by its column in candidates.csv.
+    let mut lines: HashMap<String, Line> = HashMap::new();
     for r in schema::read::<BudgetUse>(dir)? {
-        prices.insert(row_column(true, &r.line), r.price.0);
+        let line = Line {
+            name: r.line.clone(),
+            price: r.price.0,
+            state: r.state,
+        };
+        lines.insert(row_column(true, &r.line), line);
     }
     for r in schema::read::<TargetUse>(dir)? {
-        prices.insert(row_column(false, &r.line), r.price.0);
+        let line = Line {
+            name: r.line.clone(),
+            price: r.price.0,
+            state: r.state,
+        };
+        lines.insert(row_column(false, &r.line), line);
     }
     let plan: Vec<SectionPlan> = schema::read(dir)?;
     let Some(row) = plan.iter().find(|r| r.section_id == id) else {
@@ -110,8 +190,8 @@ pub fn read(dir: &Path, id: &str) -> Result<Explanation> {
         let (npv, pva) = (c.npv.to_f64(), c.pv_agency_cost.to_f64());
         let mut priced = 0.0;
         for (column, used) in &c.uses {
-            match prices.get(column) {
-                Some(&price) if price != 0.0 => priced += price * used,
+            match lines.get(column) {
+                Some(l) if l.price != 0.0 => priced += l.price * used,
                 _ => {}
             }
         }
@@ -120,6 +200,7 @@ pub fn read(dir: &Path, id: &str) -> Result<Explanation> {
             value: if least_cost { -pva } else { npv },
             npv,
             priced,
+            uses: c.uses,
         });
     }
     opts.sort_by(|a, b| {
@@ -127,6 +208,19 @@ pub fn read(dir: &Path, id: &str) -> Result<Explanation> {
             .total_cmp(&a.priced_value())
             .then(a.strategy.cmp(&b.strategy))
     });
+    let mine = opts.iter().find(|o| o.strategy == chosen);
+    let other = if unconstrained != chosen {
+        opts.iter()
+            .find(|o| o.strategy == unconstrained)
+            .map(|o| (o, true))
+    } else {
+        opts.iter()
+            .find(|o| o.strategy != chosen)
+            .map(|o| (o, false))
+    };
+    let difference = mine
+        .zip(other)
+        .map(|(mine, (other, unc))| difference(mine, other, unc, &lines));
     Ok(Explanation {
         section: id.to_owned(),
         chosen,
@@ -134,5 +228,6 @@ pub fn read(dir: &Path, id: &str) -> Result<Explanation> {
         candidates: opts,
         least_cost,
         money,
+        difference,
     })
 }

@@ -309,6 +309,88 @@ fn show(i: usize, v: Option<f64>) -> String {
     }
 }
 
+/// The money behind a choice: what the other candidate (the section's best with no limits, or
+/// the runner-up) would have used beyond the chosen one, line by line, at the lines' prices.
+fn explain_difference(
+    d: &crate::analysis::explain::Difference,
+    chosen: &str,
+    value_name: &str,
+    money: &str,
+) -> String {
+    let mut s = String::new();
+    let (other, more) = (&d.other, d.more_value);
+    let _ = writeln!(
+        s,
+        "\n{} `{other}`{}? Its {value_name} is {} {money} {} than the chosen one's.",
+        if d.unconstrained {
+            "Why not"
+        } else {
+            "Against the runner-up"
+        },
+        if d.unconstrained {
+            " (its best with no budget limits)"
+        } else {
+            ""
+        },
+        grouped(more.abs(), 0),
+        if more >= 0.0 { "more" } else { "less" }
+    );
+    if d.lines.is_empty() {
+        let _ = writeln!(
+            s,
+            "It uses every line as `{chosen}` does: nothing but the whole-plan search tells them apart."
+        );
+        return s;
+    }
+    let _ = writeln!(
+        s,
+        "What it would use beyond `{chosen}`, by line (money in {money}; a target's use in its \
+         measure × km):\n  {:<26} {:<8} {:>10} {:>16} {:>18}",
+        "line", "state", "price", "more use", "worth at the price"
+    );
+    for (line, du, worth) in &d.lines {
+        let _ = writeln!(
+            s,
+            "  {:<26} {:<8} {:>10} {:>16} {:>18}",
+            line.name,
+            line.state,
+            price_beside_state(line.price, line.state == "binding"),
+            grouped(*du, 0),
+            grouped(*worth, 0)
+        );
+    }
+    let worth: f64 = d.lines.iter().map(|l| l.2).sum();
+    if d.unconstrained && worth > 0.0 {
+        let binding: Vec<&str> = d
+            .lines
+            .iter()
+            .filter(|l| l.1 > 0.0 && l.0.state == "binding")
+            .map(|l| l.0.name.as_str())
+            .collect();
+        let _ =
+            writeln!(
+            s,
+            "At the lines' prices that use is worth {} {money}, {} the {} {money} it would add: \
+             the money was worth more to other sections{}.",
+            grouped(worth, 0),
+            if worth >= more { "more than" } else { "less than" },
+            grouped(more, 0),
+            if binding.is_empty() {
+                String::new()
+            } else {
+                format!(", which get it in {}", binding.join(", "))
+            }
+        );
+    } else {
+        let _ = writeln!(
+            s,
+            "At the lines' prices that use is worth {} {money}.",
+            grouped(worth, 0)
+        );
+    }
+    s
+}
+
 /// Years listed one by one in the programme on screen; later years with works are summed in one
 /// row (`--full` lists every works).
 const PROGRAMME_YEARS: usize = 12;
@@ -772,6 +854,9 @@ pub fn explain(e: &Explanation) -> String {
             "Its NPV against the base: {} {money}.",
             grouped(o.npv, 0)
         );
+    }
+    if let Some(d) = &e.difference {
+        s.push_str(&explain_difference(d, chosen, value_name, money));
     }
     let _ = writeln!(s, "\n{}", crate::CAUTION);
     s
