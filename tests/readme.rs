@@ -191,3 +191,64 @@ fn installed_binary_examples_run() {
     assert_eq!(ran, 3);
     assert!(wd.join("mydistrict/plan/report.html").is_file());
 }
+
+/// The README's fenced `sh` block that starts with the line `first`.
+fn sh_starting(first: &str) -> String {
+    let readme = include_str!("../README.md");
+    let open = format!("```sh\n{first}");
+    let start = readme
+        .find(&open)
+        .unwrap_or_else(|| panic!("README lacks a block starting {first}"))
+        + "```sh\n".len();
+    let body = &readme[start..];
+    body[..body.find("```").unwrap()].to_owned()
+}
+
+/// The batch-array example: its two scripts, run through `sh` with the task numbers set by hand
+/// and `pavestrat` on the PATH, give one whole run's risk.csv and risk_draws.csv.
+#[test]
+fn batch_array_example_merges_to_the_whole_run() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "plan"]).expect_code(0);
+    let slices = sh_starting("# slices.sh");
+    let merge = sh_starting("# merge.sh");
+    let bin = std::path::Path::new(env!("CARGO_BIN_EXE_pavestrat"))
+        .parent()
+        .unwrap()
+        .to_owned();
+    let path = format!(
+        "{}:{}",
+        bin.display(),
+        std::env::var("PATH").unwrap_or_default()
+    );
+    let sh = |script: &str, task: Option<usize>| {
+        let mut c = std::process::Command::new("sh");
+        c.arg("-c")
+            .arg(script)
+            .current_dir(wd.path())
+            .env("PATH", &path);
+        if let Some(k) = task {
+            c.env("SLURM_ARRAY_TASK_ID", k.to_string());
+        }
+        let out = c.output().unwrap();
+        assert!(
+            out.status.success(),
+            "{script}\n{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    };
+    for k in 0..4 {
+        sh(&slices, Some(k));
+    }
+    sh(&merge, None);
+    wd.run(&[
+        "-q", "risk", "--from", "plan", "--seed", "7", "--draws", "1000", "--out", "whole",
+    ])
+    .expect_code(0);
+    for f in ["risk.csv", "risk_draws.csv"] {
+        assert!(
+            wd.read(&format!("risk/{f}")) == wd.read(&format!("whole/{f}")),
+            "{f} differs"
+        );
+    }
+}
