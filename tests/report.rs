@@ -186,16 +186,19 @@ fn the_report_is_self_contained_with_every_chart_labelled() {
             "{id}: something is drawn"
         );
     }
-    // Money charts say their unit.
-    for c in charts.iter().filter(|c| {
+    // Money axes say their unit: the spending charts' y, the frontier's x (its y is a share).
+    for c in &charts {
         let id = c.value().attr("data-chart").unwrap();
-        id.starts_with("spending-") || id == "frontier"
-    }) {
-        let y: String = c
-            .select(&sel(r#"text.axis-title[data-axis="y"]"#))
+        let axis = match id {
+            "frontier" => "x",
+            id if id.starts_with("spending-") => "y",
+            _ => continue,
+        };
+        let t: String = c
+            .select(&sel(&format!(r#"text.axis-title[data-axis="{axis}"]"#)))
             .flat_map(|e| e.text())
             .collect();
-        assert!(y.contains("VCR"), "money axis names the currency: {y}");
+        assert!(t.contains("VCR"), "{id}: money axis names the currency: {t}");
     }
 }
 
@@ -401,9 +404,10 @@ fn frontier_is_monotone_reaches_the_unconstrained_plan_and_is_plotted() {
             r["total_budget"].parse().unwrap(),
             1e-12
         ));
+        // Drawn as a share of the NPV with no budget limits.
         assert!(close(
             num(m, "data-y"),
-            r["objective"].parse().unwrap(),
+            r["objective"].parse::<f64>().unwrap() / o,
             1e-12
         ));
         d.check_point(m);
@@ -412,7 +416,14 @@ fn frontier_is_monotone_reaches_the_unconstrained_plan_and_is_plotted() {
         .select(&sel("line.reference"))
         .next()
         .expect("ceiling line");
-    assert!(close(num(&ceiling, "data-y"), o, 1e-12));
+    assert!(close(num(&ceiling, "data-y"), 1.0, 1e-12));
+    let title: String = svg
+        .select(&sel(r#"text.axis-title[data-axis="y"]"#))
+        .next()
+        .unwrap()
+        .text()
+        .collect();
+    assert_eq!(title, "Total NPV, % of the NPV with no budget limits");
 }
 
 /// section_plan.csv's first works year is each section's earliest year in work_programme.csv,

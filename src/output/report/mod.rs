@@ -722,7 +722,7 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
         .and_then(|p| p.objective.map(|o| (p.level, o)));
     let _ = write!(
         s,
-        "<p>The best objective the selection finds when the budget lines are scaled to each level (1 = the scenario's budgets), against the total budget; whiskers reach the bound no plan can pass. The slope between two points is what another unit of money buys.{} Money in {}.</p>",
+        "<p>The best objective the selection finds when the budget lines are scaled to each level (1 = the scenario's budgets), against the total budget; whiskers reach the bound no plan can pass. The slope between two points is what another unit of money buys. An NPV is drawn as a share of the NPV with no budget limits: the axis starts near the top, and its labels say how small the differences are.{} Money in {}.</p>",
         if ceiling.is_some() {
             " The dashed line is the objective when no line binds (every section gets its best strategy)."
         } else {
@@ -731,20 +731,32 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
         esc(m)
     );
     if !solved.is_empty() {
+        // An NPV frontier is drawn as a share of the NPV with no budget limits, so that its
+        // axis, which starts near the top to show the differences, says how small they are.
+        let share_of = match ceiling {
+            Some((_, o)) if sm.objective_kind != "least-cost" && o > 0.0 => Some(o),
+            _ => None,
+        };
+        let y_of = |v: f64| share_of.map_or(v, |o| v / o);
         let xs: Vec<f64> = solved.iter().map(|p| p.total).collect();
         let mut ys: Vec<f64> = solved
             .iter()
             .flat_map(|p| [p.objective.unwrap_or(0.0), p.bound.unwrap_or(0.0)])
+            .map(y_of)
             .collect();
         if let Some((_, o)) = ceiling {
-            ys.push(o);
+            ys.push(y_of(o));
         }
         let (xu, xw) = Units::money(xs.iter().copied().fold(0.0, f64::max));
         let (y_lo, y_hi) = (
             ys.iter().copied().fold(f64::INFINITY, f64::min),
             ys.iter().copied().fold(f64::NEG_INFINITY, f64::max),
         );
-        let (yu, yw) = Units::money(y_lo.abs().max(y_hi.abs()));
+        let (yu, yw) = if share_of.is_some() {
+            (Units::percent(2), "")
+        } else {
+            Units::money(y_lo.abs().max(y_hi.abs()))
+        };
         let x_title = if xw.is_empty() {
             format!("Total budget over all lines ({m})")
         } else {
@@ -755,7 +767,9 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
         } else {
             "Total NPV"
         };
-        let y_title = if yw.is_empty() {
+        let y_title = if share_of.is_some() {
+            "Total NPV, % of the NPV with no budget limits".to_owned()
+        } else if yw.is_empty() {
             format!("{kind} ({m})")
         } else {
             format!("{kind} ({m}, {yw})")
@@ -784,26 +798,27 @@ fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
             c.reference(
                 &format!("no line binds (level ×{})", trim(level)),
                 GREEN,
-                o,
+                y_of(o),
                 false,
             );
         }
         for p in &solved {
             if let (Some(o), Some(b)) = (p.objective, p.bound) {
-                c.whisker("bound", GREY, p.total, o, b);
+                c.whisker("bound", GREY, p.total, y_of(o), y_of(b));
             }
         }
         let line: Vec<(f64, f64)> = solved
             .iter()
-            .map(|p| (p.total, p.objective.unwrap_or(0.0)))
+            .map(|p| (p.total, y_of(p.objective.unwrap_or(0.0))))
             .collect();
         c.line("objective", BLUE, "", &line, false);
+        // Each level's name under its point: the ceiling's label sits above its line.
         for p in &solved {
             c.label(
                 "note",
                 p.total,
-                p.objective.unwrap_or(0.0),
-                9.0,
+                y_of(p.objective.unwrap_or(0.0)),
+                -16.0,
                 &format!("×{}", trim(p.level)),
                 None,
             );
