@@ -198,7 +198,10 @@ fn the_report_is_self_contained_with_every_chart_labelled() {
             .select(&sel(&format!(r#"text.axis-title[data-axis="{axis}"]"#)))
             .flat_map(|e| e.text())
             .collect();
-        assert!(t.contains("VCR"), "{id}: money axis names the currency: {t}");
+        assert!(
+            t.contains("VCR"),
+            "{id}: money axis names the currency: {t}"
+        );
     }
 }
 
