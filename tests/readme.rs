@@ -242,7 +242,7 @@ fn batch_array_example_merges_to_the_whole_run() {
     }
     sh(&merge, None);
     wd.run(&[
-        "-q", "risk", "--from", "plan", "--seed", "7", "--draws", "1000", "--out", "whole",
+        "-q", "risk", "--from", "plan", "--seed", "7", "--draws", "400", "--out", "whole",
     ])
     .expect_code(0);
     for f in ["risk.csv", "risk_draws.csv"] {

@@ -86,11 +86,7 @@ pub fn plan(run: &Run, p: &Plan, f: &Facts, full: bool) -> String {
                 row.name,
                 grouped(limit, 0),
                 grouped(used, 0),
-                if limit > 0.0 {
-                    100.0 * used / limit
-                } else {
-                    0.0
-                },
+                use_percent(limit, used),
                 states[j].name(),
                 price_beside_state(o.prices[j], states[j] == LineState::Binding)
             );
@@ -391,6 +387,15 @@ fn explain_difference(
     s
 }
 
+/// How much of a line's limit is used, in percent (0 for a zero limit).
+fn use_percent(limit: f64, used: f64) -> f64 {
+    if limit > 0.0 {
+        100.0 * used / limit
+    } else {
+        0.0
+    }
+}
+
 /// Years listed one by one in the programme on screen; later years with works are summed in one
 /// row (`--full` lists every works).
 const PROGRAMME_YEARS: usize = 12;
@@ -548,11 +553,7 @@ fn programme(run: &Run, p: &Plan, full: bool) -> String {
                 },
                 grouped(limit, 0),
                 grouped(used, 0),
-                if limit > 0.0 {
-                    100.0 * used / limit
-                } else {
-                    0.0
-                }
+                use_percent(limit, used)
             );
         }
         for o in sc.budget_overlaps() {
