@@ -153,6 +153,14 @@ impl Scenario {
         self.base_year + YearOffset(self.analysis_years.saturating_sub(1))
     }
 
+    /// Whether some budget line limits spending of `category` in `year` (a line of that
+    /// category, or of `all`).
+    pub fn year_has_line(&self, year: i32, category: Category) -> bool {
+        self.budget_lines
+            .iter()
+            .any(|b| b.year.0 == year && (b.category == category || b.category == Category::All))
+    }
+
     /// The budget groups (the `[[budget]]` entries' names), in the scenario's order: a group's
     /// lines are next to each other.
     pub fn budget_groups(&self) -> Vec<&str> {

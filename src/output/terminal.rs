@@ -475,14 +475,8 @@ fn programme(run: &Run, p: &Plan, full: bool) -> String {
     };
     // Years whose capital works no budget line limits.
     let unlimited = |y: i32| {
-        !run.scenario.budget_lines.iter().any(|b| {
-            b.year.0 == y
-                && matches!(
-                    b.category,
-                    crate::model::catalogue::Category::Capital
-                        | crate::model::catalogue::Category::All
-                )
-        })
+        !run.scenario
+            .year_has_line(y, crate::model::catalogue::Category::Capital)
     };
     let mark = |a: i32, b: i32| if (a..=b).any(unlimited) { "*" } else { "" };
     let shown = if full {
@@ -750,13 +744,8 @@ pub fn check(run: &Run, notes: usize) -> String {
             (Category::Capital, "capital works"),
             (Category::Routine, "routine maintenance"),
         ] {
-            let limited = |y: i32| {
-                s.budget_lines
-                    .iter()
-                    .any(|b| b.year.0 == y && (b.category == cat || b.category == Category::All))
-            };
             let free: Vec<i32> = (s.base_year.0..=s.last_year().0)
-                .filter(|y| !limited(*y))
+                .filter(|y| !s.year_has_line(*y, cat))
                 .collect();
             if free.is_empty() {
                 continue;
