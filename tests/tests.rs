@@ -6,6 +6,7 @@ mod calibrate;
 mod carried;
 mod cashflow;
 mod check;
+mod compare;
 mod golden;
 mod outputs;
 mod plan;

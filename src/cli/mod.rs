@@ -10,6 +10,7 @@ pub mod bars;
 pub mod calibrate;
 pub mod cashflow;
 pub mod check;
+pub mod compare;
 pub mod explain;
 pub mod frontier;
 pub mod init;
@@ -79,6 +80,10 @@ pub enum Command {
     /// best, spending against budgets; reproducible, and splittable into slices.
     #[command(after_help = AFTER_HELP)]
     Risk(risk::Args),
+    /// Two written plans side by side: which sections chose differently, money by year and
+    /// budget group, condition, and the budget lines whose prices moved.
+    #[command(after_help = AFTER_HELP)]
+    Compare(compare::Args),
     /// Why a section got its strategy in a plan (read from `plan --out DIR`).
     #[command(after_help = AFTER_HELP)]
     Explain(explain::Args),
@@ -216,6 +221,7 @@ fn run(command: Command, ctx: Context) -> Result<()> {
         Command::Calibrate(a) => calibrate::run(a, ctx),
         Command::Plan(a) => plan::run(a, ctx),
         Command::Explain(a) => explain::run(a, ctx),
+        Command::Compare(a) => compare::run(a, ctx),
         Command::Frontier(a) => frontier::run(a, ctx),
         Command::Report(a) => report::run(a, ctx),
         Command::Sensitivity(a) => sensitivity::run(a, ctx),

@@ -212,6 +212,19 @@ pub fn units_half_even(x: f64, places: u32) -> Option<i128> {
     Some(if negative { -units } else { units })
 }
 
+/// A budget price as shown: four decimals, or two significant figures below 0.001 (never
+/// `0.0000` for a price above zero); `0` for none.
+pub fn price_figure(price: f64) -> String {
+    if price == 0.0 {
+        "0".to_owned()
+    } else if price.abs() >= 0.001 {
+        format!("{price:.4}")
+    } else {
+        let places = (-price.abs().log10().floor()) as usize + 1;
+        format!("{price:.places$}")
+    }
+}
+
 /// Format a float with thousands separators and `decimals` decimal places: `1234567.891` →
 /// `1,234,567.89`. Non-finite values print as `n/a`.
 pub fn grouped(x: f64, decimals: usize) -> String {

@@ -146,18 +146,7 @@ mod tests {
     }
 }
 
-/// A budget price as shown: four decimals, or two significant figures below 0.001 (never
-/// `0.0000` for a price above zero); `0` for none.
-pub fn price_figure(price: f64) -> String {
-    if price == 0.0 {
-        "0".to_owned()
-    } else if price.abs() >= 0.001 {
-        format!("{price:.4}")
-    } else {
-        let places = (-price.abs().log10().floor()) as usize + 1;
-        format!("{price:.places$}")
-    }
-}
+pub use crate::model::money::price_figure;
 
 /// A line's price beside its state, as the terminal, the workbook and the report show it: a
 /// binding line's price; a slack line's price in brackets when the bound prices it (a price of

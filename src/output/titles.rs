@@ -71,6 +71,13 @@ pub const TITLES: &[(&str, &str)] = &[
     ("prob_positive", "Draws with NPV above zero"),
     ("prob_best", "Draws where best"),
     ("in_plan", "In the plan"),
+    ("group", "Budget group"),
+    // compare's files (with the columns above, ending `_a`, `_b` or `_change`)
+    ("change", "Change"),
+    ("year_shift", "Years moved"),
+    ("price_moved", "Price moved"),
+    ("good_share", "Good share"),
+    ("poor_share", "Poor share"),
 ];
 
 /// The heading of a column named `key` in the CSV files.
@@ -85,11 +92,21 @@ pub fn title(key: &str) -> String {
             return format!("{y} treatment");
         }
     }
-    TITLES
-        .iter()
-        .find(|(k, _)| *k == key)
-        .map_or(key, |(_, t)| t)
-        .to_owned()
+    let known = |k: &str| TITLES.iter().find(|(n, _)| *n == k).map(|(_, t)| *t);
+    if let Some(t) = known(key) {
+        return t.to_owned();
+    }
+    // One plan's value, or the second's less the first's, of a column above (`compare`).
+    for (end, label) in [
+        ("_a", " (A)"),
+        ("_b", " (B)"),
+        ("_change", " change (B − A)"),
+    ] {
+        if let Some(t) = key.strip_suffix(end).and_then(known) {
+            return format!("{t}{label}");
+        }
+    }
+    key.to_owned()
 }
 
 #[cfg(test)]
@@ -107,5 +124,8 @@ mod tests {
         assert_eq!(title("cost_2031"), "2031 cost");
         assert_eq!(title("cost_per_m2"), "Cost per m²");
         assert_eq!(title("x_crew"), "x_crew");
+        assert_eq!(title("npv_change"), "NPV change (B − A)");
+        assert_eq!(title("strategy_a"), "Strategy (A)");
+        assert_eq!(title("x_a"), "x_a");
     }
 }

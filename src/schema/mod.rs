@@ -20,6 +20,7 @@
 
 pub mod analysis;
 pub mod carried;
+pub mod compare;
 pub mod others;
 pub mod plan;
 pub mod readback;

@@ -9,6 +9,7 @@
 //! risk when computed; the work programme by year; the assumptions; the planning-level caution.
 
 pub mod chart;
+pub mod compare;
 mod extra;
 pub mod map;
 
@@ -181,7 +182,7 @@ pub fn render(inputs: &Inputs) -> Result<String> {
     ))
 }
 
-const CSS: &str = "\
+pub(super) const CSS: &str = "\
 body{font-family:system-ui,-apple-system,'Segoe UI',Roboto,'Liberation Sans',Arial,sans-serif;color:#1a1a1a;background:#fff;max-width:1080px;margin:1.5em auto;padding:0 1em;line-height:1.45}\
 h1{font-size:1.7em;margin:.2em 0}h2{font-size:1.3em;border-bottom:2px solid #1a1a1a;padding-bottom:.15em;margin-top:2em}h3{font-size:1.05em;margin:1.2em 0 .3em}\
 .sub{color:#444;margin:0 0 .8em}.small{font-size:.85em;color:#555}\
@@ -193,7 +194,7 @@ svg.chart{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:1
 svg.map{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
 svg .grid{stroke:#e4e4e4}svg .axis{stroke:#444}svg .tick{fill:#333;font-size:11px}svg .axis-title{fill:#1a1a1a;font-size:12px;font-weight:600}\
 svg .chart-title{font-weight:700;font-size:13px;fill:#1a1a1a}svg .legend{font-size:11px;fill:#1a1a1a}svg .note,svg .price{font-size:10px;fill:#333}\
-svg rect.planned{stroke:#1a1a1a;stroke-width:2}\
+svg rect.planned{stroke:#1a1a1a;stroke-width:2}tr.moved td{font-weight:600}\
 .charts{display:flex;flex-wrap:wrap;gap:.5em 1.2em}.charts figure{margin:0}.charts svg.chart{margin:.2em 0}\
 @media print{body{max-width:none;margin:0}nav{display:none}section{break-inside:avoid-page}svg.chart{break-inside:avoid}}";
 
