@@ -301,6 +301,49 @@ fn spending_charts_plot_budget_use_csv() {
     assert_eq!(checked, lines.len(), "every budget line is drawn");
 }
 
+/// The capital works chart: a bar per year of the work programme with its capital works'
+/// cost, orange (series `no-line`) exactly in the years no capital or `all` line limits.
+#[test]
+fn works_by_year_chart_plots_work_programme_csv_and_marks_years_without_lines() {
+    let doc = Html::parse_document(&read("report.html"));
+    let svg = doc
+        .select(&sel(r#"svg[data-chart="works-by-year"]"#))
+        .next()
+        .unwrap();
+    let d = Drawn::new(svg);
+    let mut cost: std::collections::BTreeMap<i32, f64> = Default::default();
+    for w in rows(&read("work_programme.csv")) {
+        if w["category"] != "routine" {
+            *cost.entry(w["year"].parse().unwrap()).or_default() +=
+                w["cost"].parse::<f64>().unwrap();
+        }
+    }
+    let lines = rows(&read("budget_use.csv"));
+    let limited = |y: i32| {
+        lines.iter().any(|r| {
+            r["year"] == y.to_string() && (r["category"] == "capital" || r["category"] == "all")
+        })
+    };
+    let (with, without) = (d.marks("limited"), d.marks("no-line"));
+    assert_eq!(
+        with.len() + without.len(),
+        cost.len(),
+        "a bar per year with works"
+    );
+    assert!(
+        !without.is_empty(),
+        "the demo has capital works in years with no line"
+    );
+    for (series, bars) in [(true, &with), (false, &without)] {
+        for b in bars.iter() {
+            let y = num(b, "data-x") as i32;
+            assert_eq!(limited(y), series, "{y}");
+            assert!(close(num(b, "data-y"), cost[&y], 1e-9), "{y}");
+            d.check_bar(b);
+        }
+    }
+}
+
 #[test]
 fn widening_charts_plot_widening_plan_csv() {
     let doc = Html::parse_document(&read("report.html"));
@@ -317,11 +360,26 @@ fn widening_charts_plot_widening_plan_csv() {
             .trim_start_matches("widening-");
         let mine: Vec<_> = csv.iter().filter(|r| r["section_id"] == id).collect();
         let d = Drawn::new(svg);
-        let bars = d.marks("npv");
+        // Each year's bar is its NPV less the best year's: the best year's is zero, labelled
+        // with the best NPV.
+        let npv = |r: &HashMap<String, String>| r["npv"].parse::<f64>().unwrap();
+        let best = mine
+            .iter()
+            .map(|r| npv(r))
+            .fold(f64::NEG_INFINITY, f64::max);
+        let bars = d.marks("below-best");
         assert_eq!(bars.len(), mine.len(), "{id}: one bar per widening year");
+        let label = svg
+            .select(&sel("text.note"))
+            .find(|t| t.text().collect::<String>().starts_with("best"))
+            .unwrap();
+        assert_eq!(num(&label, "data-value"), best);
+        let best_year = mine.iter().find(|r| npv(r) == best).unwrap()["year"].clone();
+        assert_eq!(label.value().attr("data-x"), Some(best_year.as_str()));
         for (b, r) in bars.iter().zip(&mine) {
             assert_eq!(num(b, "data-x"), r["year"].parse::<f64>().unwrap());
-            assert!(close(num(b, "data-y"), r["npv"].parse().unwrap(), 1e-12));
+            assert_eq!(num(b, "data-y"), npv(r) - best);
+            assert!(num(b, "data-y") <= 0.0);
             d.check_bar(b);
             let outlined = b.value().attr("class").unwrap().contains("planned");
             assert_eq!(
@@ -329,6 +387,30 @@ fn widening_charts_plot_widening_plan_csv() {
                 r["planned"] == "true",
                 "{id} {}: planned mark",
                 r["year"]
+            );
+        }
+        // A grey band for each year in the span with no widening, and the caption names them.
+        let years: Vec<i32> = mine.iter().map(|r| r["year"].parse().unwrap()).collect();
+        let (lo, hi) = (*years.iter().min().unwrap(), *years.iter().max().unwrap());
+        let missing: Vec<String> = (lo..=hi)
+            .filter(|y| !years.contains(y))
+            .map(|y| y.to_string())
+            .collect();
+        let bands: Vec<String> = svg
+            .select(&sel("rect.none"))
+            .map(|r| r.value().attr("data-x").unwrap().to_owned())
+            .collect();
+        assert_eq!(bands, missing, "{id}: a band per year with no widening");
+        if let Some(first) = missing.first() {
+            let caption: String = doc
+                .select(&sel("figcaption"))
+                .map(|f| f.text().collect::<String>())
+                .find(|t| t.starts_with(&format!("{id}:")))
+                .unwrap();
+            assert!(
+                caption.contains("no strategy its templates allow widens in")
+                    && caption.contains(first.as_str()),
+                "{caption}"
             );
         }
         let y2 = (pair(&svg, "data-y2-domain"), pair(&svg, "data-y2-range"));
@@ -1057,6 +1139,100 @@ fn terminal_csv_workbook_and_report_agree_on_every_budget_line() {
                     other => panic!("{name}: used and price cells {other:?}"),
                 }
             }
+        }
+    }
+}
+
+/// Measures, in the page as a real browser lays it out, every SVG text that reaches outside its
+/// chart (the chart clips it) or overlaps another text of the same chart, and whether the page
+/// is wider than the window; the findings are left in `body[data-layout]` as a JSON list.
+const LAYOUT_PROBE: &str = r#"<script>(function(){
+var out=[];
+document.querySelectorAll('svg').forEach(function(svg){
+  var r=svg.getBoundingClientRect(), name=svg.getAttribute('data-chart')||svg.getAttribute('class'), seen=[];
+  svg.querySelectorAll('text').forEach(function(t){
+    var b=t.getBoundingClientRect(), s=t.textContent;
+    if(b.width<=0) return;
+    if(b.left<r.left-0.5||b.top<r.top-0.5||b.right>r.right+0.5||b.bottom>r.bottom+0.5)
+      out.push(name+': "'+s+'" reaches outside the chart');
+    seen.forEach(function(o){
+      var dx=Math.min(b.right,o.b.right)-Math.max(b.left,o.b.left), dy=Math.min(b.bottom,o.b.bottom)-Math.max(b.top,o.b.top);
+      if(dx>1&&dy>1) out.push(name+': "'+s+'" overlaps "'+o.s+'"');
+    });
+    seen.push({b:b,s:s});
+  });
+});
+if(document.documentElement.scrollWidth>window.innerWidth)
+  out.push('the page is '+document.documentElement.scrollWidth+' px wide in a '+window.innerWidth+' px window');
+document.body.setAttribute('data-layout', JSON.stringify(out));
+})();</script>"#;
+
+/// The report and the comparison page fit a 700 px window and A4 portrait's printable width
+/// (190 mm at 96 px per inch: 718 px) with no chart text clipped, no two texts of a chart
+/// overlapping, and no page wider than its window (run with PAVESTRAT_BROWSER, as .ci/run
+/// does).
+#[test]
+fn pages_fit_700_px_and_a4_without_clipped_or_overlapping_text() {
+    let Some(browser) = std::env::var_os("PAVESTRAT_BROWSER") else {
+        eprintln!("PAVESTRAT_BROWSER not set: the browser check runs in .ci/run");
+        return;
+    };
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "cut", "--budget-scale", "0.8"])
+        .expect_code(0);
+    wd.run(&[
+        "-q",
+        "compare",
+        demo().to_str().unwrap(),
+        "cut",
+        "--out",
+        "cmp",
+    ])
+    .expect_code(0);
+    let pages = [
+        ("report", demo().join("report.html")),
+        ("comparison", wd.join("cmp/comparison.html")),
+    ];
+    for (name, page) in pages {
+        let html = std::fs::read_to_string(&page).unwrap();
+        assert!(html.contains("</body>"));
+        let probed = wd.join(&format!("{name}-probed.html"));
+        std::fs::write(
+            &probed,
+            html.replace("</body>", &format!("{LAYOUT_PROBE}</body>")),
+        )
+        .unwrap();
+        for width in [700, 718] {
+            let out = std::process::Command::new(&browser)
+                .args([
+                    "--headless",
+                    "--no-sandbox",
+                    "--disable-gpu",
+                    "--hide-scrollbars",
+                    "--no-first-run",
+                ])
+                .arg(format!("--user-data-dir={}", wd.join("profile").display()))
+                .arg(format!("--window-size={width},1400"))
+                .arg("--dump-dom")
+                .arg(format!("file://{}", probed.display()))
+                .output()
+                .expect("the browser runs");
+            let doc = Html::parse_document(&String::from_utf8_lossy(&out.stdout));
+            let body = doc.select(&sel("body")).next().unwrap();
+            let found = body.value().attr("data-layout").unwrap_or_else(|| {
+                panic!(
+                    "{name} at {width} px: the probe did not run\n{}",
+                    String::from_utf8_lossy(&out.stderr)
+                )
+            });
+            let found: Vec<String> = serde_json::from_str(found).unwrap();
+            assert!(
+                found.is_empty(),
+                "{name} at {width} px:\n  {}",
+                found.join("\n  ")
+            );
+            // The probe measured the charts it should have.
+            assert!(doc.select(&sel("svg.chart text")).count() > 20, "{name}");
         }
     }
 }

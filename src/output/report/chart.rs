@@ -423,14 +423,23 @@ impl Chart {
 
     /// A horizontal reference line across the chart.
     pub fn reference(&mut self, label: &str, colour: &str, b: f64, right: bool) {
+        self.reference_at(label, colour, b, right, false);
+    }
+
+    /// [`Chart::reference`] with its label at the left end of the line when `left`.
+    pub fn reference_at(&mut self, label: &str, colour: &str, b: f64, right: bool, left: bool) {
         let y = self.y_of(right);
         let py = y.at(b);
+        let (lx, anchor) = if left {
+            (self.x.p0 + 4.0, "start")
+        } else {
+            (self.x.p1 - 4.0, "end")
+        };
         let _ = write!(
             self.body,
-            r#"<line class="reference" data-y="{b}" x1="{:.2}" x2="{:.2}" y1="{py:.2}" y2="{py:.2}" stroke="{colour}" stroke-dasharray="5 4"/><text class="note" x="{:.2}" y="{:.2}" text-anchor="end">{}</text>"#,
+            r#"<line class="reference" data-y="{b}" x1="{:.2}" x2="{:.2}" y1="{py:.2}" y2="{py:.2}" stroke="{colour}" stroke-dasharray="5 4"/><text class="note" x="{lx:.2}" y="{:.2}" text-anchor="{anchor}">{}</text>"#,
             self.x.p0,
             self.x.p1,
-            self.x.p1 - 4.0,
             py - 4.0,
             esc(label)
         );

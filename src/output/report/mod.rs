@@ -188,14 +188,14 @@ h1{font-size:1.7em;margin:.2em 0}h2{font-size:1.3em;border-bottom:2px solid #1a1
 .sub{color:#444;margin:0 0 .8em}.small{font-size:.85em;color:#555}\
 .caution{border-left:5px solid #D55E00;background:#fff4ec;padding:.5em .9em}\
 nav{border:1px solid #ccc;padding:.4em 1em;margin-bottom:1em;font-size:.92em}nav ol{margin:.2em 0;padding-left:1.4em;columns:2}\
-table{border-collapse:collapse;margin:.4em 0 1em;font-size:.92em}th,td{padding:.22em .6em;border-bottom:1px solid #ddd;text-align:left;vertical-align:top}\
+table{border-collapse:collapse;margin:.4em 0 1em;font-size:.92em;display:block;max-width:100%;overflow-x:auto}th,td{padding:.22em .6em;border-bottom:1px solid #ddd;text-align:left;vertical-align:top}\
 th{border-bottom:2px solid #888}td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}\
 svg.chart{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
 svg.map{max-width:100%;height:auto;display:block;margin:.4em 0 1em;font-size:12px}\
 svg .grid{stroke:#e4e4e4}svg .axis{stroke:#444}svg .tick{fill:#333;font-size:11px}svg .axis-title{fill:#1a1a1a;font-size:12px;font-weight:600}\
 svg .chart-title{font-weight:700;font-size:13px;fill:#1a1a1a}svg .legend{font-size:11px;fill:#1a1a1a}svg .note,svg .price{font-size:10px;fill:#333}\
 svg rect.planned{stroke:#1a1a1a;stroke-width:2}tr.moved td{font-weight:600}\
-.charts{display:flex;flex-wrap:wrap;gap:.5em 1.2em}.charts figure{margin:0}.charts svg.chart{margin:.2em 0}\
+.charts{display:flex;flex-wrap:wrap;gap:.5em 1.2em}.charts figure{margin:0;flex:0 1 500px;max-width:500px}.charts svg.chart{margin:.2em 0}\
 @media print{body{max-width:none;margin:0}nav{display:none}section{break-inside:avoid-page}svg.chart{break-inside:avoid}}";
 
 fn numbers(sm: &Summary, targets: Option<&[TargetUse]>) -> String {
@@ -404,10 +404,11 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
         String::from(r#"<section id="spending"><h2>Spending against each budget line</h2>"#);
     let _ = write!(
         s,
-        "<p>Bars: what the plan spends in each line and year; black marks: the line's limit. A line is binding when the plan uses it to within {} of its limit; the figure above a binding line's bar is its budget price, how much the objective would gain per unit of money added to it, and a slack line says “slack”. In the table, a slack line's price in brackets is the bound's relaxation's, which the plan's whole choices leave room under. Money in {}.</p><div class=\"charts\">",
+        "<p>The first chart: the cost of the programme's capital works each year, orange where no budget line limits the year. Then, for each budget group, bars: what the plan spends in each line and year; black marks: the line's limit. A line is binding when the plan uses it to within {} of its limit; the figure above a binding line's bar is its budget price, how much the objective would gain per unit of money added to it, and a slack line says “slack”. In the table, a slack line's price in brackets is the bound's relaxation's, which the plan's whole choices leave room under. Money in {}.</p><div class=\"charts\">",
         esc(&crate::output::format::share_text(sm.binding_within)),
         esc(m)
     );
+    s.push_str(&works_by_year_chart(rows, works, m));
     for (g, cat, region, lines) in &groups {
         let top = lines.iter().map(|l| l.1.max(l.2)).fold(0.0, f64::max);
         let (units, word) = Units::money(top);
@@ -460,10 +461,7 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
     s.push_str("</div>");
     // The same as a table.
     // Capital works in years no line limits: spent without a limit, said and listed.
-    let limited = |y: i32| {
-        rows.iter()
-            .any(|r| r.year.0 == y && (r.category == "capital" || r.category == "all"))
-    };
+    let limited = |y: i32| capital_limited(rows, y);
     let mut free: BTreeMap<i32, (usize, f64)> = BTreeMap::new();
     for w in works.iter().filter(|w| w.category != "routine") {
         if !limited(w.year.0) {
@@ -524,6 +522,61 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
     }
     s.push_str("</tbody></table></section>");
     s
+}
+
+/// Whether a budget line limits capital works in `year` (a capital or an `all` line).
+fn capital_limited(rows: &[BudgetUse], year: i32) -> bool {
+    rows.iter()
+        .any(|r| r.year.0 == year && (r.category == "capital" || r.category == "all"))
+}
+
+/// The cost of the programme's capital works in every year it has works, each bar coloured by
+/// whether a budget line limits capital works that year.
+fn works_by_year_chart(rows: &[BudgetUse], works: &[Work], m: &str) -> String {
+    let mut by_year: BTreeMap<i32, f64> = BTreeMap::new();
+    for w in works.iter().filter(|w| w.category != "routine") {
+        *by_year.entry(w.year.0).or_default() += w.cost.to_f64();
+    }
+    let (Some((&y0, _)), Some((&y1, _))) = (by_year.first_key_value(), by_year.last_key_value())
+    else {
+        return String::new();
+    };
+    let top = by_year.values().copied().fold(0.0, f64::max);
+    let (units, word) = Units::money(top);
+    let y_title = if word.is_empty() {
+        format!("Money ({m})")
+    } else {
+        format!("Money ({m}, {word})")
+    };
+    let mut c = Chart::new(Spec {
+        id: "works-by-year",
+        title: "Capital works each year, with and without a budget line",
+        width: 1000.0,
+        height: 300.0,
+        x: (f64::from(y0), f64::from(y1)),
+        x_pad: 0.6,
+        x_title: "Year",
+        x_units: Units::plain(0),
+        x_integer: true,
+        y: (0.0, top * 1.1),
+        y_title: &y_title,
+        y_units: units,
+        y2: None,
+    });
+    let mut any_free = false;
+    for (&y, &cost) in &by_year {
+        if capital_limited(rows, y) {
+            c.bar("limited", BLUE, f64::from(y), 0.7, 0.0, cost, "");
+        } else {
+            any_free = true;
+            c.bar("no-line", ORANGE, f64::from(y), 0.7, 0.0, cost, "");
+        }
+    }
+    let mut legend = vec![("a line limits the year", BLUE, "")];
+    if any_free {
+        legend.push(("no line limits the year", ORANGE, ""));
+    }
+    c.finish(&legend)
 }
 
 /// A table's start: `open` (the `<table>` tag, and anything before it), then a heading row
@@ -587,7 +640,7 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
     };
     let _ = write!(
         s,
-        "<p>For each section that can be widened: bars, the NPV of the best strategy that widens {years} (left axis, {}); points, the widening's own first-year rate of return (right axis), against the discount rate ({:.1} %, dashed). Outlined bar: the year the plan widens, if it does. Common practice widens in the first year the FYRR reaches the discount rate.</p>",
+        "<p>For each section that can be widened, the best strategy that widens {years}. Bars: its NPV against that of widening in the section's best year (left axis, {}), so that the best year stands at zero and small differences show. Points: the widening's own first-year rate of return (right axis), against the discount rate ({:.1} %, dashed). Outlined bar: the year the plan widens, if it does. Common practice widens in the first year the FYRR reaches the discount rate. A grey band marks a year in which no strategy the section's templates allow widens.</p>",
         esc(m),
         rate * 100.0
     );
@@ -600,13 +653,14 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
     }
     s.push_str(r#"<div class="charts">"#);
     for (id, ws) in secs.iter().take(WIDENING_CHARTS) {
-        let lo = ws.iter().map(|w| w.npv).fold(0.0, f64::min);
-        let hi = ws.iter().map(|w| w.npv).fold(0.0, f64::max);
-        let (units, word) = Units::money(lo.abs().max(hi.abs()));
+        let top = best(ws);
+        let best_year = ws.iter().find(|w| w.npv == top).map_or(0.0, |w| w.year);
+        let lo = ws.iter().map(|w| w.npv - top).fold(0.0, f64::min);
+        let (units, word) = Units::money(lo.abs());
         let y_title = if word.is_empty() {
-            format!("NPV ({m})")
+            format!("Against the best ({m})")
         } else {
-            format!("NPV ({m}, {word})")
+            format!("Against the best ({m}, {word})")
         };
         let fy: Vec<f64> = ws.iter().filter_map(|w| w.fyrr).collect();
         let f_lo = fy.iter().copied().fold(rate.min(0.0), f64::min);
@@ -627,7 +681,12 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
             x_title: "Widening year",
             x_units: Units::plain(0),
             x_integer: true,
-            y: (lo * 1.1, hi * 1.1),
+            // Room under the deepest bar for its label; a single year still has an axis.
+            y: if lo < 0.0 {
+                (lo * 1.2, 0.0)
+            } else {
+                (-1.0, 0.0)
+            },
             y_title: &y_title,
             y_units: units,
             y2: Some((
@@ -636,49 +695,114 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
                 Units::percent(1),
             )),
         });
+        // Years inside the span with no strategy that widens then: a grey band each.
+        let missing: Vec<i32> = (y0 as i32..=y1 as i32)
+            .filter(|y| !ws.iter().any(|w| w.year == f64::from(*y)))
+            .collect();
+        for y in &missing {
+            let (xa, xb) = (c.x.at(f64::from(*y) - 0.5), c.x.at(f64::from(*y) + 0.5));
+            let band = format!(
+                r#"<rect class="none" data-x="{y}" x="{xa:.3}" y="{:.3}" width="{:.3}" height="{:.3}" fill="{NONE_GREY}"/>"#,
+                c.y.p1,
+                xb - xa,
+                c.y.p0 - c.y.p1
+            );
+            c.raw(&band);
+        }
         for w in ws {
             let extra = if w.planned { " planned" } else { "" };
-            c.bar("npv", chart::SKY, w.year, 0.7, 0.0, w.npv, extra);
-            if w.planned {
-                c.label("note", w.year, w.npv.max(0.0), 4.0, "planned", None);
-            }
+            c.bar(
+                "below-best",
+                chart::SKY,
+                w.year,
+                0.7,
+                0.0,
+                w.npv - top,
+                extra,
+            );
         }
+        // Under the zero line, where the best year's bar would be.
+        let best_word = if ws.iter().any(|w| w.planned && w.year == best_year) {
+            "best, planned"
+        } else {
+            "best"
+        };
+        c.label("note", best_year, 0.0, -12.0, best_word, Some(top));
         let pts: Vec<(f64, f64)> = ws
             .iter()
             .filter_map(|w| w.fyrr.map(|f| (w.year, f)))
             .collect();
         c.line("fyrr", VERMILLION, "", &pts, true);
-        c.reference("discount rate", GREY, rate, true);
-        let mut rules: Vec<String> = ws
-            .iter()
-            .filter(|w| w.by_fyrr || w.by_npv)
-            .map(|w| {
-                format!(
-                    "{:.0}{}",
-                    w.year,
-                    match (w.by_fyrr, w.by_npv) {
-                        (true, true) => " (FYRR rule and highest NPV)",
-                        (true, false) => " (FYRR rule)",
-                        _ => " (highest NPV)",
-                    }
-                )
-            })
-            .collect();
+        // The rate's label at the end away from the best year's label.
+        let left = best_year - y0 > y1 - best_year;
+        c.reference_at("discount rate", GREY, rate, true, left);
+        let mut rules: Vec<String> = vec![format!("best in {best_year:.0}, NPV {}", money(top, m))];
+        rules.extend(ws.iter().filter(|w| w.by_fyrr || w.by_npv).map(|w| {
+            format!(
+                "{:.0}{}",
+                w.year,
+                match (w.by_fyrr, w.by_npv) {
+                    (true, true) => " by the FYRR rule and by highest NPV".to_owned(),
+                    (true, false) => format!(
+                        " by the FYRR rule, {} below the best",
+                        money(top - w.npv, m)
+                    ),
+                    _ => " by highest NPV".to_owned(),
+                }
+            )
+        }));
         match ws.iter().find(|w| w.planned) {
-            Some(w) => rules.push(format!("the plan: {}", w.strategy)),
+            Some(w) => rules.push(format!("the plan: {}", esc(w.strategy))),
             None => rules.push("the plan does not widen".to_owned()),
         }
+        if !missing.is_empty() {
+            rules.push(format!(
+                "no strategy its templates allow widens in {}",
+                year_runs(&missing)
+            ));
+        }
         s.push_str("<figure>");
-        s.push_str(&c.finish(&[("NPV", chart::SKY, ""), ("FYRR", VERMILLION, "")]));
+        let mut legend = vec![("NPV", chart::SKY, ""), ("FYRR", VERMILLION, "")];
+        if ws.iter().any(|w| w.planned) {
+            legend.push(("planned (outlined)", "#1a1a1a", ""));
+        }
+        if !missing.is_empty() {
+            legend.push(("no widening", NONE_GREY, ""));
+        }
+        s.push_str(&c.finish(&legend));
         let _ = write!(
             s,
             r#"<figcaption class="small">{}: {}</figcaption></figure>"#,
             esc(id),
-            esc(&rules.join("; "))
+            rules.join("; ")
         );
     }
     s.push_str("</div></section>");
     s
+}
+
+/// The band of a year in which no strategy widens.
+const NONE_GREY: &str = "#e3e3e3";
+
+/// Years as runs: `2028–2029, 2046`.
+fn year_runs(years: &[i32]) -> String {
+    let mut runs: Vec<(i32, i32)> = Vec::new();
+    for &y in years {
+        match runs.last_mut() {
+            Some(r) if r.1 + 1 == y => r.1 = y,
+            _ => runs.push((y, y)),
+        }
+    }
+    runs.iter()
+        .map(|&(a, b)| {
+            if a == b {
+                a.to_string()
+            } else {
+                format!("{a}–{b}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 fn frontier_section(levels: Option<&[FrontierLevel]>, sm: &Summary) -> String {
