@@ -325,8 +325,8 @@ pub fn terminal(c: &Comparison, all: bool) -> String {
         let wl = moved.iter().map(|l| l.line.len()).max().unwrap_or(0).max(4);
         let _ = writeln!(
             s,
-            "  {:<wl$}  {:>16}  {:<19}  {}",
-            "line", "used A → B", "state A → B", "price A → B"
+            "  {:<wl$}  {:>16}  {:<19}  price A → B",
+            "line", "used A → B", "state A → B"
         );
         for l in &moved {
             let price = |p: Option<crate::schema::value::Price>| {

@@ -654,7 +654,12 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
     s.push_str(r#"<div class="charts">"#);
     for (id, ws) in secs.iter().take(WIDENING_CHARTS) {
         let top = best(ws);
-        let best_year = ws.iter().find(|w| w.npv == top).map_or(0.0, |w| w.year);
+        // The first year with the best NPV (`max_by` keeps the last of equals, so reversed).
+        let best_year = ws
+            .iter()
+            .rev()
+            .max_by(|a, b| a.npv.total_cmp(&b.npv))
+            .map_or(0.0, |w| w.year);
         let lo = ws.iter().map(|w| w.npv - top).fold(0.0, f64::min);
         let (units, word) = Units::money(lo.abs());
         let y_title = if word.is_empty() {
@@ -697,7 +702,7 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
         });
         // Years inside the span with no strategy that widens then: a grey band each.
         let missing: Vec<i32> = (y0 as i32..=y1 as i32)
-            .filter(|y| !ws.iter().any(|w| w.year == f64::from(*y)))
+            .filter(|y| !ws.iter().any(|w| (w.year - f64::from(*y)).abs() < 0.5))
             .collect();
         for y in &missing {
             let (xa, xb) = (c.x.at(f64::from(*y) - 0.5), c.x.at(f64::from(*y) + 0.5));
@@ -722,7 +727,10 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
             );
         }
         // Under the zero line, where the best year's bar would be.
-        let best_word = if ws.iter().any(|w| w.planned && w.year == best_year) {
+        let best_word = if ws
+            .iter()
+            .any(|w| w.planned && (w.year - best_year).abs() < 0.5)
+        {
             "best, planned"
         } else {
             "best"
