@@ -260,3 +260,66 @@ fn a_directory_without_a_plan_is_refused() {
         .stderr_has("expected the directory `pavestrat plan --out DIR` wrote");
     assert!(!wd.join("c").exists());
 }
+
+/// A scenario planned afresh is held exactly as its written plan: against the directory `plan`
+/// wrote from it, no change; and a budget cut asked of the scenario lists the same sections and
+/// the same line use as the two written plans do.
+#[test]
+fn scenarios_planned_afresh_are_their_written_plans() {
+    let wd = Workdir::new();
+    wd.demo_files();
+    wd.run(&["-q", "plan", "--scenario", "scenario.toml", "--out", "a"])
+        .expect_code(0);
+    wd.run(&[
+        "-q",
+        "plan",
+        "--scenario",
+        "scenario.toml",
+        "--out",
+        "b",
+        "--budget-scale",
+        "0.8",
+    ])
+    .expect_code(0);
+    wd.run(&["compare", "a", "scenario.toml", "--out", "same"])
+        .expect_code(0)
+        .stdout_has("B: scenario.toml (planned afresh)")
+        .stdout_has("made under the same assumptions")
+        .stdout_has("0 chose differently")
+        .stdout_has("Budget lines: no price or state moved");
+    for r in rows(&wd.read("same/comparison_lines.csv")) {
+        assert_eq!(r["used_a"], r["used_b"], "{r:?}");
+        assert_eq!(r["price_a"], r["price_b"], "{r:?}");
+    }
+    wd.run(&["-q", "compare", "a", "b", "--out", "written"])
+        .expect_code(0);
+    wd.run(&[
+        "-q",
+        "compare",
+        "scenario.toml",
+        "scenario.toml",
+        "--budget-scale-b",
+        "0.8",
+        "--out",
+        "afresh",
+    ])
+    .expect_code(0);
+    for name in [
+        "comparison.csv",
+        "comparison_lines.csv",
+        "comparison_years.csv",
+    ] {
+        assert_eq!(
+            wd.read(&format!("written/{name}")),
+            wd.read(&format!("afresh/{name}")),
+            "{name}"
+        );
+    }
+    // A scale is for a scenario only; a path that is neither is named.
+    wd.run(&["compare", "a", "b", "--budget-scale-b", "0.8"])
+        .expect_code(2)
+        .stderr_has("--budget-scale-b applies to a scenario planned afresh");
+    wd.run(&["compare", "a", "nowhere"])
+        .expect_code(2)
+        .stderr_has("plan B: nowhere does not exist");
+}

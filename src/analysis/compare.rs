@@ -99,6 +99,9 @@ pub struct Side {
     pub summary: Summary,
     /// The run id of the `plan` that wrote the files (from the directory's manifest).
     pub run: Option<String>,
+    /// A scenario planned afresh by this comparison (`dir` is the scenario file), not a
+    /// written plan.
+    pub afresh: bool,
     sections: Vec<SectionPlan>,
     /// The columns `section_plan.csv` carries from the network (location, `x_`), by name, and
     /// each section's cells in them.
@@ -171,6 +174,7 @@ impl Side {
             run: manifest
                 .as_ref()
                 .and_then(|m| m.plan_run().map(str::to_owned)),
+            afresh: false,
             sections: lines.into_iter().map(|(_, r)| r).collect(),
             carried_names,
             carried,
@@ -178,6 +182,34 @@ impl Side {
             condition: schema::read(dir)?,
             works: schema::read(dir)?,
         })
+    }
+}
+
+/// A plan made in this run from the scenario `file`: its rows, as its files would hold them.
+/// The carried columns are `carried_names`, and each section's cells in them, in the sections'
+/// order.
+#[allow(clippy::too_many_arguments)]
+pub fn planned_afresh(
+    file: &Path,
+    summary: Summary,
+    sections: Vec<SectionPlan>,
+    carried_names: Vec<String>,
+    carried: Vec<Vec<String>>,
+    budget: Vec<BudgetUse>,
+    condition: Vec<Condition>,
+    works: Vec<Work>,
+) -> Side {
+    Side {
+        dir: file.to_owned(),
+        summary,
+        run: None,
+        afresh: true,
+        sections,
+        carried_names,
+        carried,
+        budget,
+        condition,
+        works,
     }
 }
 

@@ -72,11 +72,11 @@ pub struct Args {
 
     /// Stop once the plan is proven within this relative gap of the bound (fraction or %). The
     /// exact path first spends up to a second seeking a complete proof.
-    #[arg(long, value_name = "GAP", default_value = "0.0001", value_parser = parse_gap)]
+    #[arg(long, value_name = "GAP", default_value_t = DEFAULT_GAP, value_parser = parse_gap)]
     pub gap: f64,
 
     /// Most seconds the selection may take (the simulation before it is not counted).
-    #[arg(long, value_name = "SECONDS", default_value_t = 10.0, value_parser = parse_seconds)]
+    #[arg(long, value_name = "SECONDS", default_value_t = DEFAULT_TIME_LIMIT, value_parser = parse_seconds)]
     pub time_limit: f64,
 
     /// Also write report.html (and the budget frontier it shows, frontier.csv) into --out DIR.
@@ -107,6 +107,11 @@ pub struct Args {
     #[command(flatten)]
     pub out: OutArg,
 }
+
+/// The relative gap a plan is proven within unless `--gap` says otherwise.
+pub(super) const DEFAULT_GAP: f64 = 0.0001;
+/// The selection's seconds unless `--time-limit` says otherwise.
+pub(super) const DEFAULT_TIME_LIMIT: f64 = 10.0;
 
 /// Seconds each frontier level may take when `--report` computes the frontier.
 const REPORT_FRONTIER_SECONDS: f64 = 2.0;

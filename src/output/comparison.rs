@@ -4,7 +4,10 @@
 //! [`crate::output::report::compare`].
 
 use crate::analysis::compare::{Change, Comparison, Side};
+use crate::input::Run;
 use crate::model::money::{grouped, price_figure};
+use crate::output::files::Facts;
+use crate::plan::Plan;
 use crate::schema::compare::{LineChange, SectionChange, YearChange};
 use crate::schema::value::{write_text, Dec};
 use crate::schema::{self, Record as _};
@@ -46,11 +49,52 @@ pub fn years_text(c: &Comparison) -> String {
 }
 
 /// A side's place and run, for the heading.
-fn which(side: &Side) -> String {
+pub fn which(side: &Side) -> String {
     match &side.run {
         Some(r) => format!("{} (plan run {r})", side.dir.display()),
+        None if side.afresh => format!("{} (planned afresh)", side.dir.display()),
         None => side.dir.display().to_string(),
     }
+}
+
+/// The plan `p` of `run`, made in this run from the scenario `file`, as a side of a
+/// comparison: the rows its files would hold.
+pub fn side_of(run: &Run, p: &Plan, facts: &Facts, file: &std::path::Path) -> Side {
+    use crate::output::files;
+    use crate::schema::carried::{carried, carried_names, Carried};
+    let net = &run.network;
+    let e = crate::enumerate::Enumerator::for_run(run);
+    let first = files::first_works(p, net.sections.len());
+    let sections = (0..net.sections.len())
+        .map(|g| files::section_plan(run, &e, p, g, first[g]))
+        .collect();
+    let cells = net
+        .sections
+        .iter()
+        .map(|sec| {
+            carried(net, sec)
+                .map(|(_, v)| match v {
+                    Carried::Text(t) => t.to_owned(),
+                    Carried::Km(Some(x)) => {
+                        let mut t = String::new();
+                        crate::schema::Value::write(&x, &mut t);
+                        t
+                    }
+                    Carried::Km(None) => String::new(),
+                })
+                .collect()
+        })
+        .collect();
+    crate::analysis::compare::planned_afresh(
+        file,
+        files::summary(run, p, facts, ""),
+        sections,
+        carried_names(net),
+        cells,
+        files::budget_use(run, p),
+        files::condition(&p.condition),
+        files::work_programme(run, p).collect(),
+    )
 }
 
 /// `b − a` with its sign, and its share of `a` when `a` is not zero.

@@ -57,10 +57,11 @@ pub fn page(c: &Comparison) -> String {
             } else {
                 &side.summary.assumptions.title
             }),
-            esc(&side
-                .run
-                .as_deref()
-                .map_or(String::new(), |r| format!("plan run {r}")))
+            esc(&match (&side.run, side.afresh) {
+                (Some(r), _) => format!("plan run {r}"),
+                (None, true) => "planned afresh from the scenario".to_owned(),
+                (None, false) => String::new(),
+            })
         );
     }
     s.push_str("</tbody></table>");
