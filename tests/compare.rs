@@ -319,6 +319,16 @@ fn scenarios_planned_afresh_are_their_written_plans() {
     wd.run(&["compare", "a", "b", "--budget-scale-b", "0.8"])
         .expect_code(2)
         .stderr_has("--budget-scale-b applies to a scenario planned afresh");
+    // A side with no feasible plan is named.
+    wd.run(&[
+        "compare",
+        "scenario.toml",
+        "scenario.toml",
+        "--budget-scale-b",
+        "0",
+    ])
+    .expect_code(3)
+    .stderr_has("plan B (scenario.toml planned afresh)");
     wd.run(&["compare", "a", "nowhere"])
         .expect_code(2)
         .stderr_has("plan B: nowhere does not exist");

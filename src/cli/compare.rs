@@ -139,13 +139,26 @@ fn side(
         run.network.sections.len() as u64,
         "sections",
     );
-    let candidates = pavestrat::plan::candidates_with(&run, &settings, &bar)?;
+    // A failure says which side it is of.
+    let of_side = |e: Error| match e {
+        Error::Infeasible(m) => Error::Infeasible(format!(
+            "plan {which} ({} planned afresh): {m}",
+            path.display()
+        )),
+        Error::Usage(m) => Error::Usage(format!(
+            "plan {which} ({} planned afresh): {m}",
+            path.display()
+        )),
+        other => other,
+    };
+    let candidates = pavestrat::plan::candidates_with(&run, &settings, &bar).map_err(of_side)?;
     bar.finish();
     let built = started.elapsed();
     let clock = ctx.progress.clock(&format!("select {which}"), time_limit);
     let plan = crate::cli::bars::ticking(&clock, || {
         pavestrat::plan::select(&run, candidates, &settings.select)
-    })?;
+    })
+    .map_err(of_side)?;
     let facts = pavestrat::output::files::Facts {
         seconds: started.elapsed().as_secs_f64(),
         candidate_seconds: built.as_secs_f64(),
