@@ -1139,6 +1139,84 @@ per_year = "400000"
         );
     }
 
+    /// The maximum flow is the linear programme it stands for: over random years of lines
+    /// (network-wide and regional, of every category, some absent), the most spending within
+    /// every line, counting only spending some line limits, solved as an LP by good_lp's
+    /// microlp, equals [`year_money`].
+    #[test]
+    fn year_money_is_the_largest_spending_within_every_line() {
+        use good_lp::{constraint, variable, Expression, ProblemVariables, Solution, SolverModel};
+        let mut rng = crate::demo::synth::SplitMix64::new(11);
+        let names = ["a", "b", "c"];
+        for case in 0..300 {
+            let mut caps: [Caps<'_>; 3] = Default::default();
+            for c in &mut caps {
+                if rng.range(0.0, 1.0) < 0.5 {
+                    c.0 = Some(rng.range(0.0, 10.0).round());
+                }
+                for r in names {
+                    if rng.range(0.0, 1.0) < 0.4 {
+                        c.1.push((r, rng.range(0.0, 10.0).round()));
+                    }
+                }
+            }
+            let of = |per: &[(&str, f64)], r: Option<&str>| {
+                r.and_then(|r| per.iter().find(|x| x.0 == r).map(|x| x.1))
+            };
+            let regions: Vec<Option<&str>> = names.iter().map(|r| Some(*r)).chain([None]).collect();
+            let mut vars = ProblemVariables::new();
+            // s[k][c]: spending of category c in region k, when some line limits it.
+            let mut s: Vec<[Option<good_lp::Variable>; 2]> = Vec::new();
+            for &r in &regions {
+                let mut row = [None, None];
+                for (c, slot) in row.iter_mut().enumerate() {
+                    let limited = caps[2].0.is_some()
+                        || caps[c].0.is_some()
+                        || of(&caps[c].1, r).is_some()
+                        || of(&caps[2].1, r).is_some();
+                    if limited {
+                        *slot = Some(vars.add(variable().min(0.0)));
+                    }
+                }
+                s.push(row);
+            }
+            let all: Vec<good_lp::Variable> = s.iter().flatten().flatten().copied().collect();
+            let total: Expression = all.iter().copied().sum();
+            let mut m = vars.maximise(total.clone()).using(good_lp::microlp);
+            if let Some(w) = caps[2].0 {
+                m = m.with(constraint!(total.clone() <= w));
+            }
+            for c in 0..2 {
+                if let Some(w) = caps[c].0 {
+                    let e: Expression = s.iter().filter_map(|row| row[c]).sum();
+                    m = m.with(constraint!(e <= w));
+                }
+                for (k, &r) in regions.iter().enumerate() {
+                    if let (Some(l), Some(v)) = (of(&caps[c].1, r), s[k][c]) {
+                        m = m.with(constraint!(v <= l));
+                    }
+                }
+            }
+            for (k, &r) in regions.iter().enumerate() {
+                if let Some(l) = of(&caps[2].1, r) {
+                    let e: Expression = s[k].iter().flatten().copied().sum();
+                    m = m.with(constraint!(e <= l));
+                }
+            }
+            let lp = if all.is_empty() {
+                0.0
+            } else {
+                let sol = m.solve().expect("bounded: every variable is limited");
+                all.iter().map(|v| sol.value(*v)).sum()
+            };
+            let flow = year_money(&caps);
+            assert!(
+                (lp - flow).abs() < 1e-6,
+                "case {case}: LP {lp}, flow {flow}, {caps:?}"
+            );
+        }
+    }
+
     #[test]
     fn reports_every_problem_at_once() {
         let bad = GOOD
