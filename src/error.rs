@@ -33,10 +33,56 @@ pub enum Error {
     },
     /// No plan meets the budget lines, targets and commitments.
     #[error("no feasible plan: {0}")]
-    Infeasible(String),
+    Infeasible(NoPlan),
     /// A fault of the tool itself.
     #[error("internal fault: {0}")]
     Internal(String),
+}
+
+/// Why no plan meets the lines: the kind of impossibility and the lines it names (when the
+/// selection knows them), with the whole message.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NoPlan {
+    pub kind: Option<NoPlanKind>,
+    /// The lines named, in the message's order.
+    pub lines: Vec<String>,
+    pub text: String,
+}
+
+/// The kinds of impossibility, from the surest.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum NoPlanKind {
+    /// A line no plan can meet even with every section at its least spending.
+    LeastSpending,
+    /// Lines each met alone that a complete search proved cannot be met together.
+    ProvenTogether,
+    /// Lines no plan found within the time limit meets, not proven impossible.
+    NotFound,
+}
+
+impl NoPlan {
+    /// A message with no kind or lines known.
+    pub fn text(text: impl Into<String>) -> NoPlan {
+        NoPlan {
+            kind: None,
+            lines: Vec::new(),
+            text: text.into(),
+        }
+    }
+
+    /// The same, with `before` ahead of the message (which side of a comparison, say).
+    pub fn prefixed(self, before: &str) -> NoPlan {
+        NoPlan {
+            text: format!("{before}{}", self.text),
+            ..self
+        }
+    }
+}
+
+impl std::fmt::Display for NoPlan {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.text)
+    }
 }
 
 fn render_input(d: &Diagnostics) -> String {

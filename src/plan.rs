@@ -1190,43 +1190,37 @@ fn infeasible(run: &Run, c: &Candidates, inf: Infeasible) -> crate::error::Error
             }
         }
     };
-    let text = match inf {
-        Infeasible::Rows(rows) => {
-            let lines: Vec<String> = rows
-                .iter()
-                .map(|&(j, least)| describe(j, least, "least possible"))
-                .collect();
-            format!(
-                "these lines cannot be met even with the least spending (and best condition) every \
-                 section's commitments allow:\n  {}",
-                lines.join("\n  ")
-            )
-        }
-        Infeasible::Together(rows) => {
-            let lines: Vec<String> = rows
-                .iter()
-                .map(|&(j, used)| describe(j, used, "closest plan found"))
-                .collect();
-            format!(
-                "each line can be met on its own, but a complete search proved that no plan meets \
-                 them all together; the closest plan found breaks:\n  {}",
-                lines.join("\n  ")
-            )
-        }
-        Infeasible::NotFound(rows) => {
-            let lines: Vec<String> = rows
-                .iter()
-                .map(|&(j, used)| describe(j, used, "closest plan found"))
-                .collect();
-            format!(
-                "no plan meeting every line together was found within the time limit, though none \
-                 was proven impossible (give it more time with --time-limit, or loosen these \
-                 lines); the closest plan found breaks:\n  {}",
-                lines.join("\n  ")
-            )
-        }
+    use crate::error::{NoPlan, NoPlanKind};
+    let (kind, rows, verb, head) = match &inf {
+        Infeasible::Rows(rows) => (
+            NoPlanKind::LeastSpending,
+            rows,
+            "least possible",
+            "these lines cannot be met even with the least spending (and best condition) every \
+             section's commitments allow:",
+        ),
+        Infeasible::Together(rows) => (
+            NoPlanKind::ProvenTogether,
+            rows,
+            "closest plan found",
+            "each line can be met on its own, but a complete search proved that no plan meets \
+             them all together; the closest plan found breaks:",
+        ),
+        Infeasible::NotFound(rows) => (
+            NoPlanKind::NotFound,
+            rows,
+            "closest plan found",
+            "no plan meeting every line together was found within the time limit, though none \
+             was proven impossible (give it more time with --time-limit, or loosen these \
+             lines); the closest plan found breaks:",
+        ),
     };
-    crate::error::Error::Infeasible(text)
+    let described: Vec<String> = rows.iter().map(|&(j, x)| describe(j, x, verb)).collect();
+    crate::error::Error::Infeasible(NoPlan {
+        kind: Some(kind),
+        lines: rows.iter().map(|&(j, _)| c.rows[j].name.clone()).collect(),
+        text: format!("{head}\n  {}", described.join("\n  ")),
+    })
 }
 
 /// Re-simulate the chosen strategies and sum every budget line's spending in exact decimal

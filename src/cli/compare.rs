@@ -141,10 +141,10 @@ fn side(
     );
     // A failure says which side it is of.
     let of_side = |e: Error| match e {
-        Error::Infeasible(m) => Error::Infeasible(format!(
-            "plan {which} ({} planned afresh): {m}",
+        Error::Infeasible(m) => Error::Infeasible(m.prefixed(&format!(
+            "plan {which} ({} planned afresh): ",
             path.display()
-        )),
+        ))),
         Error::Usage(m) => Error::Usage(format!(
             "plan {which} ({} planned afresh): {m}",
             path.display()

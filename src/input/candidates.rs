@@ -488,7 +488,7 @@ pub fn infeasible(file: &CandidateFile, b: &Built, e: Infeasible) -> Error {
             .collect::<Vec<_>>()
             .join("\n  ")
     };
-    Error::Infeasible(match e {
+    Error::Infeasible(crate::error::NoPlan::text(match e {
         Infeasible::Rows(r) => format!(
             "these rows cannot be met even with every section at its least use:\n  {}",
             describe(&r, "least possible")
@@ -501,5 +501,5 @@ pub fn infeasible(file: &CandidateFile, b: &Built, e: Infeasible) -> Error {
             "no selection that meets every row was found within the time limit (not proven impossible; a longer --time-limit may find one); the closest found breaks:\n  {}",
             describe(&r, "closest found")
         ),
-    })
+    }))
 }
