@@ -463,6 +463,11 @@ fn frontier_is_monotone_reaches_the_unconstrained_plan_and_is_plotted() {
     let o1: f64 = one["objective"].parse().unwrap();
     let b1: f64 = one["bound"].parse().unwrap();
     assert!(o1 <= summary["bound"].as_f64().unwrap() + 0.01 && plan <= b1 + 0.01);
+    // A plan proven optimal is optimal at its own level of the frontier too (it read
+    // `within-gap` there, from the bound's 1e-10 of rounding).
+    if summary["status"] == "optimal" {
+        assert_eq!(one["status"], "optimal");
+    }
     // Where no line binds, every section has its best strategy: the unconstrained NPV.
     let top = fr.last().unwrap();
     assert_eq!(top["unlimited"], "true");

@@ -177,14 +177,14 @@ pub fn frontier(
                 solved: solved.map(|(value, bound, status, kept)| {
                     let bound = bound.min(cap).max(value);
                     let gap = relative_gap(value, bound);
-                    let status = if gap <= options.gap {
-                        if gap <= 1e-12 {
-                            Status::Optimal
-                        } else {
-                            Status::WithinGap
-                        }
-                    } else {
-                        status
+                    // A level the search proved optimal stays so (the plan at level 1 is
+                    // `plan`'s, and says the same); a bound capped by a higher level's may
+                    // close the gap of another.
+                    let status = match status {
+                        Status::Optimal => Status::Optimal,
+                        _ if gap <= 1e-12 => Status::Optimal,
+                        _ if gap <= options.gap => Status::WithinGap,
+                        other => other,
                     };
                     Solved {
                         objective: c.objective_of(value),
