@@ -100,27 +100,39 @@ pub(crate) fn stage_beside(path: &Path, bytes: &[u8]) -> Result<tempfile::NamedT
         .suffix(".tmp")
         .tempfile_in(&dir)
         .map_err(fail)?;
-    tmp.write_all(bytes).map_err(fail)?;
-    tmp.as_file().sync_all().map_err(fail)?;
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        tmp.as_file()
-            .set_permissions(std::fs::Permissions::from_mode(0o644))
-            .map_err(fail)?;
+    // Noted for the signal handler until it is moved into place (or dropped, which removes it).
+    set::staged_file(tmp.path());
+    let mut fill = || -> std::io::Result<()> {
+        tmp.write_all(bytes)?;
+        tmp.as_file().sync_all()?;
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::PermissionsExt;
+            tmp.as_file()
+                .set_permissions(std::fs::Permissions::from_mode(0o644))?;
+        }
+        Ok(())
+    };
+    match fill() {
+        Ok(()) => Ok(tmp),
+        Err(e) => {
+            set::settled_file(tmp.path());
+            Err(fail(e))
+        }
     }
-    Ok(tmp)
 }
 
 /// Write one file all or nothing: into a temporary file beside `path`, renamed over it when
 /// complete (a failure leaves no partial file).
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
-    stage_beside(path, bytes)?
-        .persist(path)
-        .map_err(|e| Error::Write {
-            path: path.to_owned(),
-            source: e.error,
-        })?;
+    let tmp = stage_beside(path, bytes)?;
+    let staged = tmp.path().to_owned();
+    let moved = tmp.persist(path);
+    set::settled_file(&staged);
+    moved.map_err(|e| Error::Write {
+        path: path.to_owned(),
+        source: e.error,
+    })?;
     Ok(())
 }
 

@@ -122,8 +122,29 @@ fn werr(path: &Path) -> impl Fn(std::io::Error) -> Error + '_ {
 /// Staging directories of this process that are not finished yet (for the signal handler).
 static LIVE: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
 
-/// Catch SIGINT, SIGTERM and SIGHUP: finish or remove this process's staging directories, then
-/// exit with 128 + the signal number. Call once, early (the CLI does).
+/// Temporary files of this process staged beside their targets and not yet moved into place
+/// (a workbook, a report written with `--out FILE`), for the signal handler.
+static LIVE_FILES: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+
+/// Note a temporary file staged beside its target, for the signal handler to remove.
+pub(crate) fn staged_file(path: &Path) {
+    LIVE_FILES
+        .lock()
+        .unwrap_or_else(|p| p.into_inner())
+        .push(path.to_owned());
+}
+
+/// Forget a staged file (moved into place, or removed).
+pub(crate) fn settled_file(path: &Path) {
+    LIVE_FILES
+        .lock()
+        .unwrap_or_else(|p| p.into_inner())
+        .retain(|p| p != path);
+}
+
+/// Catch SIGINT, SIGTERM and SIGHUP: finish or remove this process's staging directories and
+/// remove its staged files, then exit with 128 + the signal number. Call once, early (the CLI
+/// does).
 pub fn install_signal_cleanup() {
     use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
     let Ok(mut signals) = signal_hook::iterator::Signals::new([SIGINT, SIGTERM, SIGHUP]) else {
@@ -139,6 +160,10 @@ pub fn install_signal_cleanup() {
                     if let Some(dir) = stage.parent() {
                         let _ = settle(dir, stage);
                     }
+                }
+                // A file already moved into place is no longer there under its staged name.
+                for file in LIVE_FILES.lock().unwrap_or_else(|p| p.into_inner()).iter() {
+                    let _ = std::fs::remove_file(file);
                 }
                 std::process::exit(128 + sig);
             }
@@ -548,7 +573,10 @@ impl StreamSet {
         let jp = self.stage.join(JOURNAL);
         std::fs::rename(self.stage.join("JOURNAL.tmp"), &jp).map_err(werr(&jp))?;
         for (tmp, target) in std::mem::take(&mut self.extras) {
-            tmp.persist(&target).map_err(|e| werr(&target)(e.error))?;
+            let staged = tmp.path().to_owned();
+            let moved = tmp.persist(&target);
+            settled_file(&staged);
+            moved.map_err(|e| werr(&target)(e.error))?;
         }
         // Past the commit point: a move that fails leaves the journalled staging directory for
         // the next opener to finish, and says so.
@@ -572,7 +600,11 @@ impl Drop for StreamSet {
             return;
         }
         self.files.clear();
-        self.extras.clear();
+        for (tmp, _) in std::mem::take(&mut self.extras) {
+            let staged = tmp.path().to_owned();
+            drop(tmp);
+            settled_file(&staged);
+        }
         // Past the commit point a failed move is finished by whoever opens the directory next;
         // before it, the staging directory goes.
         if !self.stage.join(JOURNAL).exists() {
@@ -656,6 +688,46 @@ mod tests {
             .collect();
         names.sort();
         names
+    }
+
+    /// A file staged beside its target is known to the signal handler until it is moved into
+    /// place, or removed with the set that staged it.
+    #[test]
+    fn staged_files_are_known_until_settled() {
+        let dir = tempfile::tempdir().unwrap();
+        let live = |p: &Path| {
+            LIVE_FILES
+                .lock()
+                .unwrap_or_else(|e| e.into_inner())
+                .contains(&p.to_owned())
+        };
+        let target = dir.path().join("book.xlsx");
+        let tmp = crate::io::stage_beside(&target, b"bytes").unwrap();
+        let staged = tmp.path().to_owned();
+        assert!(live(&staged) && staged.exists());
+        drop(tmp);
+        settled_file(&staged);
+        assert!(!live(&staged) && !staged.exists());
+        // Through a set: staged with it, forgotten once it is committed or dropped.
+        for commit in [true, false] {
+            let out = dir.path().join(format!("out-{commit}"));
+            let mut set = StreamSet::create(&out, "test", &["a.csv"]).unwrap();
+            set.write_to("a.csv", b"x\n").unwrap();
+            set.extra(&target, b"book").unwrap();
+            let staged: Vec<PathBuf> = set
+                .extras
+                .iter()
+                .map(|(t, _)| t.path().to_owned())
+                .collect();
+            assert!(staged.iter().all(|p| live(p)));
+            if commit {
+                set.commit().unwrap();
+                assert_eq!(std::fs::read(&target).unwrap(), b"book");
+            } else {
+                drop(set);
+            }
+            assert!(staged.iter().all(|p| !live(p) && !p.exists()));
+        }
     }
 
     #[test]
