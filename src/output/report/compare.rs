@@ -4,6 +4,7 @@
 //! with its use, state and price in both plans.
 
 use super::chart::{esc, Chart, Spec, Units, BLUE, ORANGE};
+use super::extra::axis_title;
 use super::{table_head, CSS};
 use crate::analysis::compare::{Change, Comparison};
 use crate::model::money::{grouped, price_figure};
@@ -143,11 +144,7 @@ fn years_section(c: &Comparison, m: &str) -> String {
             .map(|y| y.cost_a.to_f64().max(y.cost_b.to_f64()))
             .fold(0.0, f64::max);
         let (units, word) = Units::money(top);
-        let y_title = if word.is_empty() {
-            format!("Works cost ({m})")
-        } else {
-            format!("Works cost ({m}, {word})")
-        };
+        let y_title = axis_title("Works cost", m, word);
         let mut ch = Chart::new(Spec {
             id: "compare-cost",
             title: "Works cost by year",

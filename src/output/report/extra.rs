@@ -8,7 +8,8 @@ use crate::schema::analysis::{Risk, RiskDraw, Sensitivity};
 use crate::schema::value::{Cents, Fixed};
 use std::fmt::Write as _;
 
-fn axis_title(what: &str, m: &str, word: &str) -> String {
+/// An axis title for money: `NPV (VCR)`, or `NPV (VCR, millions)` with the units' word.
+pub(super) fn axis_title(what: &str, m: &str, word: &str) -> String {
     if word.is_empty() {
         format!("{what} ({m})")
     } else {

@@ -21,6 +21,7 @@ use crate::schema::plan::{BudgetUse, Condition, TargetUse, Widening, Work, SUMMA
 use crate::schema::summary::Summary;
 use crate::schema::{self, Record};
 use chart::{esc, Chart, Spec, Units, BLUE, GREEN, GREY, ORANGE, VERMILLION};
+use extra::axis_title;
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
 use std::path::Path;
@@ -412,11 +413,7 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
     for (g, cat, region, lines) in &groups {
         let top = lines.iter().map(|l| l.1.max(l.2)).fold(0.0, f64::max);
         let (units, word) = Units::money(top);
-        let y_title = if word.is_empty() {
-            format!("Money ({m})")
-        } else {
-            format!("Money ({m}, {word})")
-        };
+        let y_title = axis_title("Money", m, word);
         let ys: Vec<f64> = lines.iter().map(|l| l.0).collect();
         let (y0, y1) = (
             ys.iter().copied().fold(f64::INFINITY, f64::min),
@@ -543,11 +540,7 @@ fn works_by_year_chart(rows: &[BudgetUse], works: &[Work], m: &str) -> String {
     };
     let top = by_year.values().copied().fold(0.0, f64::max);
     let (units, word) = Units::money(top);
-    let y_title = if word.is_empty() {
-        format!("Money ({m})")
-    } else {
-        format!("Money ({m}, {word})")
-    };
+    let y_title = axis_title("Money", m, word);
     let mut c = Chart::new(Spec {
         id: "works-by-year",
         title: "Capital works each year, with and without a budget line",
@@ -662,11 +655,7 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
             .map_or(0.0, |w| w.year);
         let lo = ws.iter().map(|w| w.npv - top).fold(0.0, f64::min);
         let (units, word) = Units::money(lo.abs());
-        let y_title = if word.is_empty() {
-            format!("Against the best ({m})")
-        } else {
-            format!("Against the best ({m}, {word})")
-        };
+        let y_title = axis_title("Against the best", m, word);
         let fy: Vec<f64> = ws.iter().filter_map(|w| w.fyrr).collect();
         let f_lo = fy.iter().copied().fold(rate.min(0.0), f64::min);
         let f_hi = fy.iter().copied().fold(rate, f64::max);
