@@ -1241,3 +1241,21 @@ fn pages_fit_700_px_and_a4_without_clipped_or_overlapping_text() {
         }
     }
 }
+
+/// A plan written without `--every-widening-year` lists only the picked widening years: its
+/// report's charts shade no year as one no strategy widens in (the others are only not listed).
+#[test]
+fn a_report_of_picked_widening_years_claims_no_year_without_widening() {
+    let wd = Workdir::new();
+    wd.run(&["-q", "plan", "--out", "p"]).expect_code(0);
+    wd.run(&["-q", "report", "--from", "p"]).expect_code(0);
+    let html = wd.read("p/report.html");
+    let doc = Html::parse_document(&html);
+    assert!(doc
+        .select(&sel(r#"svg.chart[data-chart^="widening-"]"#))
+        .next()
+        .is_some());
+    assert_eq!(doc.select(&sel("rect.none")).count(), 0);
+    assert!(!html.contains("no strategy its templates allow widens in"));
+    assert!(html.contains("the other years are not listed"));
+}

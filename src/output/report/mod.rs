@@ -689,10 +689,15 @@ fn widening_section(rows: &[Widening], sm: &Summary) -> String {
                 Units::percent(1),
             )),
         });
-        // Years inside the span with no strategy that widens then: a grey band each.
-        let missing: Vec<i32> = (y0 as i32..=y1 as i32)
-            .filter(|y| !ws.iter().any(|w| (w.year - f64::from(*y)).abs() < 0.5))
-            .collect();
+        // Years inside the span with no strategy that widens then: a grey band each (known
+        // only when every widening year is listed; otherwise the years not picked are missing).
+        let missing: Vec<i32> = if every {
+            (y0 as i32..=y1 as i32)
+                .filter(|y| !ws.iter().any(|w| (w.year - f64::from(*y)).abs() < 0.5))
+                .collect()
+        } else {
+            Vec::new()
+        };
         for y in &missing {
             let (xa, xb) = (c.x.at(f64::from(*y) - 0.5), c.x.at(f64::from(*y) + 0.5));
             let band = format!(
