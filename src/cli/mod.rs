@@ -80,8 +80,9 @@ pub enum Command {
     /// best, spending against budgets; reproducible, and splittable into slices.
     #[command(after_help = AFTER_HELP)]
     Risk(risk::Args),
-    /// Two written plans side by side: which sections chose differently, money by year and
-    /// budget group, condition, and the budget lines whose prices moved.
+    /// Two plans side by side (written, or scenarios planned afresh): which sections chose
+    /// differently, money by year and budget group, condition, and the budget lines whose
+    /// prices moved.
     #[command(after_help = AFTER_HELP)]
     Compare(compare::Args),
     /// Why a section got its strategy in a plan (read from `plan --out DIR`).
