@@ -541,10 +541,13 @@ fn differences(a: &Summary, b: &Summary) -> Vec<String> {
         a.budget_scale.to_string(),
         b.budget_scale.to_string(),
     );
+    // A rate in percent to six decimals, trailing zeros dropped (0.06 → `6 %`, not the float's
+    // 6.000000000000001).
+    let percent = |r: f64| format!("{} %", (r * 1e8).round() / 1e6);
     differ(
         "discount rate",
-        format!("{} %", x.discount_rate * 100.0),
-        format!("{} %", y.discount_rate * 100.0),
+        percent(x.discount_rate),
+        percent(y.discount_rate),
     );
     differ(
         "base year",
@@ -584,6 +587,26 @@ fn differences(a: &Summary, b: &Summary) -> Vec<String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn differing_assumptions_are_said_plainly() {
+        let mut a = Summary::default();
+        a.assumptions.discount_rate = 0.06;
+        a.budget_scale = 1.0;
+        let mut b = a.clone();
+        assert!(differences(&a, &b).is_empty());
+        b.assumptions.discount_rate = 0.07;
+        b.budget_scale = 0.8;
+        b.assumptions.unit_values.crash = 1.0;
+        assert_eq!(
+            differences(&a, &b),
+            [
+                "every budget line scaled by: 1 in A, 0.8 in B",
+                "discount rate: 6 % in A, 7 % in B",
+                "road-user unit values differ (see each summary.json)",
+            ]
+        );
+    }
 
     #[test]
     fn a_change_of_years_or_triggers_is_timing_and_of_treatments_is_treatment() {
