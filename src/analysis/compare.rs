@@ -295,6 +295,18 @@ impl Comparison {
         out
     }
 
+    /// The two plans' works over all years: how many, and their cost in cents, exactly.
+    pub fn works(&self) -> [(u64, Cents); 2] {
+        let mut out = [(0, Fixed(0)); 2];
+        for y in &self.years {
+            out[0].0 += y.works_a;
+            out[0].1 .0 += y.cost_a.0;
+            out[1].0 += y.works_b;
+            out[1].1 .0 += y.cost_b.0;
+        }
+        out
+    }
+
     /// The lines whose price moved or whose state changed.
     pub fn moved_lines(&self) -> impl Iterator<Item = &LineChange> {
         self.lines

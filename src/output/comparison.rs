@@ -145,18 +145,7 @@ pub fn terminal(c: &Comparison, all: bool) -> String {
         }
     }
     s.push('\n');
-    let cost = |k: usize| -> f64 {
-        c.years
-            .iter()
-            .map(|y| if k == 0 { y.cost_a } else { y.cost_b }.to_f64())
-            .sum()
-    };
-    let works = |k: usize| -> u64 {
-        c.years
-            .iter()
-            .map(|y| if k == 0 { y.works_a } else { y.works_b })
-            .sum()
-    };
+    let [(works_a, cost_a), (works_b, cost_b)] = c.works();
     let _ = writeln!(s, "{:<28} {:>16} {:>16}  B − A", "", "A", "B");
     let mut row = |name: &str, a: f64, b: f64, decimals: usize| {
         let _ = writeln!(
@@ -180,8 +169,13 @@ pub fn terminal(c: &Comparison, all: bool) -> String {
         sb.pv_capital.plan,
         0,
     );
-    row(&format!("works cost ({m})"), cost(0), cost(1), 0);
-    row("works", works(0) as f64, works(1) as f64, 0);
+    row(
+        &format!("works cost ({m})"),
+        cost_a.to_f64(),
+        cost_b.to_f64(),
+        0,
+    );
+    row("works", works_a as f64, works_b as f64, 0);
     if let Some((ia, ib)) = c.period_iri() {
         let span = match (c.years.first(), c.years.last()) {
             (Some(f), Some(l)) => format!(", {}–{}", f.year.0, l.year.0),

@@ -77,12 +77,7 @@ pub fn page(c: &Comparison) -> String {
         }
         s.push_str("</ul>");
     }
-    let cost = |k: usize| -> f64 {
-        c.years
-            .iter()
-            .map(|y| if k == 0 { y.cost_a } else { y.cost_b }.to_f64())
-            .sum()
-    };
+    let [(_, cost_a), (_, cost_b)] = c.works();
     s.push_str(&table_head(
         r#"<table class="totals">"#,
         &[("item", false), ("A", true), ("B", true), ("B − A", true)],
@@ -95,7 +90,7 @@ pub fn page(c: &Comparison) -> String {
             sb.pv_agency_cost.plan,
         ),
         ("PV capital", sa.pv_capital.plan, sb.pv_capital.plan),
-        ("Works cost", cost(0), cost(1)),
+        ("Works cost", cost_a.to_f64(), cost_b.to_f64()),
     ] {
         let _ = write!(
             s,
