@@ -197,14 +197,17 @@ pub fn terminal(c: &Comparison, all: bool) -> String {
     let changed: Vec<&SectionChange> = c.sections.iter().filter(|r| r.change != "none").collect();
     let in_a = c.sections.len() - n(Change::OnlyB);
     let in_b = c.sections.len() - n(Change::OnlyA);
+    let count = |k: usize| grouped(k as f64, 0);
     let _ = writeln!(
         s,
-        "Sections: {in_a} in A, {in_b} in B; {} chose differently ({} in timing, {} in treatment), {} only in A, {} only in B",
-        n(Change::Timing) + n(Change::Treatment),
-        n(Change::Timing),
-        n(Change::Treatment),
-        n(Change::OnlyA),
-        n(Change::OnlyB)
+        "Sections: {} in A, {} in B; {} chose differently ({} in timing, {} in treatment), {} only in A, {} only in B",
+        count(in_a),
+        count(in_b),
+        count(n(Change::Timing) + n(Change::Treatment)),
+        count(n(Change::Timing)),
+        count(n(Change::Treatment)),
+        count(n(Change::OnlyA)),
+        count(n(Change::OnlyB))
     );
     if !changed.is_empty() {
         let mut shown = changed.clone();
