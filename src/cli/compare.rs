@@ -134,39 +134,29 @@ fn side(
             time_limit: Duration::from_secs_f64(time_limit),
         },
     };
-    let bar = ctx.progress.bar(
-        &format!("simulate {which}"),
-        run.network.sections.len() as u64,
-        "sections",
-    );
     // A failure says which side it is of.
-    let of_side = |e: Error| match e {
-        Error::Infeasible(m) => Error::Infeasible(m.prefixed(&format!(
-            "plan {which} ({} planned afresh): ",
-            path.display()
-        ))),
-        Error::Usage(m) => Error::Usage(format!(
-            "plan {which} ({} planned afresh): {m}",
-            path.display()
-        )),
-        other => other,
-    };
-    let candidates = pavestrat::plan::candidates_with(&run, &settings, &bar).map_err(of_side)?;
-    bar.finish();
-    let built = started.elapsed();
-    let clock = ctx.progress.clock(&format!("select {which}"), time_limit);
-    let plan = crate::cli::bars::ticking(&clock, || {
-        pavestrat::plan::select(&run, candidates, &settings.select)
-    })
-    .map_err(of_side)?;
+    let made =
+        super::plan::simulate_and_select(&run, &settings, ctx, &format!(" {which}"), started)
+            .map_err(|e| match e {
+                Error::Infeasible(m) => Error::Infeasible(m.prefixed(&format!(
+                    "plan {which} ({} planned afresh): ",
+                    path.display()
+                ))),
+                Error::Usage(m) => Error::Usage(format!(
+                    "plan {which} ({} planned afresh): {m}",
+                    path.display()
+                )),
+                other => other,
+            })?;
     let facts = pavestrat::output::files::Facts {
         seconds: started.elapsed().as_secs_f64(),
-        candidate_seconds: built.as_secs_f64(),
-        selection_seconds: (started.elapsed() - built).as_secs_f64(),
+        candidate_seconds: made.candidate_seconds,
+        selection_seconds: made.selection_seconds,
         budget_scale,
         requested_gap: settings.select.gap,
         time_limit,
         every_widening_year: false,
     };
+    let plan = made.plan;
     Ok(comparison::side_of(&run, &plan, &facts, path))
 }

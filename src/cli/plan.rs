@@ -170,43 +170,12 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
     if args.xlsx.is_some() {
         pavestrat::output::xlsx::available()?;
     }
-    let (strategies, secs, bytes) = pavestrat::plan::estimate(&run);
-    let allowed = pavestrat::resources::memory_allowance(f64::INFINITY);
-    if bytes > allowed {
-        let n = run.network.sections.len() as f64;
-        return Err(Error::Usage(format!(
-            "this network ({} sections, about {:.0} strategies) would need about {} to plan, more than this machine can give ({}); expected at most about {:.0} sections here: split the network (by region, say) and plan the parts with their share of each budget",
-            run.network.sections.len(),
-            strategies,
-            pavestrat::resources::bytes(bytes),
-            pavestrat::resources::bytes(allowed),
-            (n * allowed / bytes).floor()
-        )));
-    }
-    if secs > pavestrat::resources::ANNOUNCE_SECONDS || bytes > pavestrat::resources::ANNOUNCE_BYTES
-    {
-        ctx.say(&format!(
-            "note: about {strategies:.0} strategies to simulate: about {} and {} (estimated from the measured simulation speed), then the selection",
-            pavestrat::resources::duration(secs),
-            pavestrat::resources::bytes(bytes)
-        ));
-    }
-    let bar = ctx
-        .progress
-        .bar("simulate", run.network.sections.len() as u64, "sections");
-    let candidates = pavestrat::plan::candidates_with(&run, &settings, &bar)?;
-    bar.finish();
-    let built = started.elapsed();
-    let selecting = Instant::now();
-    let clock = ctx.progress.clock("select", args.time_limit);
-    let plan = crate::cli::bars::ticking(&clock, || {
-        pavestrat::plan::select(&run, candidates, &settings.select)
-    })?;
-    let selection_seconds = selecting.elapsed().as_secs_f64();
+    let made = simulate_and_select(&run, &settings, ctx, "", started)?;
+    let plan = made.plan;
     let facts = Facts {
         seconds: started.elapsed().as_secs_f64(),
-        candidate_seconds: built.as_secs_f64(),
-        selection_seconds,
+        candidate_seconds: made.candidate_seconds,
+        selection_seconds: made.selection_seconds,
         budget_scale: args.budget_scale,
         requested_gap: args.gap,
         time_limit: args.time_limit,
@@ -277,6 +246,69 @@ pub fn run(args: Args, ctx: Context) -> Result<()> {
         ))?;
     }
     Ok(())
+}
+
+/// A plan made by [`simulate_and_select`], with the seconds its stages took.
+pub(super) struct Made {
+    pub plan: pavestrat::plan::Plan,
+    /// From `started` to the end of the simulation.
+    pub candidate_seconds: f64,
+    pub selection_seconds: f64,
+}
+
+/// Simulate every section of `run` and select its plan under `settings`, as `plan` does: refused
+/// up front when the network would need more memory than the machine can give (said when it
+/// will take long), with progress bars `simulate{which}` and `select{which}`. `started` is when
+/// the run began (its loading counts towards the simulation's seconds).
+pub(super) fn simulate_and_select(
+    run: &Run,
+    settings: &Settings,
+    ctx: Context,
+    which: &str,
+    started: Instant,
+) -> Result<Made> {
+    let (strategies, secs, bytes) = pavestrat::plan::estimate(run);
+    let allowed = pavestrat::resources::memory_allowance(f64::INFINITY);
+    if bytes > allowed {
+        let n = run.network.sections.len() as f64;
+        return Err(Error::Usage(format!(
+            "this network ({} sections, about {:.0} strategies) would need about {} to plan, more than this machine can give ({}); expected at most about {:.0} sections here: split the network (by region, say) and plan the parts with their share of each budget",
+            run.network.sections.len(),
+            strategies,
+            pavestrat::resources::bytes(bytes),
+            pavestrat::resources::bytes(allowed),
+            (n * allowed / bytes).floor()
+        )));
+    }
+    if secs > pavestrat::resources::ANNOUNCE_SECONDS || bytes > pavestrat::resources::ANNOUNCE_BYTES
+    {
+        ctx.say(&format!(
+            "note: about {strategies:.0} strategies to simulate: about {} and {} (estimated from the measured simulation speed), then the selection",
+            pavestrat::resources::duration(secs),
+            pavestrat::resources::bytes(bytes)
+        ));
+    }
+    let bar = ctx.progress.bar(
+        &format!("simulate{which}"),
+        run.network.sections.len() as u64,
+        "sections",
+    );
+    let candidates = pavestrat::plan::candidates_with(run, settings, &bar)?;
+    bar.finish();
+    let built = started.elapsed();
+    let selecting = Instant::now();
+    let clock = ctx.progress.clock(
+        &format!("select{which}"),
+        settings.select.time_limit.as_secs_f64(),
+    );
+    let plan = crate::cli::bars::ticking(&clock, || {
+        pavestrat::plan::select(run, candidates, &settings.select)
+    })?;
+    Ok(Made {
+        plan,
+        candidate_seconds: built.as_secs_f64(),
+        selection_seconds: selecting.elapsed().as_secs_f64(),
+    })
 }
 
 /// The workbook of `--xlsx`: the plan and every section's appraisal.
