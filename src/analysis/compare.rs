@@ -258,18 +258,19 @@ pub struct Comparison {
 pub type GroupUse = (String, Option<Dec>, Option<Dec>);
 
 impl Comparison {
-    /// The sections whose choice differs, and how, counted by [`Change`].
-    pub fn counts(&self) -> Vec<(Change, usize)> {
-        Change::ALL
-            .into_iter()
-            .map(|c| {
-                let n = self
-                    .sections
-                    .iter()
-                    .filter(|s| s.change == c.word())
-                    .count();
-                (c, n)
-            })
+    /// How many sections' choices differ from A to B by `change`.
+    pub fn count(&self, change: Change) -> usize {
+        self.sections
+            .iter()
+            .filter(|s| s.change == change.word())
+            .count()
+    }
+
+    /// The sections whose choice differs (or that are in one plan only), in A's order then B's.
+    pub fn changed(&self) -> Vec<&SectionChange> {
+        self.sections
+            .iter()
+            .filter(|s| s.change != Change::None.word())
             .collect()
     }
 

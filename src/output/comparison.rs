@@ -7,6 +7,7 @@ use crate::analysis::compare::{Change, Comparison, Side};
 use crate::input::Run;
 use crate::model::money::{grouped, price_figure};
 use crate::output::files::Facts;
+use crate::output::format::{signed, use_percent};
 use crate::plan::Plan;
 use crate::schema::compare::{LineChange, SectionChange, YearChange};
 use crate::schema::value::{write_text, Dec};
@@ -61,7 +62,7 @@ pub fn which(side: &Side) -> String {
 /// comparison: the rows its files would hold.
 pub fn side_of(run: &Run, p: &Plan, facts: &Facts, file: &std::path::Path) -> Side {
     use crate::output::files;
-    use crate::schema::carried::{carried, carried_names, Carried};
+    use crate::schema::carried::{carried, carried_names};
     let net = &run.network;
     let e = crate::enumerate::Enumerator::for_run(run);
     let first = files::first_works(p, net.sections.len());
@@ -73,15 +74,7 @@ pub fn side_of(run: &Run, p: &Plan, facts: &Facts, file: &std::path::Path) -> Si
         .iter()
         .map(|sec| {
             carried(net, sec)
-                .map(|(_, v)| match v {
-                    Carried::Text(t) => t.to_owned(),
-                    Carried::Km(Some(x)) => {
-                        let mut t = String::new();
-                        crate::schema::Value::write(&x, &mut t);
-                        t
-                    }
-                    Carried::Km(None) => String::new(),
-                })
+                .map(|(_, v)| v.text().into_owned())
                 .collect()
         })
         .collect();
@@ -100,12 +93,8 @@ pub fn side_of(run: &Run, p: &Plan, facts: &Facts, file: &std::path::Path) -> Si
 /// `b − a` with its sign, and its share of `a` when `a` is not zero.
 fn change_text(a: f64, b: f64, decimals: usize) -> String {
     let d = b - a;
-    let sign = if d > 0.0 && grouped(d, decimals) != grouped(0.0, decimals) {
-        "+"
-    } else {
-        ""
-    };
-    let mut t = format!("{sign}{}", grouped(d, decimals));
+    let mut t = signed(d, decimals);
+    let sign = if t.starts_with('+') { "+" } else { "" };
     if a.abs() > 0.0 && d != 0.0 {
         let _ = write!(t, " ({sign}{:.1} %)", 100.0 * d / a.abs());
     }
@@ -119,10 +108,7 @@ fn dec(x: Option<Dec>) -> f64 {
 /// The use of a line as a share of its limit, or `—` without the line.
 fn share(limit: Option<Dec>, used: Option<Dec>) -> String {
     match (limit, used) {
-        (Some(l), Some(u)) if l.to_f64() > 0.0 => {
-            format!("{:.1}%", 100.0 * u.to_f64() / l.to_f64())
-        }
-        (Some(_), Some(_)) => "0.0%".to_owned(),
+        (Some(l), Some(u)) => format!("{:.1}%", use_percent(l.to_f64(), u.to_f64())),
         _ => "—".to_owned(),
     }
 }
@@ -192,9 +178,8 @@ pub fn terminal(c: &Comparison, all: bool) -> String {
     s.push('\n');
 
     // Sections.
-    let counts = c.counts();
-    let n = |ch: Change| counts.iter().find(|x| x.0 == ch).map_or(0, |x| x.1);
-    let changed: Vec<&SectionChange> = c.sections.iter().filter(|r| r.change != "none").collect();
+    let n = |ch: Change| c.count(ch);
+    let changed = c.changed();
     let in_a = c.sections.len() - n(Change::OnlyB);
     let in_b = c.sections.len() - n(Change::OnlyA);
     let count = |k: usize| grouped(k as f64, 0);

@@ -148,6 +148,26 @@ mod tests {
 
 pub use crate::model::money::price_figure;
 
+/// An amount with thousands separators and `decimals` places, `+` before it when it shows
+/// above zero (a change: `+1,234`, `-567`, `0`).
+pub fn signed(x: f64, decimals: usize) -> String {
+    let t = crate::model::money::grouped(x, decimals);
+    if x > 0.0 && t != crate::model::money::grouped(0.0, decimals) {
+        format!("+{t}")
+    } else {
+        t
+    }
+}
+
+/// How much of a line's limit is used, in percent (0 for a zero limit).
+pub fn use_percent(limit: f64, used: f64) -> f64 {
+    if limit > 0.0 {
+        100.0 * used / limit
+    } else {
+        0.0
+    }
+}
+
 /// A line's price beside its state, as the terminal, the workbook and the report show it: a
 /// binding line's price; a slack line's price in brackets when the bound prices it (a price of
 /// the relaxation, which the plan's whole choices leave room under); `—` for a slack line with

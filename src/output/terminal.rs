@@ -11,7 +11,7 @@ use crate::input::plan::Objective;
 use crate::input::Run;
 use crate::model::money::grouped;
 use crate::output::files::Facts;
-use crate::output::format::{price_beside_state, share_text};
+use crate::output::format::{price_beside_state, share_text, use_percent};
 use crate::plan::{LineState, Plan, RowKind};
 use std::fmt::Write as _;
 
@@ -385,15 +385,6 @@ fn explain_difference(
         );
     }
     s
-}
-
-/// How much of a line's limit is used, in percent (0 for a zero limit).
-fn use_percent(limit: f64, used: f64) -> f64 {
-    if limit > 0.0 {
-        100.0 * used / limit
-    } else {
-        0.0
-    }
 }
 
 /// Years listed one by one in the programme on screen; later years with works are summed in one

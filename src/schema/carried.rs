@@ -90,14 +90,26 @@ pub fn carried_head(net: &Network) -> String {
     h
 }
 
+impl Carried<'_> {
+    /// The cell's text as the CSV files hold it, before any quoting (a chainage to the metre,
+    /// empty for none).
+    pub fn text(&self) -> std::borrow::Cow<'_, str> {
+        match self {
+            Carried::Text(t) => std::borrow::Cow::Borrowed(t),
+            Carried::Km(Some(x)) => {
+                let mut s = String::new();
+                super::Value::write(x, &mut s);
+                std::borrow::Cow::Owned(s)
+            }
+            Carried::Km(None) => std::borrow::Cow::Borrowed(""),
+        }
+    }
+}
+
 /// A section's cells of [`carried`]'s columns, each after a comma.
 pub fn carried_cells(net: &Network, sec: &Section, out: &mut String) {
     for (_, v) in carried(net, sec) {
         out.push(',');
-        match v {
-            Carried::Text(t) => super::value::write_text(t, out),
-            Carried::Km(Some(x)) => super::Value::write(&x, out),
-            Carried::Km(None) => {}
-        }
+        super::value::write_text(&v.text(), out);
     }
 }

@@ -8,6 +8,7 @@ use super::extra::axis_title;
 use super::{table_head, CSS};
 use crate::analysis::compare::{Change, Comparison};
 use crate::model::money::{grouped, price_figure};
+use crate::output::format::signed;
 use crate::schema::value::{Dec, Fixed, Price};
 use std::fmt::Write as _;
 
@@ -16,15 +17,6 @@ pub const PAGE_SECTIONS: usize = 3000;
 
 fn money(x: f64) -> String {
     grouped(x, 0)
-}
-
-fn signed(x: f64, decimals: usize) -> String {
-    let t = grouped(x, decimals);
-    if x > 0.0 && t != grouped(0.0, decimals) {
-        format!("+{t}")
-    } else {
-        t
-    }
 }
 
 fn opt_dec(x: Option<Dec>) -> String {
@@ -234,8 +226,7 @@ fn years_section(c: &Comparison, m: &str) -> String {
 }
 
 fn sections_section(c: &Comparison, m: &str) -> String {
-    let counts = c.counts();
-    let n = |ch: Change| counts.iter().find(|x| x.0 == ch).map_or(0, |x| x.1);
+    let n = |ch: Change| c.count(ch);
     let mut s = String::from(r#"<section id="sections"><h2>Sections that chose differently</h2>"#);
     let _ = write!(
         s,
@@ -246,7 +237,7 @@ fn sections_section(c: &Comparison, m: &str) -> String {
         n(Change::OnlyA),
         n(Change::OnlyB)
     );
-    let changed: Vec<_> = c.sections.iter().filter(|r| r.change != "none").collect();
+    let changed = c.changed();
     if changed.is_empty() {
         s.push_str("</section>");
         return s;

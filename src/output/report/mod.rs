@@ -409,7 +409,14 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
         esc(&crate::output::format::share_text(sm.binding_within)),
         esc(m)
     );
-    s.push_str(&works_by_year_chart(rows, works, m));
+    // Capital works by year: their number and cost, and whether a line limits the year.
+    let mut by_year: BTreeMap<i32, (usize, f64)> = BTreeMap::new();
+    for w in works.iter().filter(|w| w.category != "routine") {
+        let e = by_year.entry(w.year.0).or_default();
+        e.0 += 1;
+        e.1 += w.cost.to_f64();
+    }
+    s.push_str(&works_by_year_chart(rows, &by_year, m));
     for (g, cat, region, lines) in &groups {
         let top = lines.iter().map(|l| l.1.max(l.2)).fold(0.0, f64::max);
         let (units, word) = Units::money(top);
@@ -458,15 +465,11 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
     s.push_str("</div>");
     // The same as a table.
     // Capital works in years no line limits: spent without a limit, said and listed.
-    let limited = |y: i32| capital_limited(rows, y);
-    let mut free: BTreeMap<i32, (usize, f64)> = BTreeMap::new();
-    for w in works.iter().filter(|w| w.category != "routine") {
-        if !limited(w.year.0) {
-            let e = free.entry(w.year.0).or_default();
-            e.0 += 1;
-            e.1 += w.cost.to_f64();
-        }
-    }
+    let free: BTreeMap<i32, (usize, f64)> = by_year
+        .iter()
+        .filter(|(y, _)| !capital_limited(rows, **y))
+        .map(|(y, v)| (*y, *v))
+        .collect();
     if !free.is_empty() {
         let total: f64 = free.values().map(|v| v.1).sum();
         let _ = write!(
@@ -507,11 +510,7 @@ fn spending_section(rows: &[BudgetUse], works: &[Work], sm: &Summary) -> String 
                 esc(name),
                 money(*limit, m),
                 money(*used, m),
-                if *limit > 0.0 {
-                    100.0 * used / limit
-                } else {
-                    0.0
-                },
+                crate::output::format::use_percent(*limit, *used),
                 if *binding { "binding" } else { "slack" },
                 crate::output::format::price_beside_state(*price, *binding)
             );
@@ -527,18 +526,19 @@ fn capital_limited(rows: &[BudgetUse], year: i32) -> bool {
         .any(|r| r.year.0 == year && (r.category == "capital" || r.category == "all"))
 }
 
-/// The cost of the programme's capital works in every year it has works, each bar coloured by
-/// whether a budget line limits capital works that year.
-fn works_by_year_chart(rows: &[BudgetUse], works: &[Work], m: &str) -> String {
-    let mut by_year: BTreeMap<i32, f64> = BTreeMap::new();
-    for w in works.iter().filter(|w| w.category != "routine") {
-        *by_year.entry(w.year.0).or_default() += w.cost.to_f64();
-    }
+/// The cost of the programme's capital works in every year it has works (`by_year`: each year's
+/// number of works and their cost), each bar coloured by whether a budget line limits capital
+/// works that year.
+fn works_by_year_chart(
+    rows: &[BudgetUse],
+    by_year: &BTreeMap<i32, (usize, f64)>,
+    m: &str,
+) -> String {
     let (Some((&y0, _)), Some((&y1, _))) = (by_year.first_key_value(), by_year.last_key_value())
     else {
         return String::new();
     };
-    let top = by_year.values().copied().fold(0.0, f64::max);
+    let top = by_year.values().map(|v| v.1).fold(0.0, f64::max);
     let (units, word) = Units::money(top);
     let y_title = axis_title("Money", m, word);
     let mut c = Chart::new(Spec {
@@ -557,7 +557,7 @@ fn works_by_year_chart(rows: &[BudgetUse], works: &[Work], m: &str) -> String {
         y2: None,
     });
     let mut any_free = false;
-    for (&y, &cost) in &by_year {
+    for (&y, &(_, cost)) in by_year {
         if capital_limited(rows, y) {
             c.bar("limited", BLUE, f64::from(y), 0.7, 0.0, cost, "");
         } else {
